@@ -1,0 +1,98 @@
+"""SMILES in, a validated hydrocarbon or a reasoned rejection out — never an exception."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from rdkit import Chem
+from rdkit.Chem import rdmolops
+
+from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.rdkit_log import quiet_rdkit
+
+_ELEMENT_NAMES = {
+    "N": "nitrogen", "O": "oxygen", "S": "sulfur", "P": "phosphorus", "F": "fluorine",
+    "Cl": "chlorine", "Br": "bromine", "I": "iodine", "B": "boron", "Si": "silicon",
+    "Se": "selenium", "Na": "sodium", "K": "potassium", "Li": "lithium", "Mg": "magnesium",
+}
+
+#: Rejection codes, in the order they are tested.
+REASON_CODES = (
+    "empty",
+    "unparsable",
+    "fragments",
+    "heteroatom",
+    "isotope",
+    "charged",
+    "radical",
+    "too_large",
+)
+
+
+def to_mol(smiles: str | None) -> Chem.Mol | None:
+    """Parse SMILES quietly; None when RDKit cannot."""
+    if not smiles:
+        return None
+    with quiet_rdkit():
+        try:
+            return Chem.MolFromSmiles(smiles)
+        except Exception:  # RDKit raises on a few pathological inputs
+            return None
+
+
+@dataclass(frozen=True)
+class Parsed:
+    """Outcome of validating one input structure."""
+
+    mol: Chem.Mol | None
+    """The molecule when accepted, else None."""
+    reason_code: str
+    """Empty when accepted, else one of :data:`REASON_CODES`."""
+    reason: str
+    """A sentence for the chemist; empty when accepted."""
+
+    @property
+    def ok(self) -> bool:
+        """True when the structure was accepted."""
+        return self.mol is not None
+
+
+def _reject(code: str, reason: str) -> Parsed:
+    return Parsed(None, code, reason)
+
+
+def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS) -> Parsed:
+    """Accept neutral, closed-shell, single-fragment, unlabelled C/H molecules."""
+    if smiles is None or (isinstance(smiles, float) and smiles != smiles):
+        return _reject("empty", "no SMILES given")
+    if not isinstance(smiles, str):
+        smiles = str(smiles)
+    text = smiles.strip()
+    if not text:
+        return _reject("empty", "no SMILES given")
+    mol = to_mol(text)
+    if mol is None:
+        return _reject("unparsable", f"RDKit cannot parse the SMILES {text[:60]!r}")
+    if mol.GetNumAtoms() == 0:
+        return _reject("empty", "the SMILES holds no atoms")
+    n_frags = len(rdmolops.GetMolFrags(mol))
+    if n_frags > 1:
+        return _reject("fragments", f"{n_frags} separate fragments; give one molecule per row")
+    foreign = sorted({a.GetSymbol() for a in mol.GetAtoms() if a.GetAtomicNum() not in (1, 6)})
+    if foreign:
+        names = ", ".join(_ELEMENT_NAMES.get(s, s) for s in foreign)
+        return _reject("heteroatom", f"contains {names}; only hydrocarbons (C, H) are modelled")
+    if any(a.GetIsotope() for a in mol.GetAtoms()):
+        return _reject("isotope", "isotope-labelled atoms; kinetic isotope effects are not modelled")
+    if any(a.GetAtomicNum() == 1 for a in mol.GetAtoms()):
+        # Explicit [H] atoms would hide their hydrogens from the site count.
+        with quiet_rdkit():
+            mol = Chem.RemoveHs(mol)
+    if any(a.GetFormalCharge() for a in mol.GetAtoms()):
+        return _reject("charged", "charged species (carbocation/carbanion); only neutral molecules are modelled")
+    if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
+        return _reject("radical", "open-shell species (unpaired electrons); only closed-shell molecules are modelled")
+    n_heavy = mol.GetNumHeavyAtoms()
+    if n_heavy > max_heavy_atoms:
+        return _reject("too_large", f"{n_heavy} carbons exceeds the limit of {max_heavy_atoms}")
+    return Parsed(mol, "", "")

@@ -1,0 +1,180 @@
+"""Every number the selectivity model rests on, each with its source.
+
+Nothing else in the engine holds a chemical constant. Values are tagged with a
+``basis`` so every prediction can say what it stands on:
+
+* ``measured``  – a published measurement, cited;
+* ``textbook``  – a standard textbook value (cited, but checked from memory);
+* ``estimate``  – derived here (Bell–Evans–Polanyi, additivity), with the
+  assumption stated;
+* values we could not re-check against the paper are marked "from memory".
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+Basis = Literal["measured", "textbook", "estimate"]
+
+#: Gas constant, kcal mol⁻¹ K⁻¹ (CODATA: 8.314462618 J mol⁻¹ K⁻¹ / 4184).
+R_KCAL = 8.314462618 / 4184.0
+KELVIN = 273.15
+
+
+@dataclass(frozen=True)
+class Value:
+    """A number with its provenance."""
+
+    value: float
+    """The number itself, in the unit named by the constant that holds it."""
+    basis: Basis
+    """How solid it is: measured, textbook or estimate."""
+    source: str
+    """Where it comes from (citation, or the derivation for estimates)."""
+
+
+# ---------------------------------------------------------------------------
+# C–H and H–X bond dissociation enthalpies at 298 K, kcal/mol.
+# Blanksby, S. J.; Ellison, G. B. "Bond Dissociation Energies of Organic
+# Molecules", Acc. Chem. Res. 2003, 36, 255–263, Table 1 (values from memory,
+# as quoted in the project brief).
+# ---------------------------------------------------------------------------
+_BE = "Blanksby & Ellison, Acc. Chem. Res. 2003, 36, 255 (from memory)"
+
+BDE: dict[str, Value] = {
+    "methane": Value(105.0, "measured", _BE + ": CH3–H"),
+    "primary": Value(101.1, "measured", _BE + ": C2H5–H"),
+    "secondary": Value(98.6, "measured", _BE + ": (CH3)2CH–H"),
+    "tertiary": Value(96.5, "measured", _BE + ": (CH3)3C–H"),
+    "allyl": Value(88.8, "measured", _BE + ": CH2=CHCH2–H"),
+    "benzyl": Value(89.7, "measured", _BE + ": C6H5CH2–H"),
+    "vinyl": Value(110.7, "measured", _BE + ": CH2=CH–H"),
+    "phenyl": Value(112.9, "measured", _BE + ": C6H5–H"),
+    # Not in the brief's list; both from memory of the same review and of
+    # Luo, Comprehensive Handbook of Chemical Bond Energies (CRC, 2007).
+    "propargyl": Value(90.0, "estimate", "HC≡CCH2–H ≈ 90 kcal/mol, Luo 2007 (from memory)"),
+    "ethynyl": Value(133.3, "measured", _BE + ": HC≡C–H (from memory)"),
+    "cyclopropyl": Value(106.3, "measured", "c-C3H5–H, Luo 2007 (from memory)"),
+}
+
+BDE_HX: dict[str, Value] = {
+    "cl": Value(103.2, "measured", _BE + ": H–Cl"),
+    "br": Value(87.5, "measured", _BE + ": H–Br"),
+    "f": Value(136.3, "measured", _BE + ": H–F (from memory)"),
+    "i": Value(71.3, "measured", _BE + ": H–I (from memory)"),
+}
+
+# ---------------------------------------------------------------------------
+# Cl· + alkane, site-specific Arrhenius fits, 295–469 K, gas phase.
+# Sarzyński, D.; Sztuba, B. Int. J. Chem. Kinet. 2002, 34, 651.
+# k = A·exp(−B/T) per *site* (cm³ molecule⁻¹ s⁻¹); per-H A = A / n_H.
+# We adopt propane's primary and secondary fits and isobutane's tertiary fit
+# as the generic per-H constants; the n-butane fits agree with propane's
+# per-H ratio to better than 2 % over the range.
+# ---------------------------------------------------------------------------
+_SS = "Sarzyński & Sztuba, Int. J. Chem. Kinet. 2002, 34, 651"
+
+
+@dataclass(frozen=True)
+class Arrhenius:
+    """Per-hydrogen Arrhenius parameters for one site class and one radical."""
+
+    a_per_h: float
+    """Pre-exponential factor per hydrogen, cm³ molecule⁻¹ s⁻¹."""
+    ea: float
+    """Activation energy, kcal/mol (may be negative for Cl·)."""
+    basis: Basis
+    """How solid the pair is: measured, textbook or estimate."""
+    source: str
+    """Citation, or the derivation for estimates."""
+
+
+def _from_b(a_site: float, n_h: int, b_kelvin: float, source: str) -> Arrhenius:
+    return Arrhenius(a_site / n_h, b_kelvin * R_KCAL, "measured", source)
+
+
+CL_ANCHORS: dict[str, Arrhenius] = {
+    "primary": _from_b(7.4e-11, 6, 70.0, _SS + ": propane CH3, 7.4e-11·exp(−70/T)"),
+    "secondary": _from_b(5.1e-11, 2, -104.0, _SS + ": propane CH2, 5.1e-11·exp(+104/T)"),
+    "tertiary": _from_b(2.9e-11, 1, -155.0, _SS + ": isobutane CH, 2.9e-11·exp(+155/T)"),
+}
+#: The other fits of the same paper, kept for the consistency test.
+CL_OTHER_FITS: dict[str, tuple[float, int, float]] = {
+    "n-butane primary": (7.3e-11, 6, 68.0),
+    "n-butane secondary": (9.9e-11, 4, -106.0),
+    "isobutane primary": (13.0e-11, 9, 104.0),
+}
+CL_RANGE_K = (295.0, 469.0)
+
+# Ethylbenzene, liquid-phase photochlorination: α 90 % / β 10 % near room
+# temperature — the widely quoted value (attributed to G. A. Russell's
+# photochlorination work of the 1950s; attribution from memory, not re-checked),
+# i.e. 13.5 per H relative to the β CH3. We attribute the benzylic excess over
+# an ordinary secondary C–H entirely to the activation energy (same A as the
+# secondary anchor) — an assumption, so the derived constants are estimates.
+CL_ETHYLBENZENE_ALPHA_PCT = Value(
+    90.0, "measured", "ethylbenzene + Cl2, liquid phase, α 90 %/β 10 % (G. A. Russell's photochlorination work; from memory)"
+)
+CL_ETHYLBENZENE_T_K = 298.15
+
+# ---------------------------------------------------------------------------
+# Br·: relative per-H reactivity 1 : 82 : 1600 (primary : secondary : tertiary)
+# at 127 °C, liquid phase — Morrison & Boyd, Organic Chemistry (textbook,
+# from memory). Kinetics near 400 K in the gas phase give a steeper
+# ≈1 : 200 : 6500 (Seakins, Pilling et al., J. Phys. Chem. 1992, 96, 9847).
+# We adopt the textbook ratios because halosift predicts preparative product
+# mixtures, which is what those ratios were measured on, and they reproduce
+# published bromination product ratios (propane 3/97 at 127 °C). With no
+# site-specific A factors available we assume equal A per H, so the ratios
+# become activation-energy differences ΔEa = −RT·ln(ratio) at 400.15 K.
+# ---------------------------------------------------------------------------
+_MB = "Morrison & Boyd, Organic Chemistry, per-H 1 : 82 : 1600 at 127 °C (textbook, from memory)"
+BR_REFERENCE_T_K = 127.0 + KELVIN
+BR_RATIOS: dict[str, Value] = {
+    "primary": Value(1.0, "textbook", _MB),
+    "secondary": Value(82.0, "textbook", _MB),
+    "tertiary": Value(1600.0, "textbook", _MB),
+}
+#: Absolute scale for Br· is irrelevant to product ratios; a representative
+#: A per H (order of magnitude of Br + C2H6) keeps the numbers physical.
+BR_A_PER_H = Value(
+    1.0e-11, "estimate", "order of magnitude of Br + alkane A factors per H; cancels in every product ratio"
+)
+BR_EA_PRIMARY = Value(
+    13.5, "estimate", "Br + C2H6 activation energy ≈ 13–14 kcal/mol (NIST kinetics database, from memory); cancels in ratios"
+)
+BR_RANGE_K = (298.0, 473.0)  # where liquid-phase ratios are in common use (common practice)
+
+# ---------------------------------------------------------------------------
+# Bell–Evans–Polanyi transfer coefficients α: ΔEa = α·ΔH for sites that have
+# no measurement of their own (benzylic/allylic/propargylic toward Br·;
+# methane and cyclopropyl C–H toward both radicals).
+# ---------------------------------------------------------------------------
+BEP_ALPHA_DELOCALISED_BR = Value(
+    0.5,
+    "estimate",
+    "chosen so Ea(Br + toluene) − Ea(Br + ethane) ≈ −5.7 kcal/mol, in line with the "
+    "≈ −6 kcal/mol of gas-phase Br· data (NIST kinetics database, from memory)",
+)
+#: α for saturated sites is fitted here to the measured anchors of each radical
+#: (see ``engine.rates``); it extrapolates the alkyl series to methane and
+#: cyclopropane C–H, which are stronger bonds.
+BEP_NOTE_ALKYL = (
+    "α fitted by least squares to the primary/secondary/tertiary anchors of the same radical "
+    "against their C–H bond enthalpies (estimate)"
+)
+
+# ---------------------------------------------------------------------------
+# Cl· + methane, for completeness (a one-product substrate; absolute k only).
+# JPL Publication 19-5 (Burkholder et al. 2019): 7.1e-12·exp(−1270/T) for 4 H
+# (from memory).
+# ---------------------------------------------------------------------------
+CL_METHANE = _from_b(7.1e-12, 4, 1270.0, "JPL Publication 19-5, Cl + CH4, 7.1e-12·exp(−1270/T) (from memory)")
+
+# ---------------------------------------------------------------------------
+# Reagent defaults and verdict threshold (common practice, no source).
+# ---------------------------------------------------------------------------
+DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0}
+DEFAULT_THRESHOLD_PCT = 90.0
+DEFAULT_MAX_HEAVY_ATOMS = 150

@@ -1,0 +1,157 @@
+"""Perception: the one expensive RDKit pass per structure, into two compact tables.
+
+Everything condition-dependent (reagent, temperature, threshold) is computed
+later from these tables by :mod:`engine.weigh` without touching RDKit again.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+import pyarrow as pa
+from rdkit import Chem
+
+from engine.molecules import parse_hydrocarbon, quiet_rdkit
+from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
+from engine.sites import has_specified_stereo, site_groups, substitute
+from engine.stereo import StereoOutcome, stereo_outcome
+
+_ABSTRACTABLE = frozenset(ABSTRACTABLE)
+#: Radical halogenation never substitutes vinyl/aryl/alkynyl C–H, so their
+#: products get no stereo analysis (it would be spent on compounds that never form).
+_NOT_FORMED = StereoOutcome("", 0, 0)
+
+#: Column types of :attr:`Perception.structures`, with what each column means.
+STRUCTURE_SCHEMA = pa.schema(
+    [
+        pa.field("status", pa.string(), metadata={"doc": "ok or rejected"}),
+        pa.field("reason_code", pa.string(), metadata={"doc": "empty when ok, else a rejection code"}),
+        pa.field("reason", pa.string(), metadata={"doc": "why it was rejected, for the chemist"}),
+        pa.field("canonical_smiles", pa.string(), metadata={"doc": "RDKit canonical isomeric SMILES"}),
+        pa.field("abstractable_h", pa.int32(), metadata={"doc": "hydrogens on abstractable sp3 C–H"}),
+        pa.field("n_heavy", pa.int32(), metadata={"doc": "carbon atoms"}),
+    ]
+)
+
+#: Column types of :attr:`Perception.sites` (one row per constitutional monohalide).
+SITE_SCHEMA = pa.schema(
+    [
+        pa.field("struct", pa.int32(), metadata={"doc": "row of the structures table"}),
+        pa.field("product", pa.string(), metadata={"doc": "canonical SMILES of the monochloride"}),
+        pa.field("site", pa.string(), metadata={"doc": "site class (engine.SITE_CLASSES)"}),
+        pa.field("site_code", pa.int8(), metadata={"doc": "index of site in engine.SITE_CLASSES"}),
+        pa.field("h_count", pa.int32(), metadata={"doc": "hydrogens in the symmetry group"}),
+        pa.field("n_carbons", pa.int32(), metadata={"doc": "equivalent carbons in the group"}),
+        pa.field("atom", pa.int32(), metadata={"doc": "a representative carbon, index in canonical-SMILES atom order"}),
+        pa.field("bde", pa.float64(), metadata={"doc": "C–H bond dissociation enthalpy, kcal/mol"}),
+        pa.field("stereo", pa.string(), metadata={"doc": "achiral / single / racemate / diastereomers; empty for C–H never abstracted"}),
+        pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed"}),
+        pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
+        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked (large cage or >256 isomers)"}),
+    ]
+)
+
+_BDE_BY_CODE = np.array([site_bde(s).value for s in SITE_CLASSES])
+
+
+@dataclass(frozen=True)
+class Perception:
+    """Per-structure and per-product tables for a list of input strings."""
+
+    structures: pd.DataFrame
+    """One row per input string, columns of :data:`STRUCTURE_SCHEMA`."""
+    sites: pd.DataFrame
+    """One row per constitutional monohalide, columns of :data:`SITE_SCHEMA`."""
+
+    def __len__(self) -> int:
+        return len(self.structures)
+
+
+def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
+    parsed = parse_hydrocarbon(smiles, max_heavy)
+    if not parsed.ok:
+        return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0), []
+    mol = parsed.mol
+    canonical = Chem.MolToSmiles(mol)
+    order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
+    position = {atom: pos for pos, atom in enumerate(order)}
+    specified = has_specified_stereo(mol)
+    rows = []
+    abstractable_h = 0
+    for group in site_groups(mol):
+        if group.site in _ABSTRACTABLE:
+            abstractable_h += group.h_count
+        if group.site in _ABSTRACTABLE:
+            products = [group.product]
+            if specified and len(group.atoms) > 1:
+                # Equivalent carbons of a stereo-defined input can give different
+                # stereoisomers (e.g. enantiomers); the group forms all of them.
+                products += [substitute(mol, i) for i in group.atoms[1:]]
+            st = stereo_outcome(products)
+        else:
+            st = _NOT_FORMED
+        rows.append(
+            (
+                group.product_smiles,
+                group.site,
+                group.h_count,
+                len(group.atoms),
+                min(position[i] for i in group.atoms),
+                st.outcome,
+                st.n_stereoisomers,
+                st.n_diastereomers,
+                st.approximate,
+            )
+        )
+    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms()), rows
+
+
+def perceive(smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS) -> Perception:
+    """Validate and perceive every string; rejected ones keep their row with a reason."""
+    struct_rows: list[tuple] = []
+    site_rows: list[tuple] = []
+    with quiet_rdkit():
+        for i, smi in enumerate(smiles):
+            try:
+                srow, rows = _perceive_one(smi, max_heavy_atoms)
+            except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
+                srow, rows = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0), []
+            struct_rows.append(srow)
+            site_rows.extend((i, *r) for r in rows)
+    structures = pd.DataFrame(struct_rows, columns=STRUCTURE_SCHEMA.names[:6])
+    structures = structures.astype({"abstractable_h": "int32", "n_heavy": "int32"})
+    sites = _site_frame(site_rows)
+    return Perception(structures, sites)
+
+
+def _site_frame(rows: list[tuple]) -> pd.DataFrame:
+    cols = ["struct", "product", "site", "h_count", "n_carbons", "atom", "stereo", "n_stereoisomers",
+            "n_diastereomers", "stereo_approx"]
+    df = pd.DataFrame(rows, columns=cols)
+    codes = {name: i for i, name in enumerate(SITE_CLASSES)}
+    df["site_code"] = df["site"].map(codes).astype("int8")
+    df["bde"] = _BDE_BY_CODE[df["site_code"].to_numpy()] if len(df) else pd.Series(dtype="float64")
+    df = df.astype(
+        {"struct": "int32", "h_count": "int32", "n_carbons": "int32", "atom": "int32",
+         "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool"}
+    )
+    return df[SITE_SCHEMA.names]
+
+
+def concat(parts: Sequence[Perception]) -> Perception:
+    """Join perceptions of consecutive slices, renumbering ``struct``."""
+    offset = 0
+    sites = []
+    for part in parts:
+        s = part.sites.copy()
+        s["struct"] = (s["struct"] + offset).astype("int32")
+        sites.append(s)
+        offset += len(part.structures)
+    structures = pd.concat([p.structures for p in parts], ignore_index=True) if parts else pd.DataFrame(
+        columns=STRUCTURE_SCHEMA.names
+    )
+    return Perception(structures, pd.concat(sites, ignore_index=True) if sites else _site_frame([]))

@@ -1,0 +1,53 @@
+"""The C–H site classes halosift distinguishes, and their bond enthalpies."""
+
+from __future__ import annotations
+
+from engine.parameters import BDE, Value
+
+DEGREES = ("primary", "secondary", "tertiary")
+DELOCALISED = ("allylic", "benzylic", "propargylic")
+
+#: Sites radical halogenation abstracts, in a fixed order (their integer codes).
+ABSTRACTABLE: tuple[str, ...] = (
+    "methane",
+    *DEGREES,
+    "cyclopropyl",
+    *(f"{kind}-{degree}" for kind in DELOCALISED for degree in DEGREES),
+)
+#: C–H bonds on sp2/sp carbons: listed, never weighted (their radicals are σ
+#: radicals with no stabilisation; BDE 110–133 kcal/mol).
+NOT_ABSTRACTED: tuple[str, ...] = ("vinyl", "aryl", "alkynyl")
+SITE_CLASSES: tuple[str, ...] = ABSTRACTABLE + NOT_ABSTRACTED
+SITE_CODE: dict[str, int] = {name: i for i, name in enumerate(SITE_CLASSES)}
+
+_PARENT_OF_DELOCALISED = {"allylic": "allyl", "benzylic": "benzyl", "propargylic": "propargyl"}
+
+
+def delocalisation_shift(kind: str) -> float:
+    """How much an adjacent π system weakens a primary C–H, kcal/mol (negative)."""
+    return BDE[_PARENT_OF_DELOCALISED[kind]].value - BDE["primary"].value
+
+
+def site_bde(site: str) -> Value:
+    """C–H bond dissociation enthalpy of a site class, kcal/mol, with its basis.
+
+    Secondary and tertiary delocalised sites assume the π-system shift measured
+    on the primary parent adds to the alkyl value (additivity: an estimate).
+    """
+    if site in BDE:
+        return BDE[site]
+    if site == "aryl":
+        return BDE["phenyl"]
+    if site == "alkynyl":
+        return BDE["ethynyl"]
+    kind, degree = site.split("-")
+    parent = BDE[_PARENT_OF_DELOCALISED[kind]]
+    if degree == "primary":
+        return parent
+    value = BDE[degree].value + delocalisation_shift(kind)
+    return Value(
+        round(value, 2),
+        "estimate",
+        f"{degree} alkyl C–H ({BDE[degree].value}) shifted by the {kind} parent's "
+        f"{delocalisation_shift(kind):+.1f} kcal/mol (additivity estimate)",
+    )

@@ -1,0 +1,121 @@
+"""Re-weighing: product percentages and verdicts from a perception, vectorised.
+
+No RDKit here — this runs live in the app for every change of conditions.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+from engine.conditions import REAGENTS, Conditions
+from engine.perceive import Perception
+from engine.rates import rate_table
+from engine.site_classes import SITE_CLASSES
+
+VERDICTS = ("single", "br-selective", "mixture", "inert")
+SUMMARY_COLUMNS = (
+    "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",
+)
+
+
+def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> np.ndarray:
+    """Rate of forming each product (h_count × k per H), arbitrary units."""
+    k = rate_table(REAGENTS[reagent]).per_h(conditions.temp_k(reagent))
+    return sites["h_count"].to_numpy(dtype=np.float64) * k[sites["site_code"].to_numpy()]
+
+
+def _percent(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarray:
+    totals = np.bincount(struct, weights=weights, minlength=n_struct)
+    denom = totals[struct]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        pct = np.where(denom > 0, 100.0 * weights / np.where(denom > 0, denom, 1.0), 0.0)
+    return pct
+
+
+def weigh(sites: pd.DataFrame, conditions: Conditions, n_struct: int | None = None) -> pd.DataFrame:
+    """The sites table plus ``cl2_pct`` and ``br2_pct`` (percent per structure)."""
+    struct = sites["struct"].to_numpy()
+    if n_struct is None:
+        n_struct = int(struct.max()) + 1 if len(struct) else 0
+    out = sites.copy()
+    for reagent in REAGENTS:
+        out[f"{reagent}_pct"] = _percent(site_weights(sites, conditions, reagent), struct, n_struct)
+    return out
+
+
+def _segments(struct: np.ndarray) -> np.ndarray:
+    """Start index of each run of equal ``struct`` (sites are grouped by structure)."""
+    if len(struct) == 0:
+        return np.zeros(0, dtype=np.int64)
+    return np.flatnonzero(np.r_[True, struct[1:] != struct[:-1]])
+
+
+def _first_max(values: np.ndarray, struct: np.ndarray, starts: np.ndarray) -> np.ndarray:
+    """Row index of the first maximum of ``values`` within each segment."""
+    seg_max = np.maximum.reduceat(values, starts)
+    seg_of_row = np.repeat(np.arange(len(starts)), np.diff(np.r_[starts, len(values)]))
+    hits = np.flatnonzero(values >= seg_max[seg_of_row] - 1e-9)
+    hit_seg = seg_of_row[hits]
+    first = np.r_[True, hit_seg[1:] != hit_seg[:-1]]
+    return hits[first]
+
+
+def _site_type_names(masks: np.ndarray) -> np.ndarray:
+    names = np.empty(len(masks), dtype=object)
+    for mask in np.unique(masks):
+        label = ",".join(sorted(SITE_CLASSES[i] for i in range(len(SITE_CLASSES)) if int(mask) >> i & 1))
+        names[masks == mask] = label
+    return names
+
+
+def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
+    """One row per structure: product count, verdict, majors, stereo, site types."""
+    structures, sites = perception.structures, perception.sites
+    n = len(structures)
+    struct = sites["struct"].to_numpy()
+    starts = _segments(struct)
+    seg_struct = struct[starts] if len(starts) else np.zeros(0, dtype=np.int64)
+
+    weights = {r: site_weights(sites, conditions, r) for r in REAGENTS}
+    abstractable = weights["cl2"] > 0
+    n_products = np.zeros(n, dtype=np.int32)
+    n_products[:] = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
+
+    out: dict[str, object] = {"n_products": n_products}
+    products = sites["product"].to_numpy(dtype=object)
+    stereo = sites["stereo"].to_numpy(dtype=object)
+    major_stereo = np.full(n, "", dtype=object)
+    for reagent in REAGENTS:
+        pct = _percent(weights[reagent], struct, n)
+        major_smiles = np.full(n, "", dtype=object)
+        major_pct = np.full(n, np.nan)
+        if len(starts):
+            rows = _first_max(pct, struct, starts)
+            has = n_products[seg_struct] > 0
+            major_smiles[seg_struct[has]] = products[rows[has]]
+            major_pct[seg_struct[has]] = pct[rows[has]]
+            if reagent == "br2":
+                major_stereo[seg_struct[has]] = stereo[rows[has]]
+        if reagent == "br2":
+            major_smiles = pd.Series(major_smiles, dtype=object).str.replace("Cl", "Br", regex=False).to_numpy()
+        out[f"{reagent}_major"] = major_smiles
+        out[f"{reagent}_major_pct"] = major_pct
+    out["stereo"] = major_stereo
+
+    bits = np.where(abstractable, np.left_shift(1, sites["site_code"].to_numpy().astype(np.int64)), 0)
+    masks = np.zeros(n, dtype=np.int64)
+    if len(starts):
+        masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
+    out["site_types"] = _site_type_names(masks)
+
+    ok = (structures["status"] == "ok").to_numpy()
+    verdict = np.full(n, "", dtype=object)
+    br_pct = np.nan_to_num(out["br2_major_pct"], nan=0.0)
+    verdict[ok] = "mixture"
+    verdict[ok & (br_pct >= conditions.threshold_pct)] = "br-selective"
+    verdict[ok & (n_products == 1)] = "single"
+    verdict[ok & (n_products == 0)] = "inert"
+    out["verdict"] = verdict
+    frame = pd.DataFrame(out, index=structures.index)
+    return frame[list(SUMMARY_COLUMNS)]

@@ -1,0 +1,1 @@
+"""halosift command line: thin layer over the engine."""

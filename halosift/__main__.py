@@ -1,0 +1,5 @@
+import sys
+
+from halosift.cli import main
+
+sys.exit(main())

@@ -1,0 +1,58 @@
+"""Every kind of bad input becomes a reasoned rejection, never an exception."""
+
+from __future__ import annotations
+
+import pytest
+
+import engine
+from engine.molecules import parse_hydrocarbon
+
+REJECTIONS = [
+    ("", "empty"),
+    ("   ", "empty"),
+    (None, "empty"),
+    ("C1CC", "unparsable"),
+    ("CC(C", "unparsable"),
+    ("not a smiles", "unparsable"),
+    ("CCO", "heteroatom"),
+    ("C[Si](C)(C)C", "heteroatom"),
+    ("CCCl", "heteroatom"),
+    ("C[N+](C)(C)C", "heteroatom"),
+    ("[CH3-]", "charged"),
+    ("C[CH2+]", "charged"),
+    ("[CH3]", "radical"),
+    ("C[CH2]", "radical"),
+    ("CC.CCC", "fragments"),
+    ("[13CH4]", "isotope"),
+    ("[2H]C", "isotope"),
+    ("C" * 151, "too_large"),
+]
+
+
+@pytest.mark.parametrize(("smiles", "code"), REJECTIONS)
+def test_rejections(smiles, code: str) -> None:
+    parsed = parse_hydrocarbon(smiles)
+    assert not parsed.ok
+    assert parsed.reason_code == code
+    assert parsed.reason and "\n" not in parsed.reason
+
+
+def test_heteroatoms_are_named() -> None:
+    assert "oxygen" in parse_hydrocarbon("CCO").reason
+    assert "silicon" in parse_hydrocarbon("C[Si](C)(C)C").reason
+
+
+def test_size_limit_is_configurable() -> None:
+    assert parse_hydrocarbon("C" * 151, max_heavy_atoms=200).ok
+    assert parse_hydrocarbon("C" * 20, max_heavy_atoms=10).reason_code == "too_large"
+
+
+def test_explicit_hydrogens_are_accepted() -> None:
+    assert parse_hydrocarbon("[H]C([H])([H])C").ok
+
+
+@pytest.mark.parametrize(("smiles", "code"), REJECTIONS)
+def test_perceive_keeps_every_row(smiles, code: str) -> None:
+    p = engine.perceive(["CC", smiles, "CCC"])
+    assert list(p.structures["status"]) == ["ok", "rejected", "ok"]
+    assert p.structures["reason_code"].iloc[1] == code

@@ -1,0 +1,107 @@
+"""Property tests over generated hydrocarbons (hypothesis)."""
+
+from __future__ import annotations
+
+import pytest
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
+from rdkit import Chem
+
+import engine
+from engine.site_classes import ABSTRACTABLE
+
+
+@st.composite
+def hydrocarbons(draw) -> str:
+    """Random connected C/H graphs: trees, extra ring bonds, some double bonds, an optional phenyl."""
+    n = draw(st.integers(1, 12))
+    rw = Chem.RWMol()
+    for _ in range(n):
+        rw.AddAtom(Chem.Atom(6))
+    for i in range(1, n):
+        j = draw(st.integers(0, i - 1))
+        rw.AddBond(i, j, Chem.BondType.SINGLE)
+    for _ in range(draw(st.integers(0, 2))):
+        if n < 3:
+            break
+        i, j = draw(st.integers(0, n - 1)), draw(st.integers(0, n - 1))
+        if i != j and rw.GetBondBetweenAtoms(i, j) is None:
+            rw.AddBond(i, j, Chem.BondType.SINGLE)
+    for bond in list(rw.GetBonds()):
+        if draw(st.integers(0, 9)) == 0:
+            bond.SetBondType(Chem.BondType.DOUBLE)
+    if draw(st.booleans()):
+        ring = Chem.MolFromSmiles("c1ccccc1")
+        base = rw.GetNumAtoms()
+        combo = Chem.RWMol(Chem.CombineMols(rw, ring))
+        combo.AddBond(draw(st.integers(0, n - 1)), base, Chem.BondType.SINGLE)
+        rw = combo
+    mol = rw.GetMol()
+    try:
+        Chem.SanitizeMol(mol)
+    except Exception:
+        assume(False)
+    return Chem.MolToSmiles(mol)
+
+
+SETTINGS = settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+
+
+@SETTINGS
+@given(hydrocarbons())
+def test_percentages_sum_to_100(smiles: str) -> None:
+    e = engine.explain(smiles)
+    assert e.status == "ok"
+    for reagent in ("cl2", "br2"):
+        total = sum(p.pct[reagent] for p in e.products)
+        if e.verdict == "inert":
+            assert total == 0
+        else:
+            assert total == pytest.approx(100)
+
+
+@SETTINGS
+@given(hydrocarbons())
+def test_h_counts_account_for_every_hydrogen(smiles: str) -> None:
+    e = engine.explain(smiles)
+    mol = Chem.MolFromSmiles(smiles)
+    assert sum(p.h_count for p in e.products) == sum(a.GetTotalNumHs() for a in mol.GetAtoms())
+    p = engine.perceive([smiles])
+    abstractable = sum(x.h_count for x in e.products if x.site in ABSTRACTABLE)
+    assert int(p.structures["abstractable_h"].iloc[0]) == abstractable
+
+
+def _fingerprint(e: engine.Explanation) -> list[tuple]:
+    return sorted(
+        (p.smiles, p.site, p.h_count, p.stereo, p.n_stereoisomers, round(p.pct["cl2"], 9), round(p.pct["br2"], 9))
+        for p in e.products
+    )
+
+
+@SETTINGS
+@given(hydrocarbons(), st.integers(0, 2**31 - 1))
+def test_atom_order_does_not_matter(smiles: str, seed: int) -> None:
+    mol = Chem.MolFromSmiles(smiles)
+    Chem.rdBase.SeedRandomNumberGenerator(seed)
+    shuffled = Chem.MolToSmiles(mol, doRandom=True, canonical=False)
+    a, b = engine.explain(smiles), engine.explain(shuffled)
+    assert a.verdict == b.verdict
+    assert a.canonical_smiles == b.canonical_smiles
+    assert _fingerprint(a) == _fingerprint(b)
+
+
+@SETTINGS
+@given(hydrocarbons())
+def test_groups_match_brute_force(smiles: str) -> None:
+    mol = Chem.MolFromSmiles(smiles)
+    brute = set()
+    for atom in mol.GetAtoms():
+        if atom.GetTotalNumHs():
+            rw = Chem.RWMol(mol)
+            cl = rw.AddAtom(Chem.Atom(17))
+            rw.AddBond(atom.GetIdx(), cl, Chem.BondType.SINGLE)
+            Chem.SanitizeMol(rw)
+            brute.add(Chem.MolToSmiles(rw, isomericSmiles=False))
+    got = [Chem.CanonSmiles(p.smiles, useChiral=0) for p in engine.explain(smiles).products]
+    assert len(got) == len(set(got))
+    assert set(got) == brute

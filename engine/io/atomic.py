@@ -1,0 +1,79 @@
+"""Atomic file replacement: write beside the target, then os.replace."""
+
+from __future__ import annotations
+
+import os
+import secrets
+import stat
+from collections.abc import Iterator
+from contextlib import contextmanager
+from pathlib import Path
+
+from .errors import LibraryError
+
+TEMP_SUFFIX = ".halosift-tmp"
+"""Ending of the temporary files atomic_path() creates (hidden: their names start with a dot)."""
+
+
+def _create_temp(path: Path) -> Path:
+    """Create an empty, uniquely named temporary file in path's folder.
+
+    os.open with mode 0o666 lets the umask decide permissions, as for any new file
+    (mkstemp would force 0o600 onto the finished output).
+    """
+    folder = path.parent
+    if not folder.exists():
+        raise LibraryError(f"cannot write {path}: folder {folder} does not exist")
+    if not folder.is_dir():
+        raise LibraryError(f"cannot write {path}: {folder} is not a folder")
+    for _ in range(100):
+        temp = folder / f".{path.name}.{secrets.token_hex(4)}{TEMP_SUFFIX}"
+        try:
+            fd = os.open(temp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
+        except FileExistsError:
+            continue
+        except PermissionError:
+            raise LibraryError(f"permission denied: cannot write in {folder}") from None
+        except OSError as exc:
+            raise LibraryError(f"cannot write {path}: {exc.strerror or exc}") from None
+        os.close(fd)
+        return temp
+    raise LibraryError(f"cannot write {path}: no free temporary name in {folder}")
+
+
+def _flush_to_disk(temp: Path) -> None:
+    """fsync the finished temp file so the rename never exposes a half-written file after a crash."""
+    fd = os.open(temp, os.O_RDONLY)
+    try:
+        os.fsync(fd)
+    finally:
+        os.close(fd)
+
+
+@contextmanager
+def atomic_path(path: str | os.PathLike[str]) -> Iterator[Path]:
+    """Yield a temporary path in path's folder; on success it replaces path, on failure it is removed.
+
+    The target keeps its permission bits when it already exists. Creation and
+    replacement problems raise LibraryError; exceptions from the block propagate
+    after the temporary file is deleted.
+    """
+    path = Path(path)
+    temp = _create_temp(path)
+    try:
+        yield temp
+        if path.exists():
+            os.chmod(temp, stat.S_IMODE(path.stat().st_mode))
+        _flush_to_disk(temp)
+        try:
+            os.replace(temp, path)
+        except IsADirectoryError:
+            raise LibraryError(f"cannot write {path}: it is a directory") from None
+        except OSError as exc:
+            raise LibraryError(f"cannot write {path}: {exc.strerror or exc}") from None
+    except BaseException:
+        try:
+            temp.unlink()
+        except FileNotFoundError:
+            pass
+        raise

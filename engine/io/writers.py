@@ -1,0 +1,92 @@
+"""write_table(): one entry point for CSV, TSV, Parquet and SDF output, always atomic."""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Iterable, Mapping
+from pathlib import Path
+
+import pandas as pd
+
+from .atomic import atomic_path
+from .delimited import write_delimited
+from .errors import LibraryError
+from .formats import OUTPUT_FORMATS, split_format
+from .parquet import write_parquet
+from .sdf import write_sdf
+
+ABOUT_SUFFIX = ".about.txt"
+"""Ending added to a CSV/TSV output's name for its metadata sidecar."""
+
+
+def about_path(path: str | os.PathLike[str]) -> Path:
+    """The metadata sidecar that goes with a CSV/TSV output (e.g. short.csv -> short.csv.about.txt)."""
+    path = Path(path)
+    return path.with_name(path.name + ABOUT_SUFFIX)
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    """True when a and b name the same file (through symlinks or hard links too)."""
+    try:
+        if a.exists() and b.exists():
+            return os.path.samefile(a, b)
+    except OSError:
+        pass
+    return a.resolve() == b.resolve()
+
+
+def _about_text(metadata: Mapping[str, str]) -> str:
+    """ "key: value" lines; continuation lines of multi-line values are indented two spaces."""
+    out = []
+    for key, value in metadata.items():
+        first, *rest = str(value).splitlines() or [""]
+        out.append(f"{key}: {first}\n")
+        out.extend(f"  {line}\n" for line in rest)
+    return "".join(out)
+
+
+def write_table(
+    frame: pd.DataFrame,
+    path: str | os.PathLike[str],
+    *,
+    metadata: Mapping[str, str],
+    smiles_column: str = "canonical_smiles",
+    force: bool = False,
+    protect: Iterable[str | os.PathLike[str]] = (),
+) -> Path:
+    """Write frame to path atomically, in the format its extension names; return the path.
+
+    csv/tsv (optionally .gz): header row then data, plus metadata in the sidecar
+    <path>.about.txt. parquet: dtypes kept, metadata in the schema metadata. sdf
+    (optionally .gz): one record per row, the molecule from smiles_column, metadata
+    as halosift_<key> properties on every record. Refuses to replace a path in
+    protect, or an existing file unless force. Problems raise LibraryError.
+    """
+    path = Path(path).expanduser()
+    fmt, gzipped = split_format(path, OUTPUT_FORMATS)
+    meta = {str(k): str(v) for k, v in metadata.items()}
+    targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
+    for guarded in protect:
+        guarded = Path(guarded).expanduser()
+        for target in targets:
+            if _same_file(target, guarded):
+                raise LibraryError(f"refusing to write over the input file {guarded}")
+    if path.is_dir():
+        raise LibraryError(f"cannot write {path}: it is a directory")
+    if (path.exists() or path.is_symlink()) and not force:
+        raise LibraryError(f"{path} exists; use --force to replace it")
+    try:
+        if fmt == "parquet":
+            with atomic_path(path) as temp:
+                write_parquet(frame, temp, meta)
+        elif fmt == "sdf":
+            with atomic_path(path) as temp:
+                write_sdf(frame, temp, gzipped, smiles_column, meta)
+        else:
+            # The data file is replaced first (inner block exits first), then its sidecar.
+            with atomic_path(about_path(path)) as about_temp, atomic_path(path) as temp:
+                write_delimited(frame, temp, fmt, gzipped)
+                about_temp.write_text(_about_text(meta), encoding="utf-8")
+    except OSError as exc:
+        raise LibraryError(f"could not write {path}: {exc.strerror or exc}") from None
+    return path

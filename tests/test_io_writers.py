@@ -1,0 +1,299 @@
+"""Tests for engine.io writing: formats, metadata placement, refusals, atomicity."""
+
+from __future__ import annotations
+
+import gzip
+import os
+import stat
+from pathlib import Path
+
+import pandas as pd
+import pyarrow.parquet as pq
+import pytest
+from rdkit import Chem
+
+import engine.io.writers as writers
+from engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
+
+META = {"tool": "halosift", "caution": "Invented caution line one.\nInvented caution line two."}
+
+
+def _results() -> pd.DataFrame:
+    """A small results-like frame from an invented supplier."""
+    return pd.DataFrame(
+        {
+            "id": ["NA", "QX-0002", "QX-0003"],
+            "smiles": ["CCC", "not a smiles", "CC(C)C"],
+            "status": ["ok", "rejected", "ok"],
+            "cl2_major_pct": [55.5, float("nan"), 64.0],
+            "n_products": pd.array([2, None, 2], dtype="Int64"),
+            "canonical_smiles": ["CCC", "", "CC(C)C"],
+        }
+    )
+
+
+def _leftovers(folder: Path) -> list[str]:
+    """Temporary files left in folder (hidden names are ours)."""
+    return sorted(p.name for p in folder.iterdir() if p.name.startswith("."))
+
+
+# --- formats ---------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("name", "fmt"),
+    [
+        ("a.csv", "csv"),
+        ("a.TSV", "tsv"),
+        ("a.parquet", "parquet"),
+        ("a.sdf", "sdf"),
+        ("a.csv.gz", "csv"),
+        ("a.Tsv.Gz", "tsv"),
+        ("a.sdf.gz", "sdf"),
+    ],
+)
+def test_output_format_accepts(name: str, fmt: str) -> None:
+    assert output_format(name) == fmt
+
+
+@pytest.mark.parametrize("name", ["a.xlsx", "a.smi", "a", "a.gz", "a.parquet.gz", ".csv"])
+def test_output_format_refuses(name: str) -> None:
+    with pytest.raises(LibraryError):
+        output_format(name)
+
+
+def test_csv_is_plain_with_sidecar(tmp_path: Path) -> None:
+    out = write_table(_results(), tmp_path / "short.csv", metadata=META)
+    assert out == tmp_path / "short.csv"
+    lines = out.read_text(encoding="utf-8").splitlines()
+    assert lines[0] == "id,smiles,status,cl2_major_pct,n_products,canonical_smiles"
+    assert lines[1] == "NA,CCC,ok,55.5,2,CCC"
+    assert lines[2] == "QX-0002,not a smiles,rejected,,,"
+    assert len(lines) == 4
+    about = (tmp_path / "short.csv.about.txt").read_text(encoding="utf-8")
+    assert about == (
+        "tool: halosift\ncaution: Invented caution line one.\n  Invented caution line two.\n"
+    )
+    assert about_path(out) == tmp_path / "short.csv.about.txt"
+
+
+def test_tsv_gz_is_gzip_and_reads_back(tmp_path: Path) -> None:
+    out = write_table(_results(), tmp_path / "r.tsv.gz", metadata=META)
+    assert out.read_bytes()[:2] == b"\x1f\x8b"
+    text = gzip.decompress(out.read_bytes()).decode()
+    assert text.splitlines()[0].split("\t")[0] == "id"
+    assert (tmp_path / "r.tsv.gz.about.txt").exists()
+    whole = open_library(out).read_all()
+    assert whole.frame["id"].tolist() == ["NA", "QX-0002", "QX-0003"]
+    assert whole.frame["cl2_major_pct"].tolist()[0] == 55.5
+
+
+def test_gzip_output_is_reproducible(tmp_path: Path) -> None:
+    first = write_table(_results(), tmp_path / "a.csv.gz", metadata=META).read_bytes()
+    second = write_table(_results(), tmp_path / "a.csv.gz", metadata=META, force=True).read_bytes()
+    assert first == second
+
+
+def test_parquet_keeps_dtypes_and_metadata(tmp_path: Path) -> None:
+    frame = _results()
+    out = write_table(frame, tmp_path / "r.parquet", metadata=META)
+    table = pq.read_table(out)
+    stored = {k.decode(): v.decode() for k, v in table.schema.metadata.items()}
+    assert stored["tool"] == "halosift"
+    assert stored["caution"] == META["caution"]
+    back = table.to_pandas()
+    assert list(back.columns) == list(frame.columns)
+    assert str(back["n_products"].dtype) == "Int64"
+    assert back["cl2_major_pct"].dtype == "float64"
+    assert back["id"].tolist() == frame["id"].tolist()
+
+
+def test_parquet_mixed_object_column_becomes_text(tmp_path: Path) -> None:
+    frame = pd.DataFrame({"smiles": ["C", "CC", "CCC"], "mixed": pd.Series([1, "two", None], dtype=object)})
+    out = write_table(frame, tmp_path / "mixed.parquet", metadata={})
+    back = pq.read_table(out).to_pandas()
+    assert back["mixed"].tolist()[:2] == ["1", "two"]
+    assert pd.isna(back["mixed"].tolist()[2])
+
+
+def test_parquet_non_range_index_is_not_misaligned(tmp_path: Path) -> None:
+    frame = _results()
+    frame.index = [7, 3, 9]
+    back = pq.read_table(write_table(frame, tmp_path / "ix.parquet", metadata={})).to_pandas()
+    assert back["id"].tolist() == frame["id"].tolist()
+    assert back.columns.tolist() == frame.columns.tolist()
+
+
+def test_sdf_every_row_is_a_record(tmp_path: Path) -> None:
+    out = write_table(_results(), tmp_path / "r.sdf", metadata=META)
+    text = out.read_text(encoding="utf-8")
+    records = [r for r in text.split("$$$$\n") if r.strip()]
+    assert len(records) == 3
+    # Titles come from the id column; the invalid row is an empty molecule with its properties.
+    assert [r.splitlines()[0] for r in records] == ["NA", "QX-0002", "QX-0003"]
+    mols = list(Chem.SDMolSupplier(str(out)))
+    assert all(m is not None for m in mols)
+    assert [m.GetNumAtoms() for m in mols] == [3, 0, 4]
+    assert mols[1].GetProp("status") == "rejected"
+    assert mols[1].GetProp("cl2_major_pct") == ""
+    assert mols[0].GetProp("smiles") == "CCC"  # the input column is a property too
+    assert not mols[0].HasProp("canonical_smiles")  # it is the structure
+    for mol in mols:
+        assert mol.GetProp("halosift_tool") == "halosift"
+        assert mol.GetProp("halosift_caution") == META["caution"]
+    assert mols[0].GetConformer().Is3D() is False
+
+
+def test_sdf_title_falls_back_to_row_number(tmp_path: Path) -> None:
+    frame = pd.DataFrame({"canonical_smiles": ["C", "CC"], "mw": [16.0, 30.1]})
+    out = write_table(frame, tmp_path / "noid.sdf.gz", metadata={})
+    mols = list(Chem.ForwardSDMolSupplier(gzip.open(out)))
+    assert [m.GetProp("_Name") for m in mols] == ["1", "2"]
+    assert [Chem.MolToSmiles(m) for m in mols] == ["C", "CC"]
+
+
+def test_sdf_without_structure_column_uses_detected_smiles(tmp_path: Path) -> None:
+    frame = pd.DataFrame({"SMILES": ["CCO"], "catalog_id": ["QX-9"]})
+    out = write_table(frame, tmp_path / "det.sdf", metadata={}, smiles_column="canonical_smiles")
+    mol = next(Chem.SDMolSupplier(str(out)))
+    assert Chem.MolToSmiles(mol) == "CCO"
+    assert mol.GetProp("_Name") == "QX-9"
+
+
+def test_sdf_values_that_would_break_the_format(tmp_path: Path) -> None:
+    frame = pd.DataFrame(
+        {"canonical_smiles": ["C"], "note": ["line one\n\nline three"], "weird<name>": ["$$$$ trick"]}
+    )
+    out = write_table(frame, tmp_path / "odd.sdf", metadata={})
+    mols = list(Chem.SDMolSupplier(str(out)))
+    assert len(mols) == 1
+    assert mols[0].GetProp("note") == "line one\nline three"
+    assert mols[0].GetProp("weird_name_") == " $$$$ trick"
+
+
+# --- refusals --------------------------------------------------------------------------------
+
+
+def test_refuses_to_overwrite_without_force(tmp_path: Path) -> None:
+    target = tmp_path / "out.csv"
+    target.write_text("keep me\n")
+    with pytest.raises(LibraryError) as info:
+        write_table(_results(), target, metadata=META)
+    assert str(info.value) == f"{target} exists; use --force to replace it"
+    assert target.read_text() == "keep me\n"
+    write_table(_results(), target, metadata=META, force=True)
+    assert target.read_text().startswith("id,smiles")
+
+
+def test_protects_the_input_file_even_with_force(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    source = tmp_path / "input.csv"
+    source.write_text("smiles\nC\n")
+    monkeypatch.chdir(tmp_path)
+    link = tmp_path / "alias.csv"
+    link.symlink_to(source)
+    for spelling in (source, Path("input.csv"), Path("./sub/../input.csv"), link):
+        (tmp_path / "sub").mkdir(exist_ok=True)
+        with pytest.raises(LibraryError) as info:
+            write_table(_results(), spelling, metadata=META, force=True, protect=[source])
+        assert str(info.value) == f"refusing to write over the input file {source}"
+    assert source.read_text() == "smiles\nC\n"
+
+
+def test_missing_folder_and_directory_target(tmp_path: Path) -> None:
+    with pytest.raises(LibraryError, match="folder .* does not exist"):
+        write_table(_results(), tmp_path / "nowhere" / "out.csv", metadata=META)
+    folder = tmp_path / "out.parquet"
+    folder.mkdir()
+    with pytest.raises(LibraryError, match="is a directory"):
+        write_table(_results(), folder, metadata=META, force=True)
+
+
+def test_unknown_output_extension(tmp_path: Path) -> None:
+    with pytest.raises(LibraryError, match="unknown file type"):
+        write_table(_results(), tmp_path / "out.xlsx", metadata=META)
+
+
+# --- atomicity -------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("name", ["a.csv", "a.tsv.gz", "a.parquet", "a.sdf", "a.sdf.gz"])
+def test_success_leaves_no_temp_files(tmp_path: Path, name: str) -> None:
+    write_table(_results(), tmp_path / name, metadata=META)
+    assert _leftovers(tmp_path) == []
+
+
+@pytest.mark.parametrize(
+    ("name", "target"),
+    [
+        ("a.csv", "write_delimited"),
+        ("a.parquet", "write_parquet"),
+        ("a.sdf", "write_sdf"),
+    ],
+)
+def test_failure_mid_write_leaves_old_file_and_no_temp(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, name: str, target: str
+) -> None:
+    out = tmp_path / name
+    out.write_bytes(b"previous contents")
+    if name.endswith(".csv"):
+        about_path(out).write_text("previous about\n")
+    real = getattr(writers, target)
+
+    def half_then_fail(frame, temp, *args):
+        real(frame.iloc[:1], temp, *args)  # something really reaches the temp file
+        assert Path(temp).stat().st_size > 0
+        raise RuntimeError("disk vanished")
+
+    monkeypatch.setattr(writers, target, half_then_fail)
+    with pytest.raises(RuntimeError, match="disk vanished"):
+        write_table(_results(), out, metadata=META, force=True)
+    assert out.read_bytes() == b"previous contents"
+    if name.endswith(".csv"):
+        assert about_path(out).read_text() == "previous about\n"
+    assert _leftovers(tmp_path) == []
+
+
+def test_os_error_mid_write_becomes_library_error(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    def full_disk(*_args):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(writers, "write_parquet", full_disk)
+    with pytest.raises(LibraryError, match="could not write .*: No space left on device"):
+        write_table(_results(), tmp_path / "x.parquet", metadata=META)
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_atomic_path_replaces_only_on_success(tmp_path: Path) -> None:
+    target = tmp_path / "t.txt"
+    with atomic_path(target) as temp:
+        assert temp.parent == tmp_path and temp != target
+        assert not target.exists()
+        temp.write_text("new")
+    assert target.read_text() == "new"
+    with pytest.raises(KeyError):
+        with atomic_path(target) as temp:
+            temp.write_text("half")
+            raise KeyError("boom")
+    assert target.read_text() == "new"
+    assert [p.name for p in tmp_path.iterdir()] == ["t.txt"]
+
+
+def test_atomic_path_permissions_follow_umask_and_existing_file(tmp_path: Path) -> None:
+    old = os.umask(0o022)
+    try:
+        fresh = tmp_path / "fresh.txt"
+        with atomic_path(fresh) as temp:
+            temp.write_text("x")
+        assert stat.S_IMODE(fresh.stat().st_mode) == 0o644
+        fresh.chmod(0o640)
+        with atomic_path(fresh) as temp:
+            temp.write_text("y")
+        assert stat.S_IMODE(fresh.stat().st_mode) == 0o640
+    finally:
+        os.umask(old)
+
+
+def test_atomic_path_missing_folder(tmp_path: Path) -> None:
+    with pytest.raises(LibraryError, match="does not exist"):
+        with atomic_path(tmp_path / "no" / "x.txt"):
+            pass

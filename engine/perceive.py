@@ -18,7 +18,7 @@ from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
-from engine.stereo import StereoOutcome, stereo_outcome
+from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
 #: Radical halogenation never substitutes vinyl/aryl/alkynyl C–H, so their
@@ -79,10 +79,11 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
     canonical = Chem.MolToSmiles(mol)
     order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
     position = {atom: pos for pos, atom in enumerate(order)}
-    specified = has_specified_stereo(mol)
+    specified = has_specified_stereo(canonical)
+    skeleton = Skeleton(mol)
     rows = []
     abstractable_h = 0
-    for group in site_groups(mol):
+    for group in site_groups(mol, specified):
         if group.site in _ABSTRACTABLE:
             abstractable_h += group.h_count
         if group.site in _ABSTRACTABLE:
@@ -91,7 +92,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
                 # Equivalent carbons of a stereo-defined input can give different
                 # stereoisomers (e.g. enantiomers); the group forms all of them.
                 products += [substitute(mol, i) for i in group.atoms[1:]]
-            st = stereo_outcome(products)
+            st = stereo_outcome(products, skeleton)
         else:
             st = _NOT_FORMED
         rows.append(

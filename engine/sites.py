@@ -83,18 +83,19 @@ def substitute(mol: Chem.Mol, idx: int, halogen: int = 17) -> Chem.RWMol:
     return rw
 
 
-def has_specified_stereo(mol: Chem.Mol) -> bool:
-    """True when the input fixes any tetrahedral centre or double-bond geometry."""
-    if any(a.GetChiralTag() != Chem.ChiralType.CHI_UNSPECIFIED for a in mol.GetAtoms()):
-        return True
-    return any(b.GetStereo() != Chem.BondStereo.STEREONONE for b in mol.GetBonds())
+def has_specified_stereo(canonical_smiles: str) -> bool:
+    """True when a canonical SMILES fixes any tetrahedral centre or double-bond geometry.
+
+    RDKit writes stereo marks in canonical SMILES only for specified elements.
+    """
+    return "@" in canonical_smiles or "/" in canonical_smiles or "\\" in canonical_smiles
 
 
 def _smiles(prod: Chem.Mol, isomeric: bool) -> str:
     return Chem.MolToSmiles(prod, isomericSmiles=isomeric)
 
 
-def site_groups(mol: Chem.Mol) -> list[SiteGroup]:
+def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
     """Group H-bearing carbons into constitutional monohalides, exactly.
 
     Canonical ranks without tie-breaking are a colour refinement: they never
@@ -110,7 +111,6 @@ def site_groups(mol: Chem.Mol) -> list[SiteGroup]:
         if atom.GetTotalNumHs() > 0:
             by_rank[ranks[atom.GetIdx()]].append(atom.GetIdx())
     cyclic = mol.GetRingInfo().NumRings() > 0
-    has_stereo = has_specified_stereo(mol)
     groups: list[SiteGroup] = []
     for rank in sorted(by_rank):
         members = by_rank[rank]

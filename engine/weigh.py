@@ -29,7 +29,7 @@ def _percent(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarr
     totals = np.bincount(struct, weights=weights, minlength=n_struct)
     denom = totals[struct]
     with np.errstate(invalid="ignore", divide="ignore"):
-        pct = np.where(denom > 0, 100.0 * weights / np.where(denom > 0, denom, 1.0), 0.0)
+        pct = np.where(denom > 0, 100.0 * (weights / np.where(denom > 0, denom, 1.0)), 0.0)
     return pct
 
 

@@ -45,6 +45,27 @@ def _about_text(metadata: Mapping[str, str]) -> str:
     return "".join(out)
 
 
+def check_output(
+    path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
+) -> Path:
+    """Raise LibraryError now if writing ``path`` would fail the rules (format, input, existing, folder)."""
+    path = Path(path).expanduser()
+    fmt, _ = split_format(path, OUTPUT_FORMATS)
+    targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
+    for guarded in protect:
+        guarded = Path(guarded).expanduser()
+        for target in targets:
+            if _same_file(target, guarded):
+                raise LibraryError(f"refusing to write over the input file {guarded}")
+    if path.is_dir():
+        raise LibraryError(f"cannot write {path}: it is a directory")
+    if (path.exists() or path.is_symlink()) and not force:
+        raise LibraryError(f"{path} exists; use --force to replace it")
+    if not path.parent.is_dir():
+        raise LibraryError(f"cannot write {path}: folder {path.parent} does not exist")
+    return path
+
+
 def write_table(
     frame: pd.DataFrame,
     path: str | os.PathLike[str],
@@ -62,19 +83,9 @@ def write_table(
     as halosift_<key> properties on every record. Refuses to replace a path in
     protect, or an existing file unless force. Problems raise LibraryError.
     """
-    path = Path(path).expanduser()
+    path = check_output(path, force=force, protect=protect)
     fmt, gzipped = split_format(path, OUTPUT_FORMATS)
     meta = {str(k): str(v) for k, v in metadata.items()}
-    targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
-    for guarded in protect:
-        guarded = Path(guarded).expanduser()
-        for target in targets:
-            if _same_file(target, guarded):
-                raise LibraryError(f"refusing to write over the input file {guarded}")
-    if path.is_dir():
-        raise LibraryError(f"cannot write {path}: it is a directory")
-    if (path.exists() or path.is_symlink()) and not force:
-        raise LibraryError(f"{path} exists; use --force to replace it")
     try:
         if fmt == "parquet":
             with atomic_path(path) as temp:

@@ -1,0 +1,237 @@
+"""A whole library: read once, perceive each unique structure once, evaluate under any conditions."""
+
+from __future__ import annotations
+
+import threading
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from engine.cache import PerceptionCache, take
+from engine.conditions import Conditions
+from engine.parallel import perceive_parallel
+from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.perceive import Perception, concat
+from engine.rates import enthalpy_of_abstraction
+from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
+
+#: Columns :meth:`Library.evaluate` adds after the input's own, in order.
+RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "canonical_smiles", "duplicate_of")
+#: What each added column means (README and file metadata quote this).
+RESULT_DOCS: dict[str, str] = {
+    "status": "ok, or rejected (the row could not be modelled)",
+    "reason": "why a row was rejected; empty when ok",
+    "n_products": "distinct constitutional monohalides from abstractable C–H",
+    "verdict": "single / br-selective / mixture / inert (empty when rejected)",
+    "cl2_major": "SMILES of the major monochloride under Cl2",
+    "cl2_major_pct": "its share of the monochlorides, percent",
+    "br2_major": "SMILES of the major monobromide under Br2",
+    "br2_major_pct": "its share of the monobromides, percent",
+    "stereo": "stereo outcome of the bromination major product: achiral / single / racemate / diastereomers",
+    "site_types": "abstractable site classes present, comma-separated",
+    "canonical_smiles": "RDKit canonical SMILES of the substrate",
+    "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
+}
+
+
+def output_name(column: str) -> str:
+    """Name of an input column in results: prefixed with ``input_`` when it clashes with a result column."""
+    return f"input_{column}" if column in RESULT_COLUMNS else column
+
+
+@dataclass(frozen=True)
+class Library:
+    """An input table and the perception of its structures."""
+
+    input: pd.DataFrame
+    """The input columns, one row per input row, in input order."""
+    smiles_column: str
+    """Name of the input column holding SMILES."""
+    id_column: str | None
+    """Name of the identifier column, when one was found or given."""
+    row_struct: np.ndarray
+    """Per input row, the row of ``perception.structures`` (int32)."""
+    perception: Perception
+    """Perception of every distinct input string."""
+    read_errors: np.ndarray
+    """Per input row, '' or why the row could not be read (object array)."""
+    source: Path | None = None
+    """The file read, when the library came from a file."""
+    _summaries: dict = field(default_factory=dict, repr=False, compare=False)
+    """Memo of per-structure summaries by conditions (small: the app revisits few)."""
+
+    def __len__(self) -> int:
+        return len(self.input)
+
+    def _summary(self, conditions: Conditions) -> pd.DataFrame:
+        if conditions not in self._summaries:
+            if len(self._summaries) > 8:
+                self._summaries.clear()
+            self._summaries[conditions] = summarise(self.perception, conditions)
+        return self._summaries[conditions]
+
+    def evaluate(self, conditions: Conditions | None = None) -> pd.DataFrame:
+        """One row per input row, in input order: the input columns, then :data:`RESULT_COLUMNS`."""
+        conditions = conditions or Conditions()
+        summary = self._summary(conditions)
+        structs = self.perception.structures
+        rows = self.row_struct
+        status = structs["status"].to_numpy(dtype=object)[rows]
+        reason = structs["reason"].to_numpy(dtype=object)[rows]
+        unreadable = self.read_errors != ""
+        status = np.where(unreadable, "rejected", status)
+        reason = np.where(unreadable, self.read_errors, reason)
+        added: dict[str, object] = {"status": status, "reason": reason}
+        for col in SUMMARY_COLUMNS:
+            values = summary[col].to_numpy()[rows]
+            if col == "n_products":
+                values = pd.array(values, dtype="Int32")
+                values[status != "ok"] = pd.NA
+            elif col.endswith("_pct"):
+                values = np.where(status == "ok", values, np.nan)
+            else:
+                values = np.where(status == "ok", values, "")
+            added[col] = values
+        canonical = structs["canonical_smiles"].to_numpy(dtype=object)[rows]
+        added["canonical_smiles"] = np.where(status == "ok", canonical, "")
+        added["duplicate_of"] = self._duplicates(added["canonical_smiles"], status)
+        result = pd.DataFrame(added, index=self.input.index)
+        out = pd.concat([self.input.rename(columns=output_name), result[list(RESULT_COLUMNS)]], axis=1)
+        out.attrs["conditions"] = conditions
+        return out
+
+    @staticmethod
+    def _duplicates(canonical: np.ndarray, status: np.ndarray) -> pd.arrays.IntegerArray:
+        """1-based row of the first row with the same structure; NA for first occurrences and rejects."""
+        codes, uniques = pd.factorize(pd.Series(canonical).where(status == "ok"))
+        valid = codes >= 0
+        rows = np.arange(len(codes))
+        first = np.full(len(uniques), len(codes), dtype=np.int64)
+        np.minimum.at(first, codes[valid], rows[valid])
+        first_of_row = np.where(valid, first[np.maximum(codes, 0)], -1)
+        dup = pd.array(first_of_row + 1, dtype="Int64")
+        dup[~valid | (first_of_row == rows)] = pd.NA
+        return dup
+
+    def products(self, row: int, conditions: Conditions | None = None) -> pd.DataFrame:
+        """Site detail for one input row (0-based): every monohalide with its split."""
+        conditions = conditions or Conditions()
+        struct = int(self.row_struct[row])
+        sites = self.perception.sites
+        mine = sites[sites["struct"] == struct]
+        weighed = weigh(mine.assign(struct=0), conditions, 1)
+        weighed["dh_cl"] = [enthalpy_of_abstraction(s, "cl") for s in weighed["site"]]
+        weighed["dh_br"] = [enthalpy_of_abstraction(s, "br") for s in weighed["site"]]
+        cols = ["product", "site", "h_count", "n_carbons", "bde", "dh_cl", "dh_br", "stereo",
+                "n_stereoisomers", "n_diastereomers", "cl2_pct", "br2_pct", "atom"]
+        return weighed[cols].sort_values(["cl2_pct", "br2_pct"], ascending=False, kind="stable").reset_index(drop=True)
+
+
+ProgressFn = Callable[[int, int], None]
+
+
+def _perceive_with_cache(
+    keys: list[str],
+    *,
+    workers: int | None,
+    use_cache: bool,
+    cache_folder: Path | None,
+    max_heavy_atoms: int,
+    progress: ProgressFn | None,
+    cancel: threading.Event | None,
+) -> Perception:
+    store = PerceptionCache(cache_folder) if use_cache and max_heavy_atoms == DEFAULT_MAX_HEAVY_ATOMS else None
+    if store is None:
+        return perceive_parallel(keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel)
+    hit, cached = store.lookup(keys)
+    miss_idx = np.flatnonzero(~hit)
+    missing = [keys[i] for i in miss_idx]
+    n_hit = int(hit.sum())
+
+    def shifted(done: int, total: int) -> None:
+        if progress:
+            progress(n_hit + done, n_hit + total)
+
+    fresh = perceive_parallel(missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel)
+    store.store(missing, fresh)
+    if cached is None:
+        return fresh
+    # Interleave cached and fresh results back into key order.
+    joined = concat([cached, fresh])
+    order = np.empty(len(keys), dtype=np.int64)
+    order[np.flatnonzero(hit)] = np.arange(n_hit)
+    order[miss_idx] = n_hit + np.arange(len(missing))
+    return take(joined, order)
+
+
+def load_library(
+    source: str | Path | pd.DataFrame,
+    *,
+    smiles_column: str | None = None,
+    id_column: str | None = None,
+    workers: int | None = None,
+    use_cache: bool = True,
+    cache_folder: Path | None = None,
+    max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS,
+    progress: ProgressFn | None = None,
+    cancel: threading.Event | None = None,
+) -> Library:
+    """Read a library file (or DataFrame) and perceive it.
+
+    Raises :class:`engine.io.LibraryError` for whole-file problems and
+    :class:`engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
+    receives (rows done, rows in all), rows done being estimated from the
+    share of distinct structures perceived; it is called from this thread.
+    """
+    from engine.io import open_frame, open_library
+
+    if isinstance(source, pd.DataFrame):
+        src = open_frame(source, smiles_column=smiles_column, id_column=id_column)
+        path = None
+    else:
+        src = open_library(source, smiles_column=smiles_column, id_column=id_column)
+        path = Path(source)
+    frames, smiles, errors = [], [], []
+    for batch in src.iter_batches():
+        if cancel is not None and cancel.is_set():
+            from engine.parallel import Cancelled
+
+            raise Cancelled()
+        frames.append(batch.frame)
+        smiles.extend(batch.smiles)
+        errors.extend(batch.row_errors)
+    frame = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame(columns=list(src.columns))
+    frame = src.settle_types(frame)  # text formats: numeric columns become numbers, judged on the whole file
+    # Perceive each distinct string once; unreadable rows map to an empty string (rejected as empty).
+    texts = pd.Series([s if s is not None else "" for s in smiles], dtype=object)
+    codes, uniques = pd.factorize(texts)
+    keys = [str(u) for u in uniques]
+    n_rows = len(codes)
+
+    def row_progress(done: int, total: int) -> None:
+        if progress is not None:
+            progress(n_rows if done >= total else int(n_rows * done / max(total, 1)), n_rows)
+
+    perception = _perceive_with_cache(
+        keys, workers=workers, use_cache=use_cache, cache_folder=cache_folder,
+        max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel,
+    )
+    return Library(
+        input=frame,
+        smiles_column=src.smiles_column,
+        id_column=src.id_column,
+        row_struct=codes.astype(np.int32),
+        perception=perception,
+        read_errors=np.array(errors, dtype=object),
+        source=path,
+    )
+
+
+def screen(
+    source: str | Path | pd.DataFrame, conditions: Conditions | None = None, **options: object
+) -> pd.DataFrame:
+    """Screen a library file or DataFrame: one result row per input row (see :data:`RESULT_COLUMNS`)."""
+    return load_library(source, **options).evaluate(conditions)  # type: ignore[arg-type]

@@ -1,0 +1,111 @@
+"""The unit of parallel work: an Arrow batch of SMILES in, two Arrow batches out.
+
+Worker processes receive plain strings (cheap to send) rather than molecules,
+and send back Arrow record batches (cheap to pickle, typed).
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import os
+import threading
+from collections.abc import Callable, Sequence
+from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+
+import pyarrow as pa
+
+from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.perceive import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
+
+#: Strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
+CHUNK = 2_000
+#: Below this many strings, process start-up costs more than it saves.
+MIN_PARALLEL = 6_000
+
+
+class Cancelled(Exception):
+    """Raised when a caller's cancel event was set during perception."""
+
+
+def perceive_batch(
+    batch: pa.RecordBatch, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS
+) -> tuple[pa.RecordBatch, pa.RecordBatch]:
+    """Perceive the ``smiles`` column of ``batch``.
+
+    Returns (structures, sites) as record batches with
+    :data:`engine.perceive.STRUCTURE_SCHEMA` and :data:`SITE_SCHEMA`;
+    ``sites.struct`` counts rows of this batch from 0.
+    """
+    p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms)
+    structures = pa.RecordBatch.from_pandas(p.structures, schema=STRUCTURE_SCHEMA, preserve_index=False)
+    sites = pa.RecordBatch.from_pandas(p.sites, schema=SITE_SCHEMA, preserve_index=False)
+    return structures, sites
+
+
+def _from_batches(structures: pa.RecordBatch, sites: pa.RecordBatch) -> Perception:
+    return Perception(structures.to_pandas(), sites.to_pandas())
+
+
+def default_workers() -> int:
+    """All cores this process may use."""
+    try:
+        return max(1, len(os.sched_getaffinity(0)))
+    except AttributeError:  # not Linux
+        return max(1, os.cpu_count() or 1)
+
+
+def perceive_parallel(
+    smiles: Sequence[str | None],
+    *,
+    workers: int | None = None,
+    max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS,
+    progress: Callable[[int, int], None] | None = None,
+    cancel: threading.Event | None = None,
+) -> Perception:
+    """Perceive many strings, in worker processes when it pays; order is kept."""
+    total = len(smiles)
+    workers = default_workers() if workers is None else max(1, workers)
+    chunks = [list(smiles[i : i + CHUNK]) for i in range(0, total, CHUNK)]
+    parts: list[Perception | None] = [None] * len(chunks)
+    done = 0
+    if progress:
+        progress(0, total)
+    if workers == 1 or total < MIN_PARALLEL:
+        for i, chunk in enumerate(chunks):
+            if cancel is not None and cancel.is_set():
+                raise Cancelled()
+            parts[i] = perceive(chunk, max_heavy_atoms)
+            done += len(chunk)
+            if progress:
+                progress(done, total)
+        return concat([p for p in parts if p is not None])
+
+    # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
+    ctx = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=workers, mp_context=ctx) as pool:
+        pending: dict[Future, int] = {}
+        next_chunk = 0
+
+        def submit() -> None:
+            nonlocal next_chunk
+            batch = pa.record_batch([pa.array(chunks[next_chunk], type=pa.string())], names=["smiles"])
+            pending[pool.submit(perceive_batch, batch, max_heavy_atoms)] = next_chunk
+            next_chunk += 1
+
+        # Keep a bounded number of tasks in flight so memory stays flat.
+        while next_chunk < len(chunks) and len(pending) < 2 * workers:
+            submit()
+        while pending:
+            finished, _ = wait(pending, timeout=0.2, return_when=FIRST_COMPLETED)
+            if cancel is not None and cancel.is_set():
+                pool.shutdown(wait=False, cancel_futures=True)
+                raise Cancelled()
+            for fut in finished:
+                i = pending.pop(fut)
+                parts[i] = _from_batches(*fut.result())
+                done += len(chunks[i])
+                if progress:
+                    progress(done, total)
+                if next_chunk < len(chunks):
+                    submit()
+    return concat([p for p in parts if p is not None])

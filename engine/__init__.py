@@ -7,7 +7,7 @@ Perceive once (:func:`perceive`, RDKit), weigh many (:func:`weigh`,
 from engine.conditions import REAGENTS, Conditions
 from engine.explain import Explanation, ProductRecord, explain
 from engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit, to_mol
-from engine.perceive import Perception, perceive
+from engine.perception import Perception, perceive
 from engine.safety import CAUTION
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.weigh import VERDICTS, summarise, weigh

@@ -21,9 +21,9 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from engine.perceive import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
+from engine.perception import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
-_FINGERPRINTED = ("molecules.py", "parameters.py", "perceive.py", "site_classes.py", "sites.py", "stereo.py")
+_FINGERPRINTED = ("molecules.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "stereo.py")
 #: Merge shards into one when there are more than this many.
 MAX_SHARDS = 8
 

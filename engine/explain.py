@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 from engine.conditions import REAGENTS, Conditions
-from engine.perceive import perceive
+from engine.perception import perceive
 from engine.rates import enthalpy_of_abstraction, rate_table
 from engine.site_classes import site_bde
 from engine.weigh import summarise, weigh

@@ -14,7 +14,7 @@ from engine.cache import PerceptionCache, take
 from engine.conditions import Conditions
 from engine.parallel import perceive_parallel
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.perceive import Perception, concat
+from engine.perception import Perception, concat
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 

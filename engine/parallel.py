@@ -15,7 +15,7 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 import pyarrow as pa
 
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.perceive import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
+from engine.perception import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
 
 #: Strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
 CHUNK = 2_000
@@ -33,7 +33,7 @@ def perceive_batch(
     """Perceive the ``smiles`` column of ``batch``.
 
     Returns (structures, sites) as record batches with
-    :data:`engine.perceive.STRUCTURE_SCHEMA` and :data:`SITE_SCHEMA`;
+    :data:`engine.perception.STRUCTURE_SCHEMA` and :data:`SITE_SCHEMA`;
     ``sites.struct`` counts rows of this batch from 0.
     """
     p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms)

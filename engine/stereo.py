@@ -5,6 +5,9 @@ from __future__ import annotations
 import itertools
 from collections.abc import Iterable
 from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
 
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
@@ -74,69 +77,137 @@ def _invert(tag: Chem.ChiralType) -> Chem.ChiralType:
     return _CCW if tag == _CW else _CW if tag == _CCW else tag
 
 
-def _needs_geometry(mol: Chem.Mol, idx: int) -> bool:
-    """True for a centre whose configuration a small or bridged ring system may forbid.
+def geometry_atoms(mol: Chem.Mol) -> frozenset[int]:
+    """Atoms whose configuration a small or bridged ring system may forbid.
 
     Bridged rings (two rings sharing three or more atoms: norbornane,
     bicyclo[2.2.2]octane, adamantane) couple their bridgehead configurations;
     fusion to a three- or four-membered ring forbids most trans fusions.
     Ordinary fused rings (decalin, hydrindane) exist both cis and trans.
     """
-    rings = [set(r) for r in mol.GetRingInfo().AtomRings() if idx in r]
+    rings = [set(r) for r in mol.GetRingInfo().AtomRings()]
+    out: set[int] = set()
     for i, a in enumerate(rings):
         for b in rings[i + 1 :]:
-            shared = len(a & b)
-            if shared >= 3 or (shared == 2 and min(len(a), len(b)) <= 4):
-                return True
-    return False
+            shared = a & b
+            if len(shared) >= 3 or (len(shared) == 2 and min(len(a), len(b)) <= 4):
+                out |= shared
+    return frozenset(out)
+
+
+def _ring_systems(mol: Chem.Mol) -> list[set[int]]:
+    """Atom sets of the fused/bridged ring systems (rings that share atoms, merged)."""
+    systems: list[set[int]] = []
+    for ring in mol.GetRingInfo().AtomRings():
+        merged = set(ring)
+        rest = []
+        for system in systems:
+            if system & merged:
+                merged |= system
+            else:
+                rest.append(system)
+        systems = [*rest, merged]
+    return systems
+
+
+@lru_cache(maxsize=4096)
+def _ring_coordinates(fragment_smiles: str) -> tuple[tuple[float, float, float], ...] | None:
+    """3D heavy-atom coordinates of a ring-system fragment, in its SMILES order (None: cannot embed).
+
+    Cached: a library holds many substrates on few ring skeletons.
+    """
+    mol = Chem.MolFromSmiles(fragment_smiles)
+    if mol is None:
+        return None
+    mol_h = Chem.AddHs(mol)
+    params = rdDistGeom.ETKDGv3()
+    params.randomSeed = 0xC0FFEE
+    params.maxIterations = EMBED_ATTEMPTS
+    params.useRandomCoords = True  # far more reliable for cages (cubanes fail without it)
+    if rdDistGeom.EmbedMolecule(mol_h, params) < 0:
+        return None
+    conf = mol_h.GetConformer()
+    return tuple(tuple(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms()))
+
+
+def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, np.ndarray]) -> Chem.ChiralType | None:
+    """RDKit tag of atom ``idx`` from 3D positions of (at least three of) its neighbours.
+
+    RDKit's convention, checked against its own 3D perception in the tests:
+    with neighbours in bond order and an implicit H last, the tag is CW when
+    (p1−p0)·((p2−p0)×(p3−p0)) > 0. A neighbour without a position (substituent
+    or H) is placed opposite the mean direction of the others.
+    """
+    atom = mol.GetAtomWithIdx(idx)
+    nbrs = [b.GetOtherAtomIdx(idx) for b in atom.GetBonds()]
+    slots = nbrs + [None] * atom.GetTotalNumHs()
+    if len(slots) != 4 or idx not in position:
+        return None
+    known = [position[n] for n in nbrs if n in position]
+    if len(known) < 3:
+        return None
+    centre = position[idx]
+    units = [(p - centre) / (np.linalg.norm(p - centre) or 1.0) for p in known]
+    opposite = centre - np.sum(units, axis=0)
+    pts = [position.get(n, opposite) if n is not None else opposite for n in slots]
+    vol = np.dot(pts[1] - pts[0], np.cross(pts[2] - pts[0], pts[3] - pts[0]))
+    if abs(vol) < 1e-6:
+        return None
+    return _CW if vol > 0 else _CCW
 
 
 class Skeleton:
-    """The substrate's 3D geometry, embedded once and only if a product needs it.
+    """A feasible 3D geometry of the substrate's bridged ring systems, found once if a product needs it.
 
     The ring skeleton fixes how bridgeheads sit relative to each other, so one
-    embedding of the substrate yields a feasible configuration for every
-    product's bridgeheads (its inverse is the other). Products are the
-    substrate plus one appended halogen, so atom indices carry over, and a tag
-    copied onto the substituted carbon means retention, which is what a
-    bridgehead radical in a small cage undergoes.
+    embedding yields a feasible configuration for every product's bridgeheads
+    (its inverse is the other). Products are the substrate plus one appended
+    halogen, so atom indices carry over, and a tag copied onto the substituted
+    carbon means retention, which is what a bridgehead radical in a small cage
+    undergoes. Without input stereo only the ring system is embedded (keyed by
+    its canonical SMILES, so substrates sharing a skeleton share the work);
+    with input stereo the whole substrate is, so the given configuration holds.
     """
 
-    def __init__(self, substrate: Chem.Mol) -> None:
+    def __init__(self, substrate: Chem.Mol, specified: bool) -> None:
         self._substrate = substrate
+        self._specified = specified
+        self.geometric = geometry_atoms(substrate)
+        """Atoms of bridged or small fused ring systems (the same in every product)."""
         self._tags: dict[int, Chem.ChiralType] | None = None
         self._tried = False
 
+    def _positions(self) -> dict[int, np.ndarray] | None:
+        mol = self._substrate
+        ring_atoms = sorted(set().union(*_ring_systems(mol))) if mol.GetRingInfo().NumRings() else []
+        if not ring_atoms:
+            return None
+        if self._specified:
+            smiles = Chem.MolToSmiles(mol)
+            atoms = list(range(mol.GetNumAtoms()))
+        else:
+            smiles = Chem.MolFragmentToSmiles(mol, atomsToUse=ring_atoms, isomericSmiles=False)
+            atoms = ring_atoms
+        order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
+        coords = _ring_coordinates(smiles)
+        if coords is None or len(coords) != len(order):
+            return None
+        placed = {atom: np.array(coords[pos]) for pos, atom in enumerate(order)}
+        return {a: placed[a] for a in atoms if a in placed}
+
     def _embed(self) -> dict[int, Chem.ChiralType] | None:
-        # Embed the canonical form, so the result cannot depend on input atom
-        # order, then read tags off those coordinates in the input's numbering.
         try:
-            smiles = Chem.MolToSmiles(self._substrate)
-            order = list(self._substrate.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
-            canon = Chem.MolFromSmiles(smiles)
-            canon_h = Chem.AddHs(canon)
-            params = rdDistGeom.ETKDGv3()
-            params.randomSeed = 0xC0FFEE
-            params.maxIterations = EMBED_ATTEMPTS
-            if rdDistGeom.EmbedMolecule(canon_h, params) < 0:
-                return None
-            placed = canon_h.GetConformer()
-            mol = Chem.Mol(self._substrate)
-            # Unique isotopes make every tetrahedral carbon a formal stereocentre,
-            # so RDKit reads a tag for bridgeheads that are not stereogenic in
-            # the substrate but become so in a product.
-            for i in range(mol.GetNumAtoms()):
-                mol.GetAtomWithIdx(i).SetIsotope(i + 1)
-            conf = Chem.Conformer(mol.GetNumAtoms())
-            for pos, atom in enumerate(order):
-                conf.SetAtomPosition(atom, placed.GetAtomPosition(pos))
-            conf.Set3D(True)
-            mol.RemoveAllConformers()
-            mol.AddConformer(conf, assignId=True)
-            Chem.AssignAtomChiralTagsFromStructure(mol, replaceExistingTags=True)
+            position = self._positions()
         except Exception:  # noqa: BLE001 - any RDKit failure just means "cannot check"
             return None
-        return {i: mol.GetAtomWithIdx(i).GetChiralTag() for i in range(mol.GetNumAtoms())}
+        if position is None:
+            return None
+        tags = {}
+        for idx in position:
+            tag = _tag_from_positions(self._substrate, idx, position)
+            if tag is not None:
+                tags[idx] = tag
+        return tags
 
     def tags(self, atoms: list[int]) -> dict[int, Chem.ChiralType] | None:
         """Feasible tags for those of ``atoms`` the skeleton fixes (None: cannot embed).
@@ -148,11 +219,11 @@ class Skeleton:
             self._tags, self._tried = self._embed(), True
         if self._tags is None:
             return None
-        return {i: self._tags[i] for i in atoms if self._tags[i] in (_CW, _CCW)}
+        return {i: self._tags[i] for i in atoms if i in self._tags}
 
 
-def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[Chem.Mol]:
-    """Every combination of the open elements' configurations (tetrahedral and E/Z)."""
+def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[tuple[tuple[int, ...], Chem.Mol]]:
+    """Every combination of the open elements' configurations, with its choice vector."""
     choices = []
     for e in open_elements:
         if e.type == _TETRAHEDRAL:
@@ -160,20 +231,85 @@ def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[Chem.Mol]:
         elif e.type == _DOUBLE_BOND and len(e.controllingAtoms) == 4:
             ends = (e.controllingAtoms[0], e.controllingAtoms[2])
             choices.append([("bond", e.centeredOn, _CIS, ends), ("bond", e.centeredOn, _TRANS, ends)])
-    for combo in itertools.product(*choices):
+    for picks in itertools.product(*(range(len(c)) for c in choices)):
         m = Chem.Mol(product)
-        for choice in combo:
+        for options, pick in zip(choices, picks):
+            choice = options[pick]
             if choice[0] == "atom":
                 m.GetAtomWithIdx(choice[1]).SetChiralTag(choice[2])
             else:
                 bond = m.GetBondWithIdx(choice[1])
                 bond.SetStereoAtoms(*choice[3])
                 bond.SetStereo(choice[2])
-        yield m
+        if any(c[0][0] == "bond" for c in choices):
+            # Legacy perception reads E/Z from bond directions; derive them from the labels.
+            Chem.SetDoubleBondNeighborDirections(m)
+        yield picks, m
 
 
-def _classify(isomers: dict[str, Chem.Mol], approximate: bool) -> StereoOutcome:
-    mirrors = {smi: canonical(mirror(m)) for smi, m in isomers.items()}
+def _independent(product: Chem.Mol, elements: list) -> bool:
+    """True when no symmetry of the product can touch any stereo element.
+
+    Each centre must sit alone in its symmetry class and see pairwise
+    inequivalent neighbours (each double-bond end likewise). Then every
+    automorphism fixes every centre and its neighbours, so each of the 2^k
+    configurations is a different, chiral-or-E/Z-distinct stereoisomer and no
+    enumeration is needed. Tie-free ranks may merge inequivalent atoms, which
+    only makes this test fail more often, never wrongly pass.
+    """
+    ranks = list(Chem.CanonicalRankAtoms(product, breakTies=False, includeChirality=False))
+    counts: dict[int, int] = {}
+    for r in ranks:
+        counts[r] = counts.get(r, 0) + 1
+    for e in elements:
+        if e.type == _TETRAHEDRAL:
+            centres = [e.centeredOn]
+        elif e.type == _DOUBLE_BOND:
+            bond = product.GetBondWithIdx(e.centeredOn)
+            centres = [bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()]
+            if any(_cumulated(product.GetAtomWithIdx(c)) for c in centres):
+                return False  # allenes: axial, not E/Z, stereo — leave to enumeration
+        else:
+            return False
+        for c in centres:
+            if counts[ranks[c]] != 1:
+                return False
+            atom = product.GetAtomWithIdx(c)
+            seen = [ranks[n.GetIdx()] for n in atom.GetNeighbors()]
+            if len(set(seen)) != len(seen) or atom.GetTotalNumHs() > 1:
+                return False
+    return True
+
+
+_ACHIRAL = StereoOutcome("achiral", 1, 1)
+
+
+def _cumulated(atom: Chem.Atom) -> bool:
+    return sum(b.GetBondType() == Chem.BondType.DOUBLE for b in atom.GetBonds()) > 1
+
+
+def _counted(n_open: int, chiral: bool, specified: bool, skeleton_forms: int = 1) -> StereoOutcome:
+    """Outcome for independent elements: skeleton forms × 2^k isomers, no enumeration.
+
+    ``chiral``: the product has any tetrahedral centre (with independence, that
+    makes every isomer chiral). ``skeleton_forms`` is 2 when a bridged skeleton
+    occurs as both mirror forms, else 1.
+    """
+    n = skeleton_forms * 2**n_open
+    if specified or not chiral:
+        # Nothing is mirrored: fixed input stereo stays fixed, and E/Z isomers are achiral.
+        if n == 1:
+            return StereoOutcome("single" if chiral else "achiral", 1, 1)
+        return StereoOutcome("diastereomers", n, n)
+    n_dia = n // 2
+    return StereoOutcome("racemate" if n_dia == 1 else "diastereomers", n, n_dia)
+
+
+def _classify(isomers: dict[str, Chem.Mol], mirrors: dict[str, str], approximate: bool) -> StereoOutcome:
+    """Count stereoisomers and mirror-image classes; ``mirrors`` may be partial."""
+    for smi, mol in isomers.items():
+        if smi not in mirrors:
+            mirrors[smi] = canonical(mirror(mol))
     classes = {frozenset((smi, mirrors[smi])) for smi in isomers}
     n = len(isomers)
     if n == 1:
@@ -184,7 +320,7 @@ def _classify(isomers: dict[str, Chem.Mol], approximate: bool) -> StereoOutcome:
     return StereoOutcome("diastereomers", n, len(classes), approximate)
 
 
-def stereo_outcome(products: Iterable[Chem.Mol], skeleton: Skeleton) -> StereoOutcome:
+def stereo_outcome(products: list[Chem.Mol], skeleton: Skeleton) -> StereoOutcome:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 
     Each product keeps the input's specified stereo and leaves the new (or
@@ -195,41 +331,58 @@ def stereo_outcome(products: Iterable[Chem.Mol], skeleton: Skeleton) -> StereoOu
     norbornane are never counted.
     """
     isomers: dict[str, Chem.Mol] = {}
+    mirrors: dict[str, str] = {}
     approximate = False
     for product in products:
         elements = Chem.FindPotentialStereo(product)
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
-        geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and _needs_geometry(product, e.centeredOn)]
+        if not elements and not isomers and len(products) == 1:
+            return _ACHIRAL  # no stereo element at all: the common primary/achiral case
         if not open_elements:
             isomers.setdefault(canonical(product), product)
             continue
-        if len(elements) == 1 and not geometric and open_elements[0].type == _TETRAHEDRAL and not isomers:
-            # The common case, without enumeration: one real open centre and no
-            # other stereo element is a chiral product formed as both enantiomers.
-            return StereoOutcome("racemate", 2, 1)
+        geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and e.centeredOn in skeleton.geometric]
+        specified = len(open_elements) < len(elements)
+        single = not isomers and len(products) == 1
+        if single and not geometric and _independent(product, elements):
+            # The common case, without enumeration.
+            chiral = any(e.type == _TETRAHEDRAL for e in elements)
+            return _counted(len(open_elements), chiral, specified)
         variants = [product]
         if geometric:
             tags = skeleton.tags(geometric)
             if tags is None:
                 approximate = True  # cannot check: every combination is counted
-            else:
-                fixed = set(tags)
-                open_elements = [e for e in open_elements if e.centeredOn not in fixed or e.type != _TETRAHEDRAL]
-                specified_geometric = any(
-                    e.type == _TETRAHEDRAL and e.specified != _UNSPECIFIED and _needs_geometry(product, e.centeredOn)
-                    for e in elements
-                )
+            elif tags:
+                open_elements = [e for e in open_elements if e.type != _TETRAHEDRAL or e.centeredOn not in tags]
                 variants = [_with_tags(product, tags)]
-                if not specified_geometric:
+                if not specified:
                     # Nothing in the input fixes the skeleton's handedness: both forms occur.
                     variants.append(_with_tags(product, {i: _invert(t) for i, t in tags.items()}))
+                if single and len(open_elements) + len(tags) == len([e for e in elements if e.specified == _UNSPECIFIED]) \
+                        and _independent(product, elements):
+                    # Every centre, bridgeheads included, is untouched by symmetry: count, don't enumerate.
+                    chiral = any(e.type == _TETRAHEDRAL for e in elements)
+                    return _counted(len(open_elements), chiral, specified, skeleton_forms=len(variants))
         if len(open_elements) > MAX_OPEN_ELEMENTS:
             approximate = True
             open_elements = open_elements[:MAX_OPEN_ELEMENTS]
-        for variant in variants:
-            for iso in _assignments(variant, open_elements):
-                isomers.setdefault(canonical(iso), iso)
-    return _classify(isomers, approximate)
+        tetrahedral = [e.type == _TETRAHEDRAL for e in open_elements]
+        # With nothing specified, the mirror image of an enumerated isomer is the
+        # one with every tetrahedral choice flipped (and the other skeleton form),
+        # so mirror images come free instead of costing a canonicalisation each.
+        free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
+        by_key: dict[tuple, str] = {}
+        for v, variant in enumerate(variants):
+            for picks, iso in _assignments(variant, open_elements):
+                smi = canonical(iso)
+                isomers.setdefault(smi, iso)
+                by_key[(v, picks)] = smi
+        if free_mirrors and (len(variants) == 2 or not geometric or tags is None):
+            for (v, picks), smi in by_key.items():
+                flipped = tuple(1 - p if t else p for p, t in zip(picks, tetrahedral))
+                mirrors[smi] = by_key[(len(variants) - 1 - v, flipped)]
+    return _classify(isomers, mirrors, approximate)
 
 
 def _with_tags(product: Chem.Mol, tags: dict[int, Chem.ChiralType]) -> Chem.Mol:

@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 
 from engine.conditions import REAGENTS, Conditions
-from engine.perceive import Perception
+from engine.perception import Perception
 from engine.rates import rate_table
 from engine.site_classes import SITE_CLASSES
 

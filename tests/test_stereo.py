@@ -64,3 +64,27 @@ def test_specified_c2_symmetric_ring_gives_one_set() -> None:
 def test_input_stereo_is_kept_in_products() -> None:
     e = engine.explain("C[C@H](CC)CCC")
     assert any("@" in p.smiles for p in e.products)
+
+
+@pytest.mark.parametrize(
+    "smiles", ["C[C@H](CC)CCC", "CC[C@@](C)(CCC)CCCC", "C[C@H]1CCCC[C@@H]1CC", "C[C@@H]1C[C@H]2CC[C@@H]1C2"]
+)
+def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
+    # Our geometry-to-tag rule against RDKit's own 3D perception on the same coordinates.
+    import numpy as np
+    from rdkit.Chem import rdDistGeom
+
+    from engine.stereo import _tag_from_positions
+
+    mol = Chem.MolFromSmiles(smiles)
+    mol_h = Chem.AddHs(mol)
+    assert rdDistGeom.EmbedMolecule(mol_h, randomSeed=11) == 0
+    conf = mol_h.GetConformer()
+    heavy = Chem.Mol(mol)
+    position = {i: np.array(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms())}
+    checked = 0
+    for atom in mol.GetAtoms():
+        if atom.GetChiralTag() != Chem.ChiralType.CHI_UNSPECIFIED:
+            assert _tag_from_positions(heavy, atom.GetIdx(), position) == atom.GetChiralTag()
+            checked += 1
+    assert checked

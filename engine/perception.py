@@ -80,7 +80,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
     order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
     position = {atom: pos for pos, atom in enumerate(order)}
     specified = has_specified_stereo(canonical)
-    skeleton = Skeleton(mol)
+    skeleton = Skeleton(mol, specified)
     rows = []
     abstractable_h = 0
     for group in site_groups(mol, specified):

@@ -1,0 +1,149 @@
+"""Speed and memory of library screening, measured in one run on this machine.
+
+Prints (a) RDKit parsing alone, (b) perception, (c) a whole-process
+`halosift screen`, the ratios b/a and c/a, (d) the speed-up from one worker
+to all, (e) re-weighing 1,000,000 perceived structures, (f) peak memory of a
+1,000,000-row screen, (g) re-opening that library from a warm cache.
+
+Usage: python benchmarks/bench_screen.py [--unique N] [--rows M]
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import subprocess
+import sys
+import tempfile
+import threading
+import time
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+sys.path.insert(0, str(HERE.parent))
+
+from library_gen import make_library  # noqa: E402
+
+import engine  # noqa: E402
+from engine.cache import take  # noqa: E402
+from engine.parallel import default_workers  # noqa: E402
+from engine.perception import Perception  # noqa: E402
+
+TARGETS = {"c/a": 3.0, "speed-up": 1.7, "reweigh_s": 1.0, "peak_gb": 2.0, "reopen_s": 5.0}
+
+
+def _tree_rss(pid: int) -> int:
+    """Resident memory of a process and all its descendants, bytes (Linux /proc)."""
+    total = 0
+    children: dict[int, list[int]] = {}
+    rss: dict[int, int] = {}
+    for entry in os.listdir("/proc"):
+        if not entry.isdigit():
+            continue
+        try:
+            with open(f"/proc/{entry}/stat") as fh:
+                fields = fh.read().rsplit(")", 1)[1].split()
+            ppid = int(fields[1])
+            rss[int(entry)] = int(fields[21]) * os.sysconf("SC_PAGE_SIZE")
+            children.setdefault(ppid, []).append(int(entry))
+        except (OSError, IndexError, ValueError):
+            continue
+    stack = [pid]
+    while stack:
+        p = stack.pop()
+        total += rss.get(p, 0)
+        stack.extend(children.get(p, []))
+    return total
+
+
+def run_screen(args: list[str], env: dict[str, str]) -> tuple[float, int]:
+    """Wall seconds and peak tree RSS of one `halosift screen` process."""
+    start = time.perf_counter()
+    proc = subprocess.Popen([sys.executable, "-m", "halosift", "screen", *args], env=env)
+    peak = 0
+
+    def poll() -> None:
+        nonlocal peak
+        while proc.poll() is None:
+            peak = max(peak, _tree_rss(proc.pid))
+            time.sleep(0.05)
+
+    watcher = threading.Thread(target=poll, daemon=True)
+    watcher.start()
+    code = proc.wait()
+    watcher.join()
+    wall = time.perf_counter() - start
+    if code != 0:
+        raise SystemExit(f"halosift screen failed with exit code {code}")
+    return wall, peak
+
+
+def main() -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--unique", type=int, default=20_000, help="unique structures for (a)-(d)")
+    ap.add_argument("--rows", type=int, default=1_000_000, help="rows for (e)-(g)")
+    opts = ap.parse_args()
+    workers = default_workers()
+    print(f"machine: {os.cpu_count()} CPUs visible, {workers} usable; unique structures {opts.unique:,}")
+
+    smiles = make_library(opts.unique, seed=7)
+    from rdkit import Chem
+
+    t = time.perf_counter()
+    for s in smiles:
+        Chem.MolFromSmiles(s)
+    a = time.perf_counter() - t
+    print(f"(a) RDKit MolFromSmiles, 1 core:        {a:8.2f} s  ({a / len(smiles) * 1e6:6.1f} µs/structure)")
+
+    t = time.perf_counter()
+    perception = engine.perceive(smiles)
+    b = time.perf_counter() - t
+    print(f"(b) perception, 1 core:                 {b:8.2f} s  ({b / len(smiles) * 1e6:6.1f} µs/structure)  b/a = {b / a:5.1f}")
+
+    with tempfile.TemporaryDirectory(prefix="halosift-bench-") as tmp:
+        tmpd = Path(tmp)
+        env = dict(os.environ, HALOSIFT_CACHE_DIR=str(tmpd / "cache"))
+        lib = tmpd / "unique.csv"
+        pd.DataFrame({"id": [f"B{i:07d}" for i in range(len(smiles))], "smiles": smiles}).to_csv(lib, index=False)
+        c, _ = run_screen([str(lib), "-o", str(tmpd / "out.parquet"), "--no-cache", "--quiet"], env)
+        print(f"(c) halosift screen, {workers} workers, whole process: {c:6.2f} s  c/a = {c / a:5.1f}  (target ≤ {TARGETS['c/a']})")
+        c1, _ = run_screen([str(lib), "-o", str(tmpd / "out1.parquet"), "--no-cache", "--quiet", "--workers", "1"], env)
+        speedup = c1 / c
+        print(f"(d) 1 worker {c1:.2f} s → {workers} workers {c:.2f} s: speed-up {speedup:4.2f}× (target ≥ {TARGETS['speed-up']})")
+
+        # (e) re-weighing: tile the perceived structures up to the requested count.
+        rows = np.arange(opts.rows) % len(perception.structures)
+        big = take(perception, rows)
+        big = Perception(big.structures, big.sites)
+        cond = engine.Conditions(cl2_temp_c=60.0, br2_temp_c=80.0)
+        t = time.perf_counter()
+        engine.summarise(big, cond)
+        e = time.perf_counter() - t
+        print(f"(e) re-weigh {opts.rows:,} perceived structures ({len(big.sites):,} sites): {e:5.2f} s (target ≤ {TARGETS['reweigh_s']} s)")
+
+        # (f) a screen of a many-row library (structures repeat, as in real catalogues).
+        big_lib = tmpd / "rows.csv"
+        pick = np.arange(opts.rows) % len(smiles)
+        pd.DataFrame({"id": [f"R{i:07d}" for i in range(opts.rows)], "smiles": np.array(smiles, dtype=object)[pick]}).to_csv(
+            big_lib, index=False
+        )
+        f_wall, peak = run_screen([str(big_lib), "-o", str(tmpd / "rows.parquet"), "--quiet"], env)
+        print(f"(f) screen of {opts.rows:,} rows (cold cache): {f_wall:6.2f} s, peak memory {peak / 2**30:5.2f} GB "
+              f"(process tree; target ≤ {TARGETS['peak_gb']} GB)")
+
+        # (g) re-open the same library: the cache is now warm.
+        os.environ["HALOSIFT_CACHE_DIR"] = env["HALOSIFT_CACHE_DIR"]
+        t = time.perf_counter()
+        library = engine.load_library(big_lib)
+        library.evaluate(engine.Conditions())
+        g = time.perf_counter() - t
+        print(f"(g) re-open {opts.rows:,} rows from a warm cache, in process: {g:5.2f} s (target ≤ {TARGETS['reopen_s']} s)")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

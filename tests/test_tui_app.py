@@ -1,0 +1,507 @@
+"""Pilot tests of the whole app: screen, filter, sort, change conditions, mark, export, read back."""
+
+from __future__ import annotations
+
+import asyncio
+import functools
+import io
+import os
+import threading
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pyarrow.parquet as pq
+import pytest
+
+import engine
+from tui.app import HalosiftApp, run
+from tui.conditions import ConditionsPanel
+from tui.detail import DetailScreen, bar
+from tui.export import ConfirmScreen, ExportScreen, check_export_path
+from tui.filter_form import FilterForm
+from tui.help import HelpScreen
+from tui.table import ROW_KEY, LibraryTable
+
+SIZE = (120, 40)
+
+
+def async_test(fn):
+    """Run an async test function in a fresh event loop (no async plugin is a dependency)."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        return asyncio.run(fn(*args, **kwargs))
+
+    return wrapper
+
+#: An invented supplier's list (IDs made up); the structures cover every verdict and two rejections.
+SMALL = [
+    ("QX-0001", "CC"),
+    ("QX-0002", "CCC"),
+    ("QX-0003", "CC(C)C"),
+    ("QX-0004", "Cc1ccccc1"),
+    ("QX-0005", "CCc1ccccc1"),
+    ("QX-0006", "C1CCCCC1"),
+    ("QX-0007", "CC1=CCCCC1"),
+    ("QX-0008", "c1ccccc1"),
+    ("QX-0009", "O"),
+    ("QX-0010", "CCC(C)CC"),
+    ("QX-0011", "C(C)(C)C"),
+    ("QX-0012", "not a smiles"),
+]
+
+
+def small_library(folder: Path) -> Path:
+    """Write the small library as CSV and return its path."""
+    path = folder / "qx_library.csv"
+    pd.DataFrame(SMALL, columns=["id", "smiles"]).assign(pack_g=[1, 5, 10, 25, 1, 5, 10, 25, 1, 5, 10, 25]).to_csv(
+        path, index=False
+    )
+    return path
+
+
+def library_path(folder: Path) -> Path:
+    """The bundled sample library when it is there, else the small library."""
+    try:
+        from sample_libraries import sample_path
+
+        return Path(sample_path())
+    except (ImportError, OSError, ValueError):
+        return small_library(folder)
+
+
+async def settle(pilot, app: HalosiftApp, rounds: int = 400) -> None:
+    """Wait until screening, every worker and every table update has finished."""
+    for _ in range(rounds):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        if not app.busy and not any(w.is_running for w in app.workers):
+            await pilot.pause()
+            return
+        await pilot.pause(0.02)
+    raise AssertionError("the app did not settle")
+
+
+def shown(app: HalosiftApp) -> pd.DataFrame:
+    """The rows the table shows, in display order."""
+    table = app.query_one(LibraryTable)
+    return app.frame.iloc[table.rows]
+
+
+def plain(widget) -> str:
+    """What a Static shows, as plain text."""
+    from rich.console import Console
+
+    content = widget.content
+    if isinstance(content, str):
+        return content
+    if hasattr(content, "plain"):
+        return content.plain
+    console = Console(width=max(widget.size.width, 40), record=True, file=io.StringIO(), color_system=None)
+    console.print(content)
+    return console.export_text()
+
+
+def table_text(app: HalosiftApp) -> str:
+    """The table's visible lines as plain text."""
+    table = app.query_one(LibraryTable)
+    table._fill_window()
+    return "\n".join(table.render_line(y).text for y in range(table.size.height))
+
+
+@async_test
+async def test_whole_path(tmp_path):
+    source = library_path(tmp_path)
+    app = HalosiftApp(str(source))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        assert app.phase == "ready"
+        frame = app.frame
+        n_ok = int((frame["status"] == "ok").sum())
+        assert len(app.query_one(LibraryTable).rows) == n_ok
+        counts = plain(app.query_one("#counts"))
+        assert f"{len(frame):,} rows" in counts and f"{n_ok:,} shown" in counts
+
+        # --- filter to "single" with the filter form, keyboard only
+        await pilot.press("f")
+        assert isinstance(app.screen, FilterForm)
+        assert app.focused.id == "verdict-single"
+        await pilot.press("tab")  # Tab walks the form
+        assert app.focused.id == "verdict-br-selective"
+        await pilot.press("shift+tab", "space", "ctrl+s")
+        await settle(pilot, app)
+        assert app.filters.verdicts == {"single"}
+        view = shown(app)
+        assert len(view) == int((frame["verdict"] == "single").sum()) > 0
+        assert set(view["verdict"]) == {"single"}
+        assert "verdict single" in plain(app.query_one("#settings"))
+
+        # --- sort by the SMILES column, both directions
+        table = app.query_one(LibraryTable)
+        table.focus()
+        smiles_col = app.library.smiles_column
+        while table.columns[table.picked].key != smiles_col:
+            await pilot.press("right")
+        await pilot.press("s")
+        await settle(pilot, app)
+        assert list(shown(app)[smiles_col]) == sorted(view[smiles_col])
+        await pilot.press("s")
+        await settle(pilot, app)
+        assert app.sort.descending
+        assert list(shown(app)[smiles_col]) == sorted(view[smiles_col], reverse=True)
+
+        # --- clear filters, change the bromination temperature, see the percentages change
+        await pilot.press("x")
+        await settle(pilot, app)
+        before = app.frame
+        mixtures = before.index[(before["verdict"] == "mixture") | (before["verdict"] == "br-selective")]
+        assert len(mixtures)
+        first = int(mixtures[0])
+        await pilot.press("t")
+        panel = app.query_one(ConditionsPanel)
+        assert panel.display
+        br2 = panel.query_one("#cond-br2")
+        br2.focus()
+        br2.value = ""
+        await pilot.press(*"40", "enter")
+        await settle(pilot, app)
+        assert app.conditions.br2_temp_c == 40.0
+        after = app.frame
+        assert after is not before
+        assert after.attrs["conditions"] == app.conditions
+        assert not np.allclose(
+            before.loc[mixtures, "br2_major_pct"].to_numpy(float), after.loc[mixtures, "br2_major_pct"].to_numpy(float)
+        )
+        assert "Br2 40 °C" in plain(app.query_one("#settings"))
+        # The table shows the new numbers for that row.
+        table.focus()
+        position = int(np.flatnonzero(table.rows == first)[0])
+        table.cursor = position
+        await pilot.pause()
+        assert f"{after.loc[first, 'br2_major_pct']:.1f}" in table_text(app)
+        # An impossible temperature is refused, with a one-line reason, and not applied.
+        await pilot.press("t")
+        br2.focus()
+        br2.value = "-300"
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert app.conditions.br2_temp_c == 40.0
+        assert "absolute zero" in plain(panel.query_one("#cond-note"))
+        br2.value = "40"
+        await pilot.press("escape")
+        assert not panel.display
+
+        # --- mark two rows (Space marks and steps down)
+        table.focus()
+        await pilot.press("home", "space", "space")
+        assert int(app.marked.sum()) == 2
+        marked_rows = np.flatnonzero(app.marked).tolist()
+        assert marked_rows == sorted(table.rows[:2].tolist())
+        assert "2 marked" in plain(app.query_one("#counts"))
+
+        # --- shortlist view shows exactly the marked rows
+        await pilot.press("v")
+        await settle(pilot, app)
+        assert app.view == "shortlist"
+        assert sorted(app.query_one(LibraryTable).rows.tolist()) == marked_rows
+        await pilot.press("v", "v")
+        await settle(pilot, app)
+        assert app.view == "library"
+
+        # --- export the shortlist to CSV
+        out_csv = tmp_path / "short.csv"
+        await pilot.press("e")
+        assert isinstance(app.screen, ExportScreen)
+        app.screen.query_one("#export-path").value = str(out_csv)
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert app.last_export == out_csv.resolve()
+        written = pd.read_csv(out_csv, keep_default_na=False)
+        assert len(written) == 2
+        assert written["input_row"].tolist() == [r + 1 for r in marked_rows]
+        for column in ("verdict", "br2_major", "br2_major_pct", "stereo", app.library.smiles_column):
+            assert column in written.columns
+        about = Path(str(out_csv) + ".about.txt").read_text(encoding="utf-8")
+        assert app.conditions.describe() in about
+        assert engine.CAUTION.split(". ")[0] in about
+        assert "shortlist" in about
+
+        # --- export the current view to Parquet
+        out_pq = tmp_path / "view.parquet"
+        await pilot.press("e")
+        await pilot.press("shift+tab", "down", "enter")  # keyboard: from the path field to the choice
+        assert app.screen.what == "view"
+        app.screen.query_one("#export-path").value = str(out_pq)
+        app.screen.query_one("#export-path").focus()
+        await pilot.press("enter")
+        await settle(pilot, app)
+        table_pq = pq.read_table(out_pq)
+        assert table_pq.num_rows == len(app.query_one(LibraryTable).rows)
+        meta = {k.decode(): v.decode() for k, v in table_pq.schema.metadata.items()}
+        assert meta["conditions"] == app.conditions.describe()
+        assert meta["caution"] == engine.CAUTION
+        assert "library view" in meta["selection"]
+
+        # --- never overwrite without asking: "n" keeps the file, "y" replaces it
+        stamp = out_csv.read_bytes()
+        os.utime(out_csv, (1, 1))
+        await pilot.press("e")
+        app.screen.query_one("#export-path").value = str(out_csv)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, ConfirmScreen)
+        await pilot.press("n")
+        await settle(pilot, app)
+        assert out_csv.stat().st_mtime == 1 and out_csv.read_bytes() == stamp
+        assert isinstance(app.screen, ExportScreen)
+        await pilot.press("enter")
+        await pilot.pause()
+        await pilot.press("y")
+        await settle(pilot, app)
+        assert out_csv.stat().st_mtime > 1
+
+        # --- q quits cleanly
+        await pilot.press("q")
+        await pilot.pause()
+    assert app.return_code == 0
+
+
+@async_test
+async def test_detail_shows_every_product_and_steps(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        table = app.query_one(LibraryTable)
+        row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CCc1ccccc1")[0])
+        table.cursor = int(np.flatnonzero(table.rows == row)[0])
+        await pilot.press("enter")
+        await pilot.pause()
+        screen = app.screen
+        assert isinstance(screen, DetailScreen) and screen.row == row
+        products = app.library.products(row, app.conditions)
+        body = plain(screen.query_one("#detail-products"))
+        text = plain(screen.query_one("#detail-bars"))
+        head = plain(screen.query_one("#detail-head"))
+        for p in products.itertuples():
+            assert p.product in body and p.site in body
+        # Bars: one line per product, both reagents, with the engine's percentages.
+        for p in products.itertuples():
+            assert f"{p.cl2_pct:5.1f} %" in text and f"{p.br2_pct:5.1f} %" in text
+        assert "br-selective" in head and "Cl2 at 25 °C" in head
+        # Space marks the shown row from the detail screen too.
+        await pilot.press("space")
+        await pilot.pause()
+        assert app.marked[row] and screen.marked
+        assert "on shortlist" in plain(screen.query_one("#detail-head"))
+        await pilot.press("n")
+        await pilot.pause()
+        assert screen.position == table.cursor + 1
+        await pilot.press("escape")
+        assert not isinstance(app.screen, DetailScreen)
+
+
+@async_test
+async def test_rejected_view_lists_reasons(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        await pilot.press("v", "v")
+        await settle(pilot, app)
+        assert app.view == "rejected"
+        view = shown(app)
+        assert view["id"].tolist() == ["QX-0009", "QX-0012"]
+        assert [c.key for c in app.query_one(LibraryTable).columns][:3] == ["id", "smiles", "reason"]
+        text = table_text(app)
+        assert "QX-0009" in text and view["reason"].iloc[0][:20] in text
+
+
+@async_test
+async def test_search_bar_filters_by_id_and_smiles(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        await pilot.press("slash", *"c1ccccc1", "enter")
+        await settle(pilot, app)
+        assert shown(app)["id"].tolist() == ["QX-0004", "QX-0005", "QX-0008"]
+        # While typing, letters are text, not commands: "q" did not quit, "f" did not open the form.
+        await pilot.press("slash")
+        app.query_one("#search").value = ""
+        await pilot.press(*"qx-0001", "enter")
+        await settle(pilot, app)
+        assert app.is_running and not isinstance(app.screen, FilterForm)
+        assert shown(app)["id"].tolist() == ["QX-0001"]
+        # ctrl+q quits even from inside a text field.
+        await pilot.press("slash", "ctrl+q")
+        await pilot.pause()
+    assert app.return_code == 0
+
+
+@async_test
+async def test_mark_all_shown_and_input_columns(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        app.filters = app.filters.__class__(verdicts=frozenset({"single"}))
+        await settle(pilot, app)
+        await pilot.press("a")
+        assert int(app.marked.sum()) == len(shown(app)) == int((app.frame["verdict"] == "single").sum())
+        await pilot.press("u")
+        assert int(app.marked.sum()) == 0
+        keys = [c.key for c in app.query_one(LibraryTable).columns]
+        assert "pack_g" not in keys
+        await pilot.press("c")
+        await settle(pilot, app)
+        keys = [c.key for c in app.query_one(LibraryTable).columns]
+        assert "pack_g" in keys and keys[-1] == ROW_KEY
+
+
+@async_test
+async def test_cancel_screening_then_screen_again(tmp_path, monkeypatch):
+    real = engine.load_library
+    started = threading.Event()
+
+    def slow(source, *, cancel, progress, **kwargs):
+        """Stands in for a long screening: reports progress, then waits for the cancel key."""
+        progress(0, 10)
+        started.set()
+        if cancel.wait(10):
+            raise engine.Cancelled()
+        raise AssertionError("cancel never arrived")
+
+    monkeypatch.setattr(engine, "load_library", slow)
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        for _ in range(200):
+            await pilot.pause(0.02)
+            if started.is_set():
+                break
+        assert app.phase == "screening"
+        assert app.query_one("#screening").display
+        await pilot.press("escape")
+        await settle(pilot, app)
+        assert app.phase == "stopped"
+        assert "cancelled" in plain(app.query_one("#counts")).lower()
+        monkeypatch.setattr(engine, "load_library", real)
+        await pilot.press("r")
+        await settle(pilot, app)
+        assert app.phase == "ready" and len(app.frame) == len(SMALL)
+
+
+@async_test
+async def test_unreadable_file_is_one_line_in_the_app(tmp_path):
+    bad = tmp_path / "library.xyz"
+    bad.write_text("nothing\n")
+    app = HalosiftApp(str(bad))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        assert app.phase == "stopped"
+        message = plain(app.query_one("#counts"))
+        assert message.startswith("Cannot open library.xyz") and "\n" not in message
+
+
+@async_test
+async def test_help_lists_bindings_verdicts_sources_and_caution(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        await pilot.press("question_mark")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+        keys = plain(app.screen.query_one("#help-keys"))
+        for description in ("Sort", "Mark", "Detail", "Filter", "Conditions", "Export", "Mark all shown", "Next row"):
+            assert description in keys
+        verdicts = plain(app.screen.query_one("#help-verdicts"))
+        for verdict in engine.VERDICTS:
+            assert verdict in verdicts
+        sources = plain(app.screen.query_one("#help-sources"))
+        for name in ("Sarzyński", "Morrison", "Blanksby", "Bell–Evans–Polanyi"):
+            assert name in sources
+        assert plain(app.screen.query_one("#help-caution")).split()[:3] == engine.CAUTION.split()[:3]
+        await pilot.press("escape")
+        await pilot.press("f1")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+
+
+def test_export_path_checks(tmp_path):
+    path, fmt = check_export_path("out.parquet", tmp_path)
+    assert path == tmp_path / "out.parquet" and fmt == "parquet"
+    assert check_export_path("x.sdf.gz", tmp_path)[1] == "sdf"
+    with pytest.raises(ValueError, match="unknown file type"):
+        check_export_path("out.xlsx", tmp_path)
+    with pytest.raises(ValueError, match="does not exist"):
+        check_export_path("missing/out.csv", tmp_path)
+    with pytest.raises(ValueError, match="type a file name"):
+        check_export_path("  ", tmp_path)
+    source = small_library(tmp_path)
+    with pytest.raises(ValueError, match="library being screened"):
+        check_export_path(source.name, tmp_path, [source])
+    assert check_export_path("other.csv", tmp_path, [source])[0] == tmp_path / "other.csv"
+
+
+def test_bar_glyphs():
+    assert bar(0, 10) == "░" * 10
+    assert bar(100, 10) == "█" * 10
+    assert bar(55, 10) == "█" * 5 + "▌" + "░" * 4
+    assert all(len(bar(p, 17)) == 17 for p in np.linspace(0, 100, 41))
+
+
+def test_run_reports_a_missing_file(tmp_path, capsys):
+    assert run(str(tmp_path / "nope.csv")) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "no such file" in err
+
+
+@async_test
+async def test_out_of_range_temperature_shows_the_engine_warning(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        assert not app.query_one("#warnings").display
+        await pilot.press("t")
+        cl2 = app.query_one("#cond-cl2")
+        cl2.value = "400"
+        await pilot.press("enter")
+        await settle(pilot, app)
+        expected = engine.Conditions(cl2_temp_c=400).warnings()
+        assert expected and app.conditions.warnings() == expected
+        assert app.query_one("#warnings").display
+        assert plain(app.query_one("#warnings")) == "\n".join(f"! {w}" for w in expected)
+        assert expected[0] in plain(app.query_one(ConditionsPanel).query_one("#cond-note"))
+
+
+@async_test
+async def test_mouse_picks_rows_and_columns(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        table = app.query_one(LibraryTable)
+        await pilot.click(LibraryTable, offset=(12, 4))  # fourth data row, SMILES cell
+        await pilot.pause()
+        assert table.cursor == 3
+        x = 2 + table.columns[0].width + 1 + table.columns[1].width + 1 + 2  # inside the Verdict header
+        await pilot.click(LibraryTable, offset=(x, 0))
+        await pilot.pause()
+        assert table.columns[table.picked].key == "verdict"
+        await pilot.click(LibraryTable, offset=(12, 2), times=2)
+        await pilot.pause()
+        assert isinstance(app.screen, DetailScreen) and app.screen.row == int(table.rows[1])
+
+
+@async_test
+async def test_screening_in_worker_processes_works_inside_the_app(tmp_path, monkeypatch):
+    """Inside a running Textual app sys.stderr has no file descriptor; spawning the engine's
+    process pool must still work (the app starts multiprocessing's helper before it runs)."""
+    import engine.parallel
+    from multiprocessing import resource_tracker
+
+    resource_tracker._resource_tracker._stop()  # as in a fresh process: no helper running yet
+    monkeypatch.setattr(engine.parallel, "MIN_PARALLEL", 4)
+    monkeypatch.setattr(engine.parallel, "CHUNK", 4)
+    app = HalosiftApp(str(small_library(tmp_path)), use_cache=False)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        assert app.phase == "ready", plain(app.query_one("#counts"))
+        assert len(app.frame) == len(SMALL)
+        assert int((app.frame["status"] == "ok").sum()) == len(SMALL) - 2

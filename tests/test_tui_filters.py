@@ -1,0 +1,222 @@
+"""Unit tests for tui.filters: the pandas/numpy rules behind the app's views, filters and sorting."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from tui.filters import (
+    FilterSpec,
+    OrderCache,
+    SortSpec,
+    filter_mask,
+    full_order,
+    ordered_rows,
+    parse_optional_float,
+    parse_optional_int,
+    site_choices,
+    site_set,
+    sort_key,
+    text_mask,
+    view_mask,
+)
+
+TEXT = (["code"], ["smiles"])
+
+
+def frame() -> pd.DataFrame:
+    """An evaluated-library-shaped frame with invented IDs (values written by hand, not computed)."""
+    return pd.DataFrame(
+        {
+            "code": ["QX-1", "QX-2", "QX-3", "QX-4", "QX-5", "QX-6", "qx-7"],
+            "smiles": ["CC", "CCC", "CCc1ccccc1", "CC1=CCCCC1", "O", "c1ccccc1", "CC(C)C"],
+            "status": ["ok", "ok", "ok", "ok", "rejected", "ok", "ok"],
+            "reason": ["", "", "", "", "contains oxygen", "", ""],
+            "n_products": pd.array([1, 2, 2, 5, None, 0, 2], dtype="Int32"),
+            "verdict": ["single", "br-selective", "br-selective", "mixture", "", "inert", "br-selective"],
+            "br2_major_pct": [100.0, 96.5, 99.99, 49.5, np.nan, np.nan, 99.5],
+            "stereo": ["achiral", "achiral", "racemate", "racemate", "", "", "achiral"],
+            "site_types": [
+                "primary",
+                "primary,secondary",
+                "benzylic-secondary,primary",
+                "allylic-primary,allylic-secondary,secondary",
+                "",
+                "",
+                "primary,tertiary",
+            ],
+        }
+    )
+
+
+def rows(mask: np.ndarray) -> list[int]:
+    return np.flatnonzero(mask).tolist()
+
+
+def test_no_filters_keeps_every_screened_row_and_drops_rejected():
+    assert rows(filter_mask(frame(), FilterSpec(), *TEXT)) == [0, 1, 2, 3, 5, 6]
+
+
+def test_verdict_filter():
+    assert rows(filter_mask(frame(), FilterSpec(verdicts=frozenset({"single"})), *TEXT)) == [0]
+    both = FilterSpec(verdicts=frozenset({"single", "inert"}))
+    assert rows(filter_mask(frame(), both, *TEXT)) == [0, 5]
+
+
+def test_min_bromination_share_is_inclusive_and_excludes_missing():
+    assert rows(filter_mask(frame(), FilterSpec(min_br2_pct=99.5), *TEXT)) == [0, 2, 6]
+    assert rows(filter_mask(frame(), FilterSpec(min_br2_pct=0), *TEXT)) == [0, 1, 2, 3, 6]
+
+
+def test_max_products():
+    assert rows(filter_mask(frame(), FilterSpec(max_products=1), *TEXT)) == [0, 5]
+    assert rows(filter_mask(frame(), FilterSpec(max_products=0), *TEXT)) == [5]
+
+
+def test_site_types_any_and_all():
+    any_of = FilterSpec(site_types=frozenset({"tertiary", "benzylic-secondary"}))
+    assert rows(filter_mask(frame(), any_of, *TEXT)) == [2, 6]
+    all_of = FilterSpec(site_types=frozenset({"primary", "secondary"}), site_match="all")
+    assert rows(filter_mask(frame(), all_of, *TEXT)) == [1]
+    # "secondary" must match the whole class name, not the tail of "allylic-secondary".
+    exact = FilterSpec(site_types=frozenset({"allylic-secondary"}))
+    assert rows(filter_mask(frame(), exact, *TEXT)) == [3]
+
+
+def test_no_new_stereocentre_keeps_achiral_major_product_only():
+    assert rows(filter_mask(frame(), FilterSpec(no_new_stereo=True), *TEXT)) == [0, 1, 6]
+
+
+def test_text_match_ignores_case_in_ids_but_not_in_smiles():
+    assert rows(filter_mask(frame(), FilterSpec(text="qx-7"), *TEXT)) == [6]
+    assert rows(filter_mask(frame(), FilterSpec(text="QX-7"), *TEXT)) == [6]
+    assert rows(filter_mask(frame(), FilterSpec(text="c1ccccc1"), *TEXT)) == [2, 5]
+    # In SMILES, case is meaning (c aromatic, C aliphatic), so it is kept.
+    assert rows(filter_mask(frame(), FilterSpec(text="CC1=C"), *TEXT)) == [3]
+    assert rows(filter_mask(frame(), FilterSpec(text="cc1=c"), *TEXT)) == []
+    # Regex characters are taken literally.
+    assert rows(filter_mask(frame(), FilterSpec(text="(C)"), *TEXT)) == [6]
+    assert rows(text_mask(frame(), "O", ["smiles"], ignore_case=False)) == [4]
+    assert rows(text_mask(frame(), "o", ["smiles"], ignore_case=False)) == []
+
+
+def test_filters_combine_with_and():
+    spec = FilterSpec(verdicts=frozenset({"br-selective"}), min_br2_pct=99.0, no_new_stereo=True)
+    assert rows(filter_mask(frame(), spec, *TEXT)) == [6]
+
+
+def test_views():
+    marked = np.array([False, True, False, False, True, False, False])
+    spec = FilterSpec(verdicts=frozenset({"single"}))
+    assert rows(view_mask(frame(), "library", spec, marked, *TEXT)) == [0]
+    # The shortlist and rejected views ignore the filters.
+    assert rows(view_mask(frame(), "shortlist", spec, marked, *TEXT)) == [1, 4]
+    assert rows(view_mask(frame(), "rejected", spec, marked, *TEXT)) == [4]
+    with pytest.raises(ValueError):
+        view_mask(frame(), "nowhere", spec, marked, *TEXT)
+
+
+def test_describe_and_active():
+    assert FilterSpec().describe() == "no filters"
+    assert not FilterSpec().active
+    assert not FilterSpec(site_match="all").active
+    spec = FilterSpec(verdicts=frozenset({"single"}), min_br2_pct=90, max_products=2, no_new_stereo=True, text="QX")
+    assert spec.active
+    text = spec.describe()
+    for part in ("verdict single", "Br2 major ≥ 90 %", "≤ 2 products", "no new stereocentre", "QX"):
+        assert part in text
+    assert spec.without_text().text == ""
+
+
+def test_site_choices_and_site_set():
+    assert site_set("primary,secondary") == {"primary", "secondary"}
+    assert site_set("") == frozenset()
+    assert site_set(np.nan) == frozenset()
+    assert site_choices(frame()) == [
+        "allylic-primary", "allylic-secondary", "benzylic-secondary", "primary", "secondary", "tertiary",
+    ]
+    assert site_choices(frame().drop(columns="site_types")) == []
+
+
+def test_parsers():
+    assert parse_optional_float(" ", lo=0, hi=100, what="x") is None
+    assert parse_optional_float("90", lo=0, hi=100, what="x") == 90.0
+    with pytest.raises(ValueError, match="not a number"):
+        parse_optional_float("ninety", lo=0, hi=100, what="x")
+    with pytest.raises(ValueError, match="between 0 and 100"):
+        parse_optional_float("101", lo=0, hi=100, what="x")
+    with pytest.raises(ValueError, match="between 0 and 100"):
+        parse_optional_float("nan", lo=0, hi=100, what="x")
+    assert parse_optional_int("3", lo=0, what="n") == 3
+    assert parse_optional_int("", lo=0, what="n") is None
+    with pytest.raises(ValueError, match="whole number"):
+        parse_optional_int("2.5", lo=0, what="n")
+    with pytest.raises(ValueError, match="at least 0"):
+        parse_optional_int("-1", lo=0, what="n")
+
+
+def test_numeric_sort_puts_missing_last_both_ways():
+    f = frame()
+    key, missing = sort_key(f["br2_major_pct"])
+    up = full_order(key, missing, descending=False).tolist()
+    down = full_order(key, missing, descending=True).tolist()
+    assert up == [3, 1, 6, 2, 0, 4, 5]
+    assert down == [0, 2, 6, 1, 3, 4, 5]
+
+
+def test_nullable_integer_sort_is_stable():
+    key, missing = sort_key(frame()["n_products"])
+    assert full_order(key, missing, False).tolist() == [5, 0, 1, 2, 6, 3, 4]
+
+
+def test_text_sort_and_category_sort():
+    f = frame()
+    key, missing = sort_key(f["smiles"])
+    assert [f["smiles"][i] for i in full_order(key, missing, False)] == sorted(f["smiles"])
+    ranks = {v: i for i, v in enumerate(("single", "br-selective", "mixture", "inert"))}
+    key, missing = sort_key(f["verdict"], ranks)
+    order = full_order(key, missing, False).tolist()
+    assert [f["verdict"][i] for i in order] == [
+        "single", "br-selective", "br-selective", "br-selective", "mixture", "inert", "",
+    ]
+    # Descending keeps the rejected (empty) row last, and equal verdicts in input order.
+    down = full_order(key, missing, True).tolist()
+    assert down == [5, 3, 1, 2, 6, 0, 4]
+
+
+def test_mixed_type_text_column_sorts_as_text():
+    s = pd.Series(["b", 3, "a", None], dtype=object)
+    key, missing = sort_key(s)
+    assert full_order(key, missing, False).tolist() == [1, 2, 0, 3]
+
+
+def test_ordered_rows_and_order_cache():
+    f = frame()
+    cache = OrderCache(max_entries=2)
+    order = cache.order(f, "t", "br2_major_pct", True)
+    assert cache.order(f, "t", "br2_major_pct", True) is order
+    mask = filter_mask(f, FilterSpec(verdicts=frozenset({"br-selective"})), *TEXT)
+    assert ordered_rows(mask, order).tolist() == [2, 6, 1]
+    assert ordered_rows(mask, None).tolist() == [1, 2, 6]
+    cache.order(f, "t", "smiles", False)
+    cache.order(f, "t", "code", False)
+    assert len(cache._store) == 2  # oldest entry dropped
+
+
+def test_sort_spec_defaults():
+    assert SortSpec() == SortSpec(None, False)
+
+
+def test_filters_work_on_a_real_evaluated_library():
+    """Column names and dtypes as Library.evaluate returns them (engine output, not hand-written)."""
+    import engine
+
+    source = pd.DataFrame({"code": ["QX-1", "QX-2", "QX-3", "QX-4"], "smiles": ["CC", "CCC", "O", "c1ccccc1"]})
+    evaluated = engine.load_library(source, use_cache=False).evaluate(engine.Conditions())
+    assert rows(filter_mask(evaluated, FilterSpec(verdicts=frozenset({"single"})), *TEXT)) == [0]
+    assert rows(view_mask(evaluated, "rejected", FilterSpec(), np.zeros(4, bool), *TEXT)) == [2]
+    assert rows(filter_mask(evaluated, FilterSpec(text="c1"), ["code"], ["canonical_smiles"])) == [3]
+    assert rows(filter_mask(evaluated, FilterSpec(max_products=0), *TEXT)) == [3]
+    key, missing = sort_key(evaluated["br2_major_pct"])
+    assert full_order(key, missing, True).tolist()[:2] == [0, 1]

@@ -1,0 +1,125 @@
+"""Snapshot tests of the app's screens (pytest-textual-snapshot). Update with --snapshot-update.
+
+Every snapshot waits for screening and table updates to finish first, and the
+library is a small file of invented IDs written here, so nothing in view
+depends on timing, paths or the bundled sample's contents.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from tui.app import HalosiftApp
+from tui.table import LibraryTable
+
+#: An invented supplier's list (IDs made up) covering every verdict and two rejections.
+ROWS = [
+    ("QX-0001", "CC"),
+    ("QX-0002", "CCC"),
+    ("QX-0003", "CC(C)C"),
+    ("QX-0004", "Cc1ccccc1"),
+    ("QX-0005", "CCc1ccccc1"),
+    ("QX-0006", "C1CCCCC1"),
+    ("QX-0007", "CC1=CCCCC1"),
+    ("QX-0008", "c1ccccc1"),
+    ("QX-0009", "O"),
+    ("QX-0010", "CCC(C)CC"),
+    ("QX-0011", "C(C)(C)C"),
+    ("QX-0012", "not a smiles"),
+    ("QX-0013", "CC(C)Cc1ccccc1"),
+    ("QX-0014", "CCCC"),
+]
+
+
+def make_app(folder: Path) -> HalosiftApp:
+    path = folder / "qx_library.csv"
+    pd.DataFrame(ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return HalosiftApp(str(path))
+
+
+async def settle(pilot) -> None:
+    """Wait until screening, every worker and every table update has finished."""
+    app = pilot.app
+    for _ in range(500):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        if not app.busy and not any(w.is_running for w in app.workers):
+            await pilot.pause()
+            return
+        await pilot.pause(0.02)
+    raise AssertionError("the app did not settle")
+
+
+async def open_detail_of_ethylbenzene(pilot) -> None:
+    await settle(pilot)
+    app = pilot.app
+    table = app.query_one(LibraryTable)
+    row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CCc1ccccc1")[0])
+    table.cursor = int(np.flatnonzero(table.rows == row)[0])
+    await pilot.press("enter")
+    await pilot.pause()
+
+
+async def mark_and_sort(pilot) -> None:
+    """Mark two rows, sort by Br2 % (largest first) and leave the cursor on row 3."""
+    await settle(pilot)
+    await pilot.press("space", "space")
+    table = pilot.app.query_one(LibraryTable)
+    while table.columns[table.picked].key != "br2_major_pct":
+        await pilot.press("right")
+    await pilot.press("s", "s")
+    await settle(pilot)
+    await pilot.press("down", "down")
+    await pilot.pause()
+
+
+def test_main_80x24(snap_compare, tmp_path):
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=settle)
+
+
+def test_main_120x40(snap_compare, tmp_path):
+    assert snap_compare(make_app(tmp_path), terminal_size=(120, 40), run_before=mark_and_sort)
+
+
+def test_detail_120x40(snap_compare, tmp_path):
+    assert snap_compare(make_app(tmp_path), terminal_size=(120, 40), run_before=open_detail_of_ethylbenzene)
+
+
+def test_detail_80x24(snap_compare, tmp_path):
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=open_detail_of_ethylbenzene)
+
+
+def test_help_80x24(snap_compare, tmp_path):
+    async def open_help(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("question_mark")
+        await pilot.pause()
+
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=open_help)
+
+
+def test_filter_form_80x24(snap_compare, tmp_path):
+    async def open_filters(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("f")
+        await pilot.pause()
+
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=open_filters)
+
+
+def test_rejected_view_80x24(snap_compare, tmp_path):
+    async def rejected(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("v", "v")
+        await settle(pilot)
+
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=rejected)
+
+
+def test_main_monochrome_80x24(snap_compare, tmp_path, monkeypatch):
+    """With NO_COLOR set, verdicts, cursor and marks still read from text and symbols."""
+    monkeypatch.setenv("NO_COLOR", "1")
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=mark_and_sort)

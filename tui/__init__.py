@@ -1,0 +1,1 @@
+"""halosift terminal app (Textual)."""

@@ -1,0 +1,253 @@
+"""Exporting the shortlist or the current view: the path form, the replace dialog, and what is written."""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Any, ClassVar
+
+import numpy as np
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, RadioSet, Static
+
+from tui.toggles import ChoiceButton
+
+if TYPE_CHECKING:
+    import pandas as pd
+
+#: Default file names per choice (in the folder the app was started from).
+DEFAULT_NAMES: dict[str, str] = {"shortlist": "halosift-shortlist.csv", "view": "halosift-view.csv"}
+#: Name of the column added to exports: the 1-based input row, so rows can be traced back.
+ROW_COLUMN = "input_row"
+
+
+@dataclass(frozen=True)
+class ExportChoice:
+    """What the export form settled on."""
+
+    what: str
+    """'shortlist' (marked rows) or 'view' (the rows the table shows)."""
+    path: Path
+    """Absolute path to write."""
+    force: bool
+    """True when the chemist agreed to replace an existing file."""
+
+
+def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -> tuple[Path, str]:
+    """(absolute path, format) for the typed path, or ValueError with a one-line reason.
+
+    Relative paths are taken from ``folder``. The folder must exist and be
+    writable; the extension must be one the writer knows; the path must not
+    be one of ``protected`` (the library being screened).
+    """
+    from engine.io import LibraryError, output_format
+
+    text = text.strip()
+    if not text:
+        raise ValueError("type a file name, e.g. shortlist.csv")
+    path = Path(text).expanduser()
+    if not path.is_absolute():
+        path = folder / path
+    path = Path(os.path.normpath(path))
+    try:
+        fmt = output_format(path)
+    except LibraryError as exc:
+        raise ValueError(str(exc)) from None
+    parent = path.parent
+    if not parent.is_dir():
+        raise ValueError(f"folder {parent} does not exist")
+    if not os.access(parent, os.W_OK):
+        raise ValueError(f"folder {parent} is not writable")
+    if path.is_dir():
+        raise ValueError(f"{path} is a folder")
+    for guarded in protected:
+        if path.exists() and Path(guarded).exists() and os.path.samefile(path, guarded):
+            raise ValueError(f"{path} is the library being screened; choose another name")
+    return path, fmt
+
+
+def existing_targets(path: Path, fmt: str) -> list[Path]:
+    """Files the export would replace (the data file, and the CSV/TSV sidecar)."""
+    from engine.io import about_path
+
+    targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
+    return [t for t in targets if t.exists()]
+
+
+def export_frame(frame: pd.DataFrame, rows: np.ndarray) -> pd.DataFrame:
+    """The rows to write, with their 1-based input row number in front."""
+    out = frame.iloc[np.asarray(rows, dtype=np.int64)].reset_index(drop=True)
+    out.attrs = {}  # in-memory notes (e.g. the Conditions object) are not file metadata
+    if ROW_COLUMN not in out.columns:
+        out.insert(0, ROW_COLUMN, np.asarray(rows, dtype=np.int64) + 1)
+    return out
+
+
+def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, str]:
+    """The engine's provenance record (conditions, sources, safety caution) plus what was selected, from where."""
+    from engine.provenance import export_metadata as provenance
+
+    warnings = conditions.warnings()
+    return provenance(
+        conditions,
+        condition_warnings="; ".join(warnings) if warnings else "none",
+        selection=selection,
+        source=source,
+        written_by="halosift app (browse)",
+    )
+
+
+class ConfirmScreen(ModalScreen[bool]):
+    """Ask before replacing files: y replaces, n or Esc keeps them (Enter presses the focused button, Keep)."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("y", "answer(True)", "Replace"),
+        Binding("n,escape", "answer(False)", "Keep"),
+    ]
+
+    def __init__(self, targets: list[Path]) -> None:
+        super().__init__()
+        self.targets = targets
+        """Existing files that would be replaced."""
+
+    def compose(self) -> ComposeResult:
+        names = "\n".join(f"  {t}" for t in self.targets)
+        with Vertical(id="confirm-box"):
+            yield Static(f"Replace the existing file{'s' if len(self.targets) > 1 else ''}?\n{names}", id="confirm-text")
+            with Horizontal(id="confirm-buttons"):
+                yield Button("Replace (y)", id="confirm-yes", variant="warning", compact=True)
+                yield Button("Keep (n)", id="confirm-no", compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#confirm-no", Button).focus()
+
+    def action_answer(self, replace: bool) -> None:
+        """Close with the answer."""
+        self.dismiss(replace)
+
+    @on(Button.Pressed, "#confirm-yes")
+    def _yes(self) -> None:
+        self.dismiss(True)
+
+    @on(Button.Pressed, "#confirm-no")
+    def _no(self) -> None:
+        self.dismiss(False)
+
+
+class ExportScreen(ModalScreen[ExportChoice | None]):
+    """Choose shortlist or current view, and a path; the path is checked as you type."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "Cancel"),
+    ]
+
+    def __init__(self, n_marked: int, n_view: int, view: str, folder: Path, protected: Sequence[Path] = ()) -> None:
+        super().__init__()
+        self.protected = list(protected)
+        """Files that must not be written over (the input library)."""
+        self.n_marked = n_marked
+        """Rows on the shortlist."""
+        self.n_view = n_view
+        """Rows the table shows now."""
+        self.view = view
+        """Name of the current view."""
+        self.folder = folder
+        """Folder relative paths are taken from."""
+
+    def compose(self) -> ComposeResult:
+        start = "shortlist" if self.n_marked else "view"
+        with Vertical(id="export-box"):
+            yield Static("Export", id="export-title")
+            with RadioSet(id="export-what", compact=True):
+                yield ChoiceButton(f"shortlist: {self.n_marked:,} marked rows", start == "shortlist",
+                                  id="what-shortlist", compact=True)
+                yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, as shown", start == "view",
+                                  id="what-view", compact=True)
+            yield Label("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz):")
+            yield Input(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
+            yield Static("", id="export-check")
+            yield Static("Conditions, selection and the safety caution are stored with the data.", id="export-note")
+            with Horizontal(id="export-buttons"):
+                yield Button("Write", id="export-write", variant="primary", compact=True)
+                yield Button("Cancel", id="export-cancel", compact=True)
+
+    def on_mount(self) -> None:
+        path = self.query_one("#export-path", Input)
+        path.focus()
+        path.cursor_position = len(path.value)
+        self._check()
+
+    @property
+    def what(self) -> str:
+        """'shortlist' or 'view', as chosen."""
+        return "shortlist" if self.query_one("#what-shortlist", ChoiceButton).value else "view"
+
+    def _check(self) -> tuple[Path, str] | None:
+        box = self.query_one("#export-check", Static)
+        try:
+            path, fmt = check_export_path(self.query_one("#export-path", Input).value, self.folder, self.protected)
+        except ValueError as exc:
+            box.update(f"✗ {exc}")
+            return None
+        if self.what == "shortlist" and not self.n_marked:
+            box.update("✗ the shortlist is empty: mark rows with Space, or choose the current view")
+            return None
+        if self.what == "view" and not self.n_view:
+            box.update("✗ the current view has no rows")
+            return None
+        where = "in the Parquet schema metadata" if fmt == "parquet" else (
+            "as SDF properties" if fmt == "sdf" else "in a .about.txt file beside it")
+        exists = " · the file exists: you will be asked before it is replaced" if existing_targets(path, fmt) else ""
+        box.update(f"✓ {fmt.upper()} to {path}; metadata {where}{exists}")
+        return path, fmt
+
+    @on(Input.Changed, "#export-path")
+    def _path_changed(self) -> None:
+        self._check()
+
+    @on(RadioSet.Changed)
+    def _what_changed(self) -> None:
+        box = self.query_one("#export-path", Input)
+        current = Path(box.value).name
+        if current in DEFAULT_NAMES.values():  # still the suggested name: follow the choice
+            box.value = str(Path(box.value).with_name(DEFAULT_NAMES[self.what]))
+        self._check()
+
+    def _write(self) -> None:
+        checked = self._check()
+        if checked is None:
+            return
+        path, fmt = checked
+        targets = existing_targets(path, fmt)
+        what = self.what
+        if not targets:
+            self.dismiss(ExportChoice(what, path, False))
+            return
+
+        def answered(replace: bool | None) -> None:
+            if replace:
+                self.dismiss(ExportChoice(what, path, True))
+
+        self.app.push_screen(ConfirmScreen(targets), answered)
+
+    @on(Input.Submitted, "#export-path")
+    def _submitted(self) -> None:
+        self._write()
+
+    @on(Button.Pressed, "#export-write")
+    def _write_pressed(self) -> None:
+        self._write()
+
+    @on(Button.Pressed, "#export-cancel")
+    def _cancel_pressed(self) -> None:
+        self.dismiss(None)
+
+    def action_cancel(self) -> None:
+        """Close without writing."""
+        self.dismiss(None)

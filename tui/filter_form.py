@@ -1,0 +1,138 @@
+"""The filter form: every filter of the library view in one small dialog."""
+
+from __future__ import annotations
+
+from typing import ClassVar
+
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Grid, Horizontal, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, RadioSet, Static
+
+from tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
+from tui.toggles import ChoiceButton, TickBox
+
+#: Verdict names in display order (the engine's own order).
+VERDICT_ORDER = ("single", "br-selective", "mixture", "inert")
+
+
+class FilterForm(ModalScreen[FilterSpec | None]):
+    """Edit the filters; Apply returns the new FilterSpec, Esc returns None."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "Cancel"),
+        Binding("ctrl+s", "apply", "Apply"),
+    ]
+
+    def __init__(self, spec: FilterSpec, sites: list[str], no_sites_reason: str = "") -> None:
+        super().__init__()
+        self.no_sites_reason = no_sites_reason or "Site types: none abstractable in this library"
+        """Shown instead of the site-type list when there is nothing to choose."""
+        self.spec = spec
+        """The filters in force when the form opened."""
+        self.sites = sorted(set(sites) | set(spec.site_types))
+        """Site classes offered (those present in the library)."""
+
+    def compose(self) -> ComposeResult:
+        spec = self.spec
+        with VerticalScroll(id="filter-box"):
+            yield Static("Filters for the library view (all must hold)", id="filter-title")
+            yield Label("Verdict (none ticked: any verdict)")
+            with Horizontal(classes="filter-row"):
+                for verdict in VERDICT_ORDER:
+                    yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
+            with Horizontal(classes="filter-row"):
+                yield Label("Br2 major product at least", classes="filter-label")
+                yield Input(_text(spec.min_br2_pct), id="min-br2", type="number", compact=True, placeholder="any")
+                yield Label("%", classes="filter-label")
+            with Horizontal(classes="filter-row"):
+                yield Label("At most", classes="filter-label")
+                yield Input(_text(spec.max_products), id="max-products", type="integer", compact=True, placeholder="any")
+                yield Label("products (constitutional monohalides)", classes="filter-label")
+            yield TickBox(
+                f"No new stereocentre (Br2 major product {NO_NEW_STEREO})",
+                spec.no_new_stereo,
+                id="no-new-stereo",
+                compact=True,
+            )
+            if self.sites:
+                with Horizontal(classes="filter-row"):
+                    yield Label("Site types present:", classes="filter-label")
+                    with RadioSet(id="site-match", compact=True):
+                        yield ChoiceButton("any of", spec.site_match == "any", id="match-any", compact=True)
+                        yield ChoiceButton("all of", spec.site_match == "all", id="match-all", compact=True)
+                with Grid(id="site-grid"):
+                    for site in self.sites:
+                        yield TickBox(site, site in spec.site_types, id=f"site-{site}", classes="site-box", compact=True)
+            else:
+                yield Label(self.no_sites_reason, id="no-sites", classes="filter-row")
+            with Horizontal(classes="filter-row"):
+                yield Label("Text in ID or SMILES", classes="filter-label")
+                yield Input(spec.text, id="filter-text", compact=True)
+            yield Static("", id="filter-error")
+            with Horizontal(id="filter-buttons"):
+                yield Button("Apply", id="filter-apply", variant="primary", compact=True)
+                yield Button("Clear all", id="filter-clear", compact=True)
+                yield Button("Cancel", id="filter-cancel", compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one(f"#verdict-{VERDICT_ORDER[0]}", TickBox).focus()
+
+    def collect(self) -> FilterSpec:
+        """The FilterSpec the form now describes; ValueError (one line) when a field is invalid."""
+        verdicts = frozenset(v for v in VERDICT_ORDER if self.query_one(f"#verdict-{v}", TickBox).value)
+        min_br2 = parse_optional_float(
+            self.query_one("#min-br2", Input).value, lo=0, hi=100, what="Br2 major minimum"
+        )
+        max_products = parse_optional_int(
+            self.query_one("#max-products", Input).value, lo=0, what="maximum products"
+        )
+        if self.sites:
+            sites = frozenset(site for site in self.sites if self.query_one(f"#site-{site}", TickBox).value)
+            match = "all" if self.query_one("#match-all", ChoiceButton).value else "any"
+        else:
+            sites, match = frozenset(), "any"
+        return FilterSpec(
+            verdicts=verdicts,
+            min_br2_pct=min_br2,
+            max_products=max_products,
+            site_types=sites,
+            site_match=match,
+            no_new_stereo=self.query_one("#no-new-stereo", TickBox).value,
+            text=self.query_one("#filter-text", Input).value.strip(),
+        )
+
+    def action_apply(self) -> None:
+        """Close and apply, unless a field is invalid."""
+        try:
+            spec = self.collect()
+        except ValueError as exc:
+            self.query_one("#filter-error", Static).update(f"✗ {exc}")
+            return
+        self.dismiss(spec)
+
+    def action_cancel(self) -> None:
+        """Close without changing anything."""
+        self.dismiss(None)
+
+    @on(Input.Submitted)
+    def _submitted(self) -> None:
+        self.action_apply()
+
+    @on(Button.Pressed, "#filter-apply")
+    def _apply(self) -> None:
+        self.action_apply()
+
+    @on(Button.Pressed, "#filter-cancel")
+    def _cancel(self) -> None:
+        self.action_cancel()
+
+    @on(Button.Pressed, "#filter-clear")
+    def _clear(self) -> None:
+        self.dismiss(FilterSpec())
+
+
+def _text(value: float | int | None) -> str:
+    return "" if value is None else f"{value:g}"

@@ -1,0 +1,308 @@
+"""Which rows of an evaluated library the app shows, and in what order.
+
+Pure pandas/numpy: no Textual here, so every rule can be unit-tested and runs
+in a worker thread. A view is an index array of row positions into the
+evaluated frame (``Library.evaluate``); nothing is ever built per row.
+"""
+
+from __future__ import annotations
+
+import threading
+from collections.abc import Hashable, Iterable, Mapping
+from dataclasses import dataclass, field, replace
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+if TYPE_CHECKING:
+    import pandas as pd
+
+# pandas (and with it pyarrow) is imported inside the functions that need it,
+# so the app can import the filter types and paint before pandas has loaded.
+
+#: The three lists of rows the app can show.
+VIEWS: tuple[str, ...] = ("library", "shortlist", "rejected")
+#: What each view holds (shown in the help screen).
+VIEW_DOCS: dict[str, str] = {
+    "library": "screened rows (status ok) that pass every filter",
+    "shortlist": "every marked row, filters ignored",
+    "rejected": "rows the engine could not model, with the reason; filters ignored",
+}
+#: Stereo outcome that counts as "no new stereocentre" (of the bromination major product).
+NO_NEW_STEREO = "achiral"
+
+
+@dataclass(frozen=True)
+class FilterSpec:
+    """The chemist's filters; they all must hold at once (logical AND)."""
+
+    verdicts: frozenset[str] = frozenset()
+    """Verdicts to keep; empty keeps every verdict."""
+    min_br2_pct: float | None = None
+    """Keep rows whose bromination major product is at least this percent."""
+    max_products: int | None = None
+    """Keep rows with at most this many constitutional monohalides."""
+    site_types: frozenset[str] = frozenset()
+    """Site classes that must be present (see ``site_match``); empty: no condition."""
+    site_match: str = "any"
+    """'any': at least one of ``site_types`` present; 'all': every one present."""
+    no_new_stereo: bool = False
+    """Keep rows whose bromination major product is achiral (no new stereocentre)."""
+    text: str = ""
+    """Substring looked for in the ID (any case) and SMILES (exact case) columns."""
+
+    @property
+    def active(self) -> bool:
+        """True when any filter narrows the rows."""
+        return self != FilterSpec(site_match=self.site_match)
+
+    def describe(self) -> str:
+        """One line naming the active filters ('no filters' when none)."""
+        parts = []
+        if self.verdicts:
+            parts.append("verdict " + "/".join(sorted(self.verdicts)))
+        if self.min_br2_pct is not None:
+            parts.append(f"Br2 major ≥ {self.min_br2_pct:g} %")
+        if self.max_products is not None:
+            parts.append(f"≤ {self.max_products} products")
+        if self.site_types:
+            joiner = " or " if self.site_match == "any" else " and "
+            parts.append("sites " + joiner.join(sorted(self.site_types)))
+        if self.no_new_stereo:
+            parts.append("no new stereocentre")
+        if self.text:
+            parts.append(f"text “{self.text}”")
+        return "; ".join(parts) if parts else "no filters"
+
+    def without_text(self) -> FilterSpec:
+        """The same filters with the text match cleared."""
+        return replace(self, text="")
+
+
+@dataclass(frozen=True)
+class SortSpec:
+    """Row order of a view."""
+
+    column: Hashable | None = None
+    """Column of the evaluated frame to sort by; None keeps input order."""
+    descending: bool = False
+    """Largest (or last) first."""
+
+
+def parse_optional_float(text: str, *, lo: float, hi: float, what: str) -> float | None:
+    """'' → None, else a float in [lo, hi]; raises ValueError with a one-line message."""
+    text = text.strip()
+    if not text:
+        return None
+    try:
+        value = float(text)
+    except ValueError:
+        raise ValueError(f"{what}: “{text}” is not a number") from None
+    if not lo <= value <= hi or value != value:
+        raise ValueError(f"{what} must be between {lo:g} and {hi:g}")
+    return value
+
+
+def parse_optional_int(text: str, *, lo: int, what: str) -> int | None:
+    """'' → None, else an int ≥ lo; raises ValueError with a one-line message."""
+    text = text.strip()
+    if not text:
+        return None
+    try:
+        value = int(text)
+    except ValueError:
+        raise ValueError(f"{what}: “{text}” is not a whole number") from None
+    if value < lo:
+        raise ValueError(f"{what} must be at least {lo}")
+    return value
+
+
+def _by_unique(series: pd.Series, test) -> np.ndarray:
+    """Evaluate ``test(value) -> bool`` once per distinct value, broadcast to rows.
+
+    The text columns here (verdict, stereo, site_types) hold few distinct
+    values, so this is much faster than a string operation per row.
+    """
+    import pandas as pd
+
+    codes, uniques = pd.factorize(series, use_na_sentinel=True)
+    hits = np.fromiter((bool(test(u)) for u in uniques), dtype=bool, count=len(uniques))
+    out = np.zeros(len(codes), dtype=bool)
+    valid = codes >= 0
+    out[valid] = hits[codes[valid]]
+    return out
+
+
+def site_set(value: object) -> frozenset[str]:
+    """The site classes of one ``site_types`` cell (comma-joined)."""
+    if not isinstance(value, str) or not value:
+        return frozenset()
+    return frozenset(v.strip() for v in value.split(",") if v.strip())
+
+
+def site_choices(frame: pd.DataFrame) -> list[str]:
+    """Every site class that occurs in the frame's ``site_types`` column, sorted."""
+    import pandas as pd
+
+    if "site_types" not in frame or frame.empty:
+        return []
+    found: set[str] = set()
+    for value in pd.unique(frame["site_types"]):
+        found |= site_set(value)
+    return sorted(found)
+
+
+def text_mask(frame: pd.DataFrame, text: str, columns: Iterable[Hashable], *, ignore_case: bool = True) -> np.ndarray:
+    """Rows where any of ``columns`` contains ``text`` literally (case-insensitive unless told otherwise)."""
+    mask = np.zeros(len(frame), dtype=bool)
+    needle = text.casefold() if ignore_case else text
+    for column in columns:
+        if column is None or column not in frame:
+            continue
+        cells = frame[column].astype("string").fillna("")
+        if ignore_case:
+            cells = cells.str.casefold()
+        mask |= cells.str.contains(needle, regex=False).to_numpy(dtype=bool, na_value=False)
+    return mask
+
+
+def filter_mask(
+    frame: pd.DataFrame,
+    spec: FilterSpec,
+    id_columns: Iterable[Hashable] = (),
+    smiles_columns: Iterable[Hashable] = (),
+) -> np.ndarray:
+    """Boolean array over ``frame``: screened rows (status ok) passing every filter in ``spec``.
+
+    The text filter looks in ``id_columns`` ignoring case, and in
+    ``smiles_columns`` with case kept (in SMILES, c is aromatic and C is not).
+    """
+    mask = (frame["status"] == "ok").to_numpy(dtype=bool, copy=True)
+    if spec.verdicts:
+        mask &= _by_unique(frame["verdict"], lambda v: v in spec.verdicts)
+    if spec.min_br2_pct is not None:
+        pct = frame["br2_major_pct"].to_numpy(dtype=np.float64, na_value=np.nan)
+        # A tiny tolerance so a shown "90.0 %" passes a 90 % filter.
+        mask &= np.nan_to_num(pct, nan=-1.0) >= spec.min_br2_pct - 1e-9
+    if spec.max_products is not None:
+        n = frame["n_products"].to_numpy(dtype=np.float64, na_value=np.nan)
+        mask &= np.nan_to_num(n, nan=np.inf) <= spec.max_products
+    if spec.site_types:
+        wanted = spec.site_types
+        if spec.site_match == "all":
+            mask &= _by_unique(frame["site_types"], lambda v: wanted <= site_set(v))
+        else:
+            mask &= _by_unique(frame["site_types"], lambda v: bool(wanted & site_set(v)))
+    if spec.no_new_stereo:
+        mask &= _by_unique(frame["stereo"], lambda v: v == NO_NEW_STEREO)
+    if spec.text:
+        found = text_mask(frame, spec.text, id_columns)
+        found |= text_mask(frame, spec.text, smiles_columns, ignore_case=False)
+        mask &= found
+    return mask
+
+
+def view_mask(
+    frame: pd.DataFrame,
+    view: str,
+    spec: FilterSpec,
+    marked: np.ndarray,
+    id_columns: Iterable[Hashable] = (),
+    smiles_columns: Iterable[Hashable] = (),
+) -> np.ndarray:
+    """Boolean array over ``frame`` of the rows one view shows (see :data:`VIEW_DOCS`)."""
+    if view == "library":
+        return filter_mask(frame, spec, id_columns, smiles_columns)
+    if view == "shortlist":
+        return np.asarray(marked, dtype=bool).copy()
+    if view == "rejected":
+        return (frame["status"] != "ok").to_numpy(dtype=bool)
+    raise ValueError(f"unknown view {view!r}")
+
+
+def sort_key(series: pd.Series, categories: Mapping[str, int] | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """(numeric key, missing mask) for sorting a column.
+
+    Numbers sort by value; text sorts by its rank in sorted order (computed
+    once per distinct value), or by ``categories`` rank when given (values not
+    listed come after those listed). Empty text counts as missing.
+    """
+    import pandas as pd
+
+    if pd.api.types.is_bool_dtype(series.dtype):
+        values = series.to_numpy(dtype=np.float64)
+        return values, np.zeros(len(values), dtype=bool)
+    if pd.api.types.is_numeric_dtype(series.dtype):
+        values = series.to_numpy(dtype=np.float64, na_value=np.nan)
+        return values, np.isnan(values)
+    text = series.astype(object)
+    missing = (text.isna() | (text == "")).to_numpy(dtype=bool)
+    present = text.where(~missing)
+    try:
+        codes, uniques = pd.factorize(present, sort=categories is None)
+    except TypeError:  # mixed types (numbers and text in one column): compare as text
+        codes, uniques = pd.factorize(present.map(str, na_action="ignore"), sort=categories is None)
+    if categories is not None:
+        names = [str(u) for u in uniques]
+        # Listed values by their rank, unlisted ones after them alphabetically.
+        ranked = sorted(range(len(names)), key=lambda i: (categories.get(names[i], len(categories)), names[i]))
+        rank = np.empty(len(names), dtype=np.float64)
+        rank[np.asarray(ranked, dtype=np.int64)] = np.arange(len(names))
+    else:
+        rank = np.arange(len(uniques), dtype=np.float64)
+    key = np.full(len(codes), np.nan)
+    valid = codes >= 0
+    key[valid] = rank[codes[valid]]
+    return key, missing
+
+
+def full_order(key: np.ndarray, missing: np.ndarray, descending: bool) -> np.ndarray:
+    """Stable permutation of all rows by ``key``; missing values always last."""
+    filled = np.where(missing, 0.0, key)
+    order = np.argsort(-filled if descending else filled, kind="stable")
+    # Stable partition: present rows (in key order) first, then missing rows in input order.
+    return np.concatenate([order[~missing[order]], np.flatnonzero(missing)])
+
+
+@dataclass
+class OrderCache:
+    """Full-frame sort permutations, memoised per (frame token, column, direction).
+
+    Sorting a million text cells takes a moment; a view change only needs
+    ``order[mask[order]]``, which is instant once the permutation is known.
+    """
+
+    max_entries: int = 12
+    """Permutations kept (each is 8 bytes per row)."""
+    _store: dict = field(default_factory=dict)
+    """(token, column, descending) → permutation."""
+    _lock: threading.Lock = field(default_factory=threading.Lock)
+    """Several view workers may share the cache."""
+
+    def order(
+        self,
+        frame: pd.DataFrame,
+        token: object,
+        column: Hashable,
+        descending: bool,
+        categories: Mapping[str, int] | None = None,
+    ) -> np.ndarray:
+        """Permutation of ``frame`` rows by ``column`` (cached under ``token``)."""
+        key = (token, column, descending)
+        with self._lock:
+            found = self._store.get(key)
+        if found is None or len(found) != len(frame):
+            values, missing = sort_key(frame[column], categories)  # the slow part, outside the lock
+            found = full_order(values, missing, descending)
+            with self._lock:
+                while len(self._store) >= self.max_entries:
+                    self._store.pop(next(iter(self._store)))
+                self._store[key] = found
+        return found
+
+
+def ordered_rows(mask: np.ndarray, order: np.ndarray | None) -> np.ndarray:
+    """Row positions where ``mask`` holds, in ``order`` (input order when None)."""
+    if order is None:
+        return np.flatnonzero(mask)
+    return order[mask[order]]

@@ -1,0 +1,165 @@
+"""The help screen, and the wording for verdicts, views and stereo outcomes used across the app."""
+
+from __future__ import annotations
+
+from typing import ClassVar
+
+from rich.console import Group
+from rich.table import Table
+from rich.text import Text
+from textual.app import App, ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Static
+
+from tui.filters import NO_NEW_STEREO, VIEW_DOCS
+
+#: What each verdict means ({threshold} is filled in with the current threshold).
+VERDICT_DOCS: dict[str, str] = {
+    "single": "only one constitutional monohalide can form from the abstractable C–H, "
+    "so even unselective chlorination gives one product",
+    "br-selective": "several products are possible, but bromination's major product "
+    "reaches the threshold ({threshold} % of the monobromides)",
+    "mixture": "several products, and not even bromination reaches the threshold",
+    "inert": "no abstractable C–H (only aryl, vinyl or alkynyl C–H): no monohalide forms",
+    "rejected": "the engine could not model the row; the reason is given",
+}
+
+#: What each stereo outcome of a product means.
+STEREO_DOCS: dict[str, str] = {
+    "achiral": "no new stereocentre",
+    "single": "one stereoisomer (existing stereo carried through)",
+    "racemate": "a new stereocentre, formed as both enantiomers",
+    "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
+}
+
+def sources() -> list[tuple[str, str]]:
+    """The model's sources, in brief; the numbers quoted are read from engine.parameters."""
+    from engine.parameters import BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
+
+    ratios = " : ".join(f"{BR_RATIOS[k].value:g}" for k in ("primary", "secondary", "tertiary"))
+    lo, hi = (t - KELVIN for t in CL_RANGE_K)
+    return [
+        ("Cl· kinetics", f"Sarzyński & Sztuba 2002 (Int. J. Chem. Kinet.): site-specific Arrhenius fits "
+         f"for Cl atoms with alkane C–H, gas phase, {lo:.0f}–{hi:.0f} °C"),
+        ("Br· ratios", f"Morrison & Boyd, Organic Chemistry (textbook): per-H primary : secondary : tertiary "
+         f"{ratios} at {BR_REFERENCE_T_K - KELVIN:.0f} °C"),
+        ("C–H bond enthalpies", "Blanksby & Ellison 2003 (Acc. Chem. Res.)"),
+        ("Sites without data", "Bell–Evans–Polanyi estimates from the bond enthalpies (benzylic, allylic, "
+         "propargylic toward Br·; methane and cyclopropyl C–H)"),
+    ]
+
+
+def verdict_text(verdict: str, threshold_pct: float) -> str:
+    """One-line meaning of a verdict under the current threshold."""
+    return VERDICT_DOCS.get(verdict or "rejected", "").format(threshold=f"{threshold_pct:g}")
+
+
+def _bindings_table(app) -> Group:
+    """Every key the app answers to, read from the classes' own binding lists."""
+    from tui.app import HalosiftApp
+    from tui.conditions import ConditionsPanel
+    from tui.detail import DetailScreen
+    from tui.export import ConfirmScreen, ExportScreen
+    from tui.filter_form import FilterForm
+    from tui.search import SearchBar
+    from tui.table import LibraryTable
+
+    groups = (
+        ("Anywhere (not while typing in a field)", [b for b in HalosiftApp.BINDINGS if b.action in ("leave", "help")]),
+        ("Anywhere, also while typing", [b for b in App.BINDINGS if b.action == "quit"]),
+        ("While screening", [b for b in HalosiftApp.BINDINGS if b.action == "cancel_screening"]),
+        ("After a cancelled or failed screening", [b for b in HalosiftApp.BINDINGS if b.action == "rescreen"]),
+        ("Library table", list(LibraryTable.BINDINGS)
+         + [b for b in HalosiftApp.BINDINGS if b.action not in ("leave", "help", "cancel_screening", "rescreen")]),
+        ("Site detail", list(DetailScreen.BINDINGS)),
+        ("Find bar", list(SearchBar.BINDINGS)),
+        ("Conditions panel", list(ConditionsPanel.BINDINGS)),
+        ("Filter form", list(FilterForm.BINDINGS)),
+        ("Export form", list(ExportScreen.BINDINGS)),
+        ("Replace? dialog", list(ConfirmScreen.BINDINGS)),
+        ("Help", list(HelpScreen.BINDINGS)),
+    )
+    # What Enter and Tab do in text fields (handled by the fields, so in no binding list).
+    field_keys = {
+        "Find bar": [("⏎", "back to the table, keeping the text")],
+        "Conditions panel": [("⏎", "apply now (valid values also apply after a pause)"), ("tab", "next field")],
+        "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field")],
+        "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
+                        ("tab", "next field")],
+        "Replace? dialog": [("⏎", "press the focused button (Keep)")],
+    }
+    parts: list = []
+    for title, bindings in groups:
+        table = Table(box=None, show_header=False, padding=(0, 1), pad_edge=True)
+        table.add_column("key", style="bold", no_wrap=True, min_width=14)
+        table.add_column("does")
+        for b in bindings:
+            keys = " / ".join(app.get_key_display(Binding(k.strip(), b.action)) for k in b.key.split(","))
+            table.add_row(keys, b.description)
+        for keys, does in field_keys.get(title, []):
+            table.add_row(keys, does)
+        parts += [Text(title, style="bold underline"), table]
+    return Group(*parts)
+
+
+class HelpScreen(Screen):
+    """Keys, verdicts, views, sources and the safety caution."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "close", "Back"),
+    ]
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(id="help-body"):
+            yield Static("halosift help", id="help-title")
+            yield Static(_bindings_table(self.app), id="help-keys")
+            yield Static(self._verdicts(), id="help-verdicts")
+            yield Static(self._views(), id="help-views")
+            yield Static(self._sources(), id="help-sources")
+            yield Static(self._caution(), id="help-caution")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#help-body").focus()
+
+    @staticmethod
+    def _section(title: str, rows: list[tuple[str, str]]) -> Table:
+        table = Table(box=None, show_header=False, padding=(0, 1), title=title, title_justify="left",
+                      title_style="bold underline")
+        table.add_column("name", style="bold", no_wrap=True)
+        table.add_column("meaning")
+        for name, text in rows:
+            table.add_row(name, text)
+        return table
+
+    def _verdicts(self) -> Table:
+        threshold = getattr(self.app.conditions, "threshold_pct", None)
+        shown = "the threshold" if threshold is None else f"{threshold:g}"
+        rows = [(v, VERDICT_DOCS[v].format(threshold=shown)) for v in VERDICT_DOCS]
+        rows.append(("Br2 stereo", f"stereo outcome of bromination's major product; "
+                     f"“no new stereocentre” filter keeps {NO_NEW_STEREO} only"))
+        rows += [(f"  {k}", v) for k, v in STEREO_DOCS.items()]
+        return self._section("Verdicts (per row, under the current conditions)", rows)
+
+    def _views(self) -> Table:
+        rows = [(k, v) for k, v in VIEW_DOCS.items()]
+        rows.append(("counts", "the top line always shows all rows, screened, rejected, shown and marked"))
+        return self._section("Views (v cycles)", rows)
+
+    def _sources(self) -> Table:
+        rows = sources()
+        rows.append(("Percentages", "H count × rate per H at each temperature, normalised per substrate; "
+                     "estimates, not yields"))
+        return self._section("The model's sources, in brief", rows)
+
+    @staticmethod
+    def _caution() -> Text:
+        from engine import CAUTION
+
+        return Text(CAUTION, style="bold")
+
+    def action_close(self) -> None:
+        """Back to where help was opened."""
+        self.dismiss()

@@ -1,0 +1,148 @@
+"""Every message the app's parts send upwards (attributes go down, messages come up).
+
+Small dataclasses; Textual's Message calls ``__post_init__`` for them. Worker
+threads post them too (``post_message`` is thread-safe).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+from textual.message import Message
+
+
+@dataclass
+class ScreeningProgress(Message):
+    """The screening worker has perceived some structures."""
+
+    done: int
+    """Structures perceived so far."""
+    total: int | None
+    """Structures to perceive, when known."""
+
+
+@dataclass
+class ScreeningFinished(Message):
+    """The library was read and perceived; ``frame`` is its first evaluation."""
+
+    library: Any
+    """The engine.Library that was loaded."""
+    frame: Any
+    """Library.evaluate(conditions), a pandas DataFrame."""
+    conditions: Any
+    """The engine.Conditions ``frame`` was evaluated under."""
+
+
+@dataclass
+class ScreeningStopped(Message):
+    """Screening ended without a library: cancelled by the chemist, or failed."""
+
+    cancelled: bool
+    """True when the chemist cancelled it."""
+    message: str
+    """One line to show."""
+
+
+@dataclass
+class ViewComputed(Message):
+    """A worker finished evaluating and/or filtering and sorting."""
+
+    generation: int
+    """Which request this answers; older answers are dropped."""
+    conditions: Any
+    """Conditions ``frame`` was evaluated under."""
+    frame: Any
+    """The evaluated frame (pandas DataFrame)."""
+    rows: Any
+    """numpy array of row positions to show, in display order."""
+    screened: int
+    """Rows of ``frame`` with status ok."""
+
+
+@dataclass
+class ViewFailed(Message):
+    """Evaluating or filtering failed (a bug, reported in one line)."""
+
+    generation: int
+    """Which request failed."""
+    message: str
+    """One line to show."""
+
+
+@dataclass
+class CursorMoved(Message):
+    """The library table's cursor is on a new row."""
+
+    row: int
+    """Row position in the evaluated frame, or -1 when the view is empty."""
+
+
+@dataclass
+class MarkRequested(Message):
+    """Toggle the shortlist mark of a row."""
+
+    row: int
+    """Row position in the evaluated frame."""
+
+
+@dataclass
+class SortRequested(Message):
+    """The chemist asked to sort by a column."""
+
+    column: Any
+    """Column key (a frame column name, or the row-number key)."""
+    descending: bool
+    """Largest or last first."""
+
+
+@dataclass
+class DetailRequested(Message):
+    """Open the site detail of a row."""
+
+    row: int
+    """Row position in the evaluated frame."""
+
+
+@dataclass
+class ConditionsProposed(Message):
+    """The conditions panel holds a valid new set of conditions."""
+
+    conditions: Any
+    """An engine.Conditions that passed validate()."""
+
+
+@dataclass
+class SearchChanged(Message):
+    """The text in the search bar changed."""
+
+    text: str
+    """Case-insensitive text to look for in ID and SMILES."""
+
+
+@dataclass
+class ExportFinished(Message):
+    """A file was written."""
+
+    path: str
+    """Absolute path of the file written."""
+    rows: int
+    """Data rows written."""
+    sidecar: str
+    """Path of the CSV/TSV metadata sidecar, or '' when metadata is inside the file."""
+
+
+@dataclass
+class ExportFailed(Message):
+    """Writing a file failed."""
+
+    message: str
+    """One line to show."""
+
+
+@dataclass
+class PanelClosed(Message):
+    """A docked panel (find bar, conditions) was closed; focus goes back to the table."""
+
+    name: str
+    """Which panel: 'search' or 'conditions'."""

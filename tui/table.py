@@ -1,0 +1,421 @@
+"""The library table: a virtual, keyboard-driven view of an evaluated frame.
+
+Nothing is created per row. The widget holds the frame, an index array of the
+rows to show (computed elsewhere, in pandas/numpy) and a list of columns; each
+paint formats only the rows in the window (one ``iloc`` per column) and draws
+lines with the Line API.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Hashable, Sequence
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, ClassVar
+
+import numpy as np
+from rich.segment import Segment
+from rich.style import Style
+from textual import events
+from textual.binding import Binding, BindingType
+from textual.geometry import Region, Size
+from textual.reactive import reactive
+from textual.scroll_view import ScrollView
+from textual.strip import Strip
+
+from tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
+
+if TYPE_CHECKING:
+    import pandas as pd
+
+#: Column key meaning "the input row number" (1-based on screen).
+ROW_KEY = "\x00row"
+#: Cell kinds: how a column's values are shown.
+KINDS = ("text", "pct", "count", "verdict", "row")
+_SEP = 1  # blank cells between columns
+_GUTTER = 2  # cursor pointer + shortlist mark
+POINTER = "▸"
+MARK = "✓"
+
+
+@dataclass(frozen=True)
+class Column:
+    """One column of the table."""
+
+    key: Hashable
+    """Frame column name, or :data:`ROW_KEY`."""
+    label: str
+    """Header text."""
+    width: int
+    """Cells wide (the header's sort arrow included)."""
+    kind: str = "text"
+    """One of :data:`KINDS`."""
+
+    @property
+    def right(self) -> bool:
+        """Numbers are right-aligned."""
+        return self.kind in ("pct", "count", "row")
+
+
+def fit(text: str, width: int, right: bool = False) -> str:
+    """Pad or cut ``text`` to exactly ``width`` cells (cut text ends in '…')."""
+    if len(text) > width:
+        return text[: max(0, width - 1)] + "…" if width > 0 else ""
+    return text.rjust(width) if right else text.ljust(width)
+
+
+def format_values(kind: str, values: np.ndarray | None, rows: np.ndarray) -> list[str]:
+    """Cell text for a window of values of one column (``rows``: their frame positions)."""
+    if kind == "row":
+        return [str(int(r) + 1) for r in rows]
+    import pandas as pd  # loaded long before: a frame is being shown
+
+    missing = pd.isna(values)
+    out = []
+    for v, gap in zip(values, missing):
+        if kind == "verdict":
+            out.append("rejected" if gap or v == "" else str(v))
+        elif gap:
+            out.append("")
+        elif kind == "pct":
+            out.append(f"{float(v):.1f}")
+        elif kind == "count":
+            out.append(str(int(v)))
+        else:
+            out.append(str(v))
+    return out
+
+
+class LibraryTable(ScrollView, can_focus=True):
+    """Rows of an evaluated library; only the visible ones are ever formatted."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("up", "move(-1)", "Row up", show=False),
+        Binding("down", "move(1)", "Row down", show=False),
+        Binding("pageup", "page(-1)", "Page up", show=False),
+        Binding("pagedown", "page(1)", "Page down", show=False),
+        Binding("home", "first", "First row", show=False),
+        Binding("end", "last", "Last row", show=False),
+        Binding("left", "pick(-1)", "Column left", show=False),
+        Binding("right", "pick(1)", "Column right", show=False),
+        Binding("s", "sort", "Sort"),
+        Binding("space", "mark", "Mark"),
+        Binding("enter", "open", "Detail"),
+    ]
+
+    COMPONENT_CLASSES: ClassVar[set[str]] = {
+        "library-table--header",
+        "library-table--picked",
+        "library-table--cursor",
+        "library-table--marked",
+        "library-table--verdict-single",
+        "library-table--verdict-br-selective",
+        "library-table--verdict-mixture",
+        "library-table--verdict-inert",
+        "library-table--verdict-rejected",
+    }
+
+    cursor: reactive[int] = reactive(0, always_update=True, repaint=False)
+    """Position of the highlighted row within the shown rows."""
+    picked: reactive[int] = reactive(0, repaint=False)
+    """Index of the column that the sort key acts on."""
+
+    def __init__(self, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self._frame: pd.DataFrame | None = None
+        self._rows: np.ndarray = np.zeros(0, dtype=np.int64)
+        self._columns: list[Column] = []
+        self._marked: np.ndarray = np.zeros(0, dtype=bool)
+        self._sort: tuple[Hashable | None, bool] = (None, False)
+        self._version = 0
+        self._window_key: tuple | None = None
+        self._window: dict[int, list[str]] = {}
+        self._window_verdict: dict[int, str] = {}
+        self.formatted_rows = 0
+        """Rows formatted since the widget was made (stays near the screen height; tests read it)."""
+
+    # ------------------------------------------------------------------ data in
+
+    @property
+    def rows(self) -> np.ndarray:
+        """Frame row positions shown, in display order."""
+        return self._rows
+
+    @property
+    def columns(self) -> list[Column]:
+        """The columns shown."""
+        return list(self._columns)
+
+    @property
+    def cursor_row(self) -> int:
+        """Frame row position under the cursor, or -1 when nothing is shown."""
+        if 0 <= self.cursor < len(self._rows):
+            return int(self._rows[self.cursor])
+        return -1
+
+    def show(
+        self,
+        frame: pd.DataFrame,
+        rows: np.ndarray,
+        columns: Sequence[Column],
+        *,
+        sort: tuple[Hashable | None, bool] = (None, False),
+        marked: np.ndarray | None = None,
+    ) -> None:
+        """Show ``rows`` of ``frame``; the cursor stays on the same frame row when it is still shown."""
+        before = self.cursor_row
+        picked_key = self._columns[self.picked].key if self._columns and self.picked < len(self._columns) else None
+        first_show = self._frame is None
+        self._frame = frame
+        self._rows = np.asarray(rows, dtype=np.int64)
+        self._columns = list(columns)
+        self._sort = sort
+        if marked is not None:
+            self._marked = marked
+        self._version += 1
+        self._window_key = None
+        keys = [c.key for c in self._columns]
+        self.set_reactive(LibraryTable.picked, keys.index(picked_key) if picked_key in keys else 0)
+        width = _GUTTER + sum(c.width + _SEP for c in self._columns)
+        self.virtual_size = Size(width, len(self._rows) + 1)
+        position = 0
+        if before >= 0 and len(self._rows):
+            hits = np.flatnonzero(self._rows == before)
+            position = int(hits[0]) if len(hits) else min(self.cursor, len(self._rows) - 1)
+        self.cursor = max(0, position)
+        self.refresh()
+        if first_show:
+            self.refresh_bindings()
+
+    def set_marked(self, marked: np.ndarray) -> None:
+        """Redraw with a new shortlist mark array (one bool per frame row)."""
+        self._marked = marked
+        self.refresh()
+
+    # ------------------------------------------------------------------ geometry
+
+    @property
+    def page_height(self) -> int:
+        """Data rows that fit on screen below the header."""
+        return max(1, self.scrollable_content_region.height - 1)
+
+    def _fixed_width(self) -> int:
+        first = self._columns[0].width + _SEP if self._columns else 0
+        return _GUTTER + first
+
+    def _column_span(self, index: int) -> tuple[int, int]:
+        """(start, end) of a scrollable column in scrollable-part cells."""
+        x = 0
+        for c in self._columns[1:index]:
+            x += c.width + _SEP
+        return x, x + self._columns[index].width
+
+    def watch_cursor(self, cursor: int) -> None:
+        top = int(self.scroll_offset.y)
+        if cursor < top:
+            self.scroll_to(y=cursor, animate=False, force=True)
+        elif cursor >= top + self.page_height:
+            self.scroll_to(y=cursor - self.page_height + 1, animate=False, force=True)
+        self.refresh()
+        self.post_message(CursorMoved(self.cursor_row))
+
+    def watch_picked(self, picked: int) -> None:
+        if picked >= 1 and self._columns:
+            start, end = self._column_span(picked)
+            visible = max(1, self.scrollable_content_region.width - self._fixed_width())
+            left = int(self.scroll_offset.x)
+            if start < left:
+                self.scroll_to(x=start, animate=False, force=True)
+            elif end > left + visible:
+                # Scroll by whole columns, so no column is shown cut at the left edge.
+                target = start
+                for i in range(1, picked + 1):
+                    first, _ = self._column_span(i)
+                    if end - first <= visible:
+                        target = first
+                        break
+                self.scroll_to(x=target, animate=False, force=True)
+        elif picked == 0:
+            self.scroll_to(x=0, animate=False, force=True)
+        self.refresh()
+
+    def on_resize(self, event: events.Resize) -> None:
+        self._window_key = None
+
+    # ------------------------------------------------------------------ actions
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        # Before a library is shown the keys have nothing to act on: hide them.
+        if action in ("move", "page", "first", "last", "pick", "sort", "mark", "open"):
+            return self._frame is not None
+        return True
+
+    def action_move(self, delta: int) -> None:
+        """Move the cursor by ``delta`` rows."""
+        if len(self._rows):
+            self.cursor = min(max(0, self.cursor + delta), len(self._rows) - 1)
+
+    def action_page(self, direction: int) -> None:
+        """Move the cursor a screenful up or down."""
+        if len(self._rows):
+            self.scroll_to(y=max(0, self.scroll_offset.y + direction * self.page_height), animate=False, force=True)
+            self.action_move(direction * self.page_height)
+
+    def action_first(self) -> None:
+        """Cursor to the first row."""
+        if len(self._rows):
+            self.cursor = 0
+
+    def action_last(self) -> None:
+        """Cursor to the last row."""
+        if len(self._rows):
+            self.cursor = len(self._rows) - 1
+
+    def action_pick(self, delta: int) -> None:
+        """Choose the column the sort key acts on."""
+        if self._columns:
+            self.picked = min(max(0, self.picked + delta), len(self._columns) - 1)
+
+    def action_sort(self) -> None:
+        """Sort by the picked column; again on the same column reverses."""
+        if not self._columns:
+            return
+        key = self._columns[self.picked].key
+        column, descending = self._sort
+        self.post_message(SortRequested(key, not descending if column == key else False))
+
+    def action_mark(self) -> None:
+        """Mark or unmark the row under the cursor, then step down."""
+        row = self.cursor_row
+        if row >= 0:
+            self.post_message(MarkRequested(row))
+            self.action_move(1)
+
+    def action_open(self) -> None:
+        """Open the site detail of the row under the cursor."""
+        row = self.cursor_row
+        if row >= 0:
+            self.post_message(DetailRequested(row))
+
+    def on_click(self, event: events.Click) -> None:
+        offset = event.get_content_offset(self)
+        if offset is None:
+            return
+        if offset.y == 0:
+            index = self._column_at(offset.x)
+            if index is not None:
+                self.picked = index
+            return
+        position = int(self.scroll_offset.y) + offset.y - 1
+        if 0 <= position < len(self._rows):
+            self.cursor = position
+            if event.chain >= 2:
+                self.action_open()
+
+    def _column_at(self, x: int) -> int | None:
+        if not self._columns or x < _GUTTER:
+            return None
+        fixed = self._fixed_width()
+        if x < fixed:
+            return 0
+        x = x - fixed + int(self.scroll_offset.x)
+        for i in range(1, len(self._columns)):
+            start, end = self._column_span(i)
+            if start <= x < end + _SEP:
+                return i
+        return None
+
+    # ------------------------------------------------------------------ drawing
+
+    def _fill_window(self) -> None:
+        """Format the cells of the rows now on screen (one pandas take per column)."""
+        top = int(self.scroll_offset.y)
+        height = self.page_height
+        key = (self._version, top, height)
+        if key == self._window_key:
+            return
+        self._window_key = key
+        self._window = {}
+        self._window_verdict = {}
+        if self._frame is None or not len(self._rows):
+            return
+        positions = np.arange(top, min(top + height, len(self._rows)))
+        rows = self._rows[positions]
+        self.formatted_rows += len(rows)
+        columns = []
+        for col in self._columns:
+            values = None if col.kind == "row" else self._frame[col.key].iloc[rows].to_numpy(dtype=object)
+            columns.append(format_values(col.kind, values, rows))
+        verdicts = (
+            self._frame["verdict"].iloc[rows].to_numpy(dtype=object)
+            if "verdict" in self._frame
+            else np.full(len(rows), "", dtype=object)
+        )
+        for i, p in enumerate(positions):
+            self._window[int(p)] = [cells[i] for cells in columns]
+            v = verdicts[i]
+            self._window_verdict[int(p)] = v if isinstance(v, str) and v else "rejected"
+
+    def _header_cells(self) -> list[str]:
+        column, descending = self._sort
+        cells = []
+        for col in self._columns:
+            label = col.label
+            if col.key == column:
+                label = f"{label} {'▼' if descending else '▲'}"
+            cells.append(fit(label, col.width, col.right))
+        return cells
+
+    def _line(self, cells: list[str], styles: list[Style], gutter: str, base: Style) -> Strip:
+        width = self.size.width
+        fixed: list[Segment] = [Segment(gutter, base)]
+        scroll: list[Segment] = []
+        for i, (text, style) in enumerate(zip(cells, styles)):
+            target = fixed if i == 0 else scroll
+            target.append(Segment(text, style))
+            target.append(Segment(" " * _SEP, base))
+        fixed_strip = Strip(fixed)
+        visible = max(0, width - fixed_strip.cell_length)
+        x = int(self.scroll_offset.x)
+        scroll_strip = Strip(scroll).crop_extend(x, x + visible, base)
+        return Strip.join([fixed_strip, scroll_strip]).adjust_cell_length(width, base).simplify()
+
+    def render_lines(self, crop: Region) -> list[Strip]:
+        self._fill_window()
+        return super().render_lines(crop)
+
+    def render_line(self, y: int) -> Strip:
+        base = self.rich_style
+        if not self._columns:
+            return Strip.blank(self.size.width, base)
+        if y == 0:
+            header = self.get_component_rich_style("library-table--header")
+            picked = self.get_component_rich_style("library-table--picked")
+            styles = [header + picked if i == self.picked else header for i in range(len(self._columns))]
+            return self._line(self._header_cells(), styles, " " * _GUTTER, base + header)
+        position = int(self.scroll_offset.y) + y - 1
+        if not 0 <= position < len(self._rows):
+            return Strip.blank(self.size.width, base)
+        cells = self._window.get(position)
+        if cells is None:  # scrolled since the window was filled
+            self._fill_window()
+            cells = self._window.get(position)
+        if cells is None:
+            return Strip.blank(self.size.width, base)
+        row = int(self._rows[position])
+        marked = bool(self._marked[row]) if row < len(self._marked) else False
+        line = base
+        if marked:
+            line = line + self.get_component_rich_style("library-table--marked")
+        at_cursor = position == self.cursor
+        if at_cursor:
+            line = line + self.get_component_rich_style("library-table--cursor")
+        verdict_style = self.get_component_rich_style(
+            f"library-table--verdict-{self._window_verdict.get(position, 'rejected')}", default=Style()
+        )
+        styles = []
+        for col, text in zip(self._columns, cells):
+            style = line + verdict_style if col.kind == "verdict" and not at_cursor else line
+            styles.append(style)
+        fitted = [fit(text, col.width, col.right) for col, text in zip(self._columns, cells)]
+        gutter = (POINTER if at_cursor else " ") + (MARK if marked else " ")
+        return self._line(fitted, styles, gutter, line)

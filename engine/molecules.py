@@ -78,20 +78,31 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
     n_frags = len(rdmolops.GetMolFrags(mol))
     if n_frags > 1:
         return _reject("fragments", f"{n_frags} separate fragments; give one molecule per row")
-    foreign = sorted({a.GetSymbol() for a in mol.GetAtoms() if a.GetAtomicNum() not in (1, 6)})
+    # One pass over the atoms collects everything the checks below need.
+    foreign: set[str] = set()
+    isotope = charged = radical = explicit_h = False
+    for atom in mol.GetAtoms():
+        z = atom.GetAtomicNum()
+        if z == 1:
+            explicit_h = True
+        elif z != 6:
+            foreign.add(atom.GetSymbol())
+        isotope = isotope or atom.GetIsotope() != 0
+        charged = charged or atom.GetFormalCharge() != 0
+        radical = radical or atom.GetNumRadicalElectrons() != 0
     if foreign:
-        names = ", ".join(_ELEMENT_NAMES.get(s, s) for s in foreign)
+        names = ", ".join(_ELEMENT_NAMES.get(sym, sym) for sym in sorted(foreign))
         return _reject("heteroatom", f"contains {names}; only hydrocarbons (C, H) are modelled")
-    if any(a.GetIsotope() for a in mol.GetAtoms()):
+    if isotope:
         return _reject("isotope", "isotope-labelled atoms; kinetic isotope effects are not modelled")
-    if any(a.GetAtomicNum() == 1 for a in mol.GetAtoms()):
+    if charged:
+        return _reject("charged", "charged species (carbocation/carbanion); only neutral molecules are modelled")
+    if radical:
+        return _reject("radical", "open-shell species (unpaired electrons); only closed-shell molecules are modelled")
+    if explicit_h:
         # Explicit [H] atoms would hide their hydrogens from the site count.
         with quiet_rdkit():
             mol = Chem.RemoveHs(mol)
-    if any(a.GetFormalCharge() for a in mol.GetAtoms()):
-        return _reject("charged", "charged species (carbocation/carbanion); only neutral molecules are modelled")
-    if any(a.GetNumRadicalElectrons() for a in mol.GetAtoms()):
-        return _reject("radical", "open-shell species (unpaired electrons); only closed-shell molecules are modelled")
     n_heavy = mol.GetNumHeavyAtoms()
     if n_heavy > max_heavy_atoms:
         return _reject("too_large", f"{n_heavy} carbons exceeds the limit of {max_heavy_atoms}")

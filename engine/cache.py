@@ -23,7 +23,9 @@ import pyarrow.parquet as pq
 
 from engine.perception import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
-_FINGERPRINTED = ("molecules.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "stereo.py")
+_FINGERPRINTED = (
+    "molecules.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "special_sites.py", "stereo.py",
+)
 #: Merge shards into one when there are more than this many.
 MAX_SHARDS = 8
 

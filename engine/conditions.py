@@ -1,15 +1,18 @@
-"""Reaction conditions: which reagent, at what temperature, judged against what threshold."""
+"""Reaction conditions: which reagent, at what temperature and in what solvent, judged against what threshold."""
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
+import numpy as np
+
 from engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
 from engine.rates import rate_table
+from engine.reagents import EXPLAIN_REAGENTS, REAGENT_LABELS, REAGENTS
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
-#: Reagent name → chain-carrying radical.
-REAGENTS: dict[str, str] = {"cl2": "cl", "br2": "br"}
-REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2, light", "br2": "Br2, light"}
+__all__ = ["Conditions", "EXPLAIN_REAGENTS", "REAGENTS", "REAGENT_LABELS"]
 
 
 @dataclass(frozen=True)
@@ -22,18 +25,49 @@ class Conditions:
     """Bromination temperature, °C."""
     threshold_pct: float = DEFAULT_THRESHOLD_PCT
     """Share of the bromination major product (percent) that earns 'br-selective'."""
+    so2cl2_temp_c: float = DEFAULT_TEMP_C["so2cl2"]
+    """Sulfuryl chloride (with initiator) temperature, °C; used by explain only."""
+    cl2_solvent: str = "none"
+    """Solvent of the Cl2 chlorination: none, benzene or cs2 (see engine.solvent)."""
+    cl2_solvent_molar: float = 0.0
+    """Solvent concentration, mol/L (0 with a solvent: Russell's neat-liquid point)."""
 
     def temp_c(self, reagent: str) -> float:
         """Temperature of one reagent, °C."""
-        return {"cl2": self.cl2_temp_c, "br2": self.br2_temp_c}[reagent]
+        return {"cl2": self.cl2_temp_c, "br2": self.br2_temp_c, "so2cl2": self.so2cl2_temp_c}[reagent]
 
     def temp_k(self, reagent: str) -> float:
         """Temperature of one reagent, K."""
         return self.temp_c(reagent) + KELVIN
 
+    def solvent_exponent(self, reagent: str) -> float:
+        """Factor on log-selectivities from the solvent (1 unless Cl2 in a solvent)."""
+        if reagent != "cl2":
+            return 1.0
+        return selectivity_exponent(self.cl2_solvent, self.cl2_solvent_molar)
+
+    def per_h(self, reagent: str) -> np.ndarray:
+        """Rate constant per H for every site class (by site code) under these conditions."""
+        k = rate_table(EXPLAIN_REAGENTS[reagent]).per_h(self.temp_k(reagent))
+        return scale_rates(k, self.solvent_exponent(reagent))
+
+    def bases(self, reagent: str) -> np.ndarray:
+        """What each site code's rate rests on: measured / textbook / estimate / 'not abstracted'.
+
+        A solvent scaling is an interpolation applied to every class, so it
+        makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
+        an assumption (common practice), so its rates are estimates too.
+        """
+        table = rate_table(EXPLAIN_REAGENTS[reagent])
+        assumed = reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
+        out = np.full(len(SITE_CLASSES), "not abstracted", dtype=object)
+        for i, site in enumerate(ABSTRACTABLE):
+            out[i] = "estimate" if assumed else table.params[site].basis
+        return out
+
     def validate(self) -> None:
         """Raise ValueError (one line) for values no experiment can have."""
-        for reagent in REAGENTS:
+        for reagent in EXPLAIN_REAGENTS:
             t = self.temp_c(reagent)
             if not t == t or t <= -KELVIN:
                 raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
@@ -41,23 +75,35 @@ class Conditions:
                 raise ValueError(f"{reagent} temperature {t} °C is beyond any model here (max 1500 °C)")
         if not 0 <= self.threshold_pct <= 100:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
+        check_solvent(self.cl2_solvent, self.cl2_solvent_molar)
 
     def warnings(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> list[str]:
-        """Temperatures outside the range the rate data were measured over."""
+        """Temperatures outside the range the rate data were measured over, and solvent extrapolation."""
         out = []
         for reagent in reagents:
-            lo, hi = rate_table(REAGENTS[reagent]).valid_k
+            lo, hi = rate_table(EXPLAIN_REAGENTS[reagent]).valid_k
             t = self.temp_k(reagent)
             if not lo <= t <= hi:
                 out.append(
                     f"{reagent} at {self.temp_c(reagent):g} °C is outside the {lo - KELVIN:.0f}–{hi - KELVIN:.0f} °C "
                     "range of its rate data; the split is extrapolated"
                 )
+        if "cl2" in reagents and self.cl2_solvent != "none":
+            if extrapolated(self.cl2_solvent, self.cl2_solvent_molar):
+                out.append(
+                    f"cl2 in {self.cl2_solvent_molar:g} M {self.cl2_solvent} is beyond the measured solvent data; "
+                    "the solvent effect is extrapolated"
+                )
+            if abs(self.cl2_temp_c - 25.0) > 10:
+                out.append("the cl2 solvent effect was measured at 25 °C; it is applied unchanged at other temperatures")
         return out
 
     def describe(self) -> str:
         """One line for headers and file metadata."""
+        solvent = (
+            f" in {self.cl2_solvent_molar:g} M {self.cl2_solvent}" if self.cl2_solvent != "none" else ""
+        )
         return (
-            f"Cl2 at {self.cl2_temp_c:g} °C, Br2 at {self.br2_temp_c:g} °C, "
+            f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, "
             f"br-selective threshold {self.threshold_pct:g} %"
         )

@@ -4,11 +4,18 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass
 
-from engine.conditions import REAGENTS, Conditions
+from engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
+from engine.parameters import SO2CL2_NOTE
 from engine.perception import perceive
-from engine.rates import enthalpy_of_abstraction, rate_table
-from engine.site_classes import site_bde
-from engine.weigh import summarise, weigh
+from engine.reagents import check_reagent
+from engine.rates import enthalpy_of_abstraction
+from engine.site_classes import SITE_CLASSES, site_bde
+from engine.special_sites import FlagNote, flag_notes
+from engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
+
+#: Notes shown whenever a reagent is part of an explanation.
+REAGENT_NOTES: dict[str, str] = {"so2cl2": SO2CL2_NOTE}
+_PRIMARY = SITE_CLASSES.index("primary")
 
 
 @dataclass(frozen=True)
@@ -30,7 +37,7 @@ class ProductRecord:
     dh: dict[str, float]
     """ΔH of H abstraction by each radical ('cl', 'br'), kcal/mol."""
     rate_basis: dict[str, str]
-    """Per reagent: measured / textbook / estimate (what the rate constant rests on)."""
+    """Per reagent: measured / textbook / estimate / not abstracted (what the rate constant rests on)."""
     relative_rate: dict[str, float]
     """Per reagent: rate per H relative to a primary C–H at the same temperature."""
     stereo: str
@@ -67,9 +74,25 @@ class Explanation:
     """The conditions weighed."""
     warnings: tuple[str, ...]
     """Extrapolations and caveats."""
+    flags: tuple[FlagNote, ...] = ()
+    """Special-site warnings of the substrate (engine.special_sites), empty when none."""
+
+    def confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
+        """Weakest rate basis among products with ≥ 5 % under any of ``reagents``; '' when none.
+
+        The same rule as the ``confidence`` column of a screen (engine.weigh.confidence_labels).
+        """
+        ranks = [
+            BASES.index(p.rate_basis[r])
+            for p in self.products
+            for r in reagents
+            if p.pct[r] >= CONFIDENCE_MIN_PCT and p.rate_basis[r] in BASES
+        ]
+        return BASES[min(ranks)] if ranks else ""
 
     def to_dict(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> dict:
-        """Plain JSON-ready dict; percentages limited to ``reagents``."""
+        """Plain JSON-ready dict; percentages limited to ``reagents`` (f2/i2 raise UnsupportedReagent)."""
+        reagents = tuple(check_reagent(r) for r in reagents)
         if self.status != "ok":
             return {"input": self.input, "status": "rejected", "reason_code": self.reason_code, "reason": self.reason}
         products = []
@@ -84,8 +107,11 @@ class Explanation:
             "status": "ok",
             "canonical_smiles": self.canonical_smiles,
             "verdict": self.verdict,
+            "confidence": self.confidence(reagents),
             "conditions": asdict(self.conditions),
             "products": products,
+            "flags": [asdict(f) for f in self.flags],
+            "reagent_notes": {r: REAGENT_NOTES[r] for r in reagents if r in REAGENT_NOTES},
             "warnings": list(self.warnings),
         }
 
@@ -99,13 +125,12 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
     if s["status"] != "ok":
         return Explanation(smiles, "rejected", s["reason_code"], s["reason"], "", (), "", conditions, warnings)
     summary = summarise(perception, conditions).iloc[0]
-    weighed = weigh(perception.sites, conditions, 1)
-    tables = {r: rate_table(rad) for r, rad in REAGENTS.items()}
-    primary_k = {r: tables[r].per_h(conditions.temp_k(r))[1] for r in REAGENTS}
+    reagents = tuple(EXPLAIN_REAGENTS)
+    weighed = weigh(perception.sites, conditions, 1, reagents)
+    k = {r: conditions.per_h(r) for r in reagents}
+    bases = {r: conditions.bases(r) for r in reagents}
     records = []
     for row in weighed.itertuples(index=False):
-        per_h = {r: tables[r].per_h(conditions.temp_k(r))[row.site_code] for r in REAGENTS}
-        params = {r: tables[r].params.get(row.site) for r in REAGENTS}
         records.append(
             ProductRecord(
                 smiles=row.product,
@@ -115,16 +140,17 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
                 bde=float(row.bde),
                 bde_basis=site_bde(row.site).basis,
                 dh={rad: round(enthalpy_of_abstraction(row.site, rad), 2) for rad in ("cl", "br")},
-                rate_basis={r: (p.basis if p else "not abstracted") for r, p in params.items()},
-                relative_rate={r: round(per_h[r] / primary_k[r], 4) for r in REAGENTS},
+                rate_basis={r: str(bases[r][row.site_code]) for r in reagents},
+                relative_rate={r: round(k[r][row.site_code] / k[r][_PRIMARY], 4) for r in reagents},
                 stereo=row.stereo,
                 n_stereoisomers=int(row.n_stereoisomers),
                 n_diastereomers=int(row.n_diastereomers),
                 stereo_approximate=bool(row.stereo_approx),
-                pct={r: float(getattr(row, f"{r}_pct")) for r in REAGENTS},
+                pct={r: float(getattr(row, f"{r}_pct")) for r in reagents},
             )
         )
     records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -p.pct["cl2"], -p.pct["br2"], p.smiles))
     return Explanation(
-        smiles, "ok", "", "", s["canonical_smiles"], tuple(records), summary["verdict"], conditions, warnings
+        smiles, "ok", "", "", s["canonical_smiles"], tuple(records), summary["verdict"], conditions, warnings,
+        flags=flag_notes(s["flags"]),
     )

@@ -11,7 +11,7 @@ import numpy as np
 import pandas as pd
 
 from engine.cache import PerceptionCache, take
-from engine.conditions import Conditions
+from engine.conditions import REAGENTS, Conditions
 from engine.parallel import perceive_parallel
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.perception import Perception, concat
@@ -19,7 +19,7 @@ from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
 #: Columns :meth:`Library.evaluate` adds after the input's own, in order.
-RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "canonical_smiles", "duplicate_of")
+RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "flags", "canonical_smiles", "duplicate_of")
 #: What each added column means (README and file metadata quote this).
 RESULT_DOCS: dict[str, str] = {
     "status": "ok, or rejected (the row could not be modelled)",
@@ -32,6 +32,16 @@ RESULT_DOCS: dict[str, str] = {
     "br2_major_pct": "its share of the monobromides, percent",
     "stereo": "stereo outcome of the bromination major product: achiral / single / racemate / diastereomers",
     "site_types": "abstractable site classes present, comma-separated",
+    "confidence": (
+        "measured / textbook / estimate: the weakest basis (estimate weakest, measured strongest) of the rate "
+        "constants behind the products that carry at least 5 % of the Cl2 or of the Br2 monohalides; a product "
+        "counts only for the reagent under which it reaches 5 %; a Cl2 solvent makes every Cl2 rate an estimate; "
+        "empty when rejected or inert"
+    ),
+    "flags": (
+        "special-site warnings, comma-separated: cyclopropylmethyl (ring opening risk), bridgehead (small-bicycle "
+        "bridgehead C–H), cage (strained cage), alkene (addition competes); see engine.special_sites; empty when none"
+    ),
     "canonical_smiles": "RDKit canonical SMILES of the substrate",
     "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
 }
@@ -95,6 +105,8 @@ class Library:
             else:
                 values = np.where(status == "ok", values, "")
             added[col] = values
+        flags = structs["flags"].to_numpy(dtype=object)[rows]
+        added["flags"] = np.where(status == "ok", flags, "")
         canonical = structs["canonical_smiles"].to_numpy(dtype=object)[rows]
         added["canonical_smiles"] = np.where(status == "ok", canonical, "")
         added["duplicate_of"] = self._duplicates(added["canonical_smiles"], status)
@@ -125,8 +137,11 @@ class Library:
         weighed = weigh(mine.assign(struct=0), conditions, 1)
         weighed["dh_cl"] = [enthalpy_of_abstraction(s, "cl") for s in weighed["site"]]
         weighed["dh_br"] = [enthalpy_of_abstraction(s, "br") for s in weighed["site"]]
+        codes = weighed["site_code"].to_numpy()
+        for reagent in REAGENTS:
+            weighed[f"{reagent}_basis"] = conditions.bases(reagent)[codes]
         cols = ["product", "site", "h_count", "n_carbons", "bde", "dh_cl", "dh_br", "stereo",
-                "n_stereoisomers", "n_diastereomers", "cl2_pct", "br2_pct", "atom"]
+                "n_stereoisomers", "n_diastereomers", "cl2_pct", "br2_pct", "atom", "cl2_basis", "br2_basis"]
         return weighed[cols].sort_values(["cl2_pct", "br2_pct"], ascending=False, kind="stable").reset_index(drop=True)
 
 

@@ -175,6 +175,96 @@ CL_METHANE = _from_b(7.1e-12, 4, 1270.0, "JPL Publication 19-5, Cl + CH4, 7.1e-1
 # ---------------------------------------------------------------------------
 # Reagent defaults and verdict threshold (common practice, no source).
 # ---------------------------------------------------------------------------
-DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0}
+#: so2cl2: near the boiling point of SO2Cl2 (69 °C), where it is usually run (common practice).
+DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0, "so2cl2": 70.0}
 DEFAULT_THRESHOLD_PCT = 90.0
 DEFAULT_MAX_HEAVY_ATOMS = 150
+
+# ---------------------------------------------------------------------------
+# Reagents halosift declines to predict (see engine.reagents). The numbers
+# here feed the explanation the user gets instead of a prediction.
+# ---------------------------------------------------------------------------
+#: Per-H relative reactivity of F· toward primary : secondary : tertiary C–H,
+#: room temperature — near statistical, i.e. barely selective.
+F_RATIOS: dict[str, Value] = {
+    "primary": Value(1.0, "textbook", "F· per-H selectivity ≈ 1 : 1.2 : 1.4 at 25 °C (textbook, from memory)"),
+    "secondary": Value(1.2, "textbook", "F· per-H selectivity ≈ 1 : 1.2 : 1.4 at 25 °C (textbook, from memory)"),
+    "tertiary": Value(1.4, "textbook", "F· per-H selectivity ≈ 1 : 1.2 : 1.4 at 25 °C (textbook, from memory)"),
+}
+#: F–F bond enthalpy, kcal/mol: so weak that the whole chain R–H + F2 → R–F + HF
+#: releases ≈ 100 kcal/mol, enough to break C–C bonds (uncontrolled, explosive).
+BDE_FF = Value(37.8, "textbook", "F–F ≈ 37–38 kcal/mol (standard thermochemical tables, from memory)")
+BDE_CF = Value(
+    108.0, "textbook", "primary C–F ≈ 108 kcal/mol (Blanksby & Ellison 2003 / Luo 2007, from memory)"
+)
+
+# ---------------------------------------------------------------------------
+# Cyclopropylmethyl radical ring opening (a "radical clock"): fast enough that
+# halogen transfer competes with it, so ring-opened products are a risk.
+# ---------------------------------------------------------------------------
+K_CYCLOPROPYLMETHYL_OPENING = Value(
+    1.0e8,
+    "measured",
+    "cyclopropylmethyl → but-3-enyl, k ≈ 1e8 s⁻¹ at 25 °C (Griller & Ingold, Acc. Chem. Res. 1980, 13, 317; from memory)",
+)
+
+# ---------------------------------------------------------------------------
+# Bridgehead C–H of small bicycles ([1.1.1]…[2.2.2], every bridge 1–2 atoms):
+# the radical cannot planarise. One site class covers them all, so one
+# number: a tertiary C–H strengthened by a pyramidalisation penalty.
+# ---------------------------------------------------------------------------
+BDE_BRIDGEHEAD = Value(
+    104.0,
+    "estimate",
+    "tertiary C–H (96.5) + ≈ 7.5 kcal/mol for a radical that cannot planarise; chosen between "
+    "the ≈ 100–106 kcal/mol quoted for 1-norbornyl C–H and the stronger bicyclo[1.1.1]pentyl C–H "
+    "(from memory; one value for all small bicycles is itself an estimate)",
+)
+NORBORNANE_CL2_NOTE = (
+    "norbornane + Cl2 chlorinates mainly at C2, mostly exo; bridgehead C1 chloride is minor "
+    "(from memory)"
+)
+
+# ---------------------------------------------------------------------------
+# Alkenes under Cl2/Br2: addition to C=C competes at ordinary temperatures;
+# substitution wins only hot.
+# ---------------------------------------------------------------------------
+ALKENE_SUBSTITUTION_T_C = Value(
+    400.0,
+    "measured",
+    "propene + Cl2 at 400–600 °C gives allyl chloride rather than 1,2-dichloropropane "
+    "(Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1239; authors and pages from memory)",
+)
+
+# ---------------------------------------------------------------------------
+# Sulfuryl chloride with a radical initiator (peroxide or AIBN). Used as a
+# liquid source of Cl· (Kharasch & Brown, J. Am. Chem. Soc. 1939, 61, 2142,
+# from memory). halosift treats the chain carrier as Cl· with Cl2's rate
+# constants; reports of somewhat higher selectivity exist, but we know no
+# correction we could cite with numbers, so none is applied (common practice).
+# ---------------------------------------------------------------------------
+SO2CL2_NOTE = (
+    "SO2Cl2 + initiator treated as Cl· with the Cl2 rate constants (common practice; "
+    "reagent: Kharasch & Brown, J. Am. Chem. Soc. 1939, 61, 2142, from memory); no correction "
+    "for any SO2Cl· participation is applied"
+)
+
+# ---------------------------------------------------------------------------
+# Solvent effect on Cl· selectivity (complexed Cl· in aromatic solvents and CS2).
+# Russell, J. Am. Chem. Soc. 1958, 80, 4987: 2,3-dimethylbutane + Cl2 at 25 °C,
+# per-H tertiary : primary (values from memory).
+# ---------------------------------------------------------------------------
+_RU = "Russell, J. Am. Chem. Soc. 1958, 80, 4987, 2,3-dimethylbutane at 25 °C (from memory)"
+RUSSELL_T_K = 25.0 + KELVIN
+RUSSELL_NEAT = Value(4.0, "measured", _RU + ": tertiary:primary per H ≈ 4 neat")
+#: solvent → ((molarity, per-H tertiary:primary), ...) measured points, ascending molarity.
+RUSSELL_POINTS: dict[str, tuple[tuple[float, Value], ...]] = {
+    "benzene": (
+        (4.0, Value(14.0, "measured", _RU + ": ≈ 14 in 4 M benzene")),
+        (8.0, Value(49.0, "measured", _RU + ": ≈ 49 in 8 M benzene")),
+    ),
+    "cs2": ((12.0, Value(225.0, "measured", _RU + ": ≈ 225 in 12 M CS2")),),
+}
+#: Molarity of the pure solvent (density / molar mass at 25 °C), the upper
+#: bound of any solution: benzene 0.874 g/mL / 78.11 g/mol; CS2 1.26 / 76.14 (textbook, from memory).
+SOLVENT_MAX_MOLAR: dict[str, float] = {"benzene": 11.2, "cs2": 16.6}

@@ -18,6 +18,7 @@ from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
+from engine.special_sites import structure_flags
 from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
@@ -34,6 +35,10 @@ STRUCTURE_SCHEMA = pa.schema(
         pa.field("canonical_smiles", pa.string(), metadata={"doc": "RDKit canonical isomeric SMILES"}),
         pa.field("abstractable_h", pa.int32(), metadata={"doc": "hydrogens on abstractable sp3 C–H"}),
         pa.field("n_heavy", pa.int32(), metadata={"doc": "carbon atoms"}),
+        pa.field(
+            "flags", pa.string(),
+            metadata={"doc": "comma-joined special-site flags (engine.special_sites.FLAGS); empty when none or rejected"},
+        ),
     ]
 )
 
@@ -74,7 +79,7 @@ class Perception:
 def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
     parsed = parse_hydrocarbon(smiles, max_heavy)
     if not parsed.ok:
-        return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0), []
+        return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0, ""), []
     mol = parsed.mol
     canonical = Chem.MolToSmiles(mol)
     order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
@@ -108,7 +113,8 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
                 st.approximate,
             )
         )
-    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms()), rows
+    flags = ",".join(structure_flags(mol))
+    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows
 
 
 def perceive(smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS) -> Perception:
@@ -120,10 +126,10 @@ def perceive(smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_
             try:
                 srow, rows = _perceive_one(smi, max_heavy_atoms)
             except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
-                srow, rows = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0), []
+                srow, rows = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0, ""), []
             struct_rows.append(srow)
             site_rows.extend((i, *r) for r in rows)
-    structures = pd.DataFrame(struct_rows, columns=STRUCTURE_SCHEMA.names[:6])
+    structures = pd.DataFrame(struct_rows, columns=STRUCTURE_SCHEMA.names)
     structures = structures.astype({"abstractable_h": "int32", "n_heavy": "int32"})
     sites = _site_frame(site_rows)
     return Perception(structures, sites)

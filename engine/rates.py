@@ -67,7 +67,7 @@ class RateTable:
     params: dict[str, Arrhenius]
     """Site class → per-H Arrhenius parameters (abstractable classes only)."""
     alpha_alkyl: float
-    """BEP slope fitted on the alkyl anchors, used for methane and cyclopropyl."""
+    """BEP slope fitted on the alkyl anchors, used for methane, cyclopropyl and bridgehead."""
     alpha_delocalised: float
     """BEP slope used for allylic, benzylic and propargylic sites."""
     valid_k: tuple[float, float]
@@ -113,6 +113,12 @@ def _derive(radical: str) -> RateTable:
     gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
     params["cyclopropyl"] = shifted(
         "secondary", gap, alpha_alkyl, f"BEP from secondary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
+    )
+    gap = P.BDE_BRIDGEHEAD.value - P.BDE["tertiary"].value
+    params["bridgehead"] = shifted(
+        "tertiary", gap, alpha_alkyl,
+        f"BEP from tertiary with ΔBDE {gap:+.1f} kcal/mol (bridgehead bond enthalpy is an estimate), "
+        f"α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}",
     )
     for kind in DELOCALISED:
         for degree in DEGREES:

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from engine.parameters import BDE, Value
+from engine.parameters import BDE, BDE_BRIDGEHEAD, Value
 
 DEGREES = ("primary", "secondary", "tertiary")
 DELOCALISED = ("allylic", "benzylic", "propargylic")
@@ -12,6 +12,9 @@ ABSTRACTABLE: tuple[str, ...] = (
     "methane",
     *DEGREES,
     "cyclopropyl",
+    # Bridgehead C–H of small bicycles (engine.special_sites): the radical
+    # cannot planarise, so the C–H is stronger than an ordinary tertiary one.
+    "bridgehead",
     *(f"{kind}-{degree}" for kind in DELOCALISED for degree in DEGREES),
 )
 #: C–H bonds on sp2/sp carbons: listed, never weighted (their radicals are σ
@@ -36,6 +39,8 @@ def site_bde(site: str) -> Value:
     """
     if site in BDE:
         return BDE[site]
+    if site == "bridgehead":
+        return BDE_BRIDGEHEAD
     if site == "aryl":
         return BDE["phenyl"]
     if site == "alkynyl":

@@ -7,6 +7,8 @@ from dataclasses import dataclass
 
 from rdkit import Chem
 
+from engine.special_sites import special_site_class
+
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
 _TRIPLE = Chem.BondType.TRIPLE
@@ -28,6 +30,8 @@ def classify_carbon(atom: Chem.Atom) -> str:
     if atom.IsInRingSize(3):
         # A cyclopropyl radical is a σ radical: neighbouring π systems barely help it.
         return "cyclopropyl"
+    if (special := special_site_class(atom)) is not None:
+        return special
     kinds: set[str] = set()
     for nbr in atom.GetNeighbors():
         if nbr.GetIsAromatic():

@@ -10,19 +10,50 @@ import pandas as pd
 
 from engine.conditions import REAGENTS, Conditions
 from engine.perception import Perception
-from engine.rates import rate_table
 from engine.site_classes import SITE_CLASSES
 
 VERDICTS = ("single", "br-selective", "mixture", "inert")
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",
+    "confidence",
 )
+#: Weakest first: the order in which a prediction's bases are ranked.
+BASES = ("estimate", "textbook", "measured")
+#: A product counts towards ``confidence`` when it carries at least this share
+#: of either reagent's monohalides (a definition of this program, not chemistry).
+CONFIDENCE_MIN_PCT = 5.0
 
 
 def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> np.ndarray:
     """Rate of forming each product (h_count × k per H), arbitrary units."""
-    k = rate_table(REAGENTS[reagent]).per_h(conditions.temp_k(reagent))
+    k = conditions.per_h(reagent)
     return sites["h_count"].to_numpy(dtype=np.float64) * k[sites["site_code"].to_numpy()]
+
+
+def basis_rank(conditions: Conditions, reagent: str) -> np.ndarray:
+    """Per site code, the index in :data:`BASES` of what its rate rests on (len(BASES) when not abstracted)."""
+    rank = {b: i for i, b in enumerate(BASES)}
+    return np.array([rank.get(b, len(BASES)) for b in conditions.bases(reagent)], dtype=np.int64)
+
+
+def confidence_labels(
+    site_code: np.ndarray, pct: dict[str, np.ndarray], struct: np.ndarray, n_struct: int, conditions: Conditions
+) -> np.ndarray:
+    """Per structure, the weakest basis among products with ≥ CONFIDENCE_MIN_PCT % under any reagent in ``pct``.
+
+    A product's basis under a reagent is that of the rate constant of its site
+    class toward that reagent's radical; a product counts only for the
+    reagents under which it reaches the cut-off. Empty when no product does.
+    """
+    none = len(BASES)
+    row_rank = np.full(len(site_code), none, dtype=np.int64)
+    for reagent, p in pct.items():
+        ranks = basis_rank(conditions, reagent)[site_code]
+        row_rank = np.minimum(row_rank, np.where(p >= CONFIDENCE_MIN_PCT, ranks, none))
+    worst = np.full(n_struct, none, dtype=np.int64)
+    np.minimum.at(worst, struct, row_rank)
+    labels = np.array([*BASES, ""], dtype=object)
+    return labels[worst]
 
 
 def _percent(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarray:
@@ -33,13 +64,15 @@ def _percent(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarr
     return pct
 
 
-def weigh(sites: pd.DataFrame, conditions: Conditions, n_struct: int | None = None) -> pd.DataFrame:
-    """The sites table plus ``cl2_pct`` and ``br2_pct`` (percent per structure)."""
+def weigh(
+    sites: pd.DataFrame, conditions: Conditions, n_struct: int | None = None, reagents: tuple[str, ...] = tuple(REAGENTS)
+) -> pd.DataFrame:
+    """The sites table plus ``<reagent>_pct`` (percent per structure) for ``reagents`` (default cl2, br2)."""
     struct = sites["struct"].to_numpy()
     if n_struct is None:
         n_struct = int(struct.max()) + 1 if len(struct) else 0
     out = sites.copy()
-    for reagent in REAGENTS:
+    for reagent in reagents:
         out[f"{reagent}_pct"] = _percent(site_weights(sites, conditions, reagent), struct, n_struct)
     return out
 
@@ -70,7 +103,7 @@ def _site_type_names(masks: np.ndarray) -> np.ndarray:
 
 
 def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
-    """One row per structure: product count, verdict, majors, stereo, site types."""
+    """One row per structure: product count, verdict, majors, stereo, site types, confidence."""
     structures, sites = perception.structures, perception.sites
     n = len(structures)
     struct = sites["struct"].to_numpy()
@@ -108,6 +141,8 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     if len(starts):
         masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
     out["site_types"] = _site_type_names(masks)
+    pcts = {r: _percent(weights[r], struct, n) for r in REAGENTS}
+    out["confidence"] = confidence_labels(sites["site_code"].to_numpy(), pcts, struct, n, conditions)
 
     ok = (structures["status"] == "ok").to_numpy()
     verdict = np.full(n, "", dtype=object)

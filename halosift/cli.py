@@ -1,10 +1,11 @@
-"""The `halosift` command: explain one SMILES, screen a library, or browse it in the app."""
+"""The `halosift` command: explain one SMILES, screen a library, report on it in HTML, or browse it in the app."""
 
 from __future__ import annotations
 
 import argparse
 import json
 import sys
+from dataclasses import asdict
 from collections.abc import Sequence
 
 from halosift.formatting import explanation_table
@@ -26,8 +27,8 @@ def _temp_arg(text: str) -> tuple[str | None, float]:
     if not sep:
         name, value = "", text
     name = name.strip().lower()
-    if name and name not in ("cl2", "br2"):
-        raise argparse.ArgumentTypeError(f"unknown reagent {name!r} in --temp (use cl2=°C or br2=°C)")
+    if name and name not in ("cl2", "br2", "so2cl2"):
+        raise argparse.ArgumentTypeError(f"unknown reagent {name!r} in --temp (use cl2=°C, br2=°C or so2cl2=°C)")
     try:
         return (name or None), float(value)
     except ValueError:
@@ -46,6 +47,35 @@ def _add_condition_options(p: argparse.ArgumentParser, what: str) -> None:
     p.add_argument("--threshold", type=float, metavar="PCT", help="bromination share that counts as selective (default 90)")
 
 
+def _solvent_arg(text: str) -> tuple[str, float]:
+    """'none', or 'benzene=8' / 'cs2=12' (mol/L)."""
+    name, sep, value = text.partition("=")
+    name = name.strip().lower()
+    if name == "none" and not sep:
+        return "none", 0.0
+    if not sep:
+        raise argparse.ArgumentTypeError(f"--solvent needs a concentration, e.g. {name}=4 (mol/L), or none")
+    try:
+        return name, float(value)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--solvent needs a number of mol/L, got {value!r}") from None
+
+
+def _add_solvent_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--solvent",
+        type=_solvent_arg,
+        metavar="NAME=MOLAR",
+        help="Cl2 solvent: benzene=MOLAR or cs2=MOLAR (complexed Cl· is more selective; Russell 1958), "
+        "or none (default)",
+    )
+
+
+def _reagent_arg(text: str) -> str:
+    """Reagent names are checked later, so F2/I2 get their reasoned refusal rather than a usage error."""
+    return text.strip().lower()
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser for all subcommands."""
     parser = _Parser(prog="halosift", description="Predict free-radical halogenation outcomes for hydrocarbons.")
@@ -53,19 +83,43 @@ def build_parser() -> argparse.ArgumentParser:
 
     ex = sub.add_parser("explain", help="every monohalide of one SMILES, with percentages")
     ex.add_argument("smiles")
-    ex.add_argument("--reagent", action="append", choices=["cl2", "br2"], help="repeatable; default both")
+    ex.add_argument(
+        "--reagent", action="append", type=_reagent_arg, metavar="REAGENT",
+        help="cl2, br2 or so2cl2 (repeatable; default cl2 and br2; so2cl2 runs at 70 °C unless --temp so2cl2=°C); "
+        "f2 and i2 are explained, not predicted",
+    )
     _add_condition_options(ex, "the reagents given")
+    _add_solvent_option(ex)
+    ex.add_argument("--conversion", type=float, metavar="PCT",
+                    help="also estimate polyhalogenation at this substrate conversion (percent)")
+    ex.add_argument("--max-poly", type=float, metavar="PCT",
+                    help="polyhalide cap (percent of halogenated product) for the conversion planner (default 10)")
     ex.add_argument("--json", action="store_true", help="print one JSON object")
 
     sc = sub.add_parser("screen", help="screen a library file; one output row per input row")
     sc.add_argument("input", help="CSV, TSV, Parquet, SMI or SDF (optionally .gz)")
     sc.add_argument("-o", "--output", required=True, help="CSV, TSV, Parquet or SDF (by extension)")
     _add_condition_options(sc, "both reagents")
+    _add_solvent_option(sc)
     _add_library_options(sc)
     sc.add_argument("--workers", type=int, metavar="N", help="worker processes (default: all cores)")
     sc.add_argument("--no-cache", action="store_true", help="perceive everything afresh; do not read or write the cache")
     sc.add_argument("--force", action="store_true", help="replace an existing output file")
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
+
+    rp = sub.add_parser("report", help="write a printable HTML report: summary charts and one drawn entry per substrate")
+    rp.add_argument("input", help="a library as for screen (a screen result re-reads as a library)")
+    rp.add_argument("-o", "--output", required=True, help="the report file (.html)")
+    _add_condition_options(rp, "both reagents")
+    _add_library_options(rp)
+    rp.add_argument("--only", action="append", choices=["single", "br-selective", "mixture", "inert"],
+                    help="report only rows with this verdict (repeatable; default: every row)")
+    rp.add_argument("--ids", metavar="FILE", help="report only the rows whose ID is listed in FILE (one per line)")
+    rp.add_argument("--max-pages", type=int, default=200, metavar="N",
+                    help="at most N substrate entries (default 200); the report says how many were left out")
+    rp.add_argument("--workers", type=int, metavar="N", help="worker processes (default: all cores)")
+    rp.add_argument("--no-cache", action="store_true", help="perceive everything afresh; do not read or write the cache")
+    rp.add_argument("--force", action="store_true", help="replace an existing output file")
 
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
@@ -87,6 +141,9 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
             kwargs[f"{r}_temp_c"] = value
     if args.threshold is not None:
         kwargs["threshold_pct"] = args.threshold
+    solvent = getattr(args, "solvent", None)  # only explain and screen offer --solvent
+    if solvent is not None:
+        kwargs["cl2_solvent"], kwargs["cl2_solvent_molar"] = solvent
     cond = Conditions(**kwargs)
     cond.validate()
     return cond
@@ -95,25 +152,59 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
 def _explain(args: argparse.Namespace) -> int:
     from engine import CAUTION, explain
 
-    reagents = tuple(args.reagent or ("cl2", "br2"))
-    reagents = tuple(dict.fromkeys(reagents))
+    from engine.reagents import UnsupportedReagent, check_reagent
+
+    try:
+        reagents = tuple(dict.fromkeys(check_reagent(r) for r in (args.reagent or ("cl2", "br2"))))
+    except UnsupportedReagent as exc:
+        if args.json:
+            refusal = exc.refusal
+            print(json.dumps({"input": args.smiles, "status": "not predicted", "reagent": refusal.reagent,
+                              "reason": refusal.reason, "sources": list(refusal.sources)}, ensure_ascii=False, indent=2))
+        return _fail(str(exc))
+    except ValueError as exc:
+        return _fail(str(exc))
     try:
         cond = _conditions(args, reagents)
     except ValueError as exc:
         return _fail(str(exc))
     result = explain(args.smiles, cond)
     warnings = [w for w in cond.warnings(reagents)]
+    try:
+        plans = _poly_plans(args, result, reagents)
+    except ValueError as exc:
+        return _fail(str(exc))
     if args.json:
         d = result.to_dict(reagents)
         if result.status == "ok":
             d["warnings"] = warnings
+            if plans:
+                from engine.polyhalogenation import MODEL_NOTE
+
+                d["polyhalogenation"] = {p.reagent: asdict(p) for p in plans}
+                d["polyhalogenation_model"] = MODEL_NOTE
             d["caution"] = CAUTION
         print(json.dumps(d, ensure_ascii=False, indent=2))
     elif result.status != "ok":
         print(f"halosift: rejected {args.smiles!r}: {result.reason}", file=sys.stderr)
     else:
-        print(explanation_table(result, reagents, warnings))
+        print(explanation_table(result, reagents, warnings, plans))
     return EXIT_OK if result.status == "ok" else EXIT_USAGE
+
+
+def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> list:
+    """Polyhalogenation estimates per reagent when --conversion was given (ValueError on bad values)."""
+    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, plan
+
+    if args.conversion is None:
+        if args.max_poly is not None:
+            raise ValueError("--max-poly needs --conversion")
+        return []
+    cap = DEFAULT_MAX_POLY_PCT if args.max_poly is None else args.max_poly
+    if result.status != "ok" or result.verdict == "inert":
+        return []  # nothing to halogenate, nothing to plan
+    h = [p.h_count for p in result.products]
+    return [plan(r, h, [p.pct[r] for p in result.products], args.conversion, cap) for r in reagents]
 
 
 def _screen(args: argparse.Namespace) -> int:
@@ -157,6 +248,57 @@ def _screen(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _report(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    from engine import Cancelled, LibraryError, load_library
+    from halosift.progress import ProgressLine
+    from halosift.report import check_report_output, read_ids, render_report, select_rows, write_report
+
+    try:
+        cond = _conditions(args, ("cl2", "br2"))
+        if args.workers is not None and args.workers < 1:
+            raise ValueError("--workers must be at least 1")
+        if args.max_pages < 0:
+            raise ValueError("--max-pages must be 0 or more")
+    except ValueError as exc:
+        return _fail(str(exc))
+    try:
+        # Cheap checks first: a bad output path or ID list should not wait for perception.
+        check_report_output(args.output, force=args.force, protect=[args.input])
+        ids = read_ids(args.ids) if args.ids else None
+        bar = ProgressLine()
+        try:
+            library = load_library(
+                args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
+                use_cache=not args.no_cache, progress=bar,
+            )
+        finally:
+            bar.close()
+        result = library.evaluate(cond)
+        id_values = library.input[library.id_column] if library.id_column is not None else None
+        ids_source = Path(args.ids).name if args.ids else ""
+        chosen = select_rows(result, id_values, only=args.only or (), ids=ids, ids_source=ids_source)
+        report = render_report(
+            library, cond, rows=chosen.rows, selection=chosen.description, source=str(args.input),
+            max_pages=args.max_pages, missing_ids=chosen.missing_ids,
+        )
+        written = write_report(report.html, args.output, force=args.force, protect=[args.input])
+    except LibraryError as exc:
+        return _fail(str(exc))
+    except Cancelled:
+        return _fail("cancelled")
+    for warning in cond.warnings():
+        print(f"warning: {warning}", file=sys.stderr)
+    if chosen.missing_ids:
+        some = "1 ID" if len(chosen.missing_ids) == 1 else f"{len(chosen.missing_ids):,} IDs"
+        print(f"warning: {some} from {args.ids} not in the library", file=sys.stderr)
+    left = f"; {report.n_left_out:,} more left out by --max-pages" if report.n_left_out else ""
+    print(f"wrote {written} ({report.n_sections:,} substrate entries{left}; summary of {report.n_rows:,} rows)",
+          file=sys.stderr)
+    return EXIT_OK
+
+
 def _browse(args: argparse.Namespace) -> int:
     from tui.app import run
 
@@ -175,7 +317,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         # No command: the app on the bundled sample catalogue.
         args = parser.parse_args(["browse"])
-    handlers = {"explain": _explain, "screen": _screen, "browse": _browse}
+    handlers = {"explain": _explain, "screen": _screen, "report": _report, "browse": _browse}
     try:
         return handlers[args.command](args)
     except KeyboardInterrupt:

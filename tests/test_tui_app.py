@@ -302,6 +302,37 @@ async def test_detail_shows_every_product_and_steps(tmp_path):
 
 
 @async_test
+async def test_shortlist_exports_as_html_report(tmp_path):
+    import re
+
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        table = app.query_one(LibraryTable)
+        table.focus()
+        await pilot.press("home", "space", "space", "space")
+        marked_rows = np.flatnonzero(app.marked).tolist()
+        assert len(marked_rows) == 3
+        out = tmp_path / "short.html"
+        await pilot.press("e")
+        assert isinstance(app.screen, ExportScreen)
+        app.screen.query_one("#export-path").value = str(out)
+        await pilot.pause()
+        assert "HTML report" in plain(app.screen.query_one("#export-check"))
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert app.last_export == out.resolve()
+        page = out.read_text(encoding="utf-8")
+        sections = [int(r) for r in re.findall(r'<section class="substrate" data-row="(\d+)"', page)]
+        assert sections == [r + 1 for r in marked_rows]
+        assert page.count('<svg class="structure"') == 3
+        assert "shortlist: 3 marked rows" in page
+        assert app.conditions.describe() in page
+        assert 'data-count="rows">12<' in page  # the summary counts the whole library
+        assert not Path(str(out) + ".about.txt").exists()
+
+
+@async_test
 async def test_rejected_view_lists_reasons(tmp_path):
     app = HalosiftApp(str(small_library(tmp_path)))
     async with app.run_test(size=SIZE) as pilot:
@@ -428,6 +459,7 @@ def test_export_path_checks(tmp_path):
     path, fmt = check_export_path("out.parquet", tmp_path)
     assert path == tmp_path / "out.parquet" and fmt == "parquet"
     assert check_export_path("x.sdf.gz", tmp_path)[1] == "sdf"
+    assert check_export_path("Report.HTML", tmp_path) == (tmp_path / "Report.HTML", "html")
     with pytest.raises(ValueError, match="unknown file type"):
         check_export_path("out.xlsx", tmp_path)
     with pytest.raises(ValueError, match="does not exist"):

@@ -612,7 +612,7 @@ class HalosiftApp(App[int]):
     # ------------------------------------------------------------------ export
 
     def action_export(self) -> None:
-        """Export the shortlist or the current view (CSV, TSV, Parquet or SDF)."""
+        """Export the shortlist or the current view (CSV, TSV, Parquet or SDF, or an HTML report)."""
         from tui.export import ExportScreen
 
         table = self.query_one(LibraryTable)
@@ -639,24 +639,33 @@ class HalosiftApp(App[int]):
         self, frame: pd.DataFrame, rows: np.ndarray, path: Path, force: bool, conditions: Conditions, selection: str
     ) -> None:
         """Write the chosen rows atomically, with conditions and the safety caution as metadata."""
-        from tui.export import export_frame, export_metadata
+        from tui.export import export_frame, export_metadata, write_report_export
 
         import engine
         from engine.io import about_path, output_format, write_table
+        from halosift.report import is_report_path
 
         try:
-            out = export_frame(frame, rows)
-            meta = export_metadata(conditions, selection, self._source_text())
             protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
-            written = write_table(out, path, metadata=meta, force=force, protect=protect)
-            sidecar = str(about_path(written).resolve()) if output_format(written) in ("csv", "tsv") else ""
+            if is_report_path(path):
+                written = write_report_export(
+                    self.library, conditions, rows, path, force=force, selection=selection,
+                    source=self._source_text(), protect=protect,
+                )
+                n_rows, sidecar = len(rows), ""
+            else:
+                out = export_frame(frame, rows)
+                meta = export_metadata(conditions, selection, self._source_text())
+                written = write_table(out, path, metadata=meta, force=force, protect=protect)
+                n_rows = len(out)
+                sidecar = str(about_path(written).resolve()) if output_format(written) in ("csv", "tsv") else ""
         except engine.LibraryError as exc:
             self.post_message(ExportFailed(one_line(exc)))
             return
         except Exception as exc:
             self.post_message(ExportFailed(f"{type(exc).__name__}: {one_line(exc)}"))
             return
-        self.post_message(ExportFinished(str(Path(written).resolve()), len(out), sidecar))
+        self.post_message(ExportFinished(str(Path(written).resolve()), n_rows, sidecar))
 
     def _source_text(self) -> str:
         if isinstance(self.source, (str, os.PathLike)):
@@ -685,6 +694,15 @@ def run(path: str | None, *, smiles_column: str | None = None, id_column: str | 
             return 2
     if not Path(path).exists():
         print(f"halosift: no such file: {path}", file=sys.stderr)
+        return 2
+    # Whole-file problems (type, emptiness, missing SMILES column) are cheap to
+    # find from the header; say them in one line before taking over the terminal.
+    from engine.io import LibraryError, open_library
+
+    try:
+        open_library(path, smiles_column=smiles_column, id_column=id_column)
+    except LibraryError as exc:
+        print(f"halosift: {exc}", file=sys.stderr)
         return 2
     app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column)
     result = app.run()

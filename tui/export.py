@@ -47,6 +47,7 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
     be one of ``protected`` (the library being screened).
     """
     from engine.io import LibraryError, output_format
+    from halosift.report import is_report_path
 
     text = text.strip()
     if not text:
@@ -56,9 +57,9 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
         path = folder / path
     path = Path(os.path.normpath(path))
     try:
-        fmt = output_format(path)
+        fmt = "html" if is_report_path(path) else output_format(path)
     except LibraryError as exc:
-        raise ValueError(str(exc)) from None
+        raise ValueError(f"{exc}; or .html for a printable report") from None
     parent = path.parent
     if not parent.is_dir():
         raise ValueError(f"folder {parent} does not exist")
@@ -101,6 +102,17 @@ def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, s
         source=source,
         written_by="halosift app (browse)",
     )
+
+
+def write_report_export(
+    library: Any, conditions: Any, rows: np.ndarray, path: Path, *, force: bool, selection: str, source: str,
+    protect: Sequence[Any] = (),
+) -> Path:
+    """Write the printable HTML report (halosift.report) for the chosen rows; the summary counts the whole library."""
+    from halosift.report import render_report, write_report
+
+    report = render_report(library, conditions, rows=np.asarray(rows, dtype=np.int64), selection=selection, source=source)
+    return write_report(report.html, path, force=force, protect=protect)
 
 
 class ConfirmScreen(ModalScreen[bool]):
@@ -169,7 +181,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
                                   id="what-shortlist", compact=True)
                 yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, as shown", start == "view",
                                   id="what-view", compact=True)
-            yield Label("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz):")
+            yield Label("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
             yield Input(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
             yield Static("", id="export-check")
             yield Static("Conditions, selection and the safety caution are stored with the data.", id="export-note")
@@ -201,9 +213,12 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         if self.what == "view" and not self.n_view:
             box.update("✗ the current view has no rows")
             return None
+        exists = " · the file exists: you will be asked before it is replaced" if existing_targets(path, fmt) else ""
+        if fmt == "html":
+            box.update(f"✓ HTML report to {path}; conditions, sources and the caution in its header{exists}")
+            return path, fmt
         where = "in the Parquet schema metadata" if fmt == "parquet" else (
             "as SDF properties" if fmt == "sdf" else "in a .about.txt file beside it")
-        exists = " · the file exists: you will be asked before it is replaced" if existing_targets(path, fmt) else ""
         box.update(f"✓ {fmt.upper()} to {path}; metadata {where}{exists}")
         return path, fmt
 

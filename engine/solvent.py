@@ -1,0 +1,97 @@
+"""Solvent effect on Cl· selectivity: complexing solvents make chlorine atoms choosier.
+
+Data: Russell's 2,3-dimethylbutane series (:data:`engine.parameters.RUSSELL_POINTS`),
+per-H tertiary : primary at 25 °C.
+
+Model (an estimate; the assumptions are the whole of it):
+
+1. Interpolation. ln(ratio) is taken as piecewise linear in solvent molarity
+   through the measured points, starting from the neat liquid (0 M, ratio ≈ 4);
+   beyond the last measured point the last segment is extended, up to the
+   molarity of the pure solvent (a warning says so).
+2. Scaling. A solvent multiplies every Cl· log-selectivity by one factor ``s``:
+   k'(site) = k(primary) · (k(site) / k(primary))^s, i.e. the effective
+   activation difference ΔEa(site) = −RT·ln(k(site)/k(primary)) is scaled by
+   ``s``. ``s`` is fixed so that the model's own tertiary : primary ratio at
+   25 °C equals the interpolated measured ratio; the same ``s`` is applied at
+   every temperature and to every site class (secondary, benzylic …), which
+   Russell's data do not test.
+3. ``none`` leaves the model as it is (its constants are gas-phase fits);
+   ``benzene``/``cs2`` at 0 M means the neat liquid hydrocarbon of Russell's
+   series, whose ratio (≈ 4) is a little below the gas-phase model's (≈ 5).
+"""
+
+from __future__ import annotations
+
+import math
+from functools import cache
+
+import numpy as np
+
+from engine import parameters as P
+from engine.site_classes import SITE_CLASSES
+
+SOLVENTS: tuple[str, ...] = ("none", "benzene", "cs2")
+_PRIMARY = SITE_CLASSES.index("primary")
+_TERTIARY = SITE_CLASSES.index("tertiary")
+
+
+def check_solvent(solvent: str, molar: float) -> None:
+    """Raise ValueError (one line) for an unknown solvent or an impossible concentration."""
+    if solvent not in SOLVENTS:
+        raise ValueError(f"unknown solvent {solvent!r}; expected one of {', '.join(SOLVENTS)}")
+    if not molar == molar:
+        raise ValueError("solvent concentration is not a number")
+    if solvent == "none":
+        if molar != 0:
+            raise ValueError("a solvent concentration needs a solvent (benzene or cs2)")
+        return
+    top = P.SOLVENT_MAX_MOLAR[solvent]
+    if not 0 <= molar <= top:
+        raise ValueError(f"{solvent} concentration {molar:g} M is outside 0–{top:g} M (the pure solvent)")
+
+
+def _points(solvent: str) -> list[tuple[float, float]]:
+    return [(0.0, P.RUSSELL_NEAT.value)] + [(c, v.value) for c, v in P.RUSSELL_POINTS[solvent]]
+
+
+def measured_ratio(solvent: str, molar: float) -> float:
+    """Per-H tertiary : primary of 2,3-dimethylbutane at 25 °C, interpolated log-linearly in molarity."""
+    pts = _points(solvent)
+    for (c0, r0), (c1, r1) in zip(pts, pts[1:]):
+        if molar <= c1:
+            break
+    # (c0, r0)–(c1, r1) is now the segment holding molar, or the last one (extrapolation)
+    t = (molar - c0) / (c1 - c0)
+    return math.exp(math.log(r0) + t * (math.log(r1) - math.log(r0)))
+
+
+def extrapolated(solvent: str, molar: float) -> bool:
+    """True when ``molar`` lies beyond the last measured point of ``solvent``."""
+    return solvent != "none" and molar > P.RUSSELL_POINTS[solvent][-1][0]
+
+
+@cache
+def _model_ratio_25c() -> float:
+    from engine.rates import rate_table
+
+    k = rate_table("cl").per_h(P.RUSSELL_T_K)
+    return float(k[_TERTIARY] / k[_PRIMARY])
+
+
+def selectivity_exponent(solvent: str, molar: float) -> float:
+    """The factor ``s`` on Cl· log-selectivities (1 for no solvent)."""
+    if solvent == "none":
+        return 1.0
+    return math.log(measured_ratio(solvent, molar)) / math.log(_model_ratio_25c())
+
+
+def scale_rates(k: np.ndarray, s: float) -> np.ndarray:
+    """Per-H rates by site code with every log-selectivity vs primary multiplied by ``s``."""
+    if s == 1.0:
+        return k
+    prim = k[_PRIMARY]
+    out = np.zeros_like(k)
+    pos = k > 0
+    out[pos] = prim * (k[pos] / prim) ** s
+    return out

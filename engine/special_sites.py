@@ -1,0 +1,177 @@
+"""Structural features the site-by-site rate model cannot capture, found once per structure.
+
+Each flag names a risk the percentages do not show (ring opening, addition,
+cage rearrangement) or a site the ordinary degree classes would misjudge
+(bridgeheads). Flags are perception-level: computed with RDKit when a
+structure is perceived, stored as a comma-joined string in the structures
+table, and never depend on conditions.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from rdkit import Chem
+
+from engine import parameters as P
+
+_DOUBLE = Chem.BondType.DOUBLE
+
+#: Longest bridge (interior atoms) of a "small" bicycle: [1.1.1] up to [2.2.2].
+MAX_BRIDGE_ATOMS = 2
+#: A cage: at least this many carbons each on ≥ 3 rings of ≤ 4 atoms (cubane,
+#: prismane, cuneane, tetrahedrane; bicyclo[1.1.1]pentane has only two such).
+CAGE_MIN_ATOMS = 4
+CAGE_MAX_RING = 4
+
+
+def _power_of_ten(x: float) -> str:
+    """1e8 rather than Python's 1e+08."""
+    mantissa, exponent = f"{x:.0e}".split("e")
+    return f"{mantissa}e{int(exponent)}"
+
+
+@dataclass(frozen=True)
+class FlagNote:
+    """What one flag warns about."""
+
+    flag: str
+    """Short name, as stored in the ``flags`` column."""
+    note: str
+    """One line for the chemist."""
+    source: str
+    """Where the numbers in ``note`` come from."""
+
+
+FLAG_NOTES: dict[str, FlagNote] = {
+    "cyclopropylmethyl": FlagNote(
+        "cyclopropylmethyl",
+        "a C–H next to a cyclopropane ring: the cyclopropylmethyl radical ring-opens with "
+        f"k ≈ {_power_of_ten(P.K_CYCLOPROPYLMETHYL_OPENING.value)} s⁻¹ at 25 °C, so ring-opened (butenyl) "
+        "halides are a risk that the percentages do not include",
+        P.K_CYCLOPROPYLMETHYL_OPENING.source,
+    ),
+    "bridgehead": FlagNote(
+        "bridgehead",
+        "a bridgehead C–H of a small bicycle (every bridge ≤ 2 atoms): the radical cannot planarise, "
+        "so that site is strongly disfavoured; e.g. " + P.NORBORNANE_CL2_NOTE
+        + "; the exo/endo split is not modelled",
+        "bridgehead C–H bond enthalpy: " + P.BDE_BRIDGEHEAD.source,
+    ),
+    "cage": FlagNote(
+        "cage",
+        "a strained polycyclic cage (cubane-like): its C–H are weighed as ordinary sites, and "
+        "rearrangement or ring opening of the cage radical is not modelled",
+        "structural rule of this program (common practice)",
+    ),
+    "alkene": FlagNote(
+        "alkene",
+        "C=C present: under Cl2 or Br2, addition to the double bond competes at ordinary temperatures "
+        "and is not modelled; substitution wins only hot (propene + Cl2 gives allyl chloride at "
+        f"≥ {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C)",
+        P.ALKENE_SUBSTITUTION_T_C.source,
+    ),
+}
+FLAGS: tuple[str, ...] = tuple(FLAG_NOTES)
+
+
+def _abstractable_sp3(atom: Chem.Atom) -> bool:
+    """An H-bearing, non-aromatic carbon with only single bonds (the sites radicals take H from)."""
+    return (
+        atom.GetAtomicNum() == 6
+        and atom.GetTotalNumHs() > 0
+        and not atom.GetIsAromatic()
+        and all(b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds())
+    )
+
+
+def is_small_bridgehead(atom: Chem.Atom) -> bool:
+    """True when ``atom`` joins three bridges of 1–2 atoms each to another bridgehead.
+
+    That is the bicyclo[a.b.c] skeleton with 1 ≤ a, b, c ≤ 2 ([1.1.1], [2.1.1],
+    [2.2.1], [2.2.2]): three atom-disjoint paths to one partner atom, each with
+    one or two interior atoms. Zero-atom bridges (bicyclo[n.m.0], fused rings)
+    do not count: a fused-ring CH can flatten.
+    """
+    if atom.GetDegree() < 3 or not atom.IsInRing():
+        return False
+    me = atom.GetIdx()
+    # partner atom → list of bridges (tuples of interior atom indices)
+    bridges: dict[int, list[tuple[int, ...]]] = {}
+    for n in atom.GetNeighbors():
+        if not n.IsInRing():
+            continue
+        ni = n.GetIdx()
+        for m in n.GetNeighbors():
+            mi = m.GetIdx()
+            if mi == me:
+                continue
+            bridges.setdefault(mi, []).append((ni,))
+            if MAX_BRIDGE_ATOMS >= 2:
+                for o in m.GetNeighbors():
+                    oi = o.GetIdx()
+                    if oi not in (me, ni):
+                        bridges.setdefault(oi, []).append((ni, mi))
+    for partner, paths in bridges.items():
+        if partner == me or len(paths) < 3:
+            continue
+        if partner in {n.GetIdx() for n in atom.GetNeighbors()}:
+            continue  # a zero-atom bridge: fused, not bridged
+        # three pairwise atom-disjoint bridges (disjointness forces distinct first atoms)
+        for i in range(len(paths)):
+            for j in range(i + 1, len(paths)):
+                if set(paths[i]) & set(paths[j]):
+                    continue
+                for k in range(j + 1, len(paths)):
+                    if not (set(paths[k]) & set(paths[i]) or set(paths[k]) & set(paths[j])):
+                        return True
+    return False
+
+
+def special_site_class(atom: Chem.Atom) -> str | None:
+    """A site class that overrides the degree/π classes, or None.
+
+    Today: ``bridgehead`` for an abstractable bridgehead C–H of a small bicycle
+    (see :func:`is_small_bridgehead`). Meant to be called by
+    ``engine.sites.classify_carbon`` after its cyclopropyl test (a bridgehead
+    radical cannot overlap with a neighbouring π system either, so it also
+    overrides the allylic/benzylic classes).
+    """
+    if _abstractable_sp3(atom) and is_small_bridgehead(atom):
+        return "bridgehead"
+    return None
+
+
+def _small_ring_counts(mol: Chem.Mol) -> list[int]:
+    """Per atom, how many rings of ≤ CAGE_MAX_RING atoms it lies on (symmetrised SSSR)."""
+    counts = [0] * mol.GetNumAtoms()
+    for ring in Chem.GetSymmSSSR(mol):
+        if len(ring) <= CAGE_MAX_RING:
+            for i in ring:
+                counts[i] += 1
+    return counts
+
+
+def structure_flags(mol: Chem.Mol) -> tuple[str, ...]:
+    """Every flag of :data:`FLAGS` that applies to ``mol``, in :data:`FLAGS` order."""
+    found: set[str] = set()
+    for atom in mol.GetAtoms():
+        if atom.GetAtomicNum() != 6:
+            continue
+        if _abstractable_sp3(atom):
+            if not atom.IsInRingSize(3) and any(n.IsInRingSize(3) for n in atom.GetNeighbors()):
+                found.add("cyclopropylmethyl")
+            if is_small_bridgehead(atom):
+                found.add("bridgehead")
+    if sum(c >= 3 for c in _small_ring_counts(mol)) >= CAGE_MIN_ATOMS:
+        found.add("cage")
+    for bond in mol.GetBonds():
+        if bond.GetBondType() == _DOUBLE and not bond.GetIsAromatic():
+            found.add("alkene")
+            break
+    return tuple(f for f in FLAGS if f in found)
+
+
+def flag_notes(flags: str) -> tuple[FlagNote, ...]:
+    """The notes for a comma-joined ``flags`` cell (empty string: none)."""
+    return tuple(FLAG_NOTES[f] for f in flags.split(",") if f)

@@ -1,0 +1,383 @@
+"""Page assembly: one self-contained HTML file (inline CSS and SVG, no scripts) for a screened library."""
+
+from __future__ import annotations
+
+from collections import Counter
+from collections.abc import Sequence
+from dataclasses import dataclass
+from html import escape
+from typing import TYPE_CHECKING
+
+import numpy as np
+import pandas as pd
+
+from halosift.report.charts import bar_chart, hbar_chart, histogram
+from halosift.report.drawing import SiteMark, colour_hex, structure_svg
+from halosift.report.style import STYLESHEET
+
+if TYPE_CHECKING:
+    from engine import Conditions, Library
+
+#: Default cap on per-substrate sections (a printed report beyond this is rarely read).
+DEFAULT_MAX_PAGES = 200
+#: Rejected rows listed by name before the rest are only counted.
+REJECTED_LISTED = 1000
+#: Highest product count with its own bar; larger counts share the last bar.
+PRODUCTS_BARS = 10
+
+#: What each verdict means, written out (the report never relies on colour).
+VERDICT_MEANING = {
+    "single": "only one monohalide can form",
+    "br-selective": "under Br2 the major monobromide reaches the threshold share",
+    "mixture": "several monohalides, none reaching the threshold under Br2",
+    "inert": "no C–H on an sp3 carbon: no monohalide by radical abstraction",
+}
+
+
+@dataclass(frozen=True)
+class Report:
+    """A rendered report and what it covers."""
+
+    html: str
+    """The whole page."""
+    n_rows: int
+    """Rows in the library (all counted in the summary)."""
+    n_selected: int
+    """Rows the selection kept (modelled and rejected)."""
+    n_sections: int
+    """Substrate sections written."""
+    n_left_out: int
+    """Modelled rows of the selection left out by the page cap."""
+
+
+def _e(value: object) -> str:
+    return escape("" if value is None else str(value), quote=True)
+
+
+def _letters(i: int) -> str:
+    """a, b, …, z, aa, ab, … for site i (0-based)."""
+    out = ""
+    i += 1
+    while i:
+        i, r = divmod(i - 1, 26)
+        out = chr(ord("a") + r) + out
+    return out
+
+
+def _pct(value: float) -> str:
+    """Percent with one decimal for tables; tiny non-zero shares show as <0.1."""
+    if value != value:
+        return "–"
+    if value == 0:
+        return "0"
+    if value < 0.05:
+        return "<0.1"
+    if 99.95 <= value < 100:
+        return ">99.9"
+    return f"{value:.1f}"
+
+
+def rejection_kinds(library: Library) -> list[str]:
+    """Per input row, the short kind of rejection ('' when modelled): the engine's reason code, or 'unreadable row'."""
+    codes = library.perception.structures["reason_code"].to_numpy(dtype=object)
+    status = library.perception.structures["status"].to_numpy(dtype=object)
+    out = []
+    for row, struct in enumerate(library.row_struct):
+        if library.read_errors[row]:
+            out.append("unreadable row")
+        elif struct < 0:
+            out.append("not modelled")
+        elif status[struct] != "ok":
+            out.append(str(codes[struct]) or "rejected")
+        else:
+            out.append("")
+    return out
+
+
+def _row_ids(library: Library) -> list[str]:
+    if library.id_column is None:
+        return [f"row {i + 1}" for i in range(len(library))]
+    return [
+        f"row {i + 1}" if v is None or (isinstance(v, float) and v != v) or str(v).strip() == "" else str(v)
+        for i, v in enumerate(library.input[library.id_column].tolist())
+    ]
+
+
+# ---------------------------------------------------------------------------- header and summary
+
+
+def _caution_body(caution: str) -> str:
+    """The caution without its leading 'SAFETY:' (the box has its own heading)."""
+    head, sep, rest = caution.partition(":")
+    return rest.strip() if sep and head.strip().upper() == "SAFETY" else caution
+
+
+def _header(conditions: Conditions, meta: dict[str, str], source: str, selection: str) -> str:
+    from engine.provenance import MODEL_SOURCES
+
+    warnings = conditions.warnings()
+    warn = ""
+    if warnings:
+        warn = '<div class="warnings" role="note"><p><strong>Warning:</strong></p>' + "".join(
+            f"<p>{_e(w)}</p>" for w in warnings) + "</div>"
+    sources = "".join(f"<li>{_e(s.strip())}</li>" for s in MODEL_SOURCES.split(";") if s.strip())
+    return f"""<header>
+<h1>Halogenation outlook</h1>
+<p class="lede">Predicted monohalides from free-radical chlorination and bromination, by halosift.</p>
+<p class="caution" role="note"><strong>Safety</strong>{_e(_caution_body(meta["caution"]))}</p>
+{warn}<dl class="facts">
+<dt>Conditions</dt><dd data-field="conditions">{_e(meta["conditions"])}</dd>
+<dt>Library</dt><dd>{_e(source)}</dd>
+<dt>Reported rows</dt><dd>{_e(selection)}</dd>
+<dt>halosift version</dt><dd data-field="version">{_e(meta["halosift_version"])}</dd>
+<dt>Created (UTC)</dt><dd data-field="created">{_e(meta["created_utc"])}</dd>
+</dl>
+<div class="sources"><strong>Model sources</strong><ol>{sources}</ol></div>
+</header>"""
+
+
+def _count_row(label: str, key: str, value: int, meaning: str = "") -> str:
+    return (f'<tr><th scope="row">{_e(label)}</th><td class="num" data-count="{_e(key)}">{value:,}</td>'
+            f"<td>{_e(meaning)}</td></tr>")
+
+
+def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> str:
+    from engine import VERDICTS
+
+    n = len(result)
+    ok = (result["status"] == "ok").to_numpy()
+    verdicts = result.loc[ok, "verdict"].value_counts()
+    dup = int(result["duplicate_of"].notna().sum())
+    rows = [
+        _count_row("rows read", "rows", n, "every input row, modelled or not"),
+        _count_row("modelled", "ok", int(ok.sum()), "hydrocarbons the model covers"),
+        _count_row("rejected", "rejected", int((~ok).sum()), "each with its reason (below)"),
+    ]
+    for v in VERDICTS:
+        meaning = VERDICT_MEANING[v]
+        if v == "br-selective":
+            meaning += f" ({conditions.threshold_pct:g} %)"
+        rows.append(_count_row(f"verdict: {v}", v, int(verdicts.get(v, 0)), meaning))
+    rows.append(_count_row("repeated structures", "duplicates", dup, "rows whose structure appeared on an earlier row"))
+    counts_table = ('<table class="counts"><thead><tr><th>rows</th><th class="num">count</th><th>meaning</th></tr>'
+                    "</thead><tbody>" + "".join(rows) + "</tbody></table>")
+
+    verdict_chart = bar_chart(
+        [*VERDICTS, "rejected"], [*(int(verdicts.get(v, 0)) for v in VERDICTS), int((~ok).sum())],
+        title="Rows by verdict", x_label="verdict",
+    )
+    has_h = ok & (result["n_products"].fillna(0).to_numpy(dtype=np.int64) > 0)
+    selectivity = histogram(
+        result.loc[has_h, "br2_major_pct"].to_numpy(dtype=float).tolist(),
+        title="Bromination selectivity", x_label="share of the major monobromide under Br2, %",
+    )
+    n_products = result.loc[ok, "n_products"].fillna(0).to_numpy(dtype=np.int64)
+    top = min(int(n_products.max()) if len(n_products) else 0, PRODUCTS_BARS)
+    labels = [str(i) for i in range(top + 1)]
+    if len(n_products) and n_products.max() > PRODUCTS_BARS:
+        labels[-1] = f"{PRODUCTS_BARS}+"
+    counts = [int((np.minimum(n_products, PRODUCTS_BARS) == i).sum()) for i in range(top + 1)]
+    products_chart = bar_chart(labels, counts, title="Monohalides per substrate", x_label="distinct monohalides")
+    by_kind = Counter(k for k in kinds if k)
+    if by_kind:
+        common = by_kind.most_common()
+        rejected_chart = hbar_chart([k for k, _ in common], [c for _, c in common], title="Rejected rows by reason")
+    else:
+        rejected_chart = '<p class="note">No rows were rejected.</p>'
+    figures = [
+        (verdict_chart, "Modelled rows by verdict, and rejected rows."),
+        (selectivity, f"Modelled rows with abstractable C–H ({int(has_h.sum()):,}), "
+                      "by the share of their major monobromide, in 10-point bins."),
+        (products_chart, "Modelled rows by how many distinct monohalides can form."),
+        (rejected_chart, "Rejected rows by the kind of problem."),
+    ]
+    charts = "".join(f"<figure>{svg}<figcaption>{_e(cap)}</figcaption></figure>" for svg, cap in figures)
+    return (f'<section class="summary"><h2>Library summary</h2>'
+            f"<p>All {n:,} rows of the library are counted here, whatever the report's selection.</p>"
+            f'{counts_table}<div class="charts">{charts}</div></section>')
+
+
+def _key(conditions: Conditions) -> str:
+    items = "".join(
+        f"<dt>{_e(v)}</dt><dd>{_e(VERDICT_MEANING[v])}"
+        f"{_e(f' ({conditions.threshold_pct:g} %)') if v == 'br-selective' else ''}.</dd>"
+        for v in VERDICT_MEANING
+    )
+    return f"""<section class="key"><h2>Reading the substrate entries</h2>
+<p>Each entry draws the substrate and marks every distinct abstractable C–H site (one representative carbon per
+set of equivalent carbons) with a letter and its predicted share: for example <code>a: Cl 45 / Br 3</code> means
+site a gives 45 % of the monochlorides under Cl2 and 3 % of the monobromides under Br2. Tables name
+the monochloride; the monobromide is the same SMILES with Br in place of Cl. The tint of a marked carbon
+shows its site class; the class is also named in the legend and the table. C–H bonds on sp2 and sp carbons
+(aryl, vinyl, alkynyl) are not abstracted and are not listed. Shares are percentages of the monohalides only;
+polyhalogenation is not modelled. A number after the stereo outcome counts the stereoisomers formed.</p>
+<dl>{items}</dl></section>"""
+
+
+# ---------------------------------------------------------------------------- substrate sections
+
+
+def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
+    if products.empty:
+        return "<p>No abstractable C–H: no monohalide forms by radical abstraction.</p>"
+    body = []
+    for letter, p in zip(letters, products.itertuples(index=False)):
+        stereo = str(p.stereo)
+        if int(p.n_stereoisomers) > 1:
+            stereo += f" ({int(p.n_stereoisomers)})"
+        body.append(
+            f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{_e(p.product)}</td><td>{_e(p.site)}</td>"
+            f'<td class="num">{int(p.h_count)}</td><td>{_e(stereo)}</td>'
+            f'<td class="num">{_pct(float(p.cl2_pct))}</td><td class="num">{_pct(float(p.br2_pct))}</td></tr>'
+        )
+    return ('<table class="products"><thead><tr><th>site</th><th>monochloride</th>'
+            '<th>class</th><th class="num">H</th><th>stereo outcome</th><th class="num">% Cl2</th>'
+            '<th class="num">% Br2</th></tr></thead><tbody>' + "".join(body) + "</tbody></table>")
+
+
+def _legend(sites: Sequence[str]) -> str:
+    items = "".join(
+        f'<li><span class="swatch" style="background:{colour_hex(s)}"></span>{_e(s)}</li>'
+        for s in dict.fromkeys(sites)
+    )
+    return f'<ul class="legend" aria-label="site classes">{items}</ul>' if items else ""
+
+
+def _section(library: Library, row: int, row_id: str, result_row: pd.Series, conditions: Conditions,
+             warnings: list[str]) -> str:
+    from engine import ABSTRACTABLE
+
+    products = library.products(row, conditions)
+    products = products[products["site"].isin(ABSTRACTABLE)].reset_index(drop=True)
+    letters = [_letters(i) for i in range(len(products))]
+    marks = [
+        SiteMark(int(p.atom), letter, str(p.site), float(p.cl2_pct), float(p.br2_pct))
+        for letter, p in zip(letters, products.itertuples(index=False))
+    ]
+    canonical = str(result_row["canonical_smiles"])
+    try:
+        drawing = structure_svg(canonical, marks, title=f"{row_id}: {canonical}")
+    except ValueError as exc:
+        drawing = f'<p class="note">No drawing: {_e(exc)}</p>'
+    verdict = str(result_row["verdict"])
+    raw_smiles = library.input[library.smiles_column].iloc[row]
+    lines = [f'<p class="meta">Input row {row + 1} · input SMILES <span class="smiles">{_e(raw_smiles)}</span>'
+             f' · canonical <span class="smiles">{_e(canonical)}</span></p>']
+    dup = result_row["duplicate_of"]
+    if not pd.isna(dup):
+        lines.append(f'<p class="meta">Same structure as input row {int(dup)}.</p>')
+    if len(products):
+        lines.append(
+            f'<p class="meta">Major under Cl2: <span class="smiles">{_e(result_row["cl2_major"])}</span> '
+            f"({_pct(float(result_row['cl2_major_pct']))} %) · major under Br2: "
+            f'<span class="smiles">{_e(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
+            f" {_e(result_row['stereo'])})</p>"
+        )
+    warn = ""
+    if warnings:
+        warn = '<div class="warnings" role="note">' + "".join(f"<p>Warning: {_e(w)}</p>" for w in warnings) + "</div>"
+    return (
+        f'<section class="substrate" data-row="{row + 1}" id="row-{row + 1}">'
+        f'<h3>{_e(row_id)} <span class="verdict verdict-{_e(verdict)}">verdict: {_e(verdict)}</span></h3>'
+        + "".join(lines)
+        + f'<div class="substrate-body"><figure>{drawing}{_legend([m.site for m in marks])}</figure>'
+        f"<div>{_products_table(products, letters)}</div></div>{warn}</section>"
+    )
+
+
+def _rejected_table(library: Library, rows: np.ndarray, ids: list[str], result: pd.DataFrame) -> str:
+    if not len(rows):
+        return ""
+    shown = rows[:REJECTED_LISTED]
+    raw = library.input[library.smiles_column]
+    body = "".join(
+        f'<tr><td class="num">{r + 1}</td><td>{_e(ids[r])}</td><td class="smiles">{_e(raw.iloc[r])}</td>'
+        f"<td>{_e(result['reason'].iloc[r])}</td></tr>"
+        for r in shown
+    )
+    more = ""
+    if len(rows) > len(shown):
+        more = (f'<p class="note cap-note">{len(rows) - len(shown):,} more rejected rows are counted in the summary '
+                f"but not listed here.</p>")
+    return (f'<section class="rejected"><h2>Rejected rows in this report ({len(rows):,})</h2>'
+            '<table><thead><tr><th class="num">row</th><th>ID</th><th>input SMILES</th><th>reason</th></tr></thead>'
+            f"<tbody>{body}</tbody></table>{more}</section>")
+
+
+# ---------------------------------------------------------------------------- the page
+
+
+def render_report(
+    library: Library,
+    conditions: Conditions,
+    *,
+    rows: Sequence[int] | np.ndarray | None = None,
+    selection: str = "all rows",
+    source: str = "",
+    max_pages: int = DEFAULT_MAX_PAGES,
+    missing_ids: Sequence[str] = (),
+) -> Report:
+    """The report page for ``library`` under ``conditions``.
+
+    The summary counts every row of the library; one section is written per
+    modelled row of ``rows`` (0-based input rows; None: all), in input order,
+    up to ``max_pages`` sections, with a note saying how many were left out.
+    Rejected rows of the selection are listed with their reasons.
+    """
+    from engine.provenance import export_metadata
+
+    if max_pages < 0:
+        raise ValueError("the page cap must be 0 or more")
+    result = library.evaluate(conditions)
+    chosen = np.arange(len(library), dtype=np.int64) if rows is None else np.unique(np.asarray(rows, dtype=np.int64))
+    if len(chosen) and (chosen[0] < 0 or chosen[-1] >= len(library)):
+        raise ValueError("report rows must be input rows of the library")
+    meta = export_metadata(conditions, source=source)
+    ids = _row_ids(library)
+    kinds = rejection_kinds(library)
+    ok = (result["status"] == "ok").to_numpy()
+    modelled = chosen[ok[chosen]]
+    rejected = chosen[~ok[chosen]]
+    shown = modelled[:max_pages]
+    left_out = len(modelled) - len(shown)
+    warnings = conditions.warnings()
+
+    notes = []
+    if missing_ids:
+        listed = ", ".join(missing_ids[:20]) + (f" and {len(missing_ids) - 20:,} more" if len(missing_ids) > 20 else "")
+        some = "1 ID from the list is" if len(missing_ids) == 1 else f"{len(missing_ids):,} IDs from the list are"
+        notes.append(f'<p class="note missing-ids">{some} not in the library: {_e(listed)}.</p>')
+    if not len(modelled):
+        notes.append('<p class="note">No modelled substrate matches this report\'s selection.</p>')
+    cap = ""
+    if left_out:
+        cap = (f'<p class="note cap-note">{len(shown):,} of {len(modelled):,} selected substrates are shown; '
+               f"{left_out:,} more were left out by the limit of {max_pages:,} substrate entries.</p>")
+    sections = "\n".join(_section(library, int(r), ids[r], result.iloc[r], conditions, warnings) for r in shown)
+    title = f"halosift report: {source}" if source else "halosift report"
+    html = f"""<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="generator" content="halosift {_e(meta["halosift_version"])}">
+<title>{_e(title)}</title>
+<style>{STYLESHEET}</style>
+</head>
+<body>
+{_header(conditions, meta, source or "in-memory table", selection)}
+<main>
+{_summary(result, kinds, conditions)}
+{_key(conditions)}
+<h2>Substrates ({len(shown):,} of {len(modelled):,} selected)</h2>
+{"".join(notes)}{cap}
+{sections}
+{cap}
+{_rejected_table(library, rejected, ids, result)}
+</main>
+<footer><p>{_e(meta["caution"])}</p><p>Written by halosift {_e(meta["halosift_version"])} on
+{_e(meta["created_utc"])}; {_e(meta["conditions"])}.</p></footer>
+</body>
+</html>
+"""
+    return Report(html=html, n_rows=len(library), n_selected=len(chosen), n_sections=len(shown), n_left_out=left_out)

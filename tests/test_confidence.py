@@ -1,0 +1,67 @@
+"""The per-structure ``confidence`` column: weakest rate basis among products with ≥ 5 %."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import engine
+from engine import Conditions
+from engine.library import RESULT_COLUMNS, RESULT_DOCS
+from engine.site_classes import SITE_CLASSES
+from engine.weigh import confidence_labels
+
+SMILES = ["CCC", "CC(C)C", "CCc1ccccc1", "C", "CC1CC1", "c1ccccc1", "CCO", "C=CC", "CC(C)CC"]
+
+
+def test_columns_documented() -> None:
+    assert "confidence" in RESULT_COLUMNS and "flags" in RESULT_COLUMNS
+    assert set(RESULT_DOCS) == set(RESULT_COLUMNS)
+
+
+def test_known_cases() -> None:
+    result = engine.screen(pd.DataFrame({"smiles": SMILES}), use_cache=False).set_index("smiles")
+    # propane: Cl· sites measured (Sarzyński & Sztuba 2002), Br· ratios textbook (Morrison & Boyd) → textbook
+    assert result.loc["CCC", "confidence"] == "textbook"
+    # ethylbenzene: the benzylic constants are BEP estimates → estimate
+    assert result.loc["CCc1ccccc1", "confidence"] == "estimate"
+    # methane under Br· is a BEP extrapolation → estimate
+    assert result.loc["C", "confidence"] == "estimate"
+    # benzene: nothing abstractable → empty; ethanol rejected → empty
+    assert result.loc["c1ccccc1", "confidence"] == "" and result.loc["CCO", "confidence"] == ""
+
+
+@pytest.mark.parametrize("conditions", [Conditions(), Conditions(cl2_temp_c=200, br2_temp_c=60)])
+def test_screen_agrees_with_explain(conditions: Conditions) -> None:
+    result = engine.screen(pd.DataFrame({"smiles": SMILES}), conditions, use_cache=False)
+    for smi, conf in zip(result["smiles"], result["confidence"]):
+        e = engine.explain(smi, conditions)
+        assert conf == (e.confidence() if e.status == "ok" else ""), smi
+        if e.status == "ok":
+            assert e.to_dict()["confidence"] == conf
+
+
+def test_five_percent_cut_off() -> None:
+    code = np.array([SITE_CLASSES.index("primary"), SITE_CLASSES.index("benzylic-primary")])
+    struct = np.array([0, 0])
+    cond = Conditions()
+    below = {"cl2": np.array([96.0, 4.0]), "br2": np.array([97.0, 3.0])}
+    above = {"cl2": np.array([94.0, 6.0]), "br2": np.array([97.0, 3.0])}
+    assert list(confidence_labels(code, below, struct, 1, cond)) == ["textbook"]
+    assert list(confidence_labels(code, above, struct, 1, cond)) == ["estimate"]
+    # Per reagent: a primary site weighed only under Cl2 (measured) is measured.
+    only_cl = {"cl2": np.array([100.0, 0.0])}
+    assert list(confidence_labels(code, only_cl, struct, 1, cond)) == ["measured"]
+
+
+def test_solvent_makes_cl2_estimate() -> None:
+    result = engine.screen(pd.DataFrame({"smiles": ["CCC"]}), Conditions(cl2_solvent="benzene", cl2_solvent_molar=4),
+                           use_cache=False)
+    assert result["confidence"].iloc[0] == "estimate"
+
+
+def test_products_carry_bases() -> None:
+    lib = engine.load_library(pd.DataFrame({"smiles": ["CCC"]}), use_cache=False)
+    prods = lib.products(0)
+    assert set(prods["cl2_basis"]) == {"measured"} and set(prods["br2_basis"]) == {"textbook"}

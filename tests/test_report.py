@@ -1,0 +1,288 @@
+"""The HTML report: well-formed page and drawings, counts that agree with screen, filters, cap, one-line errors."""
+
+from __future__ import annotations
+
+import html
+import re
+import subprocess
+import sys
+import xml.etree.ElementTree as ET
+from html.parser import HTMLParser
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+import engine
+from engine.provenance import MODEL_SOURCES
+from halosift.cli import main
+from halosift.report import render_report
+from halosift.report.charts import histogram, nice_ticks
+
+#: An invented supplier's list (IDs made up): every verdict, a repeated structure and several rejections.
+ROWS = [
+    ("KV-101", "CC"),              # single
+    ("KV-102", "CCC"),             # br-selective
+    ("KV-103", "CC(C)CC"),         # mixture? decided by the engine, not here
+    ("KV-104", "Cc1ccccc1"),       # single (benzylic)
+    ("KV-105", "c1ccccc1"),        # inert
+    ("KV-106", "CCCCC"),           # mixture
+    ("KV-107", "CCO"),             # rejected: oxygen
+    ("KV-108", "C1CC"),            # rejected: unparsable
+    ("KV-109", "CCC"),             # repeats KV-102
+    ("KV-110", "C[C@H](CC)C=C"),   # stereo-defined, allylic
+    ("KV-111", "[CH3]"),           # rejected: radical
+    ("KV-112", "C1CCCCC1"),        # single (one kind of CH2)
+]
+
+VOID = {"area", "base", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source", "track", "wbr"}
+
+
+class TagChecker(HTMLParser):
+    """Every non-void element is closed, in order; nothing is left open at the end."""
+
+    def __init__(self) -> None:
+        super().__init__(convert_charrefs=True)
+        self.stack: list[tuple[str, tuple[int, int]]] = []
+        self.problems: list[str] = []
+
+    def handle_starttag(self, tag: str, attrs: list) -> None:
+        if tag not in VOID:
+            self.stack.append((tag, self.getpos()))
+
+    def handle_endtag(self, tag: str) -> None:
+        if tag in VOID:
+            self.problems.append(f"end tag for void element {tag} at {self.getpos()}")
+            return
+        if not self.stack:
+            self.problems.append(f"stray </{tag}> at {self.getpos()}")
+            return
+        top, pos = self.stack.pop()
+        if top != tag:
+            self.problems.append(f"</{tag}> at {self.getpos()} closes <{top}> opened at {pos}")
+
+    def check(self, text: str) -> list[str]:
+        self.feed(text)
+        self.close()
+        return self.problems + [f"<{t}> opened at {p} never closed" for t, p in self.stack]
+
+
+def write_library(folder: Path) -> Path:
+    path = folder / "kv_catalogue.csv"
+    pd.DataFrame(ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path
+
+
+def report(tmp_path: Path, *args: str) -> str:
+    source = write_library(tmp_path)
+    out = tmp_path / "report.html"
+    assert main(["report", str(source), "-o", str(out), "--force", *args]) == 0
+    return out.read_text(encoding="utf-8")
+
+
+def svgs(page: str) -> list[str]:
+    return re.findall(r"<svg\b.*?</svg>", page, flags=re.DOTALL)
+
+
+def section_rows(page: str) -> list[int]:
+    return [int(r) for r in re.findall(r'<section class="substrate" data-row="(\d+)"', page)]
+
+
+def summary_counts(page: str) -> dict[str, int]:
+    return {k: int(v.replace(",", "")) for k, v in re.findall(r'data-count="([\w-]+)">([\d,]+)<', page)}
+
+
+def cli(*args: str) -> subprocess.CompletedProcess:
+    return subprocess.run([sys.executable, "-m", "halosift", *args], capture_output=True, text=True, timeout=300)
+
+
+def test_page_is_well_formed_with_header_and_one_section_per_substrate(tmp_path: Path) -> None:
+    page = report(tmp_path)
+    assert page.startswith("<!DOCTYPE html>")
+    assert TagChecker().check(page) == []
+    drawings = svgs(page)
+    for svg in drawings:
+        ET.fromstring(svg)  # raises on malformed XML
+    assert "<?xml" not in page and "<script" not in page.lower()
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    ok_rows = [i + 1 for i in range(len(screened)) if screened["status"].iloc[i] == "ok"]
+    assert section_rows(page) == ok_rows
+    assert page.count('<svg class="structure"') == len(ok_rows)
+    assert sum('class="chart"' in s for s in drawings) == 4
+    text = html.unescape(page)
+    assert engine.Conditions().describe() in text
+    assert engine.CAUTION.partition(":")[2].strip() in text
+    assert engine.__version__ in text
+    for source in MODEL_SOURCES.split(";"):
+        assert source.strip() in text
+    # Rejected rows are listed with their reasons, so every input row appears somewhere.
+    for i in range(len(screened)):
+        if screened["status"].iloc[i] != "ok":
+            assert screened["reason"].iloc[i] in text
+    # Verdicts are written out, never carried by colour alone.
+    for row in ok_rows:
+        assert f"verdict: {screened['verdict'].iloc[row - 1]}</span>" in page
+
+
+def test_summary_counts_equal_the_screen(tmp_path: Path) -> None:
+    page = report(tmp_path, "--only", "single")  # the selection must not change the summary
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    counts = summary_counts(page)
+    ok = screened["status"] == "ok"
+    assert counts["rows"] == len(ROWS) == len(screened)
+    assert counts["ok"] == int(ok.sum())
+    assert counts["rejected"] == int((~ok).sum()) == 3
+    for verdict in engine.VERDICTS:
+        assert counts[verdict] == int((screened["verdict"] == verdict).sum())
+    assert counts["duplicates"] == int(screened["duplicate_of"].notna().sum()) == 1
+
+
+def test_products_table_and_drawing_marks_agree_with_the_engine(tmp_path: Path) -> None:
+    page = report(tmp_path, "--ids", str(_ids(tmp_path, ["KV-110"])))
+    library = engine.load_library(tmp_path / "kv_catalogue.csv")
+    products = library.products(9)
+    products = products[products["site"].isin(engine.ABSTRACTABLE)]
+    section = page[page.index('data-row="10"'):]
+    section = section[: section.index("</section>")]
+    (drawing,) = svgs(section)
+    marked = sorted({int(a) for a in re.findall(r"<ellipse[^>]*class='atom-(\d+)'", drawing)})
+    assert marked == sorted(products["atom"].tolist())
+    assert len(re.findall(r'<td class="smiles">', section)) == len(products)
+    for p in products.itertuples():
+        assert f'<td class="smiles">{p.product}</td>' in section
+        assert f">{p.cl2_pct:.1f}<" in section or p.cl2_pct < 0.05
+    desc = re.search(r"<desc>(.*?)</desc>", drawing).group(1)
+    assert desc.count("Cl ") == len(products) and "a: Cl" in desc
+
+
+def _ids(folder: Path, ids: list[str]) -> Path:
+    path = folder / "picks.txt"
+    path.write_text("\n".join(ids) + "\n\n", encoding="utf-8")
+    return path
+
+
+def test_only_filters_by_verdict(tmp_path: Path) -> None:
+    page = report(tmp_path, "--only", "single", "--only", "inert")
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    expected = [i + 1 for i, v in enumerate(screened["verdict"]) if v in ("single", "inert")]
+    assert expected and section_rows(page) == expected
+    assert "verdict single or inert" in page
+
+
+def test_ids_filter_and_unknown_ids(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    write_library(tmp_path)
+    ids = _ids(tmp_path, ["  KV-106 ", "KV-101", "KV-999", "KV-107"])
+    page = report(tmp_path, "--ids", str(ids))
+    assert section_rows(page) == [1, 6]  # input order; KV-107 is rejected and listed with its reason
+    assert '<section class="rejected">' in page and "KV-107" in page
+    assert "KV-999" in page and "1 ID from the list is not in the library: KV-999" in page
+    assert "4 IDs from picks.txt" in page
+    assert "warning: 1 ID from" in capsys.readouterr().err
+
+
+def test_max_pages_caps_sections_with_a_note(tmp_path: Path) -> None:
+    page = report(tmp_path, "--max-pages", "2")
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    n_ok = int((screened["status"] == "ok").sum())
+    assert len(section_rows(page)) == 2
+    note = re.search(r'<p class="note cap-note">(.*?)</p>', page, flags=re.DOTALL).group(1)
+    assert f"2 of {n_ok} selected substrates are shown; {n_ok - 2} more were left out" in note
+    assert "cap-note" not in report(tmp_path)  # no cap, no note
+
+
+def test_screen_result_reads_back_as_a_library(tmp_path: Path) -> None:
+    source = write_library(tmp_path)
+    screened = tmp_path / "screened.csv"
+    assert main(["screen", str(source), "-o", str(screened), "--quiet"]) == 0
+    out = tmp_path / "again.html"
+    assert main(["report", str(screened), "-o", str(out)]) == 0
+    page = out.read_text(encoding="utf-8")
+    assert section_rows(page) == section_rows(report(tmp_path))
+    assert summary_counts(page) == summary_counts(report(tmp_path))
+
+
+def test_missing_input_is_one_line(tmp_path: Path) -> None:
+    proc = cli("report", str(tmp_path / "absent.csv"), "-o", str(tmp_path / "r.html"))
+    assert proc.returncode == 2
+    lines = proc.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("halosift: ") and "absent.csv" in lines[0]
+    assert not (tmp_path / "r.html").exists()
+
+
+def test_existing_output_needs_force(tmp_path: Path) -> None:
+    source = write_library(tmp_path)
+    out = tmp_path / "r.html"
+    out.write_text("keep me", encoding="utf-8")
+    proc = cli("report", str(source), "-o", str(out))
+    assert proc.returncode == 2
+    lines = proc.stderr.strip().splitlines()
+    assert lines == [f"halosift: {out} exists; use --force to replace it"]
+    assert out.read_text(encoding="utf-8") == "keep me"
+    proc = cli("report", str(source), "-o", str(out), "--force")
+    assert proc.returncode == 0, proc.stderr
+    assert out.read_text(encoding="utf-8").startswith("<!DOCTYPE html>")
+    assert not [p for p in tmp_path.iterdir() if p.name.endswith(".halosift-tmp")]
+
+
+@pytest.mark.parametrize(
+    ("extra", "expected"),
+    [
+        (["-o", "r.csv"], "should end in .html"),
+        (["-o", "r.html", "--max-pages", "-1"], "--max-pages must be 0 or more"),
+        (["-o", "r.html", "--ids", "no_such_list.txt"], "no such ID list"),
+        (["-o", "r.html", "--only", "wobbly"], "invalid choice"),
+    ],
+)
+def test_bad_options_are_one_line(tmp_path: Path, extra: list[str], expected: str) -> None:
+    source = write_library(tmp_path)
+    proc = subprocess.run([sys.executable, "-m", "halosift", "report", str(source), *extra],
+                          capture_output=True, text=True, timeout=300, cwd=tmp_path)
+    assert proc.returncode == 2
+    lines = proc.stderr.strip().splitlines()
+    assert len(lines) == 1 and expected in lines[0] and "Traceback" not in proc.stderr
+
+
+def test_ids_need_an_id_column(tmp_path: Path) -> None:
+    source = tmp_path / "plain.csv"
+    source.write_text("smiles,pack_g\nCCC,5\nCC,10\n", encoding="utf-8")
+    proc = cli("report", str(source), "-o", str(tmp_path / "r.html"), "--ids", str(_ids(tmp_path, ["x"])))
+    assert proc.returncode == 2
+    assert proc.stderr.strip().splitlines() == [
+        "halosift: the library has no ID column to match the ID list against; name one with --id-column"
+    ]
+
+
+def test_out_of_range_temperature_warns_in_every_section(tmp_path: Path) -> None:
+    page = report(tmp_path, "--temp", "br2=400")
+    warning = engine.Conditions(br2_temp_c=400).warnings()
+    assert warning
+    n_sections = len(section_rows(page))
+    assert html.unescape(page).count(warning[0]) == n_sections + 1  # header and every entry
+
+
+def test_report_without_any_ui_library() -> None:
+    code = (
+        "import sys, engine; from halosift.report import render_report; import pandas as pd; "
+        "lib = engine.load_library(pd.DataFrame({'smiles': ['CCC']}), use_cache=False); "
+        "render_report(lib, engine.Conditions()); "
+        "bad = [m for m in ('textual', 'rich') if m in sys.modules]; print(bad); sys.exit(1 if bad else 0)"
+    )
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 0, proc.stdout + proc.stderr
+
+
+def test_render_report_rejects_bad_rows() -> None:
+    lib = engine.load_library(pd.DataFrame({"smiles": ["CCC", "CC"]}), use_cache=False)
+    with pytest.raises(ValueError):
+        render_report(lib, engine.Conditions(), rows=[5])
+    assert render_report(lib, engine.Conditions(), rows=[1]).n_sections == 1
+
+
+def test_histogram_bins_and_ticks() -> None:
+    svg = histogram([0, 5, 9.99, 10, 55, 100, 100, float("nan")], title="t", x_label="x")
+    ET.fromstring(svg)
+    bars = dict(re.findall(r"<title>([^<:]+): (\d+)</title></rect>", svg))
+    assert bars["0–10"] == "3" and bars["10–20"] == "1" and bars["50–60"] == "1" and bars["90–100"] == "2"
+    assert sum(int(v) for v in bars.values()) == 7
+    assert nice_ticks(393) == [0, 100, 200, 300, 400]
+    assert nice_ticks(3) == [0, 1, 2, 3]

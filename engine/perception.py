@@ -15,6 +15,7 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine.molecules import parse_hydrocarbon, quiet_rdkit
+from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
@@ -71,15 +72,18 @@ class Perception:
     """One row per input string, columns of :data:`STRUCTURE_SCHEMA`."""
     sites: pd.DataFrame
     """One row per constitutional monohalide, columns of :data:`SITE_SCHEMA`."""
+    allylic: pd.DataFrame
+    """NBS products: one row per allylic/benzylic site group and product, columns of
+    :data:`engine.nbs.ALLYLIC_SCHEMA` (see :mod:`engine.nbs`)."""
 
     def __len__(self) -> int:
         return len(self.structures)
 
 
-def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
+def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], list[tuple]]:
     parsed = parse_hydrocarbon(smiles, max_heavy)
     if not parsed.ok:
-        return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0, ""), []
+        return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0, ""), [], []
     mol = parsed.mol
     canonical = Chem.MolToSmiles(mol)
     order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
@@ -88,7 +92,8 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
     skeleton = Skeleton(mol, specified)
     rows = []
     abstractable_h = 0
-    for group in site_groups(mol, specified):
+    groups = site_groups(mol, specified)
+    for group in groups:
         if group.site in _ABSTRACTABLE:
             abstractable_h += group.h_count
         if group.site in _ABSTRACTABLE:
@@ -97,7 +102,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
                 # Equivalent carbons of a stereo-defined input can give different
                 # stereoisomers (e.g. enantiomers); the group forms all of them.
                 products += [substitute(mol, i) for i in group.atoms[1:]]
-            st = stereo_outcome(products, skeleton)
+            st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
             st = _NOT_FORMED
         rows.append(
@@ -114,25 +119,28 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple]]:
             )
         )
     flags = ",".join(structure_flags(mol))
-    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows
+    nbs = allylic_rows(mol, groups, specified, skeleton)
+    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
 
 
 def perceive(smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS) -> Perception:
     """Validate and perceive every string; rejected ones keep their row with a reason."""
     struct_rows: list[tuple] = []
     site_rows: list[tuple] = []
+    nbs_rows: list[tuple] = []
     with quiet_rdkit():
         for i, smi in enumerate(smiles):
             try:
-                srow, rows = _perceive_one(smi, max_heavy_atoms)
+                srow, rows, nbs = _perceive_one(smi, max_heavy_atoms)
             except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
-                srow, rows = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0, ""), []
+                srow, rows, nbs = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0, ""), [], []
             struct_rows.append(srow)
             site_rows.extend((i, *r) for r in rows)
+            nbs_rows.extend((i, *r) for r in nbs)
     structures = pd.DataFrame(struct_rows, columns=STRUCTURE_SCHEMA.names)
     structures = structures.astype({"abstractable_h": "int32", "n_heavy": "int32"})
     sites = _site_frame(site_rows)
-    return Perception(structures, sites)
+    return Perception(structures, sites, frame_from_rows(nbs_rows))
 
 
 def _site_frame(rows: list[tuple]) -> pd.DataFrame:
@@ -152,13 +160,20 @@ def _site_frame(rows: list[tuple]) -> pd.DataFrame:
 def concat(parts: Sequence[Perception]) -> Perception:
     """Join perceptions of consecutive slices, renumbering ``struct``."""
     offset = 0
-    sites = []
+    sites, allylic = [], []
     for part in parts:
         s = part.sites.copy()
         s["struct"] = (s["struct"] + offset).astype("int32")
         sites.append(s)
+        a = part.allylic.copy()
+        a["struct"] = (a["struct"] + offset).astype("int32")
+        allylic.append(a)
         offset += len(part.structures)
     structures = pd.concat([p.structures for p in parts], ignore_index=True) if parts else pd.DataFrame(
         columns=STRUCTURE_SCHEMA.names
     )
-    return Perception(structures, pd.concat(sites, ignore_index=True) if sites else _site_frame([]))
+    return Perception(
+        structures,
+        pd.concat(sites, ignore_index=True) if sites else _site_frame([]),
+        pd.concat(allylic, ignore_index=True) if allylic else empty_frame(),
+    )

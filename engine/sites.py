@@ -68,6 +68,9 @@ class SiteGroup:
     """The monochloride from the first atom (stereo of the input kept, the new centre unset)."""
     product_smiles: str
     """Canonical isomeric SMILES of that monochloride."""
+    stabiliser: tuple[tuple[int, ...], ...] | None
+    """The substrate's automorphisms that fix the substituted carbon — exactly the
+    product's automorphisms (None when there were too many to list)."""
 
 
 def substitute(mol: Chem.Mol, idx: int, halogen: int = 17) -> Chem.RWMol:
@@ -99,26 +102,49 @@ def _smiles(prod: Chem.Mol, isomeric: bool) -> str:
     return Chem.MolToSmiles(prod, isomericSmiles=isomeric)
 
 
+#: Automorphisms enumerated per molecule; a molecule with more (many
+#: tert-butyl groups, say) falls back to comparing product SMILES.
+MAX_AUTOMORPHISMS = 512
+
+
+def automorphisms(mol: Chem.Mol) -> list[tuple[int, ...]] | None:
+    """Every permutation of atoms that maps the graph onto itself (None when there are too many)."""
+    perms = mol.GetSubstructMatches(mol, uniquify=False, useChirality=False, maxMatches=MAX_AUTOMORPHISMS)
+    return None if len(perms) >= MAX_AUTOMORPHISMS else list(perms)
+
+
 def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
     """Group H-bearing carbons into constitutional monohalides, exactly.
 
     Canonical ranks without tie-breaking are a colour refinement: they never
     split equivalent atoms but can merge inequivalent ones in graphs with
     rings (two cyclopropyls on a chain is the classic case). Colour refinement
-    is exact on trees, so acyclic molecules take the ranks as they are; in
-    ring systems every merged class is split by the canonical SMILES of each
-    member's monochloride, which is a complete invariant.
+    is exact on trees, so acyclic molecules take the ranks as they are. In
+    ring systems each merged class is split by the orbits of the full
+    automorphism group (the very definition of equivalent positions), or,
+    when there are too many automorphisms to list, by the canonical SMILES of
+    each member's monochloride, a complete invariant.
     """
     ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     by_rank: dict[int, list[int]] = defaultdict(list)
     for atom in mol.GetAtoms():
         if atom.GetTotalNumHs() > 0:
             by_rank[ranks[atom.GetIdx()]].append(atom.GetIdx())
+    perms = automorphisms(mol)
     cyclic = mol.GetRingInfo().NumRings() > 0
     groups: list[SiteGroup] = []
     for rank in sorted(by_rank):
         members = by_rank[rank]
-        if cyclic and len(members) > 1:
+        if cyclic and len(members) > 1 and perms is not None:
+            parts = []
+            left = list(members)
+            while left:
+                orbit = {p[left[0]] for p in perms}
+                idxs = [i for i in left if i in orbit]
+                left = [i for i in left if i not in orbit]
+                prod = substitute(mol, idxs[0])
+                parts.append((_smiles(prod, has_stereo), idxs, prod))
+        elif cyclic and len(members) > 1:
             split: dict[str, list[int]] = {}
             products: dict[str, Chem.Mol] = {}
             for idx in members:
@@ -141,6 +167,7 @@ def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
                     h_count=sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in idxs),
                     product=prod,
                     product_smiles=smi,
+                    stabiliser=None if perms is None else tuple(p for p in perms if p[idxs[0]] == idxs[0]),
                 )
             )
     return groups

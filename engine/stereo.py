@@ -247,20 +247,17 @@ def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[tuple[tuple
         yield picks, m
 
 
-def _independent(product: Chem.Mol, elements: list) -> bool:
+def _independent(product: Chem.Mol, elements: list, symmetries: tuple[tuple[int, ...], ...] | None = None) -> bool:
     """True when no symmetry of the product can touch any stereo element.
 
-    Each centre must sit alone in its symmetry class and see pairwise
-    inequivalent neighbours (each double-bond end likewise). Then every
-    automorphism fixes every centre and its neighbours, so each of the 2^k
-    configurations is a different, chiral-or-E/Z-distinct stereoisomer and no
-    enumeration is needed. Tie-free ranks may merge inequivalent atoms, which
-    only makes this test fail more often, never wrongly pass.
+    Every automorphism must fix each centre and each of its neighbours (each
+    double-bond end likewise). Then each of the 2^k configurations is a
+    different stereoisomer and no enumeration is needed. With the product's
+    automorphisms given this is checked exactly; otherwise tie-free ranks
+    stand in (they may merge inequivalent atoms, which only makes the test
+    fail more often, never wrongly pass).
     """
-    ranks = list(Chem.CanonicalRankAtoms(product, breakTies=False, includeChirality=False))
-    counts: dict[int, int] = {}
-    for r in ranks:
-        counts[r] = counts.get(r, 0) + 1
+    watched: list[int] = []
     for e in elements:
         if e.type == _TETRAHEDRAL:
             centres = [e.centeredOn]
@@ -272,13 +269,20 @@ def _independent(product: Chem.Mol, elements: list) -> bool:
         else:
             return False
         for c in centres:
-            if counts[ranks[c]] != 1:
-                return False
             atom = product.GetAtomWithIdx(c)
-            seen = [ranks[n.GetIdx()] for n in atom.GetNeighbors()]
-            if len(set(seen)) != len(seen) or atom.GetTotalNumHs() > 1:
+            if atom.GetTotalNumHs() > 1:
                 return False
-    return True
+            watched.append(c)
+            watched.extend(n.GetIdx() for n in atom.GetNeighbors())
+    n_substrate = product.GetNumAtoms() - 1  # the halogen is the last atom; automorphisms fix it
+    if symmetries is not None:
+        watched = [w for w in watched if w < n_substrate]
+        return all(perm[w] == w for perm in symmetries for w in watched)
+    ranks = list(Chem.CanonicalRankAtoms(product, breakTies=False, includeChirality=False))
+    counts: dict[int, int] = {}
+    for r in ranks:
+        counts[r] = counts.get(r, 0) + 1
+    return all(counts[ranks[w]] == 1 for w in watched)
 
 
 _ACHIRAL = StereoOutcome("achiral", 1, 1)
@@ -320,7 +324,9 @@ def _classify(isomers: dict[str, Chem.Mol], mirrors: dict[str, str], approximate
     return StereoOutcome("diastereomers", n, len(classes), approximate)
 
 
-def stereo_outcome(products: list[Chem.Mol], skeleton: Skeleton) -> StereoOutcome:
+def stereo_outcome(
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
+) -> StereoOutcome:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 
     Each product keeps the input's specified stereo and leaves the new (or
@@ -328,7 +334,8 @@ def stereo_outcome(products: list[Chem.Mol], skeleton: Skeleton) -> StereoOutcom
     relative to what the input fixes. In bridged or small fused rings the
     skeleton fixes the bridgeheads: one 3D embedding gives their feasible
     configuration (and its inverse), so impossible isomers such as a twisted
-    norbornane are never counted.
+    norbornane are never counted. ``symmetries`` (all automorphisms of a single
+    product, when known) makes the symmetry test exact and cheap.
     """
     isomers: dict[str, Chem.Mol] = {}
     mirrors: dict[str, str] = {}
@@ -344,7 +351,7 @@ def stereo_outcome(products: list[Chem.Mol], skeleton: Skeleton) -> StereoOutcom
         geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and e.centeredOn in skeleton.geometric]
         specified = len(open_elements) < len(elements)
         single = not isomers and len(products) == 1
-        if single and not geometric and _independent(product, elements):
+        if single and not geometric and _independent(product, elements, symmetries):
             # The common case, without enumeration.
             chiral = any(e.type == _TETRAHEDRAL for e in elements)
             return _counted(len(open_elements), chiral, specified)

@@ -118,7 +118,7 @@ def main() -> int:
         # (e) re-weighing: tile the perceived structures up to the requested count.
         rows = np.arange(opts.rows) % len(perception.structures)
         big = take(perception, rows)
-        big = Perception(big.structures, big.sites)
+        big = Perception(big.structures, big.sites, big.allylic)
         cond = engine.Conditions(cl2_temp_c=60.0, br2_temp_c=80.0)
         t = time.perf_counter()
         engine.summarise(big, cond)

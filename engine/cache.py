@@ -21,10 +21,12 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from engine.perception import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
+from engine.nbs import frame_from_rows
+from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
 _FINGERPRINTED = (
-    "molecules.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "special_sites.py", "stereo.py",
+    "molecules.py", "nbs.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "special_sites.py",
+    "stereo.py",
 )
 #: Merge shards into one when there are more than this many.
 MAX_SHARDS = 8
@@ -52,24 +54,28 @@ def default_folder() -> Path:
     return Path(user_cache_dir("halosift"))
 
 
-def take(perception: Perception, rows: np.ndarray) -> Perception:
-    """The perception of structures ``rows`` (in that order), renumbered from 0."""
-    sites = perception.sites
-    struct = sites["struct"].to_numpy()
-    n = len(perception.structures)
+def _take_rows(frame: pd.DataFrame, n: int, rows: np.ndarray) -> pd.DataFrame:
+    """Rows of a per-structure table (grouped by ``struct``) for structures ``rows``, renumbered from 0."""
+    struct = frame["struct"].to_numpy()
     counts = np.bincount(struct, minlength=n) if len(struct) else np.zeros(n, dtype=np.int64)
     starts = np.concatenate([[0], np.cumsum(counts)[:-1]]) if n else np.zeros(0, dtype=np.int64)
     want = counts[rows]
     offsets = np.repeat(starts[rows] - np.concatenate([[0], np.cumsum(want)[:-1]]), want)
-    site_rows = np.arange(int(want.sum())) + offsets
-    new_sites = sites.iloc[site_rows].reset_index(drop=True)
-    new_sites["struct"] = np.repeat(np.arange(len(rows), dtype=np.int32), want)
+    picked = frame.iloc[np.arange(int(want.sum())) + offsets].reset_index(drop=True)
+    picked["struct"] = np.repeat(np.arange(len(rows), dtype=np.int32), want)
+    return picked
+
+
+def take(perception: Perception, rows: np.ndarray) -> Perception:
+    """The perception of structures ``rows`` (in that order), renumbered from 0."""
+    rows = np.asarray(rows)
+    n = len(perception.structures)
     new_structs = perception.structures.iloc[rows].reset_index(drop=True)
-    return Perception(new_structs, new_sites)
+    return Perception(new_structs, _take_rows(perception.sites, n, rows), _take_rows(perception.allylic, n, rows))
 
 
 class PerceptionCache:
-    """Parquet shards of (key, structures, sites) in one folder per engine fingerprint."""
+    """Parquet shards of (key, structures, sites, allylic) in one folder per engine fingerprint."""
 
     def __init__(self, folder: Path | None = None) -> None:
         self.folder = (folder or default_folder()) / f"perception-{engine_fingerprint()}"
@@ -80,22 +86,27 @@ class PerceptionCache:
         return sorted(self.folder.glob("*.structures.parquet"))
 
     def _load(self) -> tuple[pd.Index, Perception] | None:
-        structs, sites, offset = [], [], 0
+        structs, sites, allylic, offset = [], [], [], 0
         try:
             for path in self._shards():
                 s = pq.read_table(path).to_pandas()
                 t = pq.read_table(path.with_name(path.name.replace(".structures.", ".sites."))).to_pandas()
+                a = pq.read_table(path.with_name(path.name.replace(".structures.", ".allylic."))).to_pandas()
                 t["struct"] = (t["struct"] + offset).astype("int32")
+                a["struct"] = (a["struct"] + offset).astype("int32")
                 offset += len(s)
                 structs.append(s)
                 sites.append(t)
+                allylic.append(a)
         except (OSError, pa.ArrowException, ValueError):
             return None  # a damaged cache is a miss, never an error
         if not structs:
             return None
         all_structs = pd.concat(structs, ignore_index=True)
         keys = pd.Index(all_structs.pop("key"))
-        perception = Perception(all_structs, pd.concat(sites, ignore_index=True))
+        perception = Perception(
+            all_structs, pd.concat(sites, ignore_index=True), frame_from_rows(pd.concat(allylic, ignore_index=True))
+        )
         if not keys.is_unique:
             first = ~keys.duplicated()
             perception = take(perception, np.flatnonzero(first))
@@ -120,17 +131,18 @@ class PerceptionCache:
             self.folder.mkdir(parents=True, exist_ok=True)
             structs = perception.structures.copy()
             structs.insert(0, "key", pd.array(list(keys), dtype="string"))
-            self._write_shard(structs, perception.sites)
+            self._write_shard(structs, perception.sites, perception.allylic)
             if len(self._shards()) > MAX_SHARDS:
                 self._compact()
         except (OSError, pa.ArrowException):
             pass
 
-    def _write_shard(self, structs: pd.DataFrame, sites: pd.DataFrame) -> None:
+    def _write_shard(self, structs: pd.DataFrame, sites: pd.DataFrame, allylic: pd.DataFrame) -> None:
         name = uuid.uuid4().hex
         schema = pa.schema([pa.field("key", pa.string()), *STRUCTURE_SCHEMA])
-        # Sites first: a shard is only visible once its structures file exists.
+        # Sites and NBS rows first: a shard is only visible once its structures file exists.
         for table, suffix in ((pa.Table.from_pandas(sites, schema=SITE_SCHEMA, preserve_index=False), "sites"),
+                              (pa.Table.from_pandas(allylic, schema=ALLYLIC_SCHEMA, preserve_index=False), "allylic"),
                               (pa.Table.from_pandas(structs, schema=schema, preserve_index=False), "structures")):
             final = self.folder / f"{name}.{suffix}.parquet"
             tmp = final.with_name(f".{final.name}.tmp")
@@ -145,10 +157,11 @@ class PerceptionCache:
         keys, perception = loaded
         structs = perception.structures.copy()
         structs.insert(0, "key", pd.array(list(keys), dtype="string"))
-        self._write_shard(structs, perception.sites)
+        self._write_shard(structs, perception.sites, perception.allylic)
         for path in old:
             path.unlink(missing_ok=True)
-            path.with_name(path.name.replace(".structures.", ".sites.")).unlink(missing_ok=True)
+            for part in (".sites.", ".allylic."):
+                path.with_name(path.name.replace(".structures.", part)).unlink(missing_ok=True)
 
     def clear(self) -> None:
         """Remove every entry of this engine fingerprint."""

@@ -8,7 +8,7 @@ import numpy as np
 
 from engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
 from engine.rates import rate_table
-from engine.reagents import EXPLAIN_REAGENTS, REAGENT_LABELS, REAGENTS
+from engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
@@ -31,10 +31,13 @@ class Conditions:
     """Solvent of the Cl2 chlorination: none, benzene or cs2 (see engine.solvent)."""
     cl2_solvent_molar: float = 0.0
     """Solvent concentration, mol/L (0 with a solvent: Russell's neat-liquid point)."""
+    nbs_temp_c: float = DEFAULT_TEMP_C["nbs"]
+    """NBS (with initiator) temperature, °C; sets the Br· rates of the allylic/benzylic sites."""
 
     def temp_c(self, reagent: str) -> float:
         """Temperature of one reagent, °C."""
-        return {"cl2": self.cl2_temp_c, "br2": self.br2_temp_c, "so2cl2": self.so2cl2_temp_c}[reagent]
+        return {"cl2": self.cl2_temp_c, "br2": self.br2_temp_c, "so2cl2": self.so2cl2_temp_c,
+                "nbs": self.nbs_temp_c}[reagent]
 
     def temp_k(self, reagent: str) -> float:
         """Temperature of one reagent, K."""
@@ -48,7 +51,7 @@ class Conditions:
 
     def per_h(self, reagent: str) -> np.ndarray:
         """Rate constant per H for every site class (by site code) under these conditions."""
-        k = rate_table(EXPLAIN_REAGENTS[reagent]).per_h(self.temp_k(reagent))
+        k = rate_table(RADICAL_OF[reagent]).per_h(self.temp_k(reagent))
         return scale_rates(k, self.solvent_exponent(reagent))
 
     def bases(self, reagent: str) -> np.ndarray:
@@ -58,7 +61,7 @@ class Conditions:
         makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
         an assumption (common practice), so its rates are estimates too.
         """
-        table = rate_table(EXPLAIN_REAGENTS[reagent])
+        table = rate_table(RADICAL_OF[reagent])
         assumed = reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
         out = np.full(len(SITE_CLASSES), "not abstracted", dtype=object)
         for i, site in enumerate(ABSTRACTABLE):
@@ -67,7 +70,7 @@ class Conditions:
 
     def validate(self) -> None:
         """Raise ValueError (one line) for values no experiment can have."""
-        for reagent in EXPLAIN_REAGENTS:
+        for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
             if not t == t or t <= -KELVIN:
                 raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
@@ -77,11 +80,11 @@ class Conditions:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
         check_solvent(self.cl2_solvent, self.cl2_solvent_molar)
 
-    def warnings(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> list[str]:
+    def warnings(self, reagents: tuple[str, ...] = (*REAGENTS, "nbs")) -> list[str]:
         """Temperatures outside the range the rate data were measured over, and solvent extrapolation."""
         out = []
         for reagent in reagents:
-            lo, hi = rate_table(EXPLAIN_REAGENTS[reagent]).valid_k
+            lo, hi = rate_table(RADICAL_OF[reagent]).valid_k
             t = self.temp_k(reagent)
             if not lo <= t <= hi:
                 out.append(
@@ -104,6 +107,6 @@ class Conditions:
             f" in {self.cl2_solvent_molar:g} M {self.cl2_solvent}" if self.cl2_solvent != "none" else ""
         )
         return (
-            f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, "
+            f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, NBS at {self.nbs_temp_c:g} °C, "
             f"br-selective threshold {self.threshold_pct:g} %"
         )

@@ -5,16 +5,17 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 from engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
-from engine.parameters import SO2CL2_NOTE
+from engine.nbs import nbs_products
+from engine.parameters import NBS_NOTE, SO2CL2_NOTE
 from engine.perception import perceive
-from engine.reagents import check_reagent
+from engine.reagents import NBS, check_reagent
 from engine.rates import enthalpy_of_abstraction
 from engine.site_classes import SITE_CLASSES, site_bde
 from engine.special_sites import FlagNote, flag_notes
 from engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
 
 #: Notes shown whenever a reagent is part of an explanation.
-REAGENT_NOTES: dict[str, str] = {"so2cl2": SO2CL2_NOTE}
+REAGENT_NOTES: dict[str, str] = {"so2cl2": SO2CL2_NOTE, NBS: NBS_NOTE}
 _PRIMARY = SITE_CLASSES.index("primary")
 
 
@@ -53,6 +54,32 @@ class ProductRecord:
 
 
 @dataclass(frozen=True)
+class NbsProduct:
+    """One monobromide under NBS (allylic/benzylic C–H only)."""
+
+    smiles: str
+    """Canonical SMILES of the monobromide."""
+    site: str
+    """Site class(es) of the carbon(s) whose radical gives it, comma-joined."""
+    terminus: str
+    """'radical carbon' (Br where H left), 'allylic shift' (Br at the far end, C=C moved), or both."""
+    alkene_substituents: int
+    """Carbon substituents on the product's C=C (-1: no C=C, benzylic); more favours that terminus."""
+    stereo: str
+    """achiral / single / racemate / diastereomers (E/Z isomers of a new C=C count as diastereomers)."""
+    n_stereoisomers: int
+    """Stereoisomers of this product formed."""
+    n_diastereomers: int
+    """Of those, distinct up to mirror image."""
+    stereo_approximate: bool
+    """True when the stereoisomer count could not be fully checked."""
+    e_and_z: bool
+    """True when a C=C of the product forms as both E and Z (their ratio is not modelled)."""
+    pct: float
+    """Percent of the NBS monobromides."""
+
+
+@dataclass(frozen=True)
 class Explanation:
     """The full prediction for one input."""
 
@@ -76,6 +103,10 @@ class Explanation:
     """Extrapolations and caveats."""
     flags: tuple[FlagNote, ...] = ()
     """Special-site warnings of the substrate (engine.special_sites), empty when none."""
+    nbs: tuple[NbsProduct, ...] = ()
+    """Monobromides under NBS, largest first; empty without allylic or benzylic C–H."""
+    serves: str = ""
+    """Reagent that gives one major monohalide at ≥ threshold (engine.weigh.serves), or ''."""
 
     def confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
         """Weakest rate basis among products with ≥ 5 % under any of ``reagents``; '' when none.
@@ -86,7 +117,7 @@ class Explanation:
             BASES.index(p.rate_basis[r])
             for p in self.products
             for r in reagents
-            if p.pct[r] >= CONFIDENCE_MIN_PCT and p.rate_basis[r] in BASES
+            if r in p.pct and p.pct[r] >= CONFIDENCE_MIN_PCT and p.rate_basis[r] in BASES
         ]
         return BASES[min(ranks)] if ranks else ""
 
@@ -95,24 +126,33 @@ class Explanation:
         reagents = tuple(check_reagent(r) for r in reagents)
         if self.status != "ok":
             return {"input": self.input, "status": "rejected", "reason_code": self.reason_code, "reason": self.reason}
+        site_reagents = tuple(r for r in reagents if r in EXPLAIN_REAGENTS)
         products = []
         for p in self.products:
             d = asdict(p)
-            d["pct"] = {r: round(p.pct[r], 2) for r in reagents}
-            d["relative_rate"] = {r: p.relative_rate[r] for r in reagents}
-            d["rate_basis"] = {r: p.rate_basis[r] for r in reagents}
+            d["pct"] = {r: round(p.pct[r], 2) for r in site_reagents}
+            d["relative_rate"] = {r: p.relative_rate[r] for r in site_reagents}
+            d["rate_basis"] = {r: p.rate_basis[r] for r in site_reagents}
             products.append(d)
+        extra: dict = {}
+        if NBS in reagents:
+            extra["nbs"] = {
+                "products": [{**asdict(p), "pct": round(p.pct, 2)} for p in self.nbs],
+                "note": NBS_NOTE if self.nbs else NBS_NOTE + "; this substrate has no allylic or benzylic C–H",
+            }
         return {
             "input": self.input,
             "status": "ok",
             "canonical_smiles": self.canonical_smiles,
             "verdict": self.verdict,
-            "confidence": self.confidence(reagents),
+            "confidence": self.confidence(site_reagents),
+            "serves": self.serves,
             "conditions": asdict(self.conditions),
             "products": products,
             "flags": [asdict(f) for f in self.flags],
             "reagent_notes": {r: REAGENT_NOTES[r] for r in reagents if r in REAGENT_NOTES},
             "warnings": list(self.warnings),
+            **extra,
         }
 
 
@@ -150,7 +190,19 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
             )
         )
     records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -p.pct["cl2"], -p.pct["br2"], p.smiles))
+    nbs_frame = nbs_products(perception.allylic, conditions.per_h(NBS), 1)
+    nbs = sorted(
+        (
+            NbsProduct(
+                smiles=r.product, site=r.site, terminus=r.terminus, alkene_substituents=int(r.alkene_subst),
+                stereo=r.stereo, n_stereoisomers=int(r.n_stereoisomers), n_diastereomers=int(r.n_diastereomers),
+                stereo_approximate=bool(r.stereo_approx), e_and_z=bool(r.ez_open), pct=float(r.nbs_pct),
+            )
+            for r in nbs_frame.itertuples(index=False)
+        ),
+        key=lambda p: (-p.pct, p.smiles),
+    )
     return Explanation(
         smiles, "ok", "", "", s["canonical_smiles"], tuple(records), summary["verdict"], conditions, warnings,
-        flags=flag_notes(s["flags"]),
+        flags=flag_notes(s["flags"]), nbs=tuple(nbs), serves=str(summary["serves"]),
     )

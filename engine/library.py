@@ -15,6 +15,7 @@ from engine.conditions import REAGENTS, Conditions
 from engine.parallel import perceive_parallel
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.perception import Perception, concat
+from engine.nbs import nbs_products
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
@@ -37,6 +38,25 @@ RESULT_DOCS: dict[str, str] = {
         "constants behind the products that carry at least 5 % of the Cl2 or of the Br2 monohalides; a product "
         "counts only for the reagent under which it reaches 5 %; a Cl2 solvent makes every Cl2 rate an estimate; "
         "empty when rejected or inert"
+    ),
+    "nbs_major": (
+        "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "
+        "transposition included); empty when the substrate has no allylic or benzylic C–H"
+    ),
+    "nbs_major_pct": "its share of the NBS monobromides, percent; empty when there is no allylic or benzylic C–H",
+    "serves": (
+        "the reagent that gives one major monohalide at or above the threshold: the first of cl2, br2, nbs that "
+        "does (plainest first, a rule of this program); substrates with C=C are offered only nbs, since Cl2 and "
+        "Br2 add to the double bond; empty when none reaches the threshold, and for rejected or inert rows"
+    ),
+    "cl2_poly_pct": (
+        "polyhalide, percent of the chlorinated product, when substrate and Cl2 are charged 1 : 1 and all Cl2 "
+        "reacts (competitive consecutive kinetics with a Cl deactivation estimate; engine.polyhalogenation); "
+        "empty when inert or rejected"
+    ),
+    "br2_poly_pct": (
+        "polyhalide, percent of the brominated product, at 1 : 1 substrate : Br2, all Br2 reacted (as "
+        "cl2_poly_pct); empty when inert or rejected"
     ),
     "flags": (
         "special-site warnings, comma-separated: cyclopropylmethyl (ring opening risk), bridgehead (small-bicycle "
@@ -143,6 +163,15 @@ class Library:
         cols = ["product", "site", "h_count", "n_carbons", "bde", "dh_cl", "dh_br", "stereo",
                 "n_stereoisomers", "n_diastereomers", "cl2_pct", "br2_pct", "atom", "cl2_basis", "br2_basis"]
         return weighed[cols].sort_values(["cl2_pct", "br2_pct"], ascending=False, kind="stable").reset_index(drop=True)
+
+    def nbs_products(self, row: int, conditions: Conditions | None = None) -> pd.DataFrame:
+        """NBS monobromides of one input row (0-based), largest share first; empty without allylic/benzylic C–H."""
+        conditions = conditions or Conditions()
+        struct = int(self.row_struct[row])
+        allylic = self.perception.allylic
+        mine = allylic[allylic["struct"] == struct].assign(struct=0)
+        out = nbs_products(mine, conditions.per_h("nbs"), 1)
+        return out.drop(columns="struct").sort_values("nbs_pct", ascending=False, kind="stable").reset_index(drop=True)
 
 
 ProgressFn = Callable[[int, int], None]

@@ -15,7 +15,8 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 import pyarrow as pa
 
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.perception import SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
+from engine.nbs import frame_from_rows
+from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
 
 #: Strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
 CHUNK = 2_000
@@ -29,21 +30,22 @@ class Cancelled(Exception):
 
 def perceive_batch(
     batch: pa.RecordBatch, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS
-) -> tuple[pa.RecordBatch, pa.RecordBatch]:
+) -> tuple[pa.RecordBatch, pa.RecordBatch, pa.RecordBatch]:
     """Perceive the ``smiles`` column of ``batch``.
 
-    Returns (structures, sites) as record batches with
-    :data:`engine.perception.STRUCTURE_SCHEMA` and :data:`SITE_SCHEMA`;
-    ``sites.struct`` counts rows of this batch from 0.
+    Returns (structures, sites, allylic) as record batches with
+    :data:`engine.perception.STRUCTURE_SCHEMA`, :data:`SITE_SCHEMA` and
+    :data:`ALLYLIC_SCHEMA`; ``struct`` counts rows of this batch from 0.
     """
     p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms)
     structures = pa.RecordBatch.from_pandas(p.structures, schema=STRUCTURE_SCHEMA, preserve_index=False)
     sites = pa.RecordBatch.from_pandas(p.sites, schema=SITE_SCHEMA, preserve_index=False)
-    return structures, sites
+    allylic = pa.RecordBatch.from_pandas(p.allylic, schema=ALLYLIC_SCHEMA, preserve_index=False)
+    return structures, sites, allylic
 
 
-def _from_batches(structures: pa.RecordBatch, sites: pa.RecordBatch) -> Perception:
-    return Perception(structures.to_pandas(), sites.to_pandas())
+def _from_batches(structures: pa.RecordBatch, sites: pa.RecordBatch, allylic: pa.RecordBatch) -> Perception:
+    return Perception(structures.to_pandas(), sites.to_pandas(), frame_from_rows(allylic.to_pandas()))
 
 
 def default_workers() -> int:

@@ -173,10 +173,30 @@ BEP_NOTE_ALKYL = (
 CL_METHANE = _from_b(7.1e-12, 4, 1270.0, "JPL Publication 19-5, Cl + CH4, 7.1e-12·exp(−1270/T) (from memory)")
 
 # ---------------------------------------------------------------------------
+# Cl· + cyclopropane, 298 K: k ≈ 1.1e-13 cm³ molecule⁻¹ s⁻¹ for the whole
+# molecule (6 equivalent H), some 500 times slower per H than a primary C–H —
+# ring C–H are unusually strong (common practice; the value is from memory of
+# the gas-phase kinetics literature/NIST kinetics database, not re-checked).
+# Only k(298 K) is used: the A factor per H is taken equal to the secondary
+# anchor's (a ring CH2), and Ea is derived from k and that A (estimate).
+# This replaces a BEP extrapolation whose fitted slope (≈ 0.1) made ring C–H
+# react almost like secondary ones.
+# ---------------------------------------------------------------------------
+CL_CYCLOPROPANE_K298 = Value(
+    1.1e-13,
+    "measured",
+    "Cl + cyclopropane, k(298 K) ≈ 1.1e-13 cm³ molecule⁻¹ s⁻¹ for 6 H (gas phase; from memory, not re-checked)",
+)
+CL_CYCLOPROPANE_H = 6
+CL_CYCLOPROPANE_T_K = 298.0
+
+# ---------------------------------------------------------------------------
 # Reagent defaults and verdict threshold (common practice, no source).
 # ---------------------------------------------------------------------------
 #: so2cl2: near the boiling point of SO2Cl2 (69 °C), where it is usually run (common practice).
-DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0, "so2cl2": 70.0}
+#: nbs: refluxing CCl4 (77 °C), the classical Wohl–Ziegler solvent (common practice; greener solvents
+#: such as PhCF3 are run at similar temperatures).
+DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0, "so2cl2": 70.0, "nbs": 77.0}
 DEFAULT_THRESHOLD_PCT = 90.0
 DEFAULT_MAX_HEAVY_ATOMS = 150
 
@@ -268,3 +288,60 @@ RUSSELL_POINTS: dict[str, tuple[tuple[float, Value], ...]] = {
 #: Molarity of the pure solvent (density / molar mass at 25 °C), the upper
 #: bound of any solution: benzene 0.874 g/mL / 78.11 g/mol; CS2 1.26 / 76.14 (textbook, from memory).
 SOLVENT_MAX_MOLAR: dict[str, float] = {"benzene": 11.2, "cs2": 16.6}
+
+# ---------------------------------------------------------------------------
+# NBS (Wohl–Ziegler): allylic and benzylic bromination by Br· at a low, steady
+# Br2 concentration (Br2 is regenerated from NBS by the HBr formed), so Br2
+# addition to C=C cannot compete (the Goldfinger mechanism; common practice).
+# Reference for the reagent: Ziegler et al., Liebigs Ann. Chem. 1942, 551, 80;
+# review Djerassi, Chem. Rev. 1948, 43, 271 (both from memory).
+# The chain carrier is Br·, so the rate of forming each allylic/benzylic
+# radical uses halosift's Br· constants; the delocalised allyl radical then
+# takes Br at either terminus.
+# ---------------------------------------------------------------------------
+NBS_NOTE = (
+    "NBS with an initiator: Br· at low Br2 concentration; only allylic and benzylic C–H are brominated "
+    "(other C–H get no share), an allylic radical gives Br at both termini (allylic transposition, E/Z mixture)"
+)
+#: 1-octene + NBS: 3-bromo-1-octene : 1-bromo-2-octene (E + Z) ≈ 17 : 83 — the figure widely quoted for
+#: this teaching-laboratory reaction (from memory, not re-checked; the exact split varies with conditions).
+NBS_OCTENE_SPLIT = Value(
+    17.0,
+    "measured",
+    "1-octene + NBS: ≈ 17 % 3-bromo-1-octene, ≈ 83 % 1-bromo-2-octene (E + Z) (published NBS product ratio, "
+    "from memory, not re-checked)",
+)
+#: Weight of an allyl-radical terminus: F ** n, n = carbon substituents on the C=C the product ends up with
+#: (the more substituted alkene is favoured, as product stability suggests). F is fixed by the 1-octene split:
+#: its two termini differ by one substituent (CH2=CH–R vs R'CH=CH–R).
+NBS_SUBSTITUENT_FACTOR = Value(
+    (100.0 - NBS_OCTENE_SPLIT.value) / NBS_OCTENE_SPLIT.value,
+    "estimate",
+    "F = 83/17 per extra alkyl substituent on the product C=C, from the 1-octene split; one factor for every "
+    "alkene, conjugation not credited (estimate)",
+)
+
+# ---------------------------------------------------------------------------
+# Polyhalogenation: how much a halogen already on the molecule slows the next
+# substitution (one factor per radical on the monohalide's total remaining
+# C–H reactivity; the planner, engine.polyhalogenation, uses it).
+# ---------------------------------------------------------------------------
+POLY_DEACTIVATION: dict[str, Value] = {
+    "cl": Value(
+        0.6,
+        "estimate",
+        "Cl· on 1-chlorobutane vs n-butane: per-H reactivity at C1 (α) ≈ 0.35×, C2 (β) ≈ 0.4×, C3 ≈ 0.75× "
+        "of the alkane's (photochlorination of 1-chlorobutane gives ≈ 6 : 23 : 46 : 25 % 1,1- : 1,2- : 1,3- : "
+        "1,4-dichloride; from memory, not re-checked); summed over its C–H the monochloride reacts ≈ 0.6× as fast "
+        "as the alkane minus one H (estimate: one factor for every structure)",
+    ),
+    "br": Value(
+        1.0,
+        "estimate",
+        "Br· is not slowed: a β-bromine assists abstraction by bridging, so alkyl bromides brominate further "
+        "about as fast as alkanes, mostly to vicinal dibromides (common practice; from memory); factor 1 (estimate)",
+    ),
+}
+#: Substrate : halogen (mol/mol) at which the screen reports polyhalide (an equimolar charge, the
+#: naive default a planner is asked to improve on; common practice).
+POLY_SCREEN_RATIO = 1.0

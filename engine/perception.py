@@ -93,6 +93,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
     rows = []
     abstractable_h = 0
     groups = site_groups(mol, specified)
+    outcomes: list[StereoOutcome] = []
     for group in groups:
         if group.site in _ABSTRACTABLE:
             abstractable_h += group.h_count
@@ -105,6 +106,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
             st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
             st = _NOT_FORMED
+        outcomes.append(st)
         rows.append(
             (
                 group.product_smiles,
@@ -119,7 +121,7 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
             )
         )
     flags = ",".join(structure_flags(mol))
-    nbs = allylic_rows(mol, groups, specified, skeleton)
+    nbs = allylic_rows(mol, groups, specified, skeleton, outcomes)
     return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
 
 

@@ -58,6 +58,19 @@ def _cl_benzylic_alpha() -> float:
     return (ea_benzylic - sec.ea) / delocalisation_shift("benzylic")
 
 
+def _cl_cyclopropyl() -> Arrhenius:
+    """Cl· + ring C–H of cyclopropane: the measured k(298 K) per H, with the secondary A per H (Ea derived)."""
+    k = P.CL_CYCLOPROPANE_K298
+    a = P.CL_ANCHORS["secondary"].a_per_h
+    k_per_h = k.value / P.CL_CYCLOPROPANE_H
+    ea = P.R_KCAL * P.CL_CYCLOPROPANE_T_K * math.log(a / k_per_h)
+    return Arrhenius(
+        a, ea, "measured",
+        f"{k.source}; per H {k_per_h:.2e}; A per H taken from the secondary anchor, so Ea = {ea:.2f} kcal/mol "
+        "(the temperature dependence is an estimate)",
+    )
+
+
 @dataclass(frozen=True)
 class RateTable:
     """Arrhenius parameters of every site class toward one radical."""
@@ -67,7 +80,7 @@ class RateTable:
     params: dict[str, Arrhenius]
     """Site class → per-H Arrhenius parameters (abstractable classes only)."""
     alpha_alkyl: float
-    """BEP slope fitted on the alkyl anchors, used for methane, cyclopropyl and bridgehead."""
+    """BEP slope fitted on the alkyl anchors, used for bridgehead (and methane, cyclopropyl toward Br·)."""
     alpha_delocalised: float
     """BEP slope used for allylic, benzylic and propargylic sites."""
     valid_k: tuple[float, float]
@@ -110,10 +123,13 @@ def _derive(radical: str) -> RateTable:
         params["methane"] = shifted(
             "primary", gap, alpha_alkyl, f"BEP from primary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
         )
-    gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
-    params["cyclopropyl"] = shifted(
-        "secondary", gap, alpha_alkyl, f"BEP from secondary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
-    )
+    if radical == "cl":
+        params["cyclopropyl"] = _cl_cyclopropyl()
+    else:
+        gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
+        params["cyclopropyl"] = shifted(
+            "secondary", gap, alpha_alkyl, f"BEP from secondary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
+        )
     gap = P.BDE_BRIDGEHEAD.value - P.BDE["tertiary"].value
     params["bridgehead"] = shifted(
         "tertiary", gap, alpha_alkyl,

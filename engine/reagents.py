@@ -9,6 +9,12 @@ Two sets, kept apart on purpose:
   treated as Cl· (see :data:`engine.parameters.SO2CL2_NOTE`), so a screen
   column for it would repeat the Cl2 one at another temperature.
 
+* :data:`NBS` — N-bromosuccinimide (Wohl–Ziegler): Br· at low Br2
+  concentration, allylic/benzylic C–H only, with allylic transposition. Its
+  products are not the site table's monohalides, so it is weighed from the
+  perception's ``allylic`` table (:mod:`engine.nbs`): screens get
+  ``nbs_major``/``nbs_major_pct``, explain lists every NBS product.
+
 F2 and I2 are asked for often enough that they get a reasoned refusal
 (:func:`check_reagent`) rather than "unknown reagent".
 """
@@ -23,7 +29,15 @@ from engine import parameters as P
 REAGENTS: dict[str, str] = {"cl2": "cl", "br2": "br"}
 #: Every reagent :func:`engine.explain` predicts → chain-carrying radical.
 EXPLAIN_REAGENTS: dict[str, str] = {**REAGENTS, "so2cl2": "cl"}
-REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2, light", "br2": "Br2, light", "so2cl2": "SO2Cl2, initiator"}
+#: N-bromosuccinimide: weighed from the allylic table, never from the site table.
+NBS = "nbs"
+#: Every reagent with a chain-carrying radical, NBS included (temperatures, rate tables, warnings).
+RADICAL_OF: dict[str, str] = {**EXPLAIN_REAGENTS, NBS: "br"}
+#: What :func:`engine.explain` and ``halosift explain --reagent`` accept.
+ACCEPTED_REAGENTS: dict[str, str] = RADICAL_OF
+REAGENT_LABELS: dict[str, str] = {
+    "cl2": "Cl2, light", "br2": "Br2, light", "so2cl2": "SO2Cl2, initiator", NBS: "NBS, initiator",
+}
 
 
 @dataclass(frozen=True)
@@ -78,7 +92,7 @@ def _iodine() -> Refusal:
 NOT_PREDICTED: dict[str, Refusal] = {"f2": _fluorine(), "i2": _iodine()}
 
 
-def check_reagent(name: str, allowed: dict[str, str] = EXPLAIN_REAGENTS) -> str:
+def check_reagent(name: str, allowed: dict[str, str] = ACCEPTED_REAGENTS) -> str:
     """The normalised reagent name; raises :class:`UnsupportedReagent` for f2/i2 and ValueError otherwise."""
     key = str(name).strip().lower()
     if key in allowed:

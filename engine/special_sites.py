@@ -66,9 +66,10 @@ FLAG_NOTES: dict[str, FlagNote] = {
     ),
     "alkene": FlagNote(
         "alkene",
-        "C=C present: under Cl2 or Br2, addition to the double bond competes at ordinary temperatures "
-        "and is not modelled; substitution wins only hot (propene + Cl2 gives allyl chloride at "
-        f"≥ {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C)",
+        "C=C present: under Cl2 or Br2, addition to the double bond competes with substitution at ordinary "
+        "temperatures and is not modelled; substitution wins only hot (propene + Cl2 gives allyl chloride at "
+        f"≥ {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C); NBS (Br· at low Br2 concentration) is the reagent that "
+        "serves allylic substitution",
         P.ALKENE_SUBSTITUTION_T_C.source,
     ),
 }

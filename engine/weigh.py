@@ -9,14 +9,18 @@ import numpy as np
 import pandas as pd
 
 from engine.conditions import REAGENTS, Conditions
+from engine.nbs import nbs_majors
+from engine.polyhalogenation import poly_pct_at_ratio
 from engine.perception import Perception
 from engine.site_classes import SITE_CLASSES
 
 VERDICTS = ("single", "br-selective", "mixture", "inert")
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",
-    "confidence",
+    "confidence", "nbs_major", "nbs_major_pct", "serves", "cl2_poly_pct", "br2_poly_pct",
 )
+#: Order in which ``serves`` tries the reagents: the plainest that reaches the threshold wins (program rule).
+SERVES_ORDER = ("cl2", "br2", "nbs")
 #: Weakest first: the order in which a prediction's bases are ranked.
 BASES = ("estimate", "textbook", "measured")
 #: A product counts towards ``confidence`` when it carries at least this share
@@ -51,7 +55,9 @@ def confidence_labels(
         ranks = basis_rank(conditions, reagent)[site_code]
         row_rank = np.minimum(row_rank, np.where(p >= CONFIDENCE_MIN_PCT, ranks, none))
     worst = np.full(n_struct, none, dtype=np.int64)
-    np.minimum.at(worst, struct, row_rank)
+    if len(struct):
+        starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
+        worst[struct[starts]] = np.minimum.reduceat(row_rank, starts)
     labels = np.array([*BASES, ""], dtype=object)
     return labels[worst]
 
@@ -102,6 +108,27 @@ def _site_type_names(masks: np.ndarray) -> np.ndarray:
     return names
 
 
+def serves(
+    columns: dict, flags: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
+) -> np.ndarray:
+    """Per structure, the reagent that gives one major monohalide at ≥ threshold, or ''.
+
+    Tried in :data:`SERVES_ORDER` (cl2, br2, nbs): the first whose major share
+    reaches the threshold. A substrate with C=C (flag ``alkene``) is offered
+    only nbs, because Cl2 and Br2 add to the double bond. Empty for rejected
+    and inert rows, and when no reagent reaches the threshold.
+    """
+    alkene = np.array(["alkene" in str(f).split(",") for f in flags], dtype=bool) if len(flags) else np.zeros(0, bool)
+    out = np.full(len(ok), "", dtype=object)
+    open_ = ok & (n_products > 0)
+    for reagent in SERVES_ORDER:
+        pct = np.nan_to_num(np.asarray(columns[f"{reagent}_major_pct"], dtype=np.float64), nan=0.0)
+        allowed = open_ if reagent == "nbs" else open_ & ~alkene
+        hit = allowed & (out == "") & (pct >= threshold_pct)
+        out[hit] = reagent
+    return out
+
+
 def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     """One row per structure: product count, verdict, majors, stereo, site types, confidence."""
     structures, sites = perception.structures, perception.sites
@@ -116,20 +143,21 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     n_products[:] = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
 
     out: dict[str, object] = {"n_products": n_products}
-    products = sites["product"].to_numpy(dtype=object)
-    stereo = sites["stereo"].to_numpy(dtype=object)
+    pcts = {r: _percent(weights[r], struct, n) for r in REAGENTS}
     major_stereo = np.full(n, "", dtype=object)
     for reagent in REAGENTS:
-        pct = _percent(weights[reagent], struct, n)
+        pct = pcts[reagent]
         major_smiles = np.full(n, "", dtype=object)
         major_pct = np.full(n, np.nan)
         if len(starts):
             rows = _first_max(pct, struct, starts)
             has = n_products[seg_struct] > 0
-            major_smiles[seg_struct[has]] = products[rows[has]]
-            major_pct[seg_struct[has]] = pct[rows[has]]
+            chosen = rows[has]
+            # Gather strings for the majors only: converting every site's string costs more than the weighing.
+            major_smiles[seg_struct[has]] = sites["product"].take(chosen).to_numpy(dtype=object)
+            major_pct[seg_struct[has]] = pct[chosen]
             if reagent == "br2":
-                major_stereo[seg_struct[has]] = stereo[rows[has]]
+                major_stereo[seg_struct[has]] = sites["stereo"].take(chosen).to_numpy(dtype=object)
         if reagent == "br2":
             major_smiles = pd.Series(major_smiles, dtype=object).str.replace("Cl", "Br", regex=False).to_numpy()
         out[f"{reagent}_major"] = major_smiles
@@ -141,8 +169,11 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     if len(starts):
         masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
     out["site_types"] = _site_type_names(masks)
-    pcts = {r: _percent(weights[r], struct, n) for r in REAGENTS}
     out["confidence"] = confidence_labels(sites["site_code"].to_numpy(), pcts, struct, n, conditions)
+    out["nbs_major"], out["nbs_major_pct"] = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
+    h = sites["h_count"].to_numpy()
+    for reagent in REAGENTS:
+        out[f"{reagent}_poly_pct"] = poly_pct_at_ratio(struct, h, pcts[reagent], reagent, n)
 
     ok = (structures["status"] == "ok").to_numpy()
     verdict = np.full(n, "", dtype=object)
@@ -152,5 +183,6 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     verdict[ok & (n_products == 1)] = "single"
     verdict[ok & (n_products == 0)] = "inert"
     out["verdict"] = verdict
+    out["serves"] = serves(out, structures["flags"].to_numpy(dtype=object), ok, n_products, conditions.threshold_pct)
     frame = pd.DataFrame(out, index=structures.index)
     return frame[list(SUMMARY_COLUMNS)]

@@ -27,8 +27,10 @@ def _temp_arg(text: str) -> tuple[str | None, float]:
     if not sep:
         name, value = "", text
     name = name.strip().lower()
-    if name and name not in ("cl2", "br2", "so2cl2"):
-        raise argparse.ArgumentTypeError(f"unknown reagent {name!r} in --temp (use cl2=°C, br2=°C or so2cl2=°C)")
+    if name and name not in ("cl2", "br2", "so2cl2", "nbs"):
+        raise argparse.ArgumentTypeError(
+            f"unknown reagent {name!r} in --temp (use cl2=°C, br2=°C, so2cl2=°C or nbs=°C)"
+        )
     try:
         return (name or None), float(value)
     except ValueError:
@@ -41,8 +43,8 @@ def _add_condition_options(p: argparse.ArgumentParser, what: str) -> None:
         type=_temp_arg,
         action="append",
         metavar="[REAGENT=]°C",
-        help=f"temperature in °C: a bare number applies to {what}; or cl2=°C / br2=°C "
-        "(repeatable; defaults cl2 25, br2 125)",
+        help=f"temperature in °C: a bare number applies to {what}; or cl2=°C / br2=°C / nbs=°C "
+        "(repeatable; defaults cl2 25, br2 125, nbs 77)",
     )
     p.add_argument("--threshold", type=float, metavar="PCT", help="bromination share that counts as selective (default 90)")
 
@@ -85,15 +87,20 @@ def build_parser() -> argparse.ArgumentParser:
     ex.add_argument("smiles")
     ex.add_argument(
         "--reagent", action="append", type=_reagent_arg, metavar="REAGENT",
-        help="cl2, br2 or so2cl2 (repeatable; default cl2 and br2; so2cl2 runs at 70 °C unless --temp so2cl2=°C); "
+        help="cl2, br2, so2cl2 or nbs (repeatable; default cl2 and br2; so2cl2 runs at 70 °C, nbs at 77 °C unless "
+        "--temp REAGENT=°C; nbs lists allylic/benzylic bromides, allylic shift included); "
         "f2 and i2 are explained, not predicted",
     )
     _add_condition_options(ex, "the reagents given")
     _add_solvent_option(ex)
+    ex.add_argument("--ratio", type=float, metavar="S:X",
+                    help="polyhalogenation planner: substrate : halogen charged, mol/mol, all halogen consumed "
+                    "(default 1)")
     ex.add_argument("--conversion", type=float, metavar="PCT",
-                    help="also estimate polyhalogenation at this substrate conversion (percent)")
+                    help="also give the polyhalide share at this substrate conversion (percent)")
     ex.add_argument("--max-poly", type=float, metavar="PCT",
-                    help="polyhalide cap (percent of halogenated product) for the conversion planner (default 10)")
+                    help="polyhalide cap (percent of halogenated product): the planner gives the conversion to stop "
+                    "at and the substrate excess to use (default 10)")
     ex.add_argument("--json", action="store_true", help="print one JSON object")
 
     sc = sub.add_parser("screen", help="screen a library file; one output row per input row")
@@ -124,6 +131,10 @@ def build_parser() -> argparse.ArgumentParser:
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
     _add_library_options(br)
+    br.add_argument(
+        "--no-images", action="store_true",
+        help="never draw structures inline, even where the terminal can (also: HALOSIFT_IMAGES=off)",
+    )
     return parser
 
 
@@ -181,7 +192,9 @@ def _explain(args: argparse.Namespace) -> int:
             if plans:
                 from engine.polyhalogenation import MODEL_NOTE
 
-                d["polyhalogenation"] = {p.reagent: asdict(p) for p in plans}
+                d["polyhalogenation"] = {
+                    p.reagent: {k: (None if v == float("inf") else v) for k, v in asdict(p).items()} for p in plans
+                }
                 d["polyhalogenation_model"] = MODEL_NOTE
             d["caution"] = CAUTION
         print(json.dumps(d, ensure_ascii=False, indent=2))
@@ -193,18 +206,21 @@ def _explain(args: argparse.Namespace) -> int:
 
 
 def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> list:
-    """Polyhalogenation estimates per reagent when --conversion was given (ValueError on bad values)."""
-    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, plan
+    """Polyhalogenation plans per site reagent (cl2, br2, so2cl2; not nbs); ValueError on bad values."""
+    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+    from engine.reagents import EXPLAIN_REAGENTS
 
-    if args.conversion is None:
-        if args.max_poly is not None:
-            raise ValueError("--max-poly needs --conversion")
-        return []
     cap = DEFAULT_MAX_POLY_PCT if args.max_poly is None else args.max_poly
+    ratio = DEFAULT_RATIO if args.ratio is None else args.ratio
+    # Check the numbers even when nothing will be planned, so a typo never passes silently.
+    plan("cl2", [1], [100.0], ratio=ratio, conversion_pct=args.conversion, max_poly_pct=cap)
     if result.status != "ok" or result.verdict == "inert":
         return []  # nothing to halogenate, nothing to plan
     h = [p.h_count for p in result.products]
-    return [plan(r, h, [p.pct[r] for p in result.products], args.conversion, cap) for r in reagents]
+    return [
+        plan(r, h, [p.pct[r] for p in result.products], ratio=ratio, conversion_pct=args.conversion, max_poly_pct=cap)
+        for r in reagents if r in EXPLAIN_REAGENTS
+    ]
 
 
 def _screen(args: argparse.Namespace) -> int:
@@ -302,7 +318,7 @@ def _report(args: argparse.Namespace) -> int:
 def _browse(args: argparse.Namespace) -> int:
     from tui.app import run
 
-    return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column)
+    return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images)
 
 
 def _fail(message: str) -> int:

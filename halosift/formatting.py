@@ -5,6 +5,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from engine.conditions import REAGENT_LABELS
+from engine.reagents import EXPLAIN_REAGENTS, NBS
 from engine.explain import REAGENT_NOTES, Explanation
 from engine.polyhalogenation import PolyPlan
 from engine.safety import CAUTION
@@ -30,6 +31,8 @@ def explanation_table(
         return f"{REAGENT_LABELS[r]} at {cond.temp_c(r):g} °C{solvent}"
 
     lines.append("conditions " + "; ".join(label(r) for r in reagents))
+    nbs = NBS in reagents
+    reagents = [r for r in reagents if r in EXPLAIN_REAGENTS]  # the site table's reagents
     headers = ["product (chloride)", "site", "H", "BDE", "ΔH Cl·", "ΔH Br·", "stereo", *(f"% {r}" for r in reagents),
                *(f"basis {r}" for r in reagents)]
     rows = []
@@ -48,25 +51,67 @@ def explanation_table(
                 *(p.rate_basis[r] if p.rate_basis[r] != "not abstracted" else "-" for r in reagents),
             ]
         )
-    lines += _table(headers, rows, right={2, 3, 4, 5, *range(7, 7 + len(reagents))})
+    if reagents:
+        lines += _table(headers, rows, right={2, 3, 4, 5, *range(7, 7 + len(reagents))})
+    if nbs:
+        lines += [""] if reagents else []
+        lines += _nbs_lines(result)
     lines.append("")
     lines.append(f"verdict    {result.verdict}  (threshold {cond.threshold_pct:g} % for br-selective)")
+    served = result.serves or "none"
+    lines.append(
+        f"serves     {served}  (first of cl2, br2, nbs whose major product reaches the threshold; with C=C only nbs)"
+    )
     confidence = result.confidence(tuple(reagents))
-    if confidence:
+    if confidence and reagents:
         lines.append(
             f"confidence {confidence}  (weakest rate basis among products with ≥ 5 % under {', '.join(reagents)})"
         )
     lines.append("units      BDE and ΔH in kcal/mol; * marks an estimated bond enthalpy")
     lines.append("basis      what each rate constant rests on: measured / textbook / estimate (engine/parameters.py)")
     lines.extend(f"flag       {f.flag}: {f.note} [{f.source}]" for f in result.flags)
-    lines.extend(f"note       {r}: {REAGENT_NOTES[r]}" for r in reagents if r in REAGENT_NOTES)
+    lines.extend(f"note       {r}: {REAGENT_NOTES[r]}" for r in [*reagents, *([NBS] if nbs else [])]
+                 if r in REAGENT_NOTES)
     for plan in plans:
-        lines.append(
-            f"polyhalide {plan.reagent}: at {plan.conversion_pct:g} % conversion ≈ {plan.poly_pct:.1f} % of the "
-            f"halogenated product is polyhalide; ≤ {plan.max_poly_pct:g} % needs conversion ≤ "
-            f"{plan.max_conversion_pct:.1f} % (estimate: halogen substituent effects ignored)"
-        )
+        lines.extend(poly_lines(plan))
     lines.extend(f"warning    {w}" for w in warnings)
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)
+
+
+def _nbs_lines(result: Explanation) -> list[str]:
+    """The NBS monobromides: allylic/benzylic only, both allyl termini."""
+    cond = result.conditions
+    out = [f"NBS at {cond.temp_c(NBS):g} °C (allylic/benzylic C–H only; every other C–H gets no share)"]
+    if not result.nbs:
+        return out + ["  no allylic or benzylic C–H: NBS gives no substitution product"]
+    rows = []
+    for p in result.nbs:
+        stereo = p.stereo if p.n_stereoisomers == 1 else f"{p.stereo} ({p.n_stereoisomers})"
+        if p.e_and_z:
+            stereo += ", E+Z"
+        rows.append([p.smiles, p.terminus, p.site, str(p.alkene_substituents) if p.alkene_substituents >= 0 else "-",
+                     stereo, f"{p.pct:.1f}"])
+    out += _table(["product (bromide)", "Br at", "from site", "C=C subst.", "stereo", "% nbs"], rows, right={3, 5})
+    out.append("Br at      radical carbon: where H was taken; allylic shift: far end of the allyl radical, C=C moved; "
+               "termini weighed by C=C substitution (engine.parameters.NBS_SUBSTITUENT_FACTOR); E/Z ratio not modelled")
+    return out
+
+
+def poly_lines(plan: PolyPlan) -> list[str]:
+    """The polyhalogenation plan of one reagent in words (also used by the app)."""
+    at = f"at {plan.ratio:g} : 1 substrate : halogen (all halogen used)"
+    lines = [
+        f"polyhalide {plan.reagent} {at}: {plan.unreacted_pct:.1f} % substrate left, {plan.mono_pct_of_charge:.1f} % "
+        f"monohalide, {plan.poly_pct_of_charge:.1f} % polyhalide (of substrate charged)",
+    ]
+    if abs(plan.conversion_pct - (100.0 - plan.unreacted_pct)) > 1e-6:
+        lines.append(f"           at {plan.conversion_pct:g} % conversion ≈ {plan.poly_pct:.1f} % of the halogenated "
+                     "product is polyhalide")
+    excess = "no excess suffices" if plan.min_ratio == float("inf") else f"substrate : halogen ≥ {plan.min_ratio:.2g} : 1"
+    lines.append(
+        f"           ≤ {plan.max_poly_pct:g} % polyhalide (of product) needs conversion ≤ {plan.max_conversion_pct:.1f} %, "
+        f"i.e. {excess}; deactivation by the first halogen f = {plan.deactivation:g} (estimate)"
+    )
+    return lines

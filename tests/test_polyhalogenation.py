@@ -1,63 +1,144 @@
-"""Polyhalogenation planner: consecutive first-order statistics (engine.polyhalogenation)."""
+"""Polyhalogenation planner: integrated competitive consecutive kinetics (engine.polyhalogenation)."""
 
 from __future__ import annotations
 
 import json
+import math
 
 import numpy as np
 import pytest
 
 import engine
-from engine.polyhalogenation import _mono, plan, poly_share
+from engine import parameters as P
+from engine.polyhalogenation import Split, monohalide, plan, poly_pct_at_ratio, poly_share
 from halosift.cli import main
 
 
-def test_matches_textbook_consecutive_kinetics() -> None:
-    # A → B → C with k2/k1 = κ (textbook consecutive first-order kinetics):
-    # B = (A^κ − A)/(1 − κ), maximal at A = κ^(1/(1−κ)) with B_max = κ^(κ/(1−κ)).
-    # Methane, all four H alike: κ = 3/4.
-    kappa = 0.75
-    for x in (0.1, 0.4, 0.8):
-        a = 1 - x
-        assert _mono(x, np.array([4.0]), np.array([0.25])) == pytest.approx((a**kappa - a) / (1 - kappa))
-    a_at_max = kappa ** (1 / (1 - kappa))
-    xs = np.linspace(0.01, 0.99, 9801)
-    best = xs[np.argmax([_mono(x, np.array([4.0]), np.array([0.25])) for x in xs])]
-    assert best == pytest.approx(1 - a_at_max, abs=1e-3)
+@pytest.mark.parametrize(("k1", "k2"), [(1.0, 0.3), (1.0, 0.75), (2.0, 5.0), (1.0, 1.0)])
+def test_monohalide_is_the_analytic_a_b_c_solution(k1: float, k2: float) -> None:
+    # Consecutive first-order reactions A → B → C (textbook kinetics, e.g. Atkins' Physical Chemistry,
+    # "consecutive elementary reactions"; from memory): [B]/[A]0 = k1/(k2 − k1)·(e^(−k1 t) − e^(−k2 t)),
+    # and k1 t e^(−k1 t) when k1 = k2. With A = e^(−k1 t) that is B(A) with φ = 1, κ = k2/k1.
+    for t in (0.05, 0.5, 1.0, 3.0):
+        a = math.exp(-k1 * t)
+        if k1 == k2:
+            expected = k1 * t * math.exp(-k1 * t)
+        else:
+            expected = k1 / (k2 - k1) * (math.exp(-k1 * t) - math.exp(-k2 * t))
+        assert float(monohalide(np.array([a]), np.array([1.0]), np.array([k2 / k1]))[0]) == pytest.approx(expected)
 
 
-def test_low_conversion_limit_and_monotone() -> None:
-    # At vanishing conversion every halogenated molecule is a monohalide; the share of
-    # polyhalide then rises steadily with conversion (common practice: excess hydrocarbon).
+def _simulate(h: list[int], k: list[float], f: float, halogen: float, dt: float = 2e-4) -> tuple[float, float, float]:
+    """Explicit Euler integration of A + X2 → B_i, B_i + X2 → P until the halogen is gone (test-local).
+
+    Rates: h_i·k_i·[A]·[X2] for A → B_i and f·(K − k_i)·[B_i]·[X2] for B_i → P, with K = Σ h_j k_j:
+    the same kinetic scheme the module integrates in closed form, written out in time.
+    """
+    hk = np.array(h, float) * np.array(k, float)
+    total = hk.sum()
+    kb = f * (total - np.array(k, float))
+    a, b, x, p = 1.0, np.zeros(len(h)), halogen, 0.0
+    while x > 1e-7:
+        form = hk * a * x * dt
+        onward = kb * b * x * dt
+        used = form.sum() + onward.sum()
+        if used > x:  # last step: take only what is left
+            scale = x / used
+            form, onward, used = form * scale, onward * scale, x
+        a -= form.sum()
+        b += form - onward
+        p += onward.sum()
+        x -= used
+    return a, float(b.sum()), p
+
+
+@pytest.mark.parametrize("ratio", [1.0, 2.0, 4.0])
+@pytest.mark.parametrize("reagent", ["cl2", "br2"])
+def test_closed_form_matches_a_numerical_simulation(ratio: float, reagent: str) -> None:
+    # n-butane-like substrate: 6 primary H and 4 secondary H, per-H rates 1 and 3.7.
+    h, k = [6, 4], [1.0, 3.7]
+    shares = 100 * np.array(h) * np.array(k) / np.dot(h, k)
+    f = P.POLY_DEACTIVATION[engine.EXPLAIN_REAGENTS[reagent]].value
+    a, mono, poly = _simulate(h, k, f, 1.0 / ratio)
+    p = plan(reagent, h, list(shares), ratio=ratio)
+    assert p.unreacted_pct == pytest.approx(100 * a, abs=0.1)
+    assert p.mono_pct_of_charge == pytest.approx(100 * mono, abs=0.1)
+    assert p.poly_pct_of_charge == pytest.approx(100 * poly, abs=0.1)
+
+
+def test_deactivation_lowers_polyhalide() -> None:
     split = engine.explain("CCCC")
     h = [p.h_count for p in split.products]
     pct = [p.pct["cl2"] for p in split.products]
-    assert poly_share(1e-6, h, pct) == pytest.approx(0, abs=1e-5)
-    shares = [poly_share(x, h, pct) for x in (0.05, 0.2, 0.5, 0.8, 0.95)]
-    assert shares == sorted(shares) and shares[-1] > 0.5
+    assert poly_share(0.5, h, pct, f=0.6) < poly_share(0.5, h, pct, f=1.0)
 
 
-def test_plan_cap_is_consistent() -> None:
+def test_one_to_one_identity_and_excess_helps() -> None:
+    # At 1 : 1 with all halogen used, 2(1 − A) − ΣB = 1 means polyhalide = substrate left (mass balance).
+    e = engine.explain("C1CCCCC1")
+    h = [p.h_count for p in e.products]
+    pct = [p.pct["cl2"] for p in e.products]
+    p1 = plan("cl2", h, pct, ratio=1.0)
+    assert p1.poly_pct_of_charge == pytest.approx(p1.unreacted_pct, abs=1e-6)
+    polys = [plan("cl2", h, pct, ratio=r).poly_pct for r in (1, 2, 5, 20)]
+    assert polys == sorted(polys, reverse=True) and polys[-1] < 3
+
+
+def test_inverse_cap_is_consistent() -> None:
     split = engine.explain("CC(C)C")
     h = [p.h_count for p in split.products]
-    pct = [p.pct["br2"] for p in split.products]
-    p = plan("br2", h, pct, 30.0, 10.0)
-    assert p.mono_pct + p.poly_pct == pytest.approx(100)
-    assert poly_share(p.max_conversion_pct / 100, h, pct) == pytest.approx(0.10, abs=1e-6)
+    pct = [p.pct["cl2"] for p in split.products]
+    p = plan("cl2", h, pct, max_poly_pct=10.0)
+    f = P.POLY_DEACTIVATION["cl"].value
+    assert poly_share(p.max_conversion_pct / 100, h, pct, f) == pytest.approx(0.10, abs=1e-6)
+    # Charging the minimum excess and using all halogen lands exactly on the cap.
+    at_min = plan("cl2", h, pct, ratio=p.min_ratio, max_poly_pct=10.0)
+    assert at_min.poly_pct == pytest.approx(10.0, abs=1e-3)
+    assert 100 - at_min.unreacted_pct == pytest.approx(p.max_conversion_pct, abs=1e-3)
 
 
-@pytest.mark.parametrize(("conv", "cap"), [(0.0, 10.0), (100.0, 10.0), (50.0, 0.0), (50.0, 100.0)])
-def test_plan_rejects_bad_values(conv: float, cap: float) -> None:
-    with pytest.raises(ValueError, match="strictly between"):
-        plan("cl2", [4], [100.0], conv, cap)
+def test_vectorised_column_matches_plan() -> None:
+    smiles = ["CCCC", "C1CCCCC1", "c1ccccc1", "CC(C)C"]
+    p = engine.perceive(smiles)
+    w = engine.weigh(p.sites, engine.Conditions(), len(smiles))
+    col = poly_pct_at_ratio(w["struct"].to_numpy(), w["h_count"].to_numpy(), w["br2_pct"].to_numpy(), "br2", 4)
+    for i, smi in enumerate(smiles):
+        e = engine.explain(smi)
+        if e.verdict == "inert":
+            assert math.isnan(col[i])
+            continue
+        ref = plan("br2", [x.h_count for x in e.products], [x.pct["br2"] for x in e.products]).poly_pct
+        assert col[i] == pytest.approx(ref, abs=1e-3)  # the screen column bisects more coarsely
+    summary = engine.summarise(p, engine.Conditions())
+    assert summary["br2_poly_pct"].to_numpy()[:2] == pytest.approx(col[:2])
 
 
-def test_cli_conversion(capsys: pytest.CaptureFixture) -> None:
+def test_split_with_nothing_reacting() -> None:
+    s = Split(np.zeros(0, dtype=np.int64), np.zeros(0), np.zeros(0), 1.0, 2)
+    assert list(s.left_at_ratio(1.0)) == [1.0, 1.0]
+
+
+@pytest.mark.parametrize(
+    "kwargs", [{"conversion_pct": 0.0}, {"conversion_pct": 100.0}, {"max_poly_pct": 0.0}, {"ratio": 0.0}, {"ratio": -1.0}]
+)
+def test_plan_rejects_bad_values(kwargs: dict) -> None:
+    with pytest.raises(ValueError):
+        plan("cl2", [4], [100.0], **kwargs)
+
+
+def test_cli_planner(capsys: pytest.CaptureFixture) -> None:
     assert main(["explain", "C", "--conversion", "50", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
-    # Methane at 50 %: B = 4(0.5^0.75 − 0.5) = 0.378 mol, poly 0.122 of 0.5 mol halogenated = 24.3 %.
-    assert data["polyhalogenation"]["cl2"]["poly_pct"] == pytest.approx(24.3, abs=0.1)
+    # Methane at 50 %, f = 0.6: κ = 0.6·3/4 = 0.45, B = (0.5^0.45 − 0.5)/0.55 = 0.4950 mol,
+    # polyhalide (0.5 − 0.4950)/0.5 = 1.0 % of the halogenated product.
+    kappa = 0.6 * 0.75
+    b = (0.5**kappa - 0.5) / (1 - kappa)
+    assert data["polyhalogenation"]["cl2"]["poly_pct"] == pytest.approx(100 * (0.5 - b) / 0.5, abs=0.01)
     assert "estimate" in data["polyhalogenation_model"]
-    assert main(["explain", "c1ccccc1", "--conversion", "50"]) == 0  # inert: nothing planned
+    assert main(["explain", "CCC", "--ratio", "3", "--max-poly", "5"]) == 0
+    out = capsys.readouterr().out
+    assert "at 3 : 1 substrate : halogen" in out and "≤ 5 % polyhalide" in out
+    assert main(["explain", "c1ccccc1", "--ratio", "2"]) == 0  # inert: nothing planned
     assert "polyhalide" not in capsys.readouterr().out.replace("polyhalogenated", "")
-    assert main(["explain", "CCC", "--max-poly", "5"]) == 2
+    assert main(["explain", "CCC", "--ratio", "0"]) == 2
+    assert "ratio" in capsys.readouterr().err

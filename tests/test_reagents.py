@@ -15,9 +15,9 @@ from halosift.cli import main
 
 
 def test_check_reagent_accepts_modelled_ones() -> None:
-    assert [check_reagent(r) for r in ("cl2", " BR2", "SO2Cl2")] == ["cl2", "br2", "so2cl2"]
+    assert [check_reagent(r) for r in ("cl2", " BR2", "SO2Cl2", "NBS")] == ["cl2", "br2", "so2cl2", "nbs"]
     with pytest.raises(ValueError, match="unknown reagent"):
-        check_reagent("nbs")
+        check_reagent("nis")
 
 
 @pytest.mark.parametrize("name", ["f2", "F2", "i2"])

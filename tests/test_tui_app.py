@@ -537,3 +537,55 @@ async def test_screening_in_worker_processes_works_inside_the_app(tmp_path, monk
         assert app.phase == "ready", plain(app.query_one("#counts"))
         assert len(app.frame) == len(SMALL)
         assert int((app.frame["status"] == "ok").sum()) == len(SMALL) - 2
+
+
+@async_test
+async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        table = app.query_one(LibraryTable)
+        row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CC1=CCCCC1")[0])
+        table.cursor = int(np.flatnonzero(table.rows == row)[0])
+        await pilot.press("enter")
+        await pilot.pause()
+        screen = app.screen
+        record = app.frame.iloc[row]
+        head = plain(screen.query_one("#detail-head"))
+        assert f"Confidence: {record['confidence']}" in head and "Flags: alkene" in head
+        notes = plain(screen.query_one("#detail-notes"))
+        assert "addition to the double bond competes with substitution" in notes
+        assert "NBS" in notes and "serves allylic substitution" in notes
+        nbs = plain(screen.query_one("#detail-nbs"))
+        for p in app.library.nbs_products(row, app.conditions).itertuples():
+            assert p.product in nbs and f"{p.nbs_pct:5.1f} %" in nbs
+        assert "allylic shift" in nbs and "no share" in nbs
+        poly = plain(screen.query_one("#detail-poly"))
+        assert "cl2:" in poly and "br2:" in poly and "1 : 1" in poly
+        # A substrate without allylic/benzylic C–H says so.
+        await pilot.press("escape")
+        row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "C1CCCCC1")[0])
+        table.cursor = int(np.flatnonzero(table.rows == row)[0])
+        await pilot.press("enter")
+        await pilot.pause()
+        assert "No allylic or benzylic C–H" in plain(app.screen.query_one("#detail-nbs"))
+
+
+@async_test
+async def test_more_columns_key_and_help(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        keys = [c.key for c in app.query_one(LibraryTable).columns]
+        assert "confidence" not in keys and "flags" not in keys
+        await pilot.press("o")
+        await settle(pilot, app)
+        keys = [c.key for c in app.query_one(LibraryTable).columns]
+        for key in ("confidence", "flags", "serves", "nbs_major", "nbs_major_pct", "cl2_poly_pct"):
+            assert key in keys
+        assert keys[-1] == ROW_KEY
+        await pilot.press("question_mark")
+        await pilot.pause()
+        columns = plain(app.screen.query_one("#help-columns"))
+        assert "confidence" in columns and "flags" in columns and "alkene" in columns
+        assert "More columns" in plain(app.screen.query_one("#help-keys"))

@@ -60,8 +60,18 @@ PROGRESS_INTERVAL = 0.1
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
     "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown",
-    "clear_filters", "toggle_input_columns",
+    "clear_filters", "toggle_input_columns", "toggle_more_columns",
 })
+#: Result columns the "more columns" key adds to the library table (label, width, kind).
+MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
+    ("confidence", "Confidence", 12, "text"),
+    ("flags", "Flags", 20, "text"),
+    ("serves", "Serves", 8, "text"),
+    ("nbs_major", "NBS major", 18, "text"),
+    ("nbs_major_pct", "NBS %", 7, "pct"),
+    ("cl2_poly_pct", "Cl2 poly %", 11, "pct"),
+    ("br2_poly_pct", "Br2 poly %", 11, "pct"),
+)
 
 
 def one_line(exc: BaseException) -> str:
@@ -109,6 +119,7 @@ class HalosiftApp(App[int]):
         Binding("u", "unmark_shown", "Unmark all shown", show=False),
         Binding("x", "clear_filters", "Clear filters", show=False),
         Binding("c", "toggle_input_columns", "Input columns", show=False),
+        Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
     ]
 
     phase: reactive[str] = reactive("screening")
@@ -123,6 +134,8 @@ class HalosiftApp(App[int]):
     """engine.Conditions the table is evaluated under (None until the engine is loaded)."""
     show_input_columns: reactive[bool] = reactive(False, init=False)
     """Also show the input file's own columns (beyond ID and SMILES)."""
+    show_more_columns: reactive[bool] = reactive(False, init=False)
+    """Also show confidence, flags, serves, the NBS major product and the polyhalide columns."""
 
     def __init__(
         self,
@@ -131,9 +144,12 @@ class HalosiftApp(App[int]):
         smiles_column: str | None = None,
         id_column: str | None = None,
         use_cache: bool = True,
+        graphics: str | None = None,
     ) -> None:
         super().__init__()
         start_process_helpers()
+        self.graphics = graphics
+        """Inline-image mode for structure drawings ('sixel', 'tgp', 'unicode'), or None for text only."""
         self.source = source
         """The library file (or DataFrame) to screen."""
         self.smiles_column = smiles_column
@@ -423,6 +439,8 @@ class HalosiftApp(App[int]):
                 Column("br2_major_pct", "Br2 %", 7, "pct"),
                 Column("stereo", "Br2 stereo", 13),
             ]
+            if self.show_more_columns:
+                cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
         if self.show_input_columns:
             for name in lib.input.columns:
                 if name not in (lib.id_column, lib.smiles_column):
@@ -481,6 +499,9 @@ class HalosiftApp(App[int]):
         self._request_view()
 
     def watch_show_input_columns(self) -> None:
+        self._request_view()
+
+    def watch_show_more_columns(self) -> None:
         self._request_view()
 
     # ------------------------------------------------------------------ table messages
@@ -562,6 +583,10 @@ class HalosiftApp(App[int]):
     def action_toggle_input_columns(self) -> None:
         """Show or hide the input file's own columns."""
         self.show_input_columns = not self.show_input_columns
+
+    def action_toggle_more_columns(self) -> None:
+        """Show or hide confidence, flags, serves, NBS and polyhalide columns."""
+        self.show_more_columns = not self.show_more_columns
 
     def action_filters(self) -> None:
         """Open the filter form."""
@@ -682,7 +707,9 @@ class HalosiftApp(App[int]):
         self.notify(message.message, title="Export failed", severity="error", timeout=10)
 
 
-def run(path: str | None, *, smiles_column: str | None = None, id_column: str | None = None) -> int:
+def run(
+    path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True
+) -> int:
     """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
     if path is None:
         try:
@@ -704,6 +731,10 @@ def run(path: str | None, *, smiles_column: str | None = None, id_column: str | 
     except LibraryError as exc:
         print(f"halosift: {exc}", file=sys.stderr)
         return 2
-    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column)
+    from tui.structure_view import detect_graphics
+
+    # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
+    graphics = detect_graphics(enabled=images)
+    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics)
     result = app.run()
     return int(result or app.return_code or 0)

@@ -10,12 +10,12 @@ from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import VerticalScroll
+from textual.containers import Vertical, VerticalScroll
 from textual.reactive import reactive
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
-from tui.help import STEREO_DOCS, verdict_text
+from tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
 from tui.messages import MarkRequested
 
 if TYPE_CHECKING:
@@ -53,6 +53,46 @@ def products_table(products: pd.DataFrame) -> Table:
             p.product,
         )
     return table
+
+
+def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
+    """NBS monobromides (allylic/benzylic only): one bar per product, with where the Br ends up and stereo."""
+    text = Text()
+    text.append(f"\nNBS at {conditions.nbs_temp_c:g} °C", style="bold")
+    text.append(" — allylic/benzylic C–H only; every other C–H gets no share\n")
+    if nbs.empty:
+        text.append("No allylic or benzylic C–H: NBS gives no substitution product.\n")
+        return text
+    bar_width = max(8, min(30, width // 3))
+    for i, p in enumerate(nbs.itertuples(index=False), start=1):
+        stereo = p.stereo if int(p.n_stereoisomers) == 1 else f"{p.stereo} ({int(p.n_stereoisomers)})"
+        if bool(p.ez_open):
+            stereo += ", E+Z"
+        text.append(f"N{i:<3}")
+        text.append(bar(p.nbs_pct, bar_width))
+        text.append(f" {p.nbs_pct:5.1f} %  {p.product}  [{p.terminus}; {stereo}]\n")
+    text.append("radical carbon: Br where H was taken; allylic shift: Br at the far end of the allyl radical, "
+                "C=C moved (more substituted C=C favoured; E/Z ratio not modelled)\n")
+    return text
+
+
+def poly_text(products: pd.DataFrame) -> Text:
+    """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap."""
+    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+
+    text = Text()
+    text.append("\nPolyhalogenation", style="bold")
+    text.append(f" (estimate; {DEFAULT_RATIO:g} : 1 substrate : halogen, all halogen used)\n")
+    h = products["h_count"].to_numpy()
+    for reagent in ("cl2", "br2"):
+        p = plan(reagent, h, products[f"{reagent}_pct"].to_numpy(), ratio=DEFAULT_RATIO)
+        excess = "no excess suffices" if p.min_ratio == float("inf") else f"≥ {p.min_ratio:.2g} : 1 substrate : halogen"
+        text.append(
+            f"{reagent}: {p.unreacted_pct:.0f} % left, {p.mono_pct_of_charge:.0f} % mono, "
+            f"{p.poly_pct_of_charge:.0f} % poly; ≤ {DEFAULT_MAX_POLY_PCT:g} % poly needs ≤ "
+            f"{p.max_conversion_pct:.0f} % conversion ({excess})\n"
+        )
+    return text
 
 
 def bars_text(products: pd.DataFrame, conditions: Any, width: int) -> Text:
@@ -113,7 +153,10 @@ class DetailScreen(Screen):
         yield Static("", id="detail-head")
         with VerticalScroll(id="detail-body"):
             yield Static("", id="detail-products")
+            yield Vertical(id="detail-structure")
             yield Static("", id="detail-bars")
+            yield Static("", id="detail-nbs")
+            yield Static("", id="detail-poly")
             yield Static("", id="detail-notes")
         yield Footer(compact=True)
 
@@ -149,10 +192,24 @@ class DetailScreen(Screen):
             head.append("\nVerdict: ", style="bold")
             head.append(verdict, style="bold")
             head.append(f" — {verdict_text(verdict, self.conditions.threshold_pct)}")
+            head.append("\nServes: ", style="bold")
+            head.append(str(record.get("serves", "")) or "none reaches the threshold")
+            head.append("  Confidence: ", style="bold")
+            head.append(str(record.get("confidence", "")) or "—")
+            head.append("  Flags: ", style="bold")
+            head.append(str(record.get("flags", "")) or "none")
         head.append(f"\n{self.conditions.describe()}")
         for warning in self.conditions.warnings():
             head.append(f"\n! {warning}")
         self.query_one("#detail-head", Static).update(head)
+
+    def _show_structure(self, canonical_smiles: str, products: pd.DataFrame) -> None:
+        """The labelled drawing where the terminal shows images, else a one-line note."""
+        from tui.structure_view import structure_widget
+
+        box = self.query_one("#detail-structure", Vertical)
+        box.remove_children()
+        box.mount(structure_widget(getattr(self.app, "graphics", None), canonical_smiles, products))
 
     def _render_row(self) -> None:
         if not self.is_mounted:
@@ -162,20 +219,25 @@ class DetailScreen(Screen):
         products_box = self.query_one("#detail-products", Static)
         bars_box = self.query_one("#detail-bars", Static)
         notes_box = self.query_one("#detail-notes", Static)
+        nbs_box = self.query_one("#detail-nbs", Static)
+        poly_box = self.query_one("#detail-poly", Static)
+        for box in (bars_box, notes_box, nbs_box, poly_box):
+            box.update("")
+        self.query_one("#detail-structure", Vertical).remove_children()
         if record["status"] != "ok":
             products_box.update("No products: the row was not modelled.")
-            bars_box.update("")
-            notes_box.update("")
             return
         products = self.library.products(self.row, self.conditions)
         if products.empty:
             products_box.update("No C–H bonds: no monohalide can form.")
-            bars_box.update("")
-            notes_box.update("")
             return
         width = max(40, self.size.width - 6)  # padding and scroll bar of the body
         products_box.update(Group(Text("Products", style="bold"), products_table(products)))
+        self._show_structure(str(record["canonical_smiles"]), products)
         bars_box.update(Group(Text("\nShare of the monohalides", style="bold"), bars_text(products, self.conditions, width)))
+        nbs_box.update(nbs_text(self.library.nbs_products(self.row, self.conditions), self.conditions, width))
+        if (products["cl2_pct"] > 0).any():
+            poly_box.update(poly_text(products))
         stereo = sorted(s for s in set(products["stereo"]) if s)
         notes = Text()
         notes.append(
@@ -185,6 +247,14 @@ class DetailScreen(Screen):
         )
         for s in stereo:
             notes.append(f"{s}: {STEREO_DOCS.get(s, '')}\n")
+        from engine.special_sites import flag_notes  # engine is loaded by now: a library is shown
+
+        confidence = str(record.get("confidence", ""))
+        if confidence:
+            notes.append(f"confidence {confidence}: {CONFIDENCE_NOTE}\n")
+        for flag in flag_notes(str(record.get("flags", ""))):
+            notes.append(f"flag {flag.flag}: ", style="bold")
+            notes.append(f"{flag.note}\n")
         notes_box.update(notes)
 
     def action_close(self) -> None:

@@ -34,6 +34,13 @@ STEREO_DOCS: dict[str, str] = {
     "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
 }
 
+#: What the confidence column means (also quoted by the detail screen).
+CONFIDENCE_NOTE = (
+    "the weakest basis (measured > textbook > estimate) of the rate constants behind the products that carry "
+    "≥ 5 % under Cl2 or Br2"
+)
+
+
 def sources() -> list[tuple[str, str]]:
     """The model's sources, in brief; the numbers quoted are read from engine.parameters."""
     from engine.parameters import BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
@@ -117,6 +124,7 @@ class HelpScreen(Screen):
             yield Static(_bindings_table(self.app), id="help-keys")
             yield Static(self._verdicts(), id="help-verdicts")
             yield Static(self._views(), id="help-views")
+            yield Static(self._columns(), id="help-columns")
             yield Static(self._sources(), id="help-sources")
             yield Static(self._caution(), id="help-caution")
         yield Footer(compact=True)
@@ -146,7 +154,25 @@ class HelpScreen(Screen):
     def _views(self) -> Table:
         rows = [(k, v) for k, v in VIEW_DOCS.items()]
         rows.append(("counts", "the top line always shows all rows, screened, rejected, shown and marked"))
+        mode = getattr(self.app, "graphics", None)
+        rows.append(("drawings", "the site detail draws the structure with each site's split where the terminal "
+                     "shows inline images (Sixel or Kitty graphics; now: " + (mode or "off") + "); "
+                     "halosift browse --no-images or HALOSIFT_IMAGES=off turns this off"))
         return self._section("Views (v cycles)", rows)
+
+    def _columns(self) -> Table:
+        from engine.special_sites import FLAG_NOTES
+
+        rows = [
+            ("confidence", CONFIDENCE_NOTE + "; shown in the site detail and with o"),
+            ("flags", "special-site warnings (shown in the site detail and with o): "
+             + "; ".join(f"{k} — {v.note.split(':')[0]}" for k, v in FLAG_NOTES.items())),
+            ("serves", "first of cl2, br2, nbs whose major product reaches the threshold; with C=C only nbs "
+             "(Cl2/Br2 add to C=C)"),
+            ("NBS major / %", "major allylic/benzylic bromide under NBS (both allyl termini weighed)"),
+            ("Cl2/Br2 poly %", "polyhalide, percent of halogenated product, at 1 : 1 substrate : halogen (estimate)"),
+        ]
+        return self._section("More columns (o shows them)", rows)
 
     def _sources(self) -> Table:
         rows = sources()

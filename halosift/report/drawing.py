@@ -73,15 +73,9 @@ def colour_hex(site: str) -> str:
 _PROLOG = re.compile(r"<\?xml[^>]*\?>\s*")
 
 
-def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
-    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and noted 'a: Cl 45 / Br 3'.
-
-    ``canonical_smiles`` must be the engine's canonical SMILES: parsing it numbers
-    the atoms in the same order as :attr:`SiteMark.atom`. Raises ValueError when
-    it does not parse (it always should, coming from the engine).
-    """
+def _drawable(canonical_smiles: str, marks: Sequence[SiteMark]):
+    """The parsed molecule with notes set, highlight colours and note texts."""
     from rdkit import Chem
-    from rdkit.Chem.Draw import rdMolDraw2D
 
     mol = Chem.MolFromSmiles(canonical_smiles)
     if mol is None:
@@ -96,7 +90,12 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
         atom.SetProp("atomNote", note)
         notes.append(f"{note} ({mark.site})")
         colours[mark.atom] = SITE_COLOURS.get(mark.site, FALLBACK_COLOUR)
-    drawer = rdMolDraw2D.MolDraw2DSVG(WIDTH, HEIGHT)
+    return mol, colours, notes
+
+
+def _draw(drawer, mol, colours) -> None:
+    from rdkit.Chem.Draw import rdMolDraw2D
+
     options = drawer.drawOptions()
     options.annotationFontScale = 0.7
     options.clearBackground = True
@@ -105,6 +104,20 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
         drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
     )
     drawer.FinishDrawing()
+
+
+def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
+    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and noted 'a: Cl 45 / Br 3'.
+
+    ``canonical_smiles`` must be the engine's canonical SMILES: parsing it numbers
+    the atoms in the same order as :attr:`SiteMark.atom`. Raises ValueError when
+    it does not parse (it always should, coming from the engine).
+    """
+    from rdkit.Chem.Draw import rdMolDraw2D
+
+    mol, colours, notes = _drawable(canonical_smiles, marks)
+    drawer = rdMolDraw2D.MolDraw2DSVG(WIDTH, HEIGHT)
+    _draw(drawer, mol, colours)
     svg = _PROLOG.sub("", drawer.GetDrawingText(), count=1).strip()
     label = escape(title or f"structure of {canonical_smiles}", quote=True)
     # RDKit draws letters as paths; a <desc> keeps the notes readable to screen readers and searches.
@@ -112,3 +125,13 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     svg = re.sub(r"(<svg\b[^>]*>)", lambda m: f"{m.group(1)}\n<desc>{desc}</desc>", svg, count=1)
     # Tag the root so CSS (and tests) can find structure drawings among the charts.
     return svg.replace("<svg ", f'<svg class="structure" role="img" aria-label="{label}" ', 1)
+
+
+def structure_png(canonical_smiles: str, marks: Sequence[SiteMark], *, width: int = WIDTH, height: int = HEIGHT) -> bytes:
+    """The same drawing as :func:`structure_svg`, as PNG bytes (for terminals that show images)."""
+    from rdkit.Chem.Draw import rdMolDraw2D
+
+    mol, colours, _ = _drawable(canonical_smiles, marks)
+    drawer = rdMolDraw2D.MolDraw2DCairo(width, height)
+    _draw(drawer, mol, colours)
+    return drawer.GetDrawingText()

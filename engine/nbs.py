@@ -1,0 +1,255 @@
+"""NBS (Wohl–Ziegler) products: allylic and benzylic bromides, allylic transposition included.
+
+Perception side (RDKit, once per structure): for every allylic or benzylic
+site group, the bromide at the radical carbon and, for an allylic carbon
+a–b=c, the transposed bromide (Br on c, double bond moved to a=b). Each
+terminus gets a weight within its radical from the substitution of the
+product's C=C (:data:`engine.parameters.NBS_SUBSTITUENT_FACTOR`), stored as
+``share``. Longer conjugation (pentadienyl ends beyond the first C=C) is not
+followed: only termini one bond away from the radical carbon's neighbours.
+
+Weighing side (numpy/pandas, any conditions): rate of each radical = H count ×
+Br· rate per H of its site class at the NBS temperature; product share =
+radical rate × terminus share, normalised per structure over these rows only
+(every other C–H gets no share under NBS).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pyarrow as pa
+from rdkit import Chem
+
+from engine import parameters as P
+from engine.site_classes import SITE_CLASSES
+from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
+
+_SINGLE = Chem.BondType.SINGLE
+_DOUBLE = Chem.BondType.DOUBLE
+_BR = 35
+#: Site classes NBS brominates (doubly activated sites are labelled allylic by engine.sites).
+NBS_SITES: tuple[str, ...] = tuple(
+    f"{kind}-{degree}" for kind in ("allylic", "benzylic") for degree in ("primary", "secondary", "tertiary")
+)
+TERMINI = ("radical carbon", "allylic shift")
+
+#: Column types of :attr:`engine.perception.Perception.allylic` (one row per site group × NBS product).
+ALLYLIC_SCHEMA = pa.schema(
+    [
+        pa.field("struct", pa.int32(), metadata={"doc": "row of the structures table"}),
+        pa.field("product", pa.string(), metadata={"doc": "canonical SMILES of the monobromide"}),
+        pa.field("product_id", pa.int32(), metadata={"doc": "number of that product within its structure, from 0"}),
+        pa.field("site", pa.string(), metadata={"doc": "site class of the carbon that loses H"}),
+        pa.field("site_code", pa.int8(), metadata={"doc": "index of site in engine.SITE_CLASSES"}),
+        pa.field("h_count", pa.int32(), metadata={"doc": "hydrogens of that site group"}),
+        pa.field("terminus", pa.string(), metadata={"doc": "radical carbon / allylic shift (comma-joined when both)"}),
+        pa.field("alkene_subst", pa.int32(), metadata={"doc": "carbon substituents on the product's C=C (-1: none)"}),
+        pa.field("share", pa.float64(), metadata={"doc": "fraction of this group's radical that gives this product"}),
+        pa.field("stereo", pa.string(), metadata={"doc": "achiral / single / racemate / diastereomers"}),
+        pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed (E/Z counted)"}),
+        pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
+        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked"}),
+        pa.field("ez_open", pa.bool_(), metadata={"doc": "the product has a C=C formed as both E and Z"}),
+    ]
+)
+
+
+def empty_frame() -> pd.DataFrame:
+    """An allylic table with no rows and the right dtypes."""
+    return frame_from_rows([])
+
+
+def frame_from_rows(rows: list[tuple]) -> pd.DataFrame:
+    """Rows (in :data:`ALLYLIC_SCHEMA` order, ``site_code`` included) as a typed frame."""
+    df = pd.DataFrame(rows, columns=ALLYLIC_SCHEMA.names)
+    return df.astype(
+        {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8", "h_count": "int32",
+         "terminus": object, "alkene_subst": "int32", "share": "float64", "stereo": object,
+         "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool", "ez_open": "bool"}
+    )
+
+
+def _alkene_substituents(mol: Chem.Mol, i: int, j: int) -> int:
+    """Heavy-atom substituents on the double bond i=j (each other excluded)."""
+    return sum(1 for n in mol.GetAtomWithIdx(i).GetNeighbors() if n.GetIdx() != j) + sum(
+        1 for n in mol.GetAtomWithIdx(j).GetNeighbors() if n.GetIdx() != i
+    )
+
+
+def _drop_h(atom: Chem.Atom) -> None:
+    if atom.GetNumExplicitHs():
+        atom.SetNumExplicitHs(atom.GetNumExplicitHs() - 1)
+
+
+def _bromide_at_radical(mol: Chem.Mol, a: int) -> Chem.Mol:
+    rw = Chem.RWMol(mol)
+    atom = rw.GetAtomWithIdx(a)
+    _drop_h(atom)
+    atom.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)  # planar radical: configuration lost
+    new = rw.AddAtom(Chem.Atom(_BR))
+    rw.AddBond(a, new, _SINGLE)
+    Chem.SanitizeMol(rw)
+    return rw.GetMol()
+
+
+def _shifted_bromide(mol: Chem.Mol, a: int, b: int, c: int) -> Chem.Mol:
+    """a–b=c → a=b–c(Br): the allylic transposition product (atom indices kept, Br appended)."""
+    rw = Chem.RWMol(mol)
+    for idx in (a, b, c):
+        rw.GetAtomWithIdx(idx).SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
+    _drop_h(rw.GetAtomWithIdx(a))
+    old = rw.GetBondBetweenAtoms(b, c)
+    old.SetBondType(_SINGLE)
+    old.SetStereo(Chem.BondStereo.STEREONONE)
+    rw.GetBondBetweenAtoms(a, b).SetBondType(_DOUBLE)
+    # Directions that described the old C=C's geometry would mislabel the new one: both are open now.
+    for idx in (a, b, c):
+        for bond in rw.GetAtomWithIdx(idx).GetBonds():
+            if bond.GetBondType() == _SINGLE:
+                bond.SetBondDir(Chem.BondDir.NONE)
+    new = rw.AddAtom(Chem.Atom(_BR))
+    rw.AddBond(c, new, _SINGLE)
+    Chem.SanitizeMol(rw)
+    return rw.GetMol()
+
+
+def _termini(mol: Chem.Mol, a: int) -> list[tuple[str, Chem.Mol, int]]:
+    """(terminus, product, substituents on the product's C=C) for the radical at atom ``a``."""
+    atom = mol.GetAtomWithIdx(a)
+    shifted = []
+    kept_subst = -1
+    for b_atom in atom.GetNeighbors():
+        b = b_atom.GetIdx()
+        for bond in b_atom.GetBonds():
+            c = bond.GetOtherAtomIdx(b)
+            if c == a or bond.GetBondType() != _DOUBLE or bond.GetIsAromatic():
+                continue
+            if mol.GetAtomWithIdx(c).GetAtomicNum() != 6:
+                continue
+            kept_subst = max(kept_subst, _alkene_substituents(mol, b, c))
+            product = _shifted_bromide(mol, a, b, c)
+            shifted.append(("allylic shift", product, _alkene_substituents(product, a, b)))
+    # At the radical carbon the existing C=C stays (benzylic: none, -1).
+    return [("radical carbon", _bromide_at_radical(mol, a), kept_subst), *shifted]
+
+
+def _ez_open(product: Chem.Mol) -> bool:
+    """True when the product has a double bond whose E/Z geometry nothing fixes (both form)."""
+    return any(
+        e.type == Chem.StereoType.Bond_Double and e.specified == Chem.StereoSpecified.Unspecified
+        for e in Chem.FindPotentialStereo(Chem.Mol(product))
+    )
+
+
+def allylic_rows(
+    mol: Chem.Mol, groups: list, specified: bool, skeleton: Skeleton, outcomes: list[StereoOutcome] | None = None
+) -> list[tuple]:
+    """NBS product rows of one structure (without ``struct``): see :data:`ALLYLIC_SCHEMA`.
+
+    ``groups`` are the structure's :class:`engine.sites.SiteGroup` list. With
+    input stereo every carbon of a group is followed (they may give different
+    stereoisomers); otherwise the first stands for all. ``outcomes`` (per
+    group, the site table's stereo) is reused for a bromide formed only at the
+    radical carbon of one group: it is that group's monochloride with Br for
+    Cl, so its stereo is the same and need not be worked out again.
+    """
+    factor = P.NBS_SUBSTITUENT_FACTOR.value
+    # product constitution → {group index: [share, termini, subst]}, plus every product molecule formed
+    per_product: dict[str, dict[int, list]] = {}
+    mols: dict[str, list[Chem.Mol]] = {}
+    for g, group in enumerate(groups):
+        if group.site not in NBS_SITES:
+            continue
+        atoms = group.atoms if specified else group.atoms[:1]
+        for a in atoms:
+            termini = _termini(mol, a)
+            weights = np.array([factor ** max(n, 0) for _, _, n in termini])
+            weights /= weights.sum()
+            for (terminus, product, n), w in zip(termini, weights):
+                key = Chem.MolToSmiles(product, isomericSmiles=False)
+                entry = per_product.setdefault(key, {}).setdefault(g, [0.0, set(), n])
+                entry[0] += w / len(atoms)
+                entry[1].add(terminus)
+                mols.setdefault(key, []).append(product)
+    rows = []
+    for product_id, (key, by_group) in enumerate(per_product.items()):
+        products = mols[key]
+        (only, (_, termini_only, _)), *others = by_group.items()
+        if outcomes is not None and not others and termini_only == {"radical carbon"}:
+            st = outcomes[only]
+        else:
+            st = stereo_outcome(products, skeleton)
+        smiles = Chem.MolToSmiles(products[0], isomericSmiles=specified)
+        for g, (share, termini, n) in by_group.items():
+            site = groups[g].site
+            rows.append(
+                (smiles, product_id, site, SITE_CLASSES.index(site), groups[g].h_count,
+                 ",".join(t for t in TERMINI if t in termini), n, share,
+                 st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate, _ez_open(products[0]))
+            )
+    return rows
+
+
+def nbs_percent(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> np.ndarray:
+    """Percent of each row's product among the structure's NBS monobromides (rows of one product add up)."""
+    struct = allylic["struct"].to_numpy()
+    weights = (
+        allylic["h_count"].to_numpy(dtype=np.float64) * per_h[allylic["site_code"].to_numpy()]
+        * allylic["share"].to_numpy(dtype=np.float64)
+    )
+    totals = np.bincount(struct, weights=weights, minlength=n_struct)
+    denom = totals[struct] if len(struct) else np.zeros(0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(denom > 0, 100.0 * weights / np.where(denom > 0, denom, 1.0), 0.0)
+
+
+def nbs_products(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> pd.DataFrame:
+    """One row per (struct, product): summed ``nbs_pct``, site classes and termini joined, stereo."""
+    if allylic.empty:
+        return pd.DataFrame(columns=["struct", "product", "site", "terminus", "alkene_subst", "stereo",
+                                     "n_stereoisomers", "n_diastereomers", "stereo_approx", "ez_open", "nbs_pct"])
+    df = allylic.assign(nbs_pct=nbs_percent(allylic, per_h, n_struct))
+
+    def joined(values: pd.Series) -> str:
+        seen: list[str] = []
+        for v in values:
+            for part in str(v).split(","):
+                if part and part not in seen:
+                    seen.append(part)
+        return ",".join(seen)
+
+    out = df.groupby(["struct", "product"], sort=False, as_index=False).agg(
+        site=("site", joined), terminus=("terminus", joined), alkene_subst=("alkene_subst", "max"),
+        stereo=("stereo", "first"), n_stereoisomers=("n_stereoisomers", "first"),
+        n_diastereomers=("n_diastereomers", "first"), stereo_approx=("stereo_approx", "first"),
+        ez_open=("ez_open", "first"), nbs_pct=("nbs_pct", "sum"),
+    )
+    return out
+
+
+def nbs_majors(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> tuple[np.ndarray, np.ndarray]:
+    """Per structure: SMILES and percent of the NBS major product ('' and NaN without allylic/benzylic C–H).
+
+    Integer keys (struct, product_id) instead of a string group-by: this runs for every re-weighing.
+    Ties go to the product met first in perception order.
+    """
+    major = np.full(n_struct, "", dtype=object)
+    pct = np.full(n_struct, np.nan)
+    if allylic.empty:
+        return major, pct
+    row_pct = nbs_percent(allylic, per_h, n_struct)
+    struct = allylic["struct"].to_numpy(dtype=np.int64)
+    pid = allylic["product_id"].to_numpy(dtype=np.int64)
+    width = int(pid.max()) + 1
+    keys, first, inverse = np.unique(struct * width + pid, return_index=True, return_inverse=True)
+    summed = np.bincount(inverse.ravel(), weights=row_pct)
+    key_struct = keys // width
+    order = np.lexsort((first, -summed, key_struct))
+    head = np.r_[True, key_struct[order][1:] != key_struct[order][:-1]]
+    best = order[head]
+    best = best[summed[best] > 0]
+    idx = key_struct[best]
+    major[idx] = allylic["product"].to_numpy(dtype=object)[first[best]]
+    pct[idx] = summed[best]
+    return major, pct

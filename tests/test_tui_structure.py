@@ -1,0 +1,113 @@
+"""Structure drawings in the app: detection, the drawing itself, and the text fallback."""
+
+from __future__ import annotations
+
+import asyncio
+
+import pytest
+from textual.app import App, ComposeResult
+from textual.widgets import Static
+
+import engine
+from tui import structure_view as sv
+
+
+@pytest.fixture
+def propane_products():
+    library = engine.load_library(__import__("pandas").DataFrame({"smiles": ["CCC"]}), use_cache=False)
+    return library.products(0)
+
+
+def test_images_can_be_turned_off(monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv(sv.IMAGES_ENV, "off")
+    assert sv.detect_graphics() is None
+    monkeypatch.delenv(sv.IMAGES_ENV)
+    assert sv.detect_graphics(enabled=False) is None
+
+
+def test_no_terminal_means_no_images(monkeypatch: pytest.MonkeyPatch) -> None:
+    # Under pytest stdout is not a terminal: detection must say so, not guess.
+    monkeypatch.delenv(sv.IMAGES_ENV, raising=False)
+    assert sv.detect_graphics() is None
+
+
+def test_forced_unicode_mode(monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv(sv.IMAGES_ENV, "unicode")
+    assert sv.detect_graphics() == "unicode"
+
+
+def test_marks_follow_the_products(propane_products) -> None:
+    marks = sv.marks_for(propane_products)
+    assert [m.letter for m in marks] == ["a", "b"]
+    assert {m.site for m in marks} == {"primary", "secondary"}
+
+
+def test_png_drawing_is_a_png(propane_products) -> None:
+    from halosift.report.drawing import structure_png
+
+    png = structure_png("CCC", sv.marks_for(propane_products))
+    assert png[:8] == b"\x89PNG\r\n\x1a\n" and len(png) > 1000
+
+
+class _Host(App):
+    def __init__(self, widget) -> None:
+        super().__init__()
+        self._widget = widget
+
+    def compose(self) -> ComposeResult:
+        yield self._widget
+
+
+def test_fallback_is_a_clear_text_note(propane_products) -> None:
+    widget = sv.structure_widget(None, "CCC", propane_products)
+    assert isinstance(widget, Static)
+
+    async def scenario() -> None:
+        async with _Host(widget).run_test(size=(100, 10)) as pilot:
+            await pilot.pause()
+            assert "no inline images" in str(widget.render())
+
+    asyncio.run(scenario())
+
+
+def test_image_widget_mounts_and_renders(propane_products) -> None:
+    widget = sv.structure_widget("unicode", "CCC", propane_products)
+    assert not isinstance(widget, Static)
+
+    async def scenario() -> None:
+        async with _Host(widget).run_test(size=(100, 30)) as pilot:
+            await pilot.pause()
+            assert widget.is_mounted and widget.size.width > 0
+
+    asyncio.run(scenario())
+
+
+def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
+    # The app's detail screen mounts the image widget in image mode and the note otherwise.
+    import pandas as pd
+
+    from tui.app import HalosiftApp
+
+    lib = tmp_path / "lib.csv"
+    pd.DataFrame({"id": ["A1", "A2"], "smiles": ["CCC", "CC(C)C"]}).to_csv(lib, index=False)
+
+    async def scenario(graphics):
+        app = HalosiftApp(str(lib), use_cache=False, graphics=graphics)
+        async with app.run_test(size=(120, 40)) as pilot:
+            for _ in range(100):
+                await pilot.pause(0.05)
+                if getattr(app, "library", None) is not None:
+                    break
+            from tui.detail import DetailScreen
+
+            for _ in range(100):  # the table fills once the first evaluation lands
+                await pilot.press("enter")
+                await pilot.pause(0.05)
+                if isinstance(app.screen, DetailScreen):
+                    break
+            await pilot.pause(0.2)
+            box = app.screen.query_one("#detail-structure")
+            return [type(w).__name__ for w in box.children]
+
+    assert asyncio.run(scenario(None)) == ["Static"]
+    assert asyncio.run(scenario("unicode")) == ["UnicodeImage"]

@@ -226,10 +226,10 @@ def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> li
 def _screen(args: argparse.Namespace) -> int:
     import time
 
-    from engine import Cancelled, LibraryError, load_library
+    from engine import Cancelled, LibraryError
     from engine.io import check_output, write_table
     from engine.provenance import export_metadata
-    from halosift.progress import ProgressLine, summary_lines
+    from halosift.progress import summary_lines
 
     started = time.monotonic()
     try:
@@ -240,14 +240,7 @@ def _screen(args: argparse.Namespace) -> int:
         return _fail(str(exc))
     try:
         check_output(args.output, force=args.force, protect=[args.input])
-        bar = ProgressLine(enabled=not args.quiet)
-        try:
-            library = load_library(
-                args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
-                use_cache=not args.no_cache, progress=bar,
-            )
-        finally:
-            bar.close()
+        library = _load(args, quiet=args.quiet)
         result = library.evaluate(cond)
         meta = export_metadata(cond, source=str(args.input))
         written = write_table(result, args.output, metadata=meta, force=args.force, protect=[args.input])
@@ -267,8 +260,7 @@ def _screen(args: argparse.Namespace) -> int:
 def _report(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from engine import Cancelled, LibraryError, load_library
-    from halosift.progress import ProgressLine
+    from engine import Cancelled, LibraryError
     from halosift.report import check_report_output, read_ids, render_report, select_rows, write_report
 
     try:
@@ -283,14 +275,7 @@ def _report(args: argparse.Namespace) -> int:
         # Cheap checks first: a bad output path or ID list should not wait for perception.
         check_report_output(args.output, force=args.force, protect=[args.input])
         ids = read_ids(args.ids) if args.ids else None
-        bar = ProgressLine()
-        try:
-            library = load_library(
-                args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
-                use_cache=not args.no_cache, progress=bar,
-            )
-        finally:
-            bar.close()
+        library = _load(args, quiet=False)
         result = library.evaluate(cond)
         id_values = library.input[library.id_column] if library.id_column is not None else None
         ids_source = Path(args.ids).name if args.ids else ""
@@ -313,6 +298,21 @@ def _report(args: argparse.Namespace) -> int:
     print(f"wrote {written} ({report.n_sections:,} substrate entries{left}; summary of {report.n_rows:,} rows)",
           file=sys.stderr)
     return EXIT_OK
+
+
+def _load(args: argparse.Namespace, *, quiet: bool):
+    """The library named on the command line, perceived with a progress bar on a terminal."""
+    from engine import load_library
+    from halosift.progress import ProgressLine
+
+    bar = ProgressLine(enabled=not quiet)
+    try:
+        return load_library(
+            args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
+            use_cache=not args.no_cache, progress=bar,
+        )
+    finally:
+        bar.close()
 
 
 def _browse(args: argparse.Namespace) -> int:

@@ -286,3 +286,13 @@ def test_histogram_bins_and_ticks() -> None:
     assert sum(int(v) for v in bars.values()) == 7
     assert nice_ticks(393) == [0, 100, 200, 300, 400]
     assert nice_ticks(3) == [0, 1, 2, 3]
+
+
+def test_entries_carry_confidence_flags_and_serving_reagent(tmp_path: Path) -> None:
+    # Every output shows what a prediction rests on (confidence) and its special-site flags.
+    page = report(tmp_path)
+    result = engine.screen(tmp_path / "kv_catalogue.csv", use_cache=False)
+    ok = result[result["status"] == "ok"]
+    assert page.count("Confidence: ") == int((ok["confidence"] != "").sum())
+    for flag in {f for flags in ok["flags"] for f in flags.split(",") if f}:
+        assert flag in page

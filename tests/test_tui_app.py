@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import asyncio
-import functools
 import io
 import os
 import threading
@@ -22,34 +20,12 @@ from tui.export import ConfirmScreen, ExportScreen, check_export_path
 from tui.filter_form import FilterForm
 from tui.help import HelpScreen
 from tui.table import ROW_KEY, LibraryTable
+from tui_helpers import QX_ROWS, async_test, settle
 
 SIZE = (120, 40)
 
 
-def async_test(fn):
-    """Run an async test function in a fresh event loop (no async plugin is a dependency)."""
-
-    @functools.wraps(fn)
-    def wrapper(*args, **kwargs):
-        return asyncio.run(fn(*args, **kwargs))
-
-    return wrapper
-
-#: An invented supplier's list (IDs made up); the structures cover every verdict and two rejections.
-SMALL = [
-    ("QX-0001", "CC"),
-    ("QX-0002", "CCC"),
-    ("QX-0003", "CC(C)C"),
-    ("QX-0004", "Cc1ccccc1"),
-    ("QX-0005", "CCc1ccccc1"),
-    ("QX-0006", "C1CCCCC1"),
-    ("QX-0007", "CC1=CCCCC1"),
-    ("QX-0008", "c1ccccc1"),
-    ("QX-0009", "O"),
-    ("QX-0010", "CCC(C)CC"),
-    ("QX-0011", "C(C)(C)C"),
-    ("QX-0012", "not a smiles"),
-]
+SMALL = QX_ROWS[:12]
 
 
 def small_library(folder: Path) -> Path:
@@ -69,18 +45,6 @@ def library_path(folder: Path) -> Path:
         return Path(sample_path())
     except (ImportError, OSError, ValueError):
         return small_library(folder)
-
-
-async def settle(pilot, app: HalosiftApp, rounds: int = 400) -> None:
-    """Wait until screening, every worker and every table update has finished."""
-    for _ in range(rounds):
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-        if not app.busy and not any(w.is_running for w in app.workers):
-            await pilot.pause()
-            return
-        await pilot.pause(0.02)
-    raise AssertionError("the app did not settle")
 
 
 def shown(app: HalosiftApp) -> pd.DataFrame:

@@ -14,43 +14,12 @@ import pandas as pd
 
 from tui.app import HalosiftApp
 from tui.table import LibraryTable
-
-#: An invented supplier's list (IDs made up) covering every verdict and two rejections.
-ROWS = [
-    ("QX-0001", "CC"),
-    ("QX-0002", "CCC"),
-    ("QX-0003", "CC(C)C"),
-    ("QX-0004", "Cc1ccccc1"),
-    ("QX-0005", "CCc1ccccc1"),
-    ("QX-0006", "C1CCCCC1"),
-    ("QX-0007", "CC1=CCCCC1"),
-    ("QX-0008", "c1ccccc1"),
-    ("QX-0009", "O"),
-    ("QX-0010", "CCC(C)CC"),
-    ("QX-0011", "C(C)(C)C"),
-    ("QX-0012", "not a smiles"),
-    ("QX-0013", "CC(C)Cc1ccccc1"),
-    ("QX-0014", "CCCC"),
-]
-
+from tui_helpers import QX_ROWS, settle
 
 def make_app(folder: Path) -> HalosiftApp:
     path = folder / "qx_library.csv"
-    pd.DataFrame(ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
     return HalosiftApp(str(path))
-
-
-async def settle(pilot) -> None:
-    """Wait until screening, every worker and every table update has finished."""
-    app = pilot.app
-    for _ in range(500):
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-        if not app.busy and not any(w.is_running for w in app.workers):
-            await pilot.pause()
-            return
-        await pilot.pause(0.02)
-    raise AssertionError("the app did not settle")
 
 
 async def open_detail_of_ethylbenzene(pilot) -> None:

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import asyncio
-import functools
 import gc
 
 import numpy as np
@@ -12,32 +10,11 @@ import pandas as pd
 from tui.app import HalosiftApp
 from tui.filters import FilterSpec
 from tui.table import LibraryTable, fit, format_values
+from tui_helpers import async_test, settle
 
 N_ROWS = 100_000
 #: Structures repeated down the synthetic library (IDs invented).
 STRUCTURES = ["CC", "CCC", "CC(C)C", "Cc1ccccc1", "CCc1ccccc1", "C1CCCCC1", "CC1=CCCCC1", "c1ccccc1", "O", "CCC(C)CC"]
-
-
-def async_test(fn):
-    """Run an async test function in a fresh event loop (no async plugin is a dependency)."""
-
-    @functools.wraps(fn)
-    def wrapper(*args, **kwargs):
-        return asyncio.run(fn(*args, **kwargs))
-
-    return wrapper
-
-
-async def settle(pilot, app: HalosiftApp, rounds: int = 1000) -> None:
-    """Wait until screening, every worker and every table update has finished."""
-    for _ in range(rounds):
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-        if not app.busy and not any(w.is_running for w in app.workers):
-            await pilot.pause()
-            return
-        await pilot.pause(0.02)
-    raise AssertionError("the app did not settle")
 
 
 def big_library() -> pd.DataFrame:

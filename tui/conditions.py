@@ -15,7 +15,9 @@ from tui.messages import ConditionsProposed, PanelClosed
 #: Seconds of quiet typing before a valid value is applied.
 SETTLE_SECONDS = 0.3
 #: Input id → engine.Conditions field.
-FIELDS: dict[str, str] = {"cond-cl2": "cl2_temp_c", "cond-br2": "br2_temp_c", "cond-threshold": "threshold_pct"}
+FIELDS: dict[str, str] = {
+    "cond-cl2": "cl2_temp_c", "cond-br2": "br2_temp_c", "cond-nbs": "nbs_temp_c", "cond-threshold": "threshold_pct",
+}
 
 
 def conditions_from_text(values: dict[str, str]) -> tuple[Any | None, str]:
@@ -23,7 +25,10 @@ def conditions_from_text(values: dict[str, str]) -> tuple[Any | None, str]:
     from engine import Conditions
 
     kwargs: dict[str, float] = {}
-    labels = {"cl2_temp_c": "Cl2 temperature", "br2_temp_c": "Br2 temperature", "threshold_pct": "threshold"}
+    labels = {
+        "cl2_temp_c": "Cl2 temperature", "br2_temp_c": "Br2 temperature", "nbs_temp_c": "NBS temperature",
+        "threshold_pct": "threshold",
+    }
     for field, text in values.items():
         text = text.strip()
         if not text:
@@ -58,6 +63,8 @@ class ConditionsPanel(Vertical):
             yield Input(id="cond-cl2", type="number", compact=True, classes="cond-input")
             yield Label("Br2 °C", classes="cond-label")
             yield Input(id="cond-br2", type="number", compact=True, classes="cond-input")
+            yield Label("NBS °C", classes="cond-label")
+            yield Input(id="cond-nbs", type="number", compact=True, classes="cond-input")
             yield Label("threshold %", classes="cond-label")
             yield Input(id="cond-threshold", type="number", compact=True, classes="cond-input")
         yield Static("", id="cond-note")

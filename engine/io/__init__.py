@@ -15,7 +15,7 @@ from .errors import LibraryError
 from .formats import INPUT_FORMATS, OUTPUT_FORMATS, output_format
 from .readers import open_frame, open_library
 from .source import LibrarySource, RawBatch, concat_batches
-from .writers import about_path, check_output, write_table
+from .writers import about_path, check_output, guard_output, write_table
 
 __all__ = [
     "ID_NAMES",
@@ -29,6 +29,7 @@ __all__ = [
     "atomic_path",
     "check_output",
     "concat_batches",
+    "guard_output",
     "open_frame",
     "open_library",
     "output_format",

@@ -45,16 +45,19 @@ def _about_text(metadata: Mapping[str, str]) -> str:
     return "".join(out)
 
 
-def check_output(
-    path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
+def guard_output(
+    path: str | os.PathLike[str],
+    *,
+    force: bool = False,
+    protect: Iterable[str | os.PathLike[str]] = (),
+    companions: Iterable[Path] = (),
 ) -> Path:
-    """Raise LibraryError now if writing ``path`` would fail the rules (format, input, existing, folder)."""
+    """Raise LibraryError unless ``path`` (and its ``companions``) may be written: not an input, not a
+    folder, not existing unless ``force``, in a folder that exists. Format is not checked here."""
     path = Path(path).expanduser()
-    fmt, _ = split_format(path, OUTPUT_FORMATS)
-    targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
     for guarded in protect:
         guarded = Path(guarded).expanduser()
-        for target in targets:
+        for target in (path, *companions):
             if _same_file(target, guarded):
                 raise LibraryError(f"refusing to write over the input file {guarded}")
     if path.is_dir():
@@ -64,6 +67,16 @@ def check_output(
     if not path.parent.is_dir():
         raise LibraryError(f"cannot write {path}: folder {path.parent} does not exist")
     return path
+
+
+def check_output(
+    path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
+) -> Path:
+    """Raise LibraryError now if writing ``path`` would fail the rules (format, input, existing, folder)."""
+    path = Path(path).expanduser()
+    fmt, _ = split_format(path, OUTPUT_FORMATS)
+    companions = [about_path(path)] if fmt in ("csv", "tsv") else []
+    return guard_output(path, force=force, protect=protect, companions=companions)
 
 
 def write_table(

@@ -273,6 +273,15 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
             f'<span class="smiles">{_e(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
             f" {_e(result_row['stereo'])})</p>"
         )
+    extras = []
+    for column, label in (
+        ("serves", "Serves"), ("confidence", "Confidence"), ("flags", "Flags"), ("nbs_major", "Major under NBS"),
+    ):
+        value = result_row.get(column, "")
+        if isinstance(value, str) and value:
+            extras.append(f"{label}: {_e(value)}")
+    if extras:
+        lines.append(f'<p class="meta">{" · ".join(extras)}</p>')
     warn = ""
     if warnings:
         warn = '<div class="warnings" role="note">' + "".join(f"<p>Warning: {_e(w)}</p>" for w in warnings) + "</div>"

@@ -15,34 +15,16 @@ def is_report_path(path: str | os.PathLike[str]) -> bool:
     return Path(path).name.lower().endswith(REPORT_SUFFIXES)
 
 
-def _same_file(a: Path, b: Path) -> bool:
-    try:
-        if a.exists() and b.exists():
-            return os.path.samefile(a, b)
-    except OSError:
-        pass
-    return a.resolve() == b.resolve()
-
-
 def check_report_output(
     path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
 ) -> Path:
     """Raise engine.LibraryError (one line) now if the report could not or should not be written to ``path``."""
-    from engine.io import LibraryError
+    from engine.io import LibraryError, guard_output
 
     path = Path(path).expanduser()
     if not is_report_path(path):
         raise LibraryError(f"a report is an HTML file: {path} should end in .html")
-    for guarded in protect:
-        if _same_file(path, Path(guarded).expanduser()):
-            raise LibraryError(f"refusing to write over the input file {guarded}")
-    if path.is_dir():
-        raise LibraryError(f"cannot write {path}: it is a directory")
-    if (path.exists() or path.is_symlink()) and not force:
-        raise LibraryError(f"{path} exists; use --force to replace it")
-    if not path.parent.is_dir():
-        raise LibraryError(f"cannot write {path}: folder {path.parent} does not exist")
-    return path
+    return guard_output(path, force=force, protect=protect)
 
 
 def write_report(

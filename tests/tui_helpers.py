@@ -1,0 +1,47 @@
+"""Shared pieces of the app's tests: an invented library and ways to wait for the app."""
+
+from __future__ import annotations
+
+import asyncio
+import functools
+
+#: An invented supplier's list (IDs made up) covering every verdict and two rejections.
+QX_ROWS = [
+    ("QX-0001", "CC"),
+    ("QX-0002", "CCC"),
+    ("QX-0003", "CC(C)C"),
+    ("QX-0004", "Cc1ccccc1"),
+    ("QX-0005", "CCc1ccccc1"),
+    ("QX-0006", "C1CCCCC1"),
+    ("QX-0007", "CC1=CCCCC1"),
+    ("QX-0008", "c1ccccc1"),
+    ("QX-0009", "O"),
+    ("QX-0010", "CCC(C)CC"),
+    ("QX-0011", "C(C)(C)C"),
+    ("QX-0012", "not a smiles"),
+    ("QX-0013", "CC(C)Cc1ccccc1"),
+    ("QX-0014", "CCCC"),
+]
+
+
+def async_test(fn):
+    """Run an async test function in a fresh event loop (no async plugin is a dependency)."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        return asyncio.run(fn(*args, **kwargs))
+
+    return wrapper
+
+
+async def settle(pilot, app=None, rounds: int = 1000) -> None:
+    """Wait until screening, every worker and every table update has finished."""
+    app = app or pilot.app
+    for _ in range(rounds):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+        if not app.busy and not any(w.is_running for w in app.workers):
+            await pilot.pause()
+            return
+        await pilot.pause(0.02)
+    raise AssertionError("the app did not settle")

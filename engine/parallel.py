@@ -18,8 +18,12 @@ from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.nbs import frame_from_rows
 from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
 
-#: Strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
+#: Most strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
 CHUNK = 2_000
+#: Fewest strings per task, and how many tasks each worker should get at least (so the
+#: last tasks do not leave one worker idle while another finishes a big one).
+MIN_CHUNK = 100
+TASKS_PER_WORKER = 8
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
 
@@ -67,7 +71,9 @@ def perceive_parallel(
     """Perceive many strings, in worker processes when it pays; order is kept."""
     total = len(smiles)
     workers = default_workers() if workers is None else max(1, workers)
-    chunks = [list(smiles[i : i + CHUNK]) for i in range(0, total, CHUNK)]
+    size = max(MIN_CHUNK, min(CHUNK, -(-total // (workers * TASKS_PER_WORKER)))) if workers > 1 else CHUNK
+    size = min(size, CHUNK)  # a test may shrink CHUNK below MIN_CHUNK
+    chunks = [list(smiles[i : i + size]) for i in range(0, total, size)]
     parts: list[Perception | None] = [None] * len(chunks)
     done = 0
     if progress:

@@ -22,6 +22,7 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine import parameters as P
+from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CLASSES
 from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
 
@@ -198,10 +199,7 @@ def nbs_percent(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> np.n
         allylic["h_count"].to_numpy(dtype=np.float64) * per_h[allylic["site_code"].to_numpy()]
         * allylic["share"].to_numpy(dtype=np.float64)
     )
-    totals = np.bincount(struct, weights=weights, minlength=n_struct)
-    denom = totals[struct] if len(struct) else np.zeros(0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        return np.where(denom > 0, 100.0 * weights / np.where(denom > 0, denom, 1.0), 0.0)
+    return percent_of_structure(weights, struct, n_struct)
 
 
 def nbs_products(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> pd.DataFrame:

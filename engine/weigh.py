@@ -12,6 +12,7 @@ from engine.conditions import REAGENTS, Conditions
 from engine.nbs import nbs_majors
 from engine.polyhalogenation import poly_pct_at_ratio
 from engine.perception import Perception
+from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CLASSES
 
 VERDICTS = ("single", "br-selective", "mixture", "inert")
@@ -62,14 +63,6 @@ def confidence_labels(
     return labels[worst]
 
 
-def _percent(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarray:
-    totals = np.bincount(struct, weights=weights, minlength=n_struct)
-    denom = totals[struct]
-    with np.errstate(invalid="ignore", divide="ignore"):
-        pct = np.where(denom > 0, 100.0 * (weights / np.where(denom > 0, denom, 1.0)), 0.0)
-    return pct
-
-
 def weigh(
     sites: pd.DataFrame, conditions: Conditions, n_struct: int | None = None, reagents: tuple[str, ...] = tuple(REAGENTS)
 ) -> pd.DataFrame:
@@ -79,7 +72,7 @@ def weigh(
         n_struct = int(struct.max()) + 1 if len(struct) else 0
     out = sites.copy()
     for reagent in reagents:
-        out[f"{reagent}_pct"] = _percent(site_weights(sites, conditions, reagent), struct, n_struct)
+        out[f"{reagent}_pct"] = percent_of_structure(site_weights(sites, conditions, reagent), struct, n_struct)
     return out
 
 
@@ -143,7 +136,7 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     n_products[:] = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
 
     out: dict[str, object] = {"n_products": n_products}
-    pcts = {r: _percent(weights[r], struct, n) for r in REAGENTS}
+    pcts = {r: percent_of_structure(weights[r], struct, n) for r in REAGENTS}
     major_stereo = np.full(n, "", dtype=object)
     for reagent in REAGENTS:
         pct = pcts[reagent]

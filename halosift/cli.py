@@ -199,7 +199,7 @@ def _explain(args: argparse.Namespace) -> int:
             d["caution"] = CAUTION
         print(json.dumps(d, ensure_ascii=False, indent=2))
     elif result.status != "ok":
-        print(f"halosift: rejected {args.smiles!r}: {result.reason}", file=sys.stderr)
+        print(f"halosift: rejected {_short(args.smiles)!r}: {result.reason}", file=sys.stderr)
     else:
         print(explanation_table(result, reagents, warnings, plans))
     return EXIT_OK if result.status == "ok" else EXIT_USAGE
@@ -319,6 +319,11 @@ def _browse(args: argparse.Namespace) -> int:
     from tui.app import run
 
     return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images)
+
+
+def _short(text: str, limit: int = 60) -> str:
+    """Echo long input abbreviated, so the error stays one readable line."""
+    return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
 def _fail(message: str) -> int:

@@ -126,14 +126,34 @@ class Split:
             slope += np.bincount(self.struct[rows], weights=-self.phi[rows] * (np.log(a) + 1.0), minlength=self.n)[: self.n]
         return mono, slope
 
+    def _start(self, available: np.ndarray) -> np.ndarray:
+        """A first guess per structure from a one-site stand-in (share-weighted mean κ).
+
+        Solving the stand-in costs one value per structure rather than per product, so
+        it can be bisected finely; the full model then needs only a few Newton steps.
+        """
+        weight = np.bincount(self.struct, weights=self.phi, minlength=self.n)[: self.n]
+        mean_kappa = np.divide(
+            np.bincount(self.struct, weights=self.phi * self.kappa, minlength=self.n)[: self.n], weight,
+            out=np.zeros(self.n), where=weight > 0,
+        )
+        k = np.clip(mean_kappa, 0.0, 1.0 - 1e-6)
+        lo, hi = np.zeros(self.n), np.ones(self.n)
+        for _ in range(12):  # a start, not the answer: Newton on the full model finishes it
+            mid = (lo + hi) / 2
+            used = 2.0 * (1.0 - mid) - (mid**k - mid) / (1.0 - k)
+            above = used >= available  # too much halogen used: more substrate must survive
+            lo = np.where(above, mid, lo)
+            hi = np.where(above, hi, mid)
+        # Kept off A = 0, where A^κ is too steep for Newton steps.
+        return np.clip((lo + hi) / 2, 1e-3, 1.0)
+
     def left_at_ratio_fast(self, ratio: float, steps: int = 12) -> np.ndarray:
         """As :meth:`left_at_ratio`, by bracketed Newton steps (each costs one exp per product, as one
         bisection step does, but converges quadratically). Rows that do not settle fall back to bisection."""
         available = np.full(self.n, 1.0 / ratio)
         lo, hi = np.zeros(self.n), np.ones(self.n)
-        # Start a little above where pure monohalogenation would leave it (second halogenations
-        # spend halogen, so more substrate survives), and off A = 0, where A^κ is too steep.
-        left = np.clip(1.0 - available / 1.5, 0.1, 1.0)
+        left = self._start(available)
         for _ in range(steps):
             mono, slope = self._mono_and_slope(left)
             excess = 2.0 * (1.0 - left) - mono - available  # halogen used minus halogen given; falls as A rises

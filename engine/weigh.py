@@ -7,6 +7,8 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
+import pyarrow as pa
+import pyarrow.compute as pc
 
 from engine.conditions import REAGENTS, Conditions
 from engine.nbs import nbs_majors
@@ -38,7 +40,7 @@ def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> n
 def basis_rank(conditions: Conditions, reagent: str) -> np.ndarray:
     """Per site code, the index in :data:`BASES` of what its rate rests on (len(BASES) when not abstracted)."""
     rank = {b: i for i, b in enumerate(BASES)}
-    return np.array([rank.get(b, len(BASES)) for b in conditions.bases(reagent)], dtype=np.int64)
+    return np.array([rank.get(b, len(BASES)) for b in conditions.bases(reagent)], dtype=np.int8)
 
 
 def confidence_labels(
@@ -50,12 +52,13 @@ def confidence_labels(
     class toward that reagent's radical; a product counts only for the
     reagents under which it reaches the cut-off. Empty when no product does.
     """
-    none = len(BASES)
-    row_rank = np.full(len(site_code), none, dtype=np.int64)
+    none = np.int8(len(BASES))
+    row_rank = np.full(len(site_code), none, dtype=np.int8)
     for reagent, p in pct.items():
         ranks = basis_rank(conditions, reagent)[site_code]
-        row_rank = np.minimum(row_rank, np.where(p >= CONFIDENCE_MIN_PCT, ranks, none))
-    worst = np.full(n_struct, none, dtype=np.int64)
+        counted = p >= CONFIDENCE_MIN_PCT
+        np.minimum(row_rank, np.where(counted, ranks, none), out=row_rank)
+    worst = np.full(n_struct, none, dtype=np.int8)
     if len(struct):
         starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
         worst[struct[starts]] = np.minimum.reduceat(row_rank, starts)
@@ -152,7 +155,9 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
             if reagent == "br2":
                 major_stereo[seg_struct[has]] = sites["stereo"].take(chosen).to_numpy(dtype=object)
         if reagent == "br2":
-            major_smiles = pd.Series(major_smiles, dtype=object).str.replace("Cl", "Br", regex=False).to_numpy()
+            major_smiles = np.asarray(
+                pc.replace_substring(pa.array(major_smiles, type=pa.string()), "Cl", "Br").to_pylist(), dtype=object
+            )
         out[f"{reagent}_major"] = major_smiles
         out[f"{reagent}_major_pct"] = major_pct
     out["stereo"] = major_stereo

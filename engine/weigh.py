@@ -44,7 +44,12 @@ def basis_rank(conditions: Conditions, reagent: str) -> np.ndarray:
 
 
 def confidence_labels(
-    site_code: np.ndarray, pct: dict[str, np.ndarray], struct: np.ndarray, n_struct: int, conditions: Conditions
+    site_code: np.ndarray,
+    pct: dict[str, np.ndarray],
+    struct: np.ndarray,
+    n_struct: int,
+    conditions: Conditions,
+    starts: np.ndarray | None = None,
 ) -> np.ndarray:
     """Per structure, the weakest basis among products with ≥ CONFIDENCE_MIN_PCT % under any reagent in ``pct``.
 
@@ -60,7 +65,8 @@ def confidence_labels(
         np.minimum(row_rank, np.where(counted, ranks, none), out=row_rank)
     worst = np.full(n_struct, none, dtype=np.int8)
     if len(struct):
-        starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
+        if starts is None:
+            starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
         worst[struct[starts]] = np.minimum.reduceat(row_rank, starts)
     labels = np.array([*BASES, ""], dtype=object)
     return labels[worst]
@@ -167,7 +173,7 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     if len(starts):
         masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
     out["site_types"] = _site_type_names(masks)
-    out["confidence"] = confidence_labels(sites["site_code"].to_numpy(), pcts, struct, n, conditions)
+    out["confidence"] = confidence_labels(sites["site_code"].to_numpy(), pcts, struct, n, conditions, starts)
     out["nbs_major"], out["nbs_major_pct"] = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
     h = sites["h_count"].to_numpy()
     for reagent in REAGENTS:

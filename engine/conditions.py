@@ -49,6 +49,11 @@ class Conditions:
             return 1.0
         return selectivity_exponent(self.cl2_solvent, self.cl2_solvent_molar)
 
+    def reagent_key(self, reagent: str) -> tuple:
+        """Everything one reagent's split depends on (its temperature; for cl2 also the solvent)."""
+        key: tuple = (reagent, self.temp_c(reagent))
+        return key + ((self.cl2_solvent, self.cl2_solvent_molar) if reagent == "cl2" else ())
+
     def per_h(self, reagent: str) -> np.ndarray:
         """Rate constant per H for every site class (by site code) under these conditions."""
         k = rate_table(RADICAL_OF[reagent]).per_h(self.temp_k(reagent))

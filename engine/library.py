@@ -92,6 +92,8 @@ class Library:
     """The file read, when the library came from a file."""
     _summaries: dict = field(default_factory=dict, repr=False, compare=False)
     """Memo of per-structure summaries by conditions (small: the app revisits few)."""
+    _parts: dict = field(default_factory=dict, repr=False, compare=False)
+    """Memo of summary parts that depend on one reagent's settings (see engine.weigh.summarise)."""
 
     def __len__(self) -> int:
         return len(self.input)
@@ -100,7 +102,9 @@ class Library:
         if conditions not in self._summaries:
             if len(self._summaries) > 8:
                 self._summaries.clear()
-            self._summaries[conditions] = summarise(self.perception, conditions)
+            if len(self._parts) > 24:  # a few reagent settings' worth of arrays; the static part is re-derived
+                self._parts.clear()
+            self._summaries[conditions] = summarise(self.perception, conditions, self._parts)
         return self._summaries[conditions]
 
     def evaluate(self, conditions: Conditions | None = None) -> pd.DataFrame:

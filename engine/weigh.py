@@ -15,7 +15,7 @@ from engine.nbs import nbs_majors
 from engine.polyhalogenation import poly_pct_at_ratio
 from engine.perception import Perception
 from engine.shares import percent_of_structure
-from engine.site_classes import SITE_CLASSES
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 
 VERDICTS = ("single", "br-selective", "mixture", "inert")
 SUMMARY_COLUMNS = (
@@ -111,16 +111,15 @@ def _site_type_names(masks: np.ndarray) -> np.ndarray:
 
 
 def serves(
-    columns: dict, flags: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
+    columns: dict, alkene: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
 ) -> np.ndarray:
     """Per structure, the reagent that gives one major monohalide at ≥ threshold, or ''.
 
     Tried in :data:`SERVES_ORDER` (cl2, br2, nbs): the first whose major share
-    reaches the threshold. A substrate with C=C (flag ``alkene``) is offered
+    reaches the threshold. A substrate with C=C (``alkene``: its flag, per structure) is offered
     only nbs, because Cl2 and Br2 add to the double bond. Empty for rejected
     and inert rows, and when no reagent reaches the threshold.
     """
-    alkene = np.array(["alkene" in str(f).split(",") for f in flags], dtype=bool) if len(flags) else np.zeros(0, bool)
     out = np.full(len(ok), "", dtype=object)
     open_ = ok & (n_products > 0)
     for reagent in SERVES_ORDER:
@@ -131,55 +130,95 @@ def serves(
     return out
 
 
-def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
-    """One row per structure: product count, verdict, majors, stereo, site types, confidence."""
+def _memo(memo: dict | None, key: tuple, compute):
+    """``compute()``, remembered in ``memo`` under ``key`` when a memo is given."""
+    if memo is None:
+        return compute()
+    if key not in memo:
+        memo[key] = compute()
+    return memo[key]
+
+
+def _static(perception: Perception) -> dict:
+    """What does not depend on conditions: segments, product counts, site types, alkene rows."""
     structures, sites = perception.structures, perception.sites
     n = len(structures)
     struct = sites["struct"].to_numpy()
     starts = _segments(struct)
     seg_struct = struct[starts] if len(starts) else np.zeros(0, dtype=np.int64)
-
-    weights = {r: site_weights(sites, conditions, r) for r in REAGENTS}
-    abstractable = weights["cl2"] > 0
-    n_products = np.zeros(n, dtype=np.int32)
-    n_products[:] = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
-
-    out: dict[str, object] = {"n_products": n_products}
-    pcts = {r: percent_of_structure(weights[r], struct, n) for r in REAGENTS}
-    major_stereo = np.full(n, "", dtype=object)
-    for reagent in REAGENTS:
-        pct = pcts[reagent]
-        major_smiles = np.full(n, "", dtype=object)
-        major_pct = np.full(n, np.nan)
-        if len(starts):
-            rows = _first_max(pct, struct, starts)
-            has = n_products[seg_struct] > 0
-            chosen = rows[has]
-            # Gather strings for the majors only: converting every site's string costs more than the weighing.
-            major_smiles[seg_struct[has]] = sites["product"].take(chosen).to_numpy(dtype=object)
-            major_pct[seg_struct[has]] = pct[chosen]
-            if reagent == "br2":
-                major_stereo[seg_struct[has]] = sites["stereo"].take(chosen).to_numpy(dtype=object)
-        if reagent == "br2":
-            major_smiles = np.asarray(
-                pc.replace_substring(pa.array(major_smiles, type=pa.string()), "Cl", "Br").to_pylist(), dtype=object
-            )
-        out[f"{reagent}_major"] = major_smiles
-        out[f"{reagent}_major_pct"] = major_pct
-    out["stereo"] = major_stereo
-
-    bits = np.where(abstractable, np.left_shift(1, sites["site_code"].to_numpy().astype(np.int64)), 0)
+    codes = sites["site_code"].to_numpy()
+    # Every abstractable class has k > 0 at any temperature, so this is the same under all conditions.
+    abstractable = codes < len(ABSTRACTABLE)  # site codes number the abstractable classes first
+    n_products = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
+    bits = np.where(abstractable, np.left_shift(1, codes.astype(np.int64)), 0)
     masks = np.zeros(n, dtype=np.int64)
     if len(starts):
         masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
-    out["site_types"] = _site_type_names(masks)
-    out["confidence"] = confidence_labels(sites["site_code"].to_numpy(), pcts, struct, n, conditions, starts)
-    out["nbs_major"], out["nbs_major_pct"] = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
-    h = sites["h_count"].to_numpy()
-    for reagent in REAGENTS:
-        out[f"{reagent}_poly_pct"] = poly_pct_at_ratio(struct, h, pcts[reagent], reagent, n)
+    flags = structures["flags"].to_numpy(dtype=object)
+    alkene = np.array(["alkene" in str(f).split(",") for f in flags], dtype=bool) if n else np.zeros(0, bool)
+    return {
+        "struct": struct, "starts": starts, "seg_struct": seg_struct, "codes": codes, "n_products": n_products,
+        "site_types": _site_type_names(masks), "alkene": alkene, "ok": (structures["status"] == "ok").to_numpy(),
+        "h": sites["h_count"].to_numpy(),
+    }
 
-    ok = (structures["status"] == "ok").to_numpy()
+
+def _reagent_part(perception: Perception, static: dict, conditions: Conditions, reagent: str) -> dict:
+    """One reagent's shares, major product and percent (and, for br2, the major's stereo), and polyhalide."""
+    sites = perception.sites
+    struct, starts, seg_struct = static["struct"], static["starts"], static["seg_struct"]
+    n = len(perception.structures)
+    pct = percent_of_structure(site_weights(sites, conditions, reagent), struct, n)
+    major_smiles = np.full(n, "", dtype=object)
+    major_pct = np.full(n, np.nan)
+    major_stereo = np.full(n, "", dtype=object)
+    if len(starts):
+        rows = _first_max(pct, struct, starts)
+        has = static["n_products"][seg_struct] > 0
+        chosen = rows[has]
+        # Gather strings for the majors only: converting every site's string costs more than the weighing.
+        major_smiles[seg_struct[has]] = sites["product"].take(chosen).to_numpy(dtype=object)
+        major_pct[seg_struct[has]] = pct[chosen]
+        if reagent == "br2":
+            major_stereo[seg_struct[has]] = sites["stereo"].take(chosen).to_numpy(dtype=object)
+    if reagent == "br2":
+        major_smiles = np.asarray(
+            pc.replace_substring(pa.array(major_smiles, type=pa.string()), "Cl", "Br").to_pylist(), dtype=object
+        )
+    poly = poly_pct_at_ratio(struct, static["h"], pct, reagent, n)
+    return {"pct": pct, "major": major_smiles, "major_pct": major_pct, "stereo": major_stereo, "poly": poly}
+
+
+def summarise(perception: Perception, conditions: Conditions, memo: dict | None = None) -> pd.DataFrame:
+    """One row per structure: product count, verdict, majors, stereo, site types, confidence.
+
+    ``memo`` (a dict the caller keeps per perception) remembers the parts that
+    depend on only one reagent's settings, so a live change of one temperature
+    or of the threshold recomputes only what it affects.
+    """
+    structures = perception.structures
+    n = len(structures)
+    static = _memo(memo, ("static",), lambda: _static(perception))
+    parts = {
+        r: _memo(memo, conditions.reagent_key(r), lambda r=r: _reagent_part(perception, static, conditions, r))
+        for r in REAGENTS
+    }
+    out: dict[str, object] = {"n_products": static["n_products"]}
+    for reagent in REAGENTS:
+        out[f"{reagent}_major"] = parts[reagent]["major"]
+        out[f"{reagent}_major_pct"] = parts[reagent]["major_pct"]
+    out["stereo"] = parts["br2"]["stereo"]
+    out["site_types"] = static["site_types"]
+    pcts = {r: parts[r]["pct"] for r in REAGENTS}
+    confidence_key = ("confidence", *(conditions.reagent_key(r) for r in REAGENTS))
+    out["confidence"] = _memo(memo, confidence_key, lambda: confidence_labels(
+        static["codes"], pcts, static["struct"], n, conditions, static["starts"]))
+    out["nbs_major"], out["nbs_major_pct"] = _memo(
+        memo, conditions.reagent_key("nbs"), lambda: nbs_majors(perception.allylic, conditions.per_h("nbs"), n))
+    for reagent in REAGENTS:
+        out[f"{reagent}_poly_pct"] = parts[reagent]["poly"]
+
+    ok, n_products = static["ok"], static["n_products"]
     verdict = np.full(n, "", dtype=object)
     br_pct = np.nan_to_num(out["br2_major_pct"], nan=0.0)
     verdict[ok] = "mixture"
@@ -187,6 +226,6 @@ def summarise(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     verdict[ok & (n_products == 1)] = "single"
     verdict[ok & (n_products == 0)] = "inert"
     out["verdict"] = verdict
-    out["serves"] = serves(out, structures["flags"].to_numpy(dtype=object), ok, n_products, conditions.threshold_pct)
+    out["serves"] = serves(out, static["alkene"], ok, n_products, conditions.threshold_pct)
     frame = pd.DataFrame(out, index=structures.index)
     return frame[list(SUMMARY_COLUMNS)]

@@ -136,3 +136,20 @@ def test_sample_catalogue_screens_completely() -> None:
     assert (result["status"] == "ok").all()
     assert set(result["verdict"]) <= set(engine.VERDICTS)
     assert {"single", "br-selective", "mixture", "inert"} <= set(result["verdict"])
+
+
+def test_remembered_parts_give_the_same_answers(mixed_frame: pd.DataFrame) -> None:
+    # A live session changes one setting at a time; re-using the unchanged reagent's
+    # part must give exactly what a fresh weighing gives.
+    perception = engine.load_library(mixed_frame, use_cache=False).perception
+    memo: dict = {}
+    sequence = [
+        Conditions(),
+        Conditions(br2_temp_c=80.0),
+        Conditions(br2_temp_c=80.0, threshold_pct=70.0),
+        Conditions(cl2_temp_c=150.0, br2_temp_c=80.0, threshold_pct=70.0),
+        Conditions(cl2_temp_c=150.0, br2_temp_c=80.0, threshold_pct=70.0, nbs_temp_c=40.0),
+    ]
+    for conditions in sequence:
+        pd.testing.assert_frame_equal(engine.summarise(perception, conditions, memo), engine.summarise(perception, conditions))
+    assert ("br2", 80.0) in memo and ("br2", 125.0) in memo

@@ -109,9 +109,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_condition_options(sc, "both reagents")
     _add_solvent_option(sc)
     _add_library_options(sc)
-    sc.add_argument("--workers", type=int, metavar="N", help="worker processes (default: all cores)")
-    sc.add_argument("--no-cache", action="store_true", help="perceive everything afresh; do not read or write the cache")
-    sc.add_argument("--force", action="store_true", help="replace an existing output file")
+    _add_run_options(sc)
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
 
     rp = sub.add_parser("report", help="write a printable HTML report: summary charts and one drawn entry per substrate")
@@ -124,9 +122,7 @@ def build_parser() -> argparse.ArgumentParser:
     rp.add_argument("--ids", metavar="FILE", help="report only the rows whose ID is listed in FILE (one per line)")
     rp.add_argument("--max-pages", type=int, default=200, metavar="N",
                     help="at most N substrate entries (default 200); the report says how many were left out")
-    rp.add_argument("--workers", type=int, metavar="N", help="worker processes (default: all cores)")
-    rp.add_argument("--no-cache", action="store_true", help="perceive everything afresh; do not read or write the cache")
-    rp.add_argument("--force", action="store_true", help="replace an existing output file")
+    _add_run_options(rp)
 
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
@@ -136,6 +132,13 @@ def build_parser() -> argparse.ArgumentParser:
         help="never draw structures inline, even where the terminal can (also: HALOSIFT_IMAGES=off)",
     )
     return parser
+
+
+def _add_run_options(p: argparse.ArgumentParser) -> None:
+    """Options of the commands that perceive a library and write a file."""
+    p.add_argument("--workers", type=int, metavar="N", help="worker processes (default: all cores)")
+    p.add_argument("--no-cache", action="store_true", help="perceive everything afresh; do not read or write the cache")
+    p.add_argument("--force", action="store_true", help="replace an existing output file")
 
 
 def _add_library_options(p: argparse.ArgumentParser) -> None:
@@ -233,9 +236,7 @@ def _screen(args: argparse.Namespace) -> int:
 
     started = time.monotonic()
     try:
-        cond = _conditions(args, ("cl2", "br2"))
-        if args.workers is not None and args.workers < 1:
-            raise ValueError("--workers must be at least 1")
+        cond = _run_conditions(args)
     except ValueError as exc:
         return _fail(str(exc))
     try:
@@ -264,9 +265,7 @@ def _report(args: argparse.Namespace) -> int:
     from halosift.report import check_report_output, read_ids, render_report, select_rows, write_report
 
     try:
-        cond = _conditions(args, ("cl2", "br2"))
-        if args.workers is not None and args.workers < 1:
-            raise ValueError("--workers must be at least 1")
+        cond = _run_conditions(args)
         if args.max_pages < 0:
             raise ValueError("--max-pages must be 0 or more")
     except ValueError as exc:
@@ -298,6 +297,13 @@ def _report(args: argparse.Namespace) -> int:
     print(f"wrote {written} ({report.n_sections:,} substrate entries{left}; summary of {report.n_rows:,} rows)",
           file=sys.stderr)
     return EXIT_OK
+
+
+def _run_conditions(args: argparse.Namespace):
+    """Conditions for both screen reagents, with the run options checked (ValueError: one line)."""
+    if args.workers is not None and args.workers < 1:
+        raise ValueError("--workers must be at least 1")
+    return _conditions(args, ("cl2", "br2"))
 
 
 def _load(args: argparse.Namespace, *, quiet: bool):

@@ -29,6 +29,10 @@ REASON_CODES = (
 )
 
 
+#: Characters of a SMILES made only of organic-subset carbons (no brackets).
+_PLAIN_CARBON = frozenset("Cc0123456789()=#%/\\-:.")
+
+
 def to_mol(smiles: str | None) -> Chem.Mol | None:
     """Parse SMILES quietly; None when RDKit cannot."""
     if not smiles:
@@ -78,6 +82,10 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
     n_frags = len(rdmolops.GetMolFrags(mol))
     if n_frags > 1:
         return _reject("fragments", f"{n_frags} separate fragments; give one molecule per row")
+    if _PLAIN_CARBON.issuperset(text):
+        # No brackets and no other element letters: every atom is a neutral, unlabelled,
+        # closed-shell carbon with implicit hydrogens, so the per-atom checks cannot fail.
+        return _size_checked(mol, max_heavy_atoms)
     # One pass over the atoms collects everything the checks below need.
     foreign: set[str] = set()
     isotope = charged = radical = explicit_h = False
@@ -103,6 +111,10 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
         # Explicit [H] atoms would hide their hydrogens from the site count.
         with quiet_rdkit():
             mol = Chem.RemoveHs(mol)
+    return _size_checked(mol, max_heavy_atoms)
+
+
+def _size_checked(mol: Chem.Mol, max_heavy_atoms: int) -> Parsed:
     n_heavy = mol.GetNumHeavyAtoms()
     if n_heavy > max_heavy_atoms:
         return _reject("too_large", f"{n_heavy} carbons exceeds the limit of {max_heavy_atoms}")

@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 from collections import defaultdict
+from collections.abc import Iterable
 from dataclasses import dataclass
+from functools import cached_property
 
 from rdkit import Chem
 
-from engine.special_sites import special_site_class
+from engine.special_sites import small_bridgeheads, special_site_class
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
@@ -54,9 +56,62 @@ def classify_carbon(atom: Chem.Atom) -> str:
     return name
 
 
-@dataclass(frozen=True)
+#: Per-molecule pattern sets behind :func:`site_classes`: one C++ match each
+#: instead of walking every atom's bonds in Python.
+_SITE_SMARTS = {
+    "aryl": "[c;!H0]",
+    "alkynyl": "[C;!H0]#*",
+    "vinyl": "[C;!H0]=*",
+    "cyclopropyl": "[CX4;!H0;r3]",
+    "allylic": "[CX4;!H0]-[A]=*",  # π partner not aromatic: an aryl neighbour makes it benzylic
+    "benzylic": "[CX4;!H0]-a",
+    "propargylic": "[CX4;!H0]-[A]#*",
+}
+_SITE_PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SITE_SMARTS.items()}
+
+
+def _matched(mol: Chem.Mol, name: str) -> set[int]:
+    return {m[0] for m in mol.GetSubstructMatches(_SITE_PATTERNS[name], uniquify=False, maxMatches=100_000)}
+
+
+def site_classes(mol: Chem.Mol, atoms: Iterable[int], bridgeheads: frozenset[int]) -> list[str]:
+    """:func:`classify_carbon` for each of ``atoms`` (H-bearing carbons), from a few substructure matches.
+
+    ``bridgeheads``: :func:`engine.special_sites.small_bridgeheads` of ``mol``.
+    Same rules and precedence as :func:`classify_carbon`, which stays the
+    reference (the tests compare the two).
+    """
+    sets = {name: _matched(mol, name) for name in _SITE_SMARTS}
+    out = []
+    for idx in atoms:
+        if idx in sets["aryl"]:
+            out.append("aryl")
+        elif idx in sets["alkynyl"]:
+            out.append("alkynyl")
+        elif idx in sets["vinyl"]:
+            out.append("vinyl")
+        else:
+            degree = mol.GetAtomWithIdx(idx).GetDegree()
+            if degree == 0:
+                out.append("methane")
+            elif idx in sets["cyclopropyl"]:
+                out.append("cyclopropyl")
+            elif idx in bridgeheads:
+                out.append("bridgehead")
+            else:
+                kind = next((k for k in ("allylic", "benzylic", "propargylic") if idx in sets[k]), None)
+                name = _DEGREE_NAMES[degree]
+                out.append(f"{kind}-{name}" if kind else name)
+    return out
+
+
+@dataclass(frozen=True, eq=False)
 class SiteGroup:
-    """Symmetry-equivalent H-bearing carbons: one constitutional monohalide."""
+    """Symmetry-equivalent H-bearing carbons: one constitutional monohalide.
+
+    The product and its symmetry are worked out only when asked for: a
+    library screen needs them for the few groups that can be a major product.
+    """
 
     atoms: tuple[int, ...]
     """Indices of the equivalent carbons (in the parsed molecule)."""
@@ -64,13 +119,37 @@ class SiteGroup:
     """Site class of these carbons."""
     h_count: int
     """Hydrogens on all of them together."""
-    product: Chem.Mol
-    """The monochloride from the first atom (stereo of the input kept, the new centre unset)."""
-    product_smiles: str
-    """Canonical isomeric SMILES of that monochloride."""
-    stabiliser: tuple[tuple[int, ...], ...] | None
-    """The substrate's automorphisms that fix the substituted carbon — exactly the
-    product's automorphisms (None when there were too many to list)."""
+    substrate: Chem.Mol
+    """The parsed molecule the atom indices refer to."""
+    has_stereo: bool
+    """Whether the substrate specifies any stereo (then product SMILES are isomeric)."""
+    substrate_automorphisms: tuple[tuple[int, ...], ...] | None
+    """Every automorphism of the substrate (None when there were too many to list)."""
+    known_product: tuple[str, Chem.Mol] | None = None
+    """(SMILES, molecule) of the product when grouping already had to make it."""
+
+    @cached_property
+    def product(self) -> Chem.Mol:
+        """The monochloride from the first atom (stereo of the input kept, the new centre unset)."""
+        if self.known_product is not None:
+            return self.known_product[1]
+        return substitute(self.substrate, self.atoms[0])
+
+    @cached_property
+    def product_smiles(self) -> str:
+        """Canonical isomeric SMILES of that monochloride."""
+        if self.known_product is not None:
+            return self.known_product[0]
+        return _smiles(self.product, self.has_stereo)
+
+    @cached_property
+    def stabiliser(self) -> tuple[tuple[int, ...], ...] | None:
+        """The substrate's automorphisms that fix the substituted carbon — exactly the
+        product's automorphisms (None when there were too many to list)."""
+        if self.substrate_automorphisms is None:
+            return None
+        first = self.atoms[0]
+        return tuple(p for p in self.substrate_automorphisms if p[first] == first)
 
 
 def substitute(mol: Chem.Mol, idx: int, halogen: int = 17) -> Chem.RWMol:
@@ -113,7 +192,7 @@ def automorphisms(mol: Chem.Mol) -> list[tuple[int, ...]] | None:
     return None if len(perms) >= MAX_AUTOMORPHISMS else list(perms)
 
 
-def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
+def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | None = None) -> list[SiteGroup]:
     """Group H-bearing carbons into constitutional monohalides, exactly.
 
     Canonical ranks without tie-breaking are a colour refinement: they never
@@ -124,6 +203,8 @@ def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
     automorphism group (the very definition of equivalent positions), or,
     when there are too many automorphisms to list, by the canonical SMILES of
     each member's monochloride, a complete invariant.
+    ``bridgeheads``: :func:`engine.special_sites.small_bridgeheads` of ``mol``
+    when the caller has it already.
     """
     ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     by_rank: dict[int, list[int]] = defaultdict(list)
@@ -133,17 +214,18 @@ def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
     perms = automorphisms(mol)
     cyclic = mol.GetRingInfo().NumRings() > 0
     groups: list[SiteGroup] = []
+    automorphism_list = None if perms is None else tuple(perms)
+    pending: list[tuple[list[int], tuple[str, Chem.Mol] | None]] = []
     for rank in sorted(by_rank):
         members = by_rank[rank]
+        parts: list[tuple[list[int], tuple[str, Chem.Mol] | None]]
         if cyclic and len(members) > 1 and perms is not None:
             parts = []
             left = list(members)
             while left:
                 orbit = {p[left[0]] for p in perms}
-                idxs = [i for i in left if i in orbit]
+                parts.append(([i for i in left if i in orbit], None))
                 left = [i for i in left if i not in orbit]
-                prod = substitute(mol, idxs[0])
-                parts.append((_smiles(prod, has_stereo), idxs, prod))
         elif cyclic and len(members) > 1:
             split: dict[str, list[int]] = {}
             products: dict[str, Chem.Mol] = {}
@@ -154,20 +236,23 @@ def site_groups(mol: Chem.Mol, has_stereo: bool) -> list[SiteGroup]:
                 key = Chem.MolToSmiles(prod, isomericSmiles=False)
                 split.setdefault(key, []).append(idx)
                 products.setdefault(key, prod)
-            parts = [(_smiles(products[k], has_stereo), idxs, products[k]) for k, idxs in split.items()]
+            parts = [(idxs, (_smiles(products[k], has_stereo), products[k])) for k, idxs in split.items()]
         else:
-            prod = substitute(mol, members[0])
-            parts = [(_smiles(prod, has_stereo), members, prod)]
-        for smi, idxs, prod in parts:
-            first = mol.GetAtomWithIdx(idxs[0])
-            groups.append(
-                SiteGroup(
-                    atoms=tuple(idxs),
-                    site=classify_carbon(first),
-                    h_count=sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in idxs),
-                    product=prod,
-                    product_smiles=smi,
-                    stabiliser=None if perms is None else tuple(p for p in perms if p[idxs[0]] == idxs[0]),
-                )
+            parts = [(members, None)]
+        pending.extend(parts)
+    if bridgeheads is None:
+        bridgeheads = small_bridgeheads(mol)
+    classes = site_classes(mol, [idxs[0] for idxs, _ in pending], bridgeheads)
+    for (idxs, known), site in zip(pending, classes):
+        groups.append(
+            SiteGroup(
+                atoms=tuple(idxs),
+                site=site,
+                h_count=sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in idxs),
+                substrate=mol,
+                has_stereo=has_stereo,
+                substrate_automorphisms=automorphism_list,
+                known_product=known,
             )
+        )
     return groups

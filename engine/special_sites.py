@@ -153,23 +153,41 @@ def _small_ring_counts(mol: Chem.Mol) -> list[int]:
     return counts
 
 
-def structure_flags(mol: Chem.Mol) -> tuple[str, ...]:
-    """Every flag of :data:`FLAGS` that applies to ``mol``, in :data:`FLAGS` order."""
+_SMARTS = {
+    # H-bearing carbon with only single bonds (what _abstractable_sp3 tests), on two or more rings:
+    # a small bicycle's bridgehead lies on at least two rings of any smallest set of rings.
+    "ring_junction": "[CX4;!H0;!R0;!R1]",
+    "cyclopropylmethyl": "[CX4;!H0;!r3]-[r3]",
+    "alkene": "*=*",  # aromatic bonds do not match '='
+}
+_PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SMARTS.items()}
+
+
+def small_bridgeheads(mol: Chem.Mol) -> frozenset[int]:
+    """Indices of the abstractable C–H carbons that are bridgeheads of a small bicycle.
+
+    Only ring-junction carbons can be, so the path search of
+    :func:`is_small_bridgehead` runs on those alone.
+    """
+    junctions = mol.GetSubstructMatches(_PATTERNS["ring_junction"], uniquify=False, maxMatches=100_000)
+    return frozenset(i for (i,) in junctions if is_small_bridgehead(mol.GetAtomWithIdx(i)))
+
+
+def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) -> tuple[str, ...]:
+    """Every flag of :data:`FLAGS` that applies to ``mol``, in :data:`FLAGS` order.
+
+    ``bridgeheads``: :func:`small_bridgeheads` of ``mol`` when the caller has it already.
+    """
     found: set[str] = set()
-    for atom in mol.GetAtoms():
-        if atom.GetAtomicNum() != 6:
-            continue
-        if _abstractable_sp3(atom):
-            if not atom.IsInRingSize(3) and any(n.IsInRingSize(3) for n in atom.GetNeighbors()):
-                found.add("cyclopropylmethyl")
-            if is_small_bridgehead(atom):
-                found.add("bridgehead")
-    if sum(c >= 3 for c in _small_ring_counts(mol)) >= CAGE_MIN_ATOMS:
+    if mol.HasSubstructMatch(_PATTERNS["cyclopropylmethyl"]):
+        found.add("cyclopropylmethyl")
+    if bridgeheads if bridgeheads is not None else small_bridgeheads(mol):
+        found.add("bridgehead")
+    ring_sizes = [len(r) for r in mol.GetRingInfo().AtomRings()]
+    if any(size <= CAGE_MAX_RING for size in ring_sizes) and sum(c >= 3 for c in _small_ring_counts(mol)) >= CAGE_MIN_ATOMS:
         found.add("cage")
-    for bond in mol.GetBonds():
-        if bond.GetBondType() == _DOUBLE and not bond.GetIsAromatic():
-            found.add("alkene")
-            break
+    if mol.HasSubstructMatch(_PATTERNS["alkene"]):
+        found.add("alkene")
     return tuple(f for f in FLAGS if f in found)
 
 

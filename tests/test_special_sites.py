@@ -9,7 +9,7 @@ import pytest
 from rdkit import Chem
 
 import engine
-import engine.sites
+
 from engine import parameters as P
 from engine.perception import STRUCTURE_SCHEMA
 from engine.rates import rate_table
@@ -112,21 +112,7 @@ def test_bridgehead_is_slower_than_tertiary() -> None:
     assert rate_table("br").per_h(400.0)[i("bridgehead")] < rate_table("br").per_h(400.0)[i("primary")]
 
 
-@pytest.fixture
-def bridgehead_classification(monkeypatch: pytest.MonkeyPatch) -> None:
-    """engine.sites.classify_carbon with the one-line call to special_site_class the lead is asked to add."""
-    original = engine.sites.classify_carbon
-
-    def classify(atom: Chem.Atom) -> str:
-        site = original(atom)
-        if site in ("vinyl", "aryl", "alkynyl", "methane", "cyclopropyl"):
-            return site
-        return special_site_class(atom) or site
-
-    monkeypatch.setattr(engine.sites, "classify_carbon", classify)
-
-
-def test_norbornane_with_bridgehead_class(bridgehead_classification: None) -> None:
+def test_norbornane_with_bridgehead_class() -> None:
     # Norbornane + Cl2: mainly C2, bridgehead C1 minor (from memory; engine.parameters.NORBORNANE_CL2_NOTE).
     e = engine.explain("C1CC2CCC1C2")
     by_site = {}

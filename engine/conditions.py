@@ -12,7 +12,10 @@ from engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGEN
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
-__all__ = ["Conditions", "EXPLAIN_REAGENTS", "REAGENTS", "REAGENT_LABELS"]
+__all__ = ["Conditions", "EXPLAIN_REAGENTS", "MAX_TEMP_C", "REAGENTS", "REAGENT_LABELS"]
+
+#: Highest temperature accepted, °C (a limit of this program: beyond it no rate here means anything).
+MAX_TEMP_C = 1500.0
 
 
 @dataclass(frozen=True)
@@ -79,8 +82,8 @@ class Conditions:
             t = self.temp_c(reagent)
             if not t == t or t <= -KELVIN:
                 raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
-            if t > 1500:
-                raise ValueError(f"{reagent} temperature {t} °C is beyond any model here (max 1500 °C)")
+            if t > MAX_TEMP_C:
+                raise ValueError(f"{reagent} temperature {t} °C is beyond any model here (max {MAX_TEMP_C:g} °C)")
         if not 0 <= self.threshold_pct <= 100:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
         check_solvent(self.cl2_solvent, self.cl2_solvent_molar)

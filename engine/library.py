@@ -14,7 +14,8 @@ from engine.cache import PerceptionCache, take
 from engine.conditions import REAGENTS, Conditions
 from engine.parallel import perceive_parallel
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.perception import Perception, concat
+from engine.perception import Perception, concat, perceive
+from engine.site_classes import ABSTRACTABLE
 from engine.nbs import nbs_products
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
@@ -94,11 +95,15 @@ class Library:
     """Memo of per-structure summaries by conditions (small: the app revisits few)."""
     _parts: dict = field(default_factory=dict, repr=False, compare=False)
     """Memo of summary parts that depend on one reagent's settings (see engine.weigh.summarise)."""
+    _details: dict = field(default_factory=dict, repr=False, compare=False)
+    """Memo of full single-structure perceptions made for :meth:`products` and :meth:`nbs_products`."""
 
     def __len__(self) -> int:
         return len(self.input)
 
     def _summary(self, conditions: Conditions) -> pd.DataFrame:
+        # A screen's perception names only the products that can win under valid conditions.
+        conditions.validate()
         if conditions not in self._summaries:
             if len(self._summaries) > 8:
                 self._summaries.clear()
@@ -152,13 +157,35 @@ class Library:
         dup[~valid | (first_of_row == rows)] = pd.NA
         return dup
 
+    def _detail(self, struct: int) -> Perception:
+        """Perception of one structure with every product worked out (struct numbered 0).
+
+        A screen perceives only the products that can be major; the rest are
+        worked out here, from the canonical SMILES, when a chemist looks.
+        """
+        if struct not in self._details:
+            sites = self.perception.sites
+            mine = sites[sites["struct"] == struct]
+            allylic = self.perception.allylic
+            nbs = allylic[allylic["struct"] == struct]
+            unnamed = (mine["product"] == "") | ((mine["stereo"] == "") & (mine["site_code"] < len(ABSTRACTABLE)))
+            complete = not unnamed.any() and not (nbs["stereo"] == "").any()
+            if complete:
+                detail = Perception(self.perception.structures.iloc[[struct]].reset_index(drop=True),
+                                    mine.assign(struct=0).reset_index(drop=True), nbs.assign(struct=0).reset_index(drop=True))
+            else:
+                row = self.perception.structures.iloc[struct]
+                detail = perceive([row["canonical_smiles"]], max_heavy_atoms=max(int(row["n_heavy"]), 1))
+            if len(self._details) > 64:
+                self._details.clear()
+            self._details[struct] = detail
+        return self._details[struct]
+
     def products(self, row: int, conditions: Conditions | None = None) -> pd.DataFrame:
         """Site detail for one input row (0-based): every monohalide with its split."""
         conditions = conditions or Conditions()
         struct = int(self.row_struct[row])
-        sites = self.perception.sites
-        mine = sites[sites["struct"] == struct]
-        weighed = weigh(mine.assign(struct=0), conditions, 1)
+        weighed = weigh(self._detail(struct).sites, conditions, 1)
         weighed["dh_cl"] = [enthalpy_of_abstraction(s, "cl") for s in weighed["site"]]
         weighed["dh_br"] = [enthalpy_of_abstraction(s, "br") for s in weighed["site"]]
         codes = weighed["site_code"].to_numpy()
@@ -172,9 +199,7 @@ class Library:
         """NBS monobromides of one input row (0-based), largest share first; empty without allylic/benzylic C–H."""
         conditions = conditions or Conditions()
         struct = int(self.row_struct[row])
-        allylic = self.perception.allylic
-        mine = allylic[allylic["struct"] == struct].assign(struct=0)
-        out = nbs_products(mine, conditions.per_h("nbs"), 1)
+        out = nbs_products(self._detail(struct).allylic, conditions.per_h("nbs"), 1)
         return out.drop(columns="struct").sort_values("nbs_pct", ascending=False, kind="stable").reset_index(drop=True)
 
 
@@ -193,7 +218,9 @@ def _perceive_with_cache(
 ) -> Perception:
     store = PerceptionCache(cache_folder) if use_cache and max_heavy_atoms == DEFAULT_MAX_HEAVY_ATOMS else None
     if store is None:
-        return perceive_parallel(keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel)
+        return perceive_parallel(
+            keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False
+        )
     hit, cached = store.lookup(keys)
     miss_idx = np.flatnonzero(~hit)
     missing = [keys[i] for i in miss_idx]
@@ -203,7 +230,9 @@ def _perceive_with_cache(
         if progress:
             progress(n_hit + done, n_hit + total)
 
-    fresh = perceive_parallel(missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel)
+    fresh = perceive_parallel(
+        missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel, detail=False
+    )
     store.store(missing, fresh)
     if cached is None:
         return fresh

@@ -34,6 +34,7 @@ NBS_SITES: tuple[str, ...] = tuple(
     f"{kind}-{degree}" for kind in ("allylic", "benzylic") for degree in ("primary", "secondary", "tertiary")
 )
 TERMINI = ("radical carbon", "allylic shift")
+_NOT_WORKED_OUT = StereoOutcome("", 0, 0)
 
 #: Column types of :attr:`engine.perception.Perception.allylic` (one row per site group × NBS product).
 ALLYLIC_SCHEMA = pa.schema(
@@ -144,7 +145,12 @@ def _ez_open(product: Chem.Mol) -> bool:
 
 
 def allylic_rows(
-    mol: Chem.Mol, groups: list, specified: bool, skeleton: Skeleton, outcomes: list[StereoOutcome] | None = None
+    mol: Chem.Mol,
+    groups: list,
+    specified: bool,
+    skeleton: Skeleton,
+    outcomes: list[StereoOutcome] | None = None,
+    stereo: bool = True,
 ) -> list[tuple]:
     """NBS product rows of one structure (without ``struct``): see :data:`ALLYLIC_SCHEMA`.
 
@@ -154,6 +160,7 @@ def allylic_rows(
     group, the site table's stereo) is reused for a bromide formed only at the
     radical carbon of one group: it is that group's monochloride with Br for
     Cl, so its stereo is the same and need not be worked out again.
+    ``stereo=False`` leaves the stereo columns empty (a library screen's rows).
     """
     factor = P.NBS_SUBSTITUENT_FACTOR.value
     # product constitution → {group index: [share, termini, subst]}, plus every product molecule formed
@@ -177,7 +184,9 @@ def allylic_rows(
     for product_id, (key, by_group) in enumerate(per_product.items()):
         products = mols[key]
         (only, (_, termini_only, _)), *others = by_group.items()
-        if outcomes is not None and not others and termini_only == {"radical carbon"}:
+        if not stereo:
+            st = _NOT_WORKED_OUT
+        elif outcomes is not None and not others and termini_only == {"radical carbon"}:
             st = outcomes[only]
         else:
             st = stereo_outcome(products, skeleton)
@@ -187,7 +196,7 @@ def allylic_rows(
             rows.append(
                 (smiles, product_id, site, SITE_CLASSES.index(site), groups[g].h_count,
                  ",".join(t for t in TERMINI if t in termini), n, share,
-                 st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate, _ez_open(products[0]))
+                 st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate, stereo and _ez_open(products[0]))
             )
     return rows
 

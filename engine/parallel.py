@@ -33,15 +33,15 @@ class Cancelled(Exception):
 
 
 def perceive_batch(
-    batch: pa.RecordBatch, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS
+    batch: pa.RecordBatch, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS, detail: bool = True
 ) -> tuple[pa.RecordBatch, pa.RecordBatch, pa.RecordBatch]:
-    """Perceive the ``smiles`` column of ``batch``.
+    """Perceive the ``smiles`` column of ``batch`` (``detail``: as :func:`engine.perception.perceive`).
 
     Returns (structures, sites, allylic) as record batches with
     :data:`engine.perception.STRUCTURE_SCHEMA`, :data:`SITE_SCHEMA` and
     :data:`ALLYLIC_SCHEMA`; ``struct`` counts rows of this batch from 0.
     """
-    p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms)
+    p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms, detail)
     structures = pa.RecordBatch.from_pandas(p.structures, schema=STRUCTURE_SCHEMA, preserve_index=False)
     sites = pa.RecordBatch.from_pandas(p.sites, schema=SITE_SCHEMA, preserve_index=False)
     allylic = pa.RecordBatch.from_pandas(p.allylic, schema=ALLYLIC_SCHEMA, preserve_index=False)
@@ -67,8 +67,13 @@ def perceive_parallel(
     max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS,
     progress: Callable[[int, int], None] | None = None,
     cancel: threading.Event | None = None,
+    detail: bool = True,
 ) -> Perception:
-    """Perceive many strings, in worker processes when it pays; order is kept."""
+    """Perceive many strings, in worker processes when it pays; order is kept.
+
+    ``detail=False`` works out product SMILES and stereo only where a major
+    product can come from (see :func:`engine.perception.perceive`).
+    """
     total = len(smiles)
     workers = default_workers() if workers is None else max(1, workers)
     size = max(MIN_CHUNK, min(CHUNK, -(-total // (workers * TASKS_PER_WORKER)))) if workers > 1 else CHUNK
@@ -82,7 +87,7 @@ def perceive_parallel(
         for i, chunk in enumerate(chunks):
             if cancel is not None and cancel.is_set():
                 raise Cancelled()
-            parts[i] = perceive(chunk, max_heavy_atoms)
+            parts[i] = perceive(chunk, max_heavy_atoms, detail)
             done += len(chunk)
             if progress:
                 progress(done, total)
@@ -97,7 +102,7 @@ def perceive_parallel(
         def submit() -> None:
             nonlocal next_chunk
             batch = pa.record_batch([pa.array(chunks[next_chunk], type=pa.string())], names=["smiles"])
-            pending[pool.submit(perceive_batch, batch, max_heavy_atoms)] = next_chunk
+            pending[pool.submit(perceive_batch, batch, max_heavy_atoms, detail)] = next_chunk
             next_chunk += 1
 
         # Keep a bounded number of tasks in flight so memory stays flat.

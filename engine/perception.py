@@ -14,12 +14,13 @@ import pandas as pd
 import pyarrow as pa
 from rdkit import Chem
 
+from engine.contenders import contenders
 from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
-from engine.special_sites import structure_flags
+from engine.special_sites import small_bridgeheads, structure_flags
 from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
@@ -47,20 +48,21 @@ STRUCTURE_SCHEMA = pa.schema(
 SITE_SCHEMA = pa.schema(
     [
         pa.field("struct", pa.int32(), metadata={"doc": "row of the structures table"}),
-        pa.field("product", pa.string(), metadata={"doc": "canonical SMILES of the monochloride"}),
+        pa.field("product", pa.string(), metadata={"doc": "canonical SMILES of the monochloride; empty for a group that cannot be major when perceived without detail"}),
         pa.field("site", pa.string(), metadata={"doc": "site class (engine.SITE_CLASSES)"}),
         pa.field("site_code", pa.int8(), metadata={"doc": "index of site in engine.SITE_CLASSES"}),
         pa.field("h_count", pa.int32(), metadata={"doc": "hydrogens in the symmetry group"}),
         pa.field("n_carbons", pa.int32(), metadata={"doc": "equivalent carbons in the group"}),
         pa.field("atom", pa.int32(), metadata={"doc": "a representative carbon, index in canonical-SMILES atom order"}),
         pa.field("bde", pa.float64(), metadata={"doc": "C–H bond dissociation enthalpy, kcal/mol"}),
-        pa.field("stereo", pa.string(), metadata={"doc": "achiral / single / racemate / diastereomers; empty for C–H never abstracted"}),
+        pa.field("stereo", pa.string(), metadata={"doc": "achiral / single / racemate / diastereomers; empty for C–H never abstracted and for products not detailed"}),
         pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed"}),
         pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
         pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked (large cage or >256 isomers)"}),
     ]
 )
 
+_CODE = {name: i for i, name in enumerate(SITE_CLASSES)}
 _BDE_BY_CODE = np.array([site_bde(s).value for s in SITE_CLASSES])
 
 
@@ -80,7 +82,7 @@ class Perception:
         return len(self.structures)
 
 
-def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], list[tuple]]:
+def _perceive_one(smiles: object, max_heavy: int, detail: bool) -> tuple[tuple, list[tuple], list[tuple]]:
     parsed = parse_hydrocarbon(smiles, max_heavy)
     if not parsed.ok:
         return ("rejected", parsed.reason_code, parsed.reason, "", 0, 0, ""), [], []
@@ -91,13 +93,14 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
     specified = has_specified_stereo(canonical)
     skeleton = Skeleton(mol, specified)
     rows = []
-    abstractable_h = 0
-    groups = site_groups(mol, specified)
+    bridgeheads = small_bridgeheads(mol)
+    groups = site_groups(mol, specified, bridgeheads)
+    # A screen names only majors: Cl2 contenders need their SMILES, Br2 contenders also their stereo.
+    named, stereo_wanted = (None, None) if detail else contenders([(_CODE[g.site], g.h_count) for g in groups])
     outcomes: list[StereoOutcome] = []
-    for group in groups:
-        if group.site in _ABSTRACTABLE:
-            abstractable_h += group.h_count
-        if group.site in _ABSTRACTABLE:
+    for g, group in enumerate(groups):
+        formed = group.site in _ABSTRACTABLE
+        if formed and (stereo_wanted is None or g in stereo_wanted):
             products = [group.product]
             if specified and len(group.atoms) > 1:
                 # Equivalent carbons of a stereo-defined input can give different
@@ -106,10 +109,11 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
             st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
             st = _NOT_FORMED
+        shown = named is None or g in named or g in stereo_wanted
         outcomes.append(st)
         rows.append(
             (
-                group.product_smiles,
+                group.product_smiles if shown else "",
                 group.site,
                 group.h_count,
                 len(group.atoms),
@@ -120,20 +124,32 @@ def _perceive_one(smiles: object, max_heavy: int) -> tuple[tuple, list[tuple], l
                 st.approximate,
             )
         )
-    flags = ",".join(structure_flags(mol))
-    nbs = allylic_rows(mol, groups, specified, skeleton, outcomes)
+    abstractable_h = sum(group.h_count for group in groups if group.site in _ABSTRACTABLE)
+    flags = ",".join(structure_flags(mol, bridgeheads))
+    nbs = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail)
     return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
 
 
-def perceive(smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS) -> Perception:
-    """Validate and perceive every string; rejected ones keep their row with a reason."""
+def perceive(
+    smiles: Sequence[object], max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS, detail: bool = True
+) -> Perception:
+    """Validate and perceive every string; rejected ones keep their row with a reason.
+
+    ``detail=False`` is the library screen's mode: product SMILES are worked
+    out only for the groups that can be the Cl2 or Br2 major product under
+    some conditions, and stereo only for the possible Br2 majors (see
+    :mod:`engine.contenders`); the other groups keep their counts, class and
+    weights but get an empty ``product`` or ``stereo``, and NBS products get no
+    stereo.
+    :meth:`engine.library.Library.products` fills in one structure on demand.
+    """
     struct_rows: list[tuple] = []
     site_rows: list[tuple] = []
     nbs_rows: list[tuple] = []
     with quiet_rdkit():
         for i, smi in enumerate(smiles):
             try:
-                srow, rows, nbs = _perceive_one(smi, max_heavy_atoms)
+                srow, rows, nbs = _perceive_one(smi, max_heavy_atoms, detail)
             except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
                 srow, rows, nbs = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0, ""), [], []
             struct_rows.append(srow)

@@ -190,7 +190,7 @@ def allylic_rows(
             st = outcomes[only]
         else:
             st = stereo_outcome(products, skeleton)
-        smiles = Chem.MolToSmiles(products[0], isomericSmiles=specified)
+        smiles = Chem.MolToSmiles(products[0]) if specified else key  # without stereo, the key is the SMILES
         for g, (share, termini, n) in by_group.items():
             site = groups[g].site
             rows.append(

@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import itertools
+import math
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import lru_cache
 
-import numpy as np
 
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
@@ -130,13 +130,26 @@ def _ring_coordinates(fragment_smiles: str) -> tuple[tuple[float, float, float],
     return tuple(tuple(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms()))
 
 
-def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, np.ndarray]) -> Chem.ChiralType | None:
+Vec = tuple[float, float, float]
+
+
+def _sub(p: Vec, q: Vec) -> Vec:
+    return (p[0] - q[0], p[1] - q[1], p[2] - q[2])
+
+
+def _triple(u: Vec, v: Vec, w: Vec) -> float:
+    """u·(v×w)."""
+    return u[0] * (v[1] * w[2] - v[2] * w[1]) + u[1] * (v[2] * w[0] - v[0] * w[2]) + u[2] * (v[0] * w[1] - v[1] * w[0])
+
+
+def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, Vec]) -> Chem.ChiralType | None:
     """RDKit tag of atom ``idx`` from 3D positions of (at least three of) its neighbours.
 
     RDKit's convention, checked against its own 3D perception in the tests:
     with neighbours in bond order and an implicit H last, the tag is CW when
     (p1−p0)·((p2−p0)×(p3−p0)) > 0. A neighbour without a position (substituent
-    or H) is placed opposite the mean direction of the others.
+    or H) is placed opposite the mean direction of the others. Plain floats:
+    numpy on 3-vectors costs more in call overhead than the arithmetic.
     """
     atom = mol.GetAtomWithIdx(idx)
     nbrs = [b.GetOtherAtomIdx(idx) for b in atom.GetBonds()]
@@ -147,10 +160,14 @@ def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, np.ndarray]
     if len(known) < 3:
         return None
     centre = position[idx]
-    units = [(p - centre) / (np.linalg.norm(p - centre) or 1.0) for p in known]
-    opposite = centre - np.sum(units, axis=0)
+    sx = sy = sz = 0.0
+    for p in known:
+        d = _sub(p, centre)
+        norm = math.sqrt(d[0] ** 2 + d[1] ** 2 + d[2] ** 2) or 1.0
+        sx, sy, sz = sx + d[0] / norm, sy + d[1] / norm, sz + d[2] / norm
+    opposite = (centre[0] - sx, centre[1] - sy, centre[2] - sz)
     pts = [position.get(n, opposite) if n is not None else opposite for n in slots]
-    vol = np.dot(pts[1] - pts[0], np.cross(pts[2] - pts[0], pts[3] - pts[0]))
+    vol = _triple(_sub(pts[1], pts[0]), _sub(pts[2], pts[0]), _sub(pts[3], pts[0]))
     if abs(vol) < 1e-6:
         return None
     return _CW if vol > 0 else _CCW
@@ -177,7 +194,7 @@ class Skeleton:
         self._tags: dict[int, Chem.ChiralType] | None = None
         self._tried = False
 
-    def _positions(self) -> dict[int, np.ndarray] | None:
+    def _positions(self) -> dict[int, Vec] | None:
         mol = self._substrate
         ring_atoms = sorted(set().union(*_ring_systems(mol))) if mol.GetRingInfo().NumRings() else []
         if not ring_atoms:
@@ -192,7 +209,7 @@ class Skeleton:
         coords = _ring_coordinates(smiles)
         if coords is None or len(coords) != len(order):
             return None
-        placed = {atom: np.array(coords[pos]) for pos, atom in enumerate(order)}
+        placed = {atom: coords[pos] for pos, atom in enumerate(order)}
         return {a: placed[a] for a in atoms if a in placed}
 
     def _embed(self) -> dict[int, Chem.ChiralType] | None:

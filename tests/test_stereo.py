@@ -71,7 +71,6 @@ def test_input_stereo_is_kept_in_products() -> None:
 )
 def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
     # Our geometry-to-tag rule against RDKit's own 3D perception on the same coordinates.
-    import numpy as np
     from rdkit.Chem import rdDistGeom
 
     from engine.stereo import _tag_from_positions
@@ -81,7 +80,7 @@ def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
     assert rdDistGeom.EmbedMolecule(mol_h, randomSeed=11) == 0
     conf = mol_h.GetConformer()
     heavy = Chem.Mol(mol)
-    position = {i: np.array(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms())}
+    position = {i: tuple(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms())}
     checked = 0
     for atom in mol.GetAtoms():
         if atom.GetChiralTag() != Chem.ChiralType.CHI_UNSPECIFIED:

@@ -10,6 +10,7 @@ from functools import cached_property
 from rdkit import Chem
 
 from engine.special_sites import small_bridgeheads, special_site_class
+from engine.stereo import canonical
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
@@ -178,7 +179,13 @@ def has_specified_stereo(canonical_smiles: str) -> bool:
 
 
 def _smiles(prod: Chem.Mol, isomeric: bool) -> str:
-    return Chem.MolToSmiles(prod, isomericSmiles=isomeric)
+    """Canonical SMILES of a product; with input stereo, only the stereo the product really keeps.
+
+    A tag copied from the substrate can stop being a stereocentre (the other
+    end of 1,4-dimethylcyclohexane once C1 is open), and written as is it
+    would claim a configuration that no longer exists.
+    """
+    return canonical(prod) if isomeric else Chem.MolToSmiles(prod, isomericSmiles=False)
 
 
 #: Automorphisms enumerated per molecule; a molecule with more (many

@@ -13,6 +13,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from rdkit import Chem
 
 import engine
 from engine import Conditions
@@ -128,3 +129,11 @@ def test_contenders_prune_where_a_class_can_never_win() -> None:
     hot, cold = Conditions(br2_temp_c=MAX_TEMP_C).per_h("br2"), Conditions(br2_temp_c=25.0).per_h("br2")
     assert 6 * hot[code("primary")] > hot[code("tertiary")] and cold[code("tertiary")] > 6 * cold[code("primary")]
     assert {code("primary"), code("tertiary")} <= contending_classes(pattern, "cl")
+
+
+def test_product_smiles_are_rdkit_canonical(both) -> None:
+    # Products are built by editing the substrate without a full sanitisation; their SMILES
+    # must still be what RDKit writes for the same molecule parsed afresh (canonical, stable).
+    full, _ = both
+    for smiles in list(full.sites["product"]) + list(full.allylic["product"]):
+        assert Chem.MolToSmiles(Chem.MolFromSmiles(smiles)) == smiles

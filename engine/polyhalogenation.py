@@ -32,11 +32,13 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 
 from engine import parameters as P
 from engine.reagents import RADICAL_OF
+from engine.shares import blocks_by_length
 
 #: One line for output files and JSON: what the estimate assumes.
 MODEL_NOTE = (
@@ -48,10 +50,17 @@ MODEL_NOTE = (
 #: Default cap on polyhalides, percent of halogenated product (common practice: a planning figure, no source).
 DEFAULT_MAX_POLY_PCT = 10.0
 DEFAULT_RATIO = P.POLY_SCREEN_RATIO
-#: Bisection steps: 2⁻⁴⁸ in A for a plan; 2⁻¹⁶ (≈ 1.5e-5, below the 0.1 % shown) for the screen column,
-#: which is recomputed on every re-weighing of a whole library.
+#: Bisection steps: 2⁻⁴⁸ in A.
 _ITERATIONS = 48
-_SCREEN_ITERATIONS = 16
+#: Halley steps of the screen column (recomputed on every re-weighing of a whole library) before the
+#: structures not yet settled fall back to bisection.
+_SCREEN_STEPS = 12
+#: Halogen balance |used − charged| (mol per mol substrate) at which a screen solve counts as settled,
+#: and the looser one accepted after the last step; either is far below the 0.1 % shown.
+_SETTLED = 1e-10
+_ACCEPTED = 1e-7
+#: Grid of mean κ on which the one-site stand-in that starts the screen solve is tabulated.
+_STAND_IN_GRID = np.linspace(0.0, 1.0 - 1e-6, 513)
 
 
 def deactivation(reagent: str) -> float:
@@ -110,70 +119,6 @@ class Split:
             total += np.bincount(self.struct[rows], weights=b, minlength=self.n)[: self.n]
         return total
 
-    def _mono_and_slope(self, left: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """ΣB_i and dΣB_i/dA per structure (for Newton steps; κ = 1 rows use their own limit form)."""
-        safe = np.clip(left, 1e-300, 1.0)
-        powered = np.exp(self.kappa * np.log(safe)[self.struct])
-        mono = np.bincount(self.struct, weights=self._coef * powered, minlength=self.n)[: self.n] - left * self._coef_sum
-        slope = (
-            np.bincount(self.struct, weights=self._coef * self.kappa * powered, minlength=self.n)[: self.n] / safe
-            - self._coef_sum
-        )
-        if self._near.any():
-            rows = np.flatnonzero(self._near)
-            a = safe[self.struct[rows]]
-            mono += np.bincount(self.struct[rows], weights=monohalide(a, self.phi[rows], self.kappa[rows]), minlength=self.n)[: self.n]
-            slope += np.bincount(self.struct[rows], weights=-self.phi[rows] * (np.log(a) + 1.0), minlength=self.n)[: self.n]
-        return mono, slope
-
-    def _start(self, available: np.ndarray) -> np.ndarray:
-        """A first guess per structure from a one-site stand-in (share-weighted mean κ).
-
-        Solving the stand-in costs one value per structure rather than per product, so
-        it can be bisected finely; the full model then needs only a few Newton steps.
-        """
-        weight = np.bincount(self.struct, weights=self.phi, minlength=self.n)[: self.n]
-        mean_kappa = np.divide(
-            np.bincount(self.struct, weights=self.phi * self.kappa, minlength=self.n)[: self.n], weight,
-            out=np.zeros(self.n), where=weight > 0,
-        )
-        k = np.clip(mean_kappa, 0.0, 1.0 - 1e-6)
-        lo, hi = np.zeros(self.n), np.ones(self.n)
-        for _ in range(12):  # a start, not the answer: Newton on the full model finishes it
-            mid = (lo + hi) / 2
-            used = 2.0 * (1.0 - mid) - (mid**k - mid) / (1.0 - k)
-            above = used >= available  # too much halogen used: more substrate must survive
-            lo = np.where(above, mid, lo)
-            hi = np.where(above, hi, mid)
-        # Kept off A = 0, where A^κ is too steep for Newton steps.
-        return np.clip((lo + hi) / 2, 1e-3, 1.0)
-
-    def left_at_ratio_fast(self, ratio: float, steps: int = 12) -> np.ndarray:
-        """As :meth:`left_at_ratio`, by bracketed Newton steps (each costs one exp per product, as one
-        bisection step does, but converges quadratically). Rows that do not settle fall back to bisection."""
-        available = np.full(self.n, 1.0 / ratio)
-        lo, hi = np.zeros(self.n), np.ones(self.n)
-        left = self._start(available)
-        for _ in range(steps):
-            mono, slope = self._mono_and_slope(left)
-            excess = 2.0 * (1.0 - left) - mono - available  # halogen used minus halogen given; falls as A rises
-            if np.all(np.abs(excess) <= 1e-10):
-                break
-            lo = np.where(excess >= 0, left, lo)
-            hi = np.where(excess < 0, left, hi)
-            d_excess = -2.0 - slope
-            with np.errstate(divide="ignore", invalid="ignore"):
-                step = left - excess / d_excess
-            inside = np.isfinite(step) & (step >= lo) & (step <= hi)
-            left = np.where(inside, step, (lo + hi) / 2)
-        mono, _ = self._mono_and_slope(left)
-        residual = np.abs(2.0 * (1.0 - left) - mono - available)
-        unsettled = residual > 1e-7
-        if unsettled.any():
-            left = np.where(unsettled, self.left_at_ratio(ratio), left)
-        left = np.where(available >= 2.0, 0.0, left)
-        return np.where(self.reacts, left, 1.0)
-
     def halogen_used(self, left: np.ndarray) -> np.ndarray:
         """X(A) = 2(1 − A) − ΣB_i per structure."""
         return 2.0 * (1.0 - left) - self.mono(left)
@@ -213,17 +158,171 @@ class Split:
         return np.where(ok_at_full | ~self.reacts, np.where(self.reacts, 0.0, 1.0), hi)
 
 
+@lru_cache(maxsize=8)
+def _stand_in_table(available: float) -> np.ndarray:
+    """Substrate left for a one-site stand-in, 2(1 − A) − (A^κ − A)/(1 − κ) = available, at each κ of the grid.
+
+    The stand-in depends on nothing but κ, so it is bisected finely once per ratio and
+    interpolated: a start for the full model at the cost of one lookup per structure.
+    """
+    k = _STAND_IN_GRID
+    lo, hi = np.zeros(len(k)), np.ones(len(k))
+    for _ in range(_ITERATIONS):
+        mid = (lo + hi) / 2
+        used = 2.0 * (1.0 - mid) - (mid**k - mid) / (1.0 - k)
+        above = used >= available  # too much halogen used: more substrate must survive
+        lo = np.where(above, mid, lo)
+        hi = np.where(above, hi, mid)
+    out = (lo + hi) / 2
+    out.flags.writeable = False  # shared by every later call with this ratio
+    return out
+
+
+def _stand_in_left(mean_kappa: np.ndarray, available: float) -> np.ndarray:
+    """Substrate left for the one-site stand-in with exponent ``mean_kappa`` (linear between grid points)."""
+    table = _stand_in_table(float(available))
+    step = _STAND_IN_GRID[1] - _STAND_IN_GRID[0]
+    # The grid is even, so the cell is found by one division (np.interp would search for it).
+    at = np.clip(mean_kappa / step, 0.0, len(_STAND_IN_GRID) - 1.0)
+    cell = np.minimum(at.astype(np.intp), len(_STAND_IN_GRID) - 2)
+    at -= cell
+    return table[cell] + at * (table[cell + 1] - table[cell])
+
+
+class _Block:
+    """Structures as columns of (terms, structures) arrays of φ and κ, with what every evaluation reuses."""
+
+    def __init__(self, phi: np.ndarray, kappa: np.ndarray) -> None:
+        """``phi``, ``kappa``: one column per structure (padding terms have φ = 0)."""
+        self.kappa = kappa
+        self.kappa_less_one = kappa - 1.0
+        near = np.abs(self.kappa_less_one) < 1e-9
+        if near.any():
+            # κ = 1 terms, −φ·A·ln A, are summed apart; the others are c·(A^κ − A) with c = φ/(1 − κ).
+            self.coef = np.where(near, 0.0, phi / np.where(near, -0.5, self.kappa_less_one))
+            self.near_phi: np.ndarray | None = np.where(near, phi, 0.0).sum(axis=0)
+        else:
+            self.coef = phi / self.kappa_less_one
+            self.near_phi = None
+        np.negative(self.coef, out=self.coef)
+        self.coef_sum = self.coef.sum(axis=0)
+
+    def subset(self, keep: np.ndarray) -> _Block:
+        """The structures (columns) where ``keep`` is set."""
+        out = _Block.__new__(_Block)
+        out.kappa, out.kappa_less_one, out.coef = self.kappa[:, keep], self.kappa_less_one[:, keep], self.coef[:, keep]
+        out.coef_sum = self.coef_sum[keep]
+        out.near_phi = None if self.near_phi is None else self.near_phi[keep]
+        return out
+
+    def evaluate(self, left: np.ndarray, derivatives: bool = True) -> tuple[np.ndarray, ...]:
+        """ΣB_i per structure at substrate left ``left``, with its first and second derivatives in A."""
+        safe = np.maximum(left, 1e-300)  # as Split.mono: A^κ → 0 at A = 0 for κ > 0, 1 for κ = 0
+        x = np.multiply(self.kappa, np.log(safe))
+        np.exp(x, out=x)
+        x *= self.coef  # c·A^κ
+        mono = x.sum(axis=0) - safe * self.coef_sum
+        slope = curv = None
+        if derivatives:
+            x *= self.kappa  # c·κ·A^κ
+            slope = x.sum(axis=0) / safe - self.coef_sum
+            x *= self.kappa_less_one  # c·κ·(κ − 1)·A^κ
+            curv = x.sum(axis=0) / (safe * safe)
+        if self.near_phi is not None:
+            log_safe = np.log(safe)
+            mono -= self.near_phi * safe * log_safe
+            if derivatives:
+                slope -= self.near_phi * (log_safe + 1.0)
+                curv -= self.near_phi / safe
+        return mono, slope, curv
+
+    def bisect(self, available: float) -> tuple[np.ndarray, np.ndarray]:
+        """Substrate left (largest A with halogen used ≥ ``available``) and ΣB_i there, by bisection."""
+        lo, hi = np.zeros(self.kappa.shape[1]), np.ones(self.kappa.shape[1])
+        for _ in range(_ITERATIONS):
+            mid = (lo + hi) / 2
+            above = 2.0 * (1.0 - mid) - self.evaluate(mid, derivatives=False)[0] >= available
+            lo = np.where(above, mid, lo)
+            hi = np.where(above, hi, mid)
+        return lo, self.evaluate(lo, derivatives=False)[0]
+
+
+def left_and_mono_at_ratio(phi: np.ndarray, kappa: np.ndarray, ratio: float = DEFAULT_RATIO) -> tuple[np.ndarray, np.ndarray]:
+    """Per structure: substrate left when halogen (1/``ratio`` mol per mol) is used up, and ΣB_i there.
+
+    ``phi``, ``kappa``: shape (terms, structures), one column per structure (padding: φ = 0; terms of
+    equal κ may also be merged by adding their φ). Bracketed Halley steps from the stand-in start;
+    a structure is done once its halogen balance settles, and the others alone are evaluated
+    again. Structures that do not settle fall back to bisection, as :meth:`Split.left_at_ratio`.
+    """
+    phi, kappa = np.asarray(phi, dtype=np.float64), np.asarray(kappa, dtype=np.float64)
+    block = _Block(phi, kappa)
+    n = phi.shape[1]
+    available = 1.0 / ratio
+    left_out, mono_out = np.ones(n), np.zeros(n)
+    if n == 0:
+        return left_out, mono_out
+    if available >= 2.0:  # more halogen than two per substrate: none survives (as Split.left_at_ratio)
+        left_out[:] = 0.0
+        return left_out, block.evaluate(left_out, derivatives=False)[0]
+    weight = phi.sum(axis=0)
+    mean_kappa = np.divide((phi * kappa).sum(axis=0), weight, out=np.zeros(n), where=weight > 0)
+    # Kept off A = 0, where A^κ is too steep for Halley steps.
+    left = np.clip(_stand_in_left(mean_kappa, available), 1e-3, 1.0)
+    ids = np.arange(n)
+    lo, hi = np.zeros(n), np.ones(n)
+    live = np.ones(n, dtype=bool)
+    for step in range(_SCREEN_STEPS + 1):
+        mono, slope, curv = block.evaluate(left)
+        excess = 2.0 * (1.0 - left) - mono - available  # halogen used minus halogen charged; falls as A rises
+        done = live & (np.abs(excess) <= (_SETTLED if step < _SCREEN_STEPS else _ACCEPTED))
+        left_out[ids[done]], mono_out[ids[done]] = left[done], mono[done]
+        live &= ~done
+        if step == _SCREEN_STEPS or not live.any():
+            break
+        lo = np.where(excess >= 0, left, lo)
+        hi = np.where(excess < 0, left, hi)
+        d1 = -2.0 - slope
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            newton = excess / d1
+            bend = 1.0 + 0.5 * newton * curv / d1
+            # Halley's step where the curvature term is tame, else Newton's; bisection if either leaves the bracket.
+            nxt = left - np.where(bend > 0.5, newton / bend, newton)
+        inside = np.isfinite(nxt) & (nxt >= lo) & (nxt <= hi)
+        left = np.where(live, np.where(inside, nxt, (lo + hi) / 2), left)
+        if live.mean() < 0.75:  # repacking costs about a third of an evaluation: only once many are done
+            block, ids, left, lo, hi = block.subset(live), ids[live], left[live], lo[live], hi[live]
+            live = np.ones(len(ids), dtype=bool)
+    if live.any():
+        rest = block.subset(live) if not live.all() else block
+        left_out[ids[live]], mono_out[ids[live]] = rest.bisect(available)
+    return left_out, mono_out
+
+
+def poly_pct_of_block(phi: np.ndarray, kappa: np.ndarray, ratio: float = DEFAULT_RATIO) -> np.ndarray:
+    """Per structure (columns, as for :func:`left_and_mono_at_ratio`): polyhalide, percent of halogenated product."""
+    left, mono = left_and_mono_at_ratio(phi, kappa, ratio)
+    converted = 1.0 - left
+    poly = np.maximum(0.0, converted - mono)
+    return 100.0 * np.divide(poly, converted, out=np.zeros_like(converted), where=converted > 1e-15)
+
+
 def poly_pct_at_ratio(
     struct: np.ndarray, h: np.ndarray, share_pct: np.ndarray, reagent: str, n: int, ratio: float = DEFAULT_RATIO
 ) -> np.ndarray:
     """Per structure: polyhalide, percent of halogenated product, at ``ratio`` with all halogen used (NaN: inert)."""
-    share = np.asarray(share_pct, float) / 100.0
-    # Products under a millionth of the mixture change nothing shown; dropping them halves the work for Br2.
-    share = np.where(share < 1e-6, 0.0, share)
-    split = Split(struct, h, share, deactivation(reagent), n)
-    left = split.left_at_ratio_fast(ratio)
-    out = 100.0 * split.poly_fraction(left)
-    return np.where(split.reacts, out, np.nan)
+    struct = np.asarray(struct)
+    h = np.asarray(h, dtype=np.float64)
+    share = np.asarray(share_pct, dtype=np.float64) / 100.0
+    rows = np.flatnonzero((share > 0) & (h > 0))
+    rows = rows[np.argsort(struct[rows], kind="stable")]  # terms must come grouped by structure
+    s = struct[rows]
+    out = np.full(n, np.nan)
+    starts = np.flatnonzero(np.r_[True, s[1:] != s[:-1]]) if len(s) else np.zeros(0, dtype=np.int64)
+    phi, kappa = _site_terms(h[rows], share[rows], deactivation(reagent))
+    for segments, index in blocks_by_length(starts, np.diff(np.r_[starts, len(s)])):
+        out[s[starts[segments]]] = poly_pct_of_block(phi[index], kappa[index], ratio)
+    return out
 
 
 def poly_share(conversion: float, h_counts: Sequence[int], shares_pct: Sequence[float], f: float = 1.0) -> float:

@@ -1,4 +1,7 @@
-"""Per-structure shares of per-row weights: the one normalisation every reagent's split uses."""
+"""Per-structure shares of per-row weights, and per-structure blocks for reductions over few rows each.
+
+The normalisation here is the one every reagent's split uses.
+"""
 
 from __future__ import annotations
 
@@ -12,3 +15,28 @@ def percent_of_structure(weights: np.ndarray, struct: np.ndarray, n_struct: int)
     with np.errstate(invalid="ignore", divide="ignore"):
         # Divide first: 100·w/total can round to 99.99999999999999 for a lone product.
         return np.where(denom > 0, 100.0 * (weights / np.where(denom > 0, denom, 1.0)), 0.0)
+
+
+def blocks_by_length(starts: np.ndarray, lengths: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Segments (``lengths[j]`` entries from ``starts[j]``) grouped by length; empty segments left out.
+
+    Per distinct length L: the segment numbers (ascending) and an (L, m) matrix of
+    their entries' positions, one column per segment. Gathered this way, a
+    per-segment reduction is a reduction along axis 0 of a dense array, done in
+    whole-array passes; ``np.add.reduceat`` steps once per segment, which costs
+    more than the arithmetic when segments hold a few entries each.
+    """
+    lengths = np.asarray(lengths)
+    if len(lengths) == 0:
+        return []
+    top = int(lengths.max())
+    # A stable sort of small integers is a radix sort in numpy: keys narrowed when they fit.
+    keys = lengths.astype(np.int16) if top < 2**15 else lengths
+    order = np.argsort(keys, kind="stable")
+    cuts = np.flatnonzero(np.diff(lengths[order])) + 1
+    out = []
+    for group in np.split(order, cuts):
+        width = int(lengths[group[0]])
+        if width:
+            out.append((group, np.asarray(starts)[group][None, :] + np.arange(width)[:, None]))
+    return out

@@ -1,9 +1,22 @@
 """Re-weighing: product percentages and verdicts from a perception, vectorised.
 
 No RDKit here — this runs live in the app for every change of conditions.
+
+:func:`summarise` reads the site table in *runs*: consecutive rows of one
+structure with the same site class and H count. Every product of a run has the
+same share under any conditions, so a run is weighed once: its first product
+stands for it as a candidate major and for the confidence cut-off, and in the
+polyhalide estimate it is one term (terms of equal κ add). Runs are laid out
+in blocks of structures with equally many (:func:`engine.shares.blocks_by_length`),
+so per-structure sums are whole-array passes; text is gathered only for the
+structures' majors.
 """
 
 from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+from functools import reduce
 
 import numpy as np
 import pandas as pd
@@ -12,9 +25,9 @@ import pyarrow.compute as pc
 
 from engine.conditions import REAGENTS, Conditions
 from engine.nbs import nbs_majors
-from engine.polyhalogenation import poly_pct_at_ratio
+from engine.polyhalogenation import deactivation, poly_pct_of_block
 from engine.perception import Perception
-from engine.shares import percent_of_structure
+from engine.shares import blocks_by_length, percent_of_structure
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 
 VERDICTS = ("single", "br-selective", "mixture", "inert")
@@ -29,6 +42,12 @@ BASES = ("estimate", "textbook", "measured")
 #: A product counts towards ``confidence`` when it carries at least this share
 #: of either reagent's monohalides (a definition of this program, not chemistry).
 CONFIDENCE_MIN_PCT = 5.0
+#: Shares this close to a structure's largest count as tied for major (the first met wins).
+_TIE_PCT = 1e-9
+
+#: The column type pandas gives a column of Python strings (Arrow-backed ``str`` from pandas 3 on, else object).
+_TEXT_DTYPE = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
+_ARROW_TEXT = isinstance(_TEXT_DTYPE, pd.StringDtype) and _TEXT_DTYPE.storage == "pyarrow"
 
 
 def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> np.ndarray:
@@ -41,6 +60,34 @@ def basis_rank(conditions: Conditions, reagent: str) -> np.ndarray:
     """Per site code, the index in :data:`BASES` of what its rate rests on (len(BASES) when not abstracted)."""
     rank = {b: i for i, b in enumerate(BASES)}
     return np.array([rank.get(b, len(BASES)) for b in conditions.bases(reagent)], dtype=np.int8)
+
+
+def _product_ranks(site_code: np.ndarray, pct: dict[str, np.ndarray], conditions: Conditions) -> np.ndarray:
+    """Per product, the weakest basis (index in :data:`BASES`) among the reagents under which it reaches the cut-off."""
+    none = np.int8(len(BASES))
+    out = np.full(np.shape(site_code), none, dtype=np.int8)
+    for reagent, p in pct.items():
+        ranks = basis_rank(conditions, reagent)[site_code]
+        ranks[p < CONFIDENCE_MIN_PCT] = none
+        np.minimum(out, ranks, out=out)
+    return out
+
+
+def confidence_ranks(
+    site_code: np.ndarray,
+    pct: dict[str, np.ndarray],
+    struct: np.ndarray,
+    n_struct: int,
+    conditions: Conditions,
+    starts: np.ndarray | None = None,
+) -> np.ndarray:
+    """As :func:`confidence_labels`, as indices into ``(*BASES, "")`` (int8)."""
+    worst = np.full(n_struct, len(BASES), dtype=np.int8)
+    if len(struct):
+        if starts is None:
+            starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
+        worst[struct[starts]] = np.minimum.reduceat(_product_ranks(site_code, pct, conditions), starts)
+    return worst
 
 
 def confidence_labels(
@@ -57,19 +104,8 @@ def confidence_labels(
     class toward that reagent's radical; a product counts only for the
     reagents under which it reaches the cut-off. Empty when no product does.
     """
-    none = np.int8(len(BASES))
-    row_rank = np.full(len(site_code), none, dtype=np.int8)
-    for reagent, p in pct.items():
-        ranks = basis_rank(conditions, reagent)[site_code]
-        counted = p >= CONFIDENCE_MIN_PCT
-        np.minimum(row_rank, np.where(counted, ranks, none), out=row_rank)
-    worst = np.full(n_struct, none, dtype=np.int8)
-    if len(struct):
-        if starts is None:
-            starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
-        worst[struct[starts]] = np.minimum.reduceat(row_rank, starts)
     labels = np.array([*BASES, ""], dtype=object)
-    return labels[worst]
+    return labels[confidence_ranks(site_code, pct, struct, n_struct, conditions, starts)]
 
 
 def weigh(
@@ -92,22 +128,78 @@ def _segments(struct: np.ndarray) -> np.ndarray:
     return np.flatnonzero(np.r_[True, struct[1:] != struct[:-1]])
 
 
-def _first_max(values: np.ndarray, struct: np.ndarray, starts: np.ndarray) -> np.ndarray:
-    """Row index of the first maximum of ``values`` within each segment."""
-    seg_max = np.maximum.reduceat(values, starts)
-    seg_of_row = np.repeat(np.arange(len(starts)), np.diff(np.r_[starts, len(values)]))
-    hits = np.flatnonzero(values >= seg_max[seg_of_row] - 1e-9)
-    hit_seg = seg_of_row[hits]
-    first = np.r_[True, hit_seg[1:] != hit_seg[:-1]]
-    return hits[first]
+def _site_type_names(masks: np.ndarray) -> tuple[list[str], np.ndarray]:
+    """Distinct comma-joined site-class names of bit ``masks`` and, per mask, the index of its name."""
+    present = np.flatnonzero(np.bincount(masks)) if len(masks) else np.zeros(0, dtype=np.int64)
+    names = [",".join(sorted(SITE_CLASSES[i] for i in range(len(SITE_CLASSES)) if int(m) >> i & 1)) for m in present]
+    index = np.zeros(int(present[-1]) + 1 if len(present) else 1, dtype=np.int32)
+    index[present] = np.arange(len(present), dtype=np.int32)
+    return names, index[masks]
 
 
-def _site_type_names(masks: np.ndarray) -> np.ndarray:
-    names = np.empty(len(masks), dtype=object)
-    for mask in np.unique(masks):
-        label = ",".join(sorted(SITE_CLASSES[i] for i in range(len(SITE_CLASSES)) if int(mask) >> i & 1))
-        names[masks == mask] = label
-    return names
+def _has_flag(flags: pd.Series, flag: str) -> np.ndarray:
+    """Per row, whether the comma-joined ``flags`` include ``flag`` (decided once per distinct value)."""
+    codes, uniques = pd.factorize(flags)
+    has = np.array([flag in str(u).split(",") for u in uniques] + [False], dtype=bool)
+    return has[codes]  # a missing value (code −1) takes the trailing False
+
+
+def _labels_column(labels: Sequence[str], codes: np.ndarray) -> object:
+    """``labels[codes]`` as a text column, without building a Python string per row."""
+    if _ARROW_TEXT:
+        return pd.array(pc.take(pa.array(list(labels), type=pa.large_string()), pa.array(codes)), dtype=_TEXT_DTYPE)
+    return np.array(list(labels), dtype=object)[codes]
+
+
+def _swap_pair(data: np.ndarray, offsets: np.ndarray, old: str, new: str) -> np.ndarray:
+    """UTF-8 bytes ``data`` of strings bounded by ``offsets`` with every ``old`` replaced by ``new`` (a copy).
+
+    Only for two ASCII strings of two characters whose first and last differ: no UTF-8
+    continuation byte can match, lengths stay put, and such a pattern cannot overlap
+    itself, so this equals ``str.replace`` string by string.
+    """
+    out = data.copy()
+    if len(data) < 2:
+        return out
+    match = data[:-1] == ord(old[0])
+    match &= data[1:] == ord(old[1])
+    across = offsets[1:-1] - 1  # a match from one string's last byte into the next's first is none
+    match[across[(across >= 0) & (across < len(match))]] = False
+    hits = np.flatnonzero(match)
+    hits = hits[(hits >= offsets[0]) & (hits < offsets[-1] - 1)]
+    out[hits], out[hits + 1] = ord(new[0]), ord(new[1])
+    return out
+
+
+def _gather_text(column: pd.Series, rows: np.ndarray, swap: tuple[str, str] | None = None) -> object:
+    """``column`` at ``rows`` ('' where a row is −1), with substring ``swap[0]`` → ``swap[1]``, as a text column."""
+    has = rows >= 0
+    arrow = getattr(column.array, "__arrow_array__", None)
+    if _ARROW_TEXT and arrow is not None:
+        taken = pc.take(arrow(), pa.array(rows if has.all() else rows[has]))
+        taken = (taken.combine_chunks() if taken.num_chunks != 1 else taken.chunk(0)).cast(pa.large_string())
+        swappable = swap is not None and all(len(x) == 2 and x.isascii() and x[0] != x[1] for x in swap)
+        if taken.null_count or (swap is not None and not swappable):  # not met in perceptions: the general way
+            out = pc.fill_null(pc.take(arrow(), pa.array(rows, mask=~has)), "")
+            return pd.array(pc.replace_substring(out, *swap) if swap else out, dtype=_TEXT_DTYPE)
+        # Built from the taken buffers: the rows without a product get empty strings by their offsets alone.
+        _, offsets_buf, data_buf = taken.buffers()
+        offsets = np.frombuffer(offsets_buf, dtype=np.int64)[taken.offset : taken.offset + len(taken) + 1]
+        data = np.frombuffer(data_buf, dtype=np.uint8) if data_buf is not None else np.zeros(0, dtype=np.uint8)
+        if swap is not None:
+            data = _swap_pair(data, offsets, *swap)
+        if not has.all():
+            lengths = np.zeros(len(rows), dtype=np.int64)
+            lengths[has] = np.diff(offsets)
+            offsets = np.concatenate([offsets[:1], offsets[0] + np.cumsum(lengths)])
+        text = pa.LargeStringArray.from_buffers(len(rows), pa.py_buffer(offsets), pa.py_buffer(data))
+        return pd.array(text, dtype=_TEXT_DTYPE)
+    values = column.to_numpy(dtype=object)
+    out = np.full(len(rows), "", dtype=object)
+    out[has] = values[rows[has]]
+    if swap is not None:
+        out = np.array([s.replace(*swap) for s in out], dtype=object)
+    return out
 
 
 def serves(
@@ -120,13 +212,20 @@ def serves(
     only nbs, because Cl2 and Br2 add to the double bond. Empty for rejected
     and inert rows, and when no reagent reaches the threshold.
     """
-    out = np.full(len(ok), "", dtype=object)
+    return np.array(["", *SERVES_ORDER], dtype=object)[_serves_codes(columns, alkene, ok, n_products, threshold_pct)]
+
+
+def _serves_codes(
+    columns: dict, alkene: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
+) -> np.ndarray:
+    """As :func:`serves`, as indices into ``("", *SERVES_ORDER)`` (int8)."""
+    out = np.zeros(len(ok), dtype=np.int8)
     open_ = ok & (n_products > 0)
-    for reagent in SERVES_ORDER:
+    for code, reagent in enumerate(SERVES_ORDER, start=1):
         pct = np.nan_to_num(np.asarray(columns[f"{reagent}_major_pct"], dtype=np.float64), nan=0.0)
         allowed = open_ if reagent == "nbs" else open_ & ~alkene
-        hit = allowed & (out == "") & (pct >= threshold_pct)
-        out[hit] = reagent
+        hit = allowed & (out == 0) & (pct >= threshold_pct)
+        out[hit] = code
     return out
 
 
@@ -139,54 +238,139 @@ def _memo(memo: dict | None, key: tuple, compute):
     return memo[key]
 
 
+#: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
+#: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
+_CHUNK_ROWS = 1 << 20
+_SLICE_RUNS = 1 << 18
+#: Bit of each site code in a structure's site-type mask.
+_CODE_BIT = np.left_shift(np.int64(1), np.arange(len(SITE_CLASSES), dtype=np.int64))
+
+
+@dataclass(frozen=True)
+class _Block:
+    """Structures with equally many runs: one column per structure, one row per run (in site-table order)."""
+
+    struct: np.ndarray
+    """Structure rows, one per column."""
+    code: np.ndarray
+    """Site code of each run."""
+    h: np.ndarray
+    """H count of each product of the run."""
+    count: np.ndarray
+    """Products in the run."""
+    first: np.ndarray
+    """Site-table row of the run's first product."""
+
+    def slices(self) -> list[_Block]:
+        """Column slices of about :data:`_SLICE_RUNS` runs each (views)."""
+        width, m = self.code.shape
+        step = max(1, _SLICE_RUNS // width)
+        return [
+            _Block(self.struct[i : i + step], self.code[:, i : i + step], self.h[:, i : i + step],
+                   self.count[:, i : i + step], self.first[:, i : i + step])
+            for i in range(0, m, step)
+        ]
+
+
+def _runs(struct: np.ndarray, codes: np.ndarray, h: np.ndarray) -> np.ndarray:
+    """First row of each run of rows with equal structure, site code and H count."""
+    if len(struct) == 0:
+        return np.zeros(0, dtype=np.int64)
+    change = np.empty(len(struct), dtype=bool)
+    change[0] = True
+    np.not_equal(struct[1:], struct[:-1], out=change[1:])
+    change[1:] |= codes[1:] != codes[:-1]
+    change[1:] |= h[1:] != h[:-1]
+    return np.flatnonzero(change)
+
+
+def _chunk_bounds(struct: np.ndarray, size: int) -> list[int]:
+    """Row bounds of consecutive chunks of about ``size`` rows, each cut between two structures."""
+    bounds = [0]
+    while bounds[-1] + size < len(struct):
+        cut = bounds[-1] + size
+        while cut < len(struct) and struct[cut] == struct[cut - 1]:
+            cut += 1
+        bounds.append(cut)
+    if bounds[-1] < len(struct):
+        bounds.append(len(struct))
+    return bounds
+
+
 def _static(perception: Perception) -> dict:
-    """What does not depend on conditions: segments, product counts, site types, alkene rows."""
+    """What does not depend on conditions: runs in blocks, product counts, site types, alkene and ok rows."""
     structures, sites = perception.structures, perception.sites
     n = len(structures)
     struct = sites["struct"].to_numpy()
-    starts = _segments(struct)
-    seg_struct = struct[starts] if len(starts) else np.zeros(0, dtype=np.int64)
     codes = sites["site_code"].to_numpy()
-    # Every abstractable class has k > 0 at any temperature, so this is the same under all conditions.
-    abstractable = codes < len(ABSTRACTABLE)  # site codes number the abstractable classes first
-    n_products = np.bincount(struct, weights=abstractable, minlength=n)[:n].astype(np.int32)
-    bits = np.where(abstractable, np.left_shift(1, codes.astype(np.int64)), 0)
+    h = sites["h_count"].to_numpy()
+    row_type = np.int32 if len(struct) < 2**31 else np.int64
+    n_products = np.zeros(n, dtype=np.int32)
     masks = np.zeros(n, dtype=np.int64)
-    if len(starts):
-        masks[seg_struct] = np.bitwise_or.reduceat(bits, starts)
-    flags = structures["flags"].to_numpy(dtype=object)
-    alkene = np.array(["alkene" in str(f).split(",") for f in flags], dtype=bool) if n else np.zeros(0, bool)
+    pieces: dict[int, list[_Block]] = {}
+    bounds = _chunk_bounds(struct, _CHUNK_ROWS)
+    for lo, hi in zip(bounds[:-1], bounds[1:]):
+        start = _runs(struct[lo:hi], codes[lo:hi], h[lo:hi]) + lo
+        # Every abstractable class has k > 0 at any temperature, so which runs count is the same under all conditions.
+        term = codes[start] < len(ABSTRACTABLE)  # site codes number the abstractable classes first
+        count = np.diff(np.append(start, hi))[term]
+        first = start[term]
+        run_h = h[first]
+        # Narrow types (kept for every re-weighing): H counts and run lengths fit int16 in any catalogue.
+        small = np.int16 if len(first) == 0 or max(int(run_h.max()), int(count.max())) < 2**15 else np.int32
+        run_struct, run_code = struct[first], codes[first]
+        run_h, count, first = run_h.astype(small), count.astype(small), first.astype(row_type)
+        seg = _segments(run_struct)
+        for segments, index in blocks_by_length(seg, np.diff(np.append(seg, len(first)))):
+            piece = _Block(run_struct[seg[segments]], run_code[index], run_h[index], count[index], first[index])
+            n_products[piece.struct] = piece.count.sum(axis=0)
+            masks[piece.struct] = np.bitwise_or.reduce(_CODE_BIT[piece.code], axis=0)
+            pieces.setdefault(index.shape[0], []).append(piece)
+    blocks = [
+        _Block(*(np.concatenate([getattr(p, f) for p in group], axis=-1) for f in ("struct", "code", "h", "count", "first")))
+        if len(group) > 1 else group[0]
+        for _, group in sorted(pieces.items())
+    ]
+    type_names, type_codes = _site_type_names(masks)
     return {
-        "struct": struct, "starts": starts, "seg_struct": seg_struct, "codes": codes, "n_products": n_products,
-        "site_types": _site_type_names(masks), "alkene": alkene, "ok": (structures["status"] == "ok").to_numpy(),
-        "h": sites["h_count"].to_numpy(),
+        "blocks": blocks, "n_products": n_products, "site_types": _labels_column(type_names, type_codes),
+        "alkene": _has_flag(structures["flags"], "alkene"), "ok": (structures["status"] == "ok").to_numpy(),
     }
 
 
 def _reagent_part(perception: Perception, static: dict, conditions: Conditions, reagent: str) -> dict:
-    """One reagent's shares, major product and percent (and, for br2, the major's stereo), and polyhalide."""
+    """One reagent's major product and percent (for br2 also its stereo), polyhalide, and confidence rank."""
     sites = perception.sites
-    struct, starts, seg_struct = static["struct"], static["starts"], static["seg_struct"]
     n = len(perception.structures)
-    pct = percent_of_structure(site_weights(sites, conditions, reagent), struct, n)
-    major_smiles = np.full(n, "", dtype=object)
-    major_pct = np.full(n, np.nan)
-    major_stereo = np.full(n, "", dtype=object)
-    if len(starts):
-        rows = _first_max(pct, struct, starts)
-        has = static["n_products"][seg_struct] > 0
-        chosen = rows[has]
-        # Gather strings for the majors only: converting every site's string costs more than the weighing.
-        major_smiles[seg_struct[has]] = sites["product"].take(chosen).to_numpy(dtype=object)
-        major_pct[seg_struct[has]] = pct[chosen]
-        if reagent == "br2":
-            major_stereo[seg_struct[has]] = sites["stereo"].take(chosen).to_numpy(dtype=object)
-    if reagent == "br2":
-        major_smiles = np.asarray(
-            pc.replace_substring(pa.array(major_smiles, type=pa.string()), "Cl", "Br").to_pylist(), dtype=object
-        )
-    poly = poly_pct_at_ratio(struct, static["h"], pct, reagent, n)
-    return {"pct": pct, "major": major_smiles, "major_pct": major_pct, "stereo": major_stereo, "poly": poly}
+    k_of_code = conditions.per_h(reagent)
+    rank_of_code = basis_rank(conditions, reagent)
+    none = np.int8(len(BASES))
+    f = deactivation(reagent)
+    major_pct, poly = np.full(n, np.nan), np.full(n, np.nan)
+    rows = np.full(n, -1, dtype=np.int64 if len(sites) >= 2**31 else np.int32)
+    worst = np.full(n, none, dtype=np.int8)
+    for block in static["blocks"]:
+        for part in block.slices():
+            k = k_of_code[part.code]
+            weight = part.h * k  # rate of forming each product of the run
+            total = (weight * part.count).sum(axis=0)
+            pct = weight / total  # divided first, as in shares.percent_of_structure
+            pct *= 100.0
+            # The major: the first run (in site-table order) within a hair of the largest share.
+            win = np.argmax(pct >= pct.max(axis=0) - _TIE_PCT, axis=0)
+            cols = np.arange(len(part.struct))
+            major_pct[part.struct] = pct[win, cols]
+            rows[part.struct] = part.first[win, cols]
+            # Confidence: the weakest basis among products at or above the cut-off under this reagent.
+            ranks = rank_of_code[part.code]
+            ranks[pct < CONFIDENCE_MIN_PCT] = none
+            worst[part.struct] = ranks.min(axis=0)
+            per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
+            poly[part.struct] = poly_pct_of_block(per_h * (part.h * part.count), f * (1.0 - per_h))
+    # The site table holds monochlorides; a monobromide is the same SMILES with Br for Cl.
+    major = _gather_text(sites["product"], rows, ("Cl", "Br") if reagent == "br2" else None)
+    stereo = _gather_text(sites["stereo"], rows) if reagent == "br2" else None
+    return {"major": major, "major_pct": major_pct, "stereo": stereo, "poly": poly, "worst": worst}
 
 
 def summarise(perception: Perception, conditions: Conditions, memo: dict | None = None) -> pd.DataFrame:
@@ -203,29 +387,33 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
         r: _memo(memo, conditions.reagent_key(r), lambda r=r: _reagent_part(perception, static, conditions, r))
         for r in REAGENTS
     }
-    out: dict[str, object] = {"n_products": static["n_products"]}
-    for reagent in REAGENTS:
-        out[f"{reagent}_major"] = parts[reagent]["major"]
-        out[f"{reagent}_major_pct"] = parts[reagent]["major_pct"]
-    out["stereo"] = parts["br2"]["stereo"]
-    out["site_types"] = static["site_types"]
-    pcts = {r: parts[r]["pct"] for r in REAGENTS}
-    confidence_key = ("confidence", *(conditions.reagent_key(r) for r in REAGENTS))
-    out["confidence"] = _memo(memo, confidence_key, lambda: confidence_labels(
-        static["codes"], pcts, static["struct"], n, conditions, static["starts"]))
-    out["nbs_major"], out["nbs_major_pct"] = _memo(
+    # A structure's weakest basis over all reagents is the weakest of each reagent's.
+    confidence = _labels_column((*BASES, ""), reduce(np.minimum, (parts[r]["worst"] for r in REAGENTS)))
+    nbs_major, nbs_major_pct = _memo(
         memo, conditions.reagent_key("nbs"), lambda: nbs_majors(perception.allylic, conditions.per_h("nbs"), n))
-    for reagent in REAGENTS:
-        out[f"{reagent}_poly_pct"] = parts[reagent]["poly"]
 
     ok, n_products = static["ok"], static["n_products"]
-    verdict = np.full(n, "", dtype=object)
-    br_pct = np.nan_to_num(out["br2_major_pct"], nan=0.0)
-    verdict[ok] = "mixture"
-    verdict[ok & (br_pct >= conditions.threshold_pct)] = "br-selective"
-    verdict[ok & (n_products == 1)] = "single"
-    verdict[ok & (n_products == 0)] = "inert"
-    out["verdict"] = verdict
-    out["serves"] = serves(out, static["alkene"], ok, n_products, conditions.threshold_pct)
-    frame = pd.DataFrame(out, index=structures.index)
-    return frame[list(SUMMARY_COLUMNS)]
+    verdict = np.zeros(n, dtype=np.int8)  # indices into ("", *VERDICTS)
+    br_pct = np.nan_to_num(parts["br2"]["major_pct"], nan=0.0)
+    verdict[ok] = 3
+    verdict[ok & (br_pct >= conditions.threshold_pct)] = 2
+    verdict[ok & (n_products == 1)] = 1
+    verdict[ok & (n_products == 0)] = 4
+    majors = {f"{r}_major_pct": parts[r]["major_pct"] for r in REAGENTS} | {"nbs_major_pct": nbs_major_pct}
+    out = {
+        "n_products": n_products,
+        "verdict": _labels_column(("", *VERDICTS), verdict),
+        "cl2_major": parts["cl2"]["major"], "cl2_major_pct": parts["cl2"]["major_pct"],
+        "br2_major": parts["br2"]["major"], "br2_major_pct": parts["br2"]["major_pct"],
+        "stereo": parts["br2"]["stereo"],
+        "site_types": static["site_types"],
+        "confidence": confidence,
+        "nbs_major": nbs_major, "nbs_major_pct": nbs_major_pct,
+        "serves": _labels_column(("", *SERVES_ORDER), _serves_codes(majors, static["alkene"], ok, n_products,
+                                                                     conditions.threshold_pct)),
+        "cl2_poly_pct": parts["cl2"]["poly"], "br2_poly_pct": parts["br2"]["poly"],
+    }
+    if memo is not None:  # the frame must not share arrays with what the memo hands to later frames
+        out = {c: v.copy() if isinstance(v, np.ndarray) else v for c, v in out.items()}
+    # Not copied again (nor consolidated into 2-D blocks): every array above is this frame's own.
+    return pd.DataFrame({c: out[c] for c in SUMMARY_COLUMNS}, index=structures.index, copy=False)

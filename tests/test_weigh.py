@@ -1,0 +1,214 @@
+"""engine.summarise against a plain per-structure computation of every column (test-local, loops only)."""
+
+from __future__ import annotations
+
+import math
+import sys
+from collections import defaultdict
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import engine
+from engine import Conditions
+from engine.nbs import empty_frame, nbs_majors
+from engine.perception import Perception
+from engine.polyhalogenation import deactivation
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
+from library_gen import make_library  # noqa: E402
+
+CONDITIONS = [
+    Conditions(),
+    Conditions(cl2_temp_c=60.0, br2_temp_c=80.0),
+    Conditions(cl2_temp_c=250.0, br2_temp_c=-20.0, threshold_pct=60.0),
+    Conditions(cl2_solvent="benzene", cl2_solvent_molar=4.0, br2_temp_c=150.0, nbs_temp_c=100.0, threshold_pct=0.0),
+]
+#: Text columns take whatever type pandas gives a column of Python strings.
+TEXT = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
+TEXT_COLUMNS = ("verdict", "cl2_major", "br2_major", "stereo", "site_types", "confidence", "nbs_major", "serves")
+
+
+def _poly_pct(h: list[int], pct: list[float], f: float) -> float:
+    """Polyhalide percent at 1 : 1 with all halogen used, by bisection over the substrate left (test-local)."""
+    terms = [(p / 100.0, f * (1.0 - p / 100.0 / hh)) for hh, p in zip(h, pct) if p > 0]
+
+    def mono(a: float) -> float:
+        total = 0.0
+        for phi, kappa in terms:
+            if abs(1.0 - kappa) < 1e-9:
+                total += -phi * a * math.log(a) if a > 0 else 0.0
+            else:
+                total += phi / (1.0 - kappa) * (a**kappa - a)
+        return total
+
+    lo, hi = 0.0, 1.0
+    for _ in range(100):
+        mid = (lo + hi) / 2
+        if 2.0 * (1.0 - mid) - mono(mid) >= 1.0:
+            lo = mid
+        else:
+            hi = mid
+    return 100.0 * max(0.0, 1.0 - lo - mono(lo)) / (1.0 - lo)
+
+
+def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
+    """Every summary column, one structure at a time, from the definitions."""
+    structures, sites = perception.structures, perception.sites
+    n = len(structures)
+    rows_of: dict[int, list[int]] = defaultdict(list)
+    for i, s in enumerate(sites["struct"]):
+        rows_of[int(s)].append(i)
+    code = [int(c) for c in sites["site_code"]]
+    h = [int(x) for x in sites["h_count"]]
+    product = [str(p) for p in sites["product"]]
+    stereo = [str(p) for p in sites["stereo"]]
+    k = {r: conditions.per_h(r) for r in ("cl2", "br2")}
+    rank = {r: [BASES.index(b) if b in BASES else len(BASES) for b in conditions.bases(r)] for r in ("cl2", "br2")}
+    # NBS majors come from engine.nbs, which this re-weighing only passes through.
+    nbs_major, nbs_pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
+    out: dict[str, list] = {c: [] for c in SUMMARY_COLUMNS}
+    for s in range(n):
+        rows = rows_of.get(s, [])
+        formed = [i for i in rows if code[i] < len(ABSTRACTABLE)]
+        ok = structures["status"].iloc[s] == "ok"
+        out["n_products"].append(len(formed))
+        out["site_types"].append(",".join(sorted({SITE_CLASSES[code[i]] for i in formed})))
+        worst = len(BASES)
+        for r in ("cl2", "br2"):
+            w = [h[i] * k[r][code[i]] for i in rows]
+            total = math.fsum(w)
+            pct = [100.0 * (x / total) if total > 0 else 0.0 for x in w]
+            if formed:
+                top = max(pct)
+                major = next(i for i, p in zip(rows, pct) if p >= top - 1e-9)
+                out[f"{r}_major"].append(product[major].replace("Cl", "Br") if r == "br2" else product[major])
+                out[f"{r}_major_pct"].append(pct[rows.index(major)])
+                out[f"{r}_poly_pct"].append(_poly_pct([h[i] for i in rows], pct, deactivation(r)))
+                if r == "br2":
+                    out["stereo"].append(stereo[major])
+            else:
+                out[f"{r}_major"].append("")
+                out[f"{r}_major_pct"].append(math.nan)
+                out[f"{r}_poly_pct"].append(math.nan)
+                if r == "br2":
+                    out["stereo"].append("")
+            for i, p in zip(rows, pct):
+                if p >= CONFIDENCE_MIN_PCT:
+                    worst = min(worst, rank[r][code[i]])
+        out["confidence"].append((*BASES, "")[worst])
+        br = out["br2_major_pct"][-1]
+        if not ok:
+            verdict = ""
+        elif not formed:
+            verdict = "inert"
+        elif len(formed) == 1:
+            verdict = "single"
+        elif (0.0 if math.isnan(br) else br) >= conditions.threshold_pct:
+            verdict = "br-selective"
+        else:
+            verdict = "mixture"
+        out["verdict"].append(verdict)
+        out["nbs_major"].append(nbs_major[s])
+        out["nbs_major_pct"].append(nbs_pct[s])
+        serve = ""
+        alkene = "alkene" in str(structures["flags"].iloc[s]).split(",")
+        if ok and formed:
+            for r in SERVES_ORDER:
+                p = out[f"{r}_major_pct"][-1]
+                if (r == "nbs" or not alkene) and (0.0 if math.isnan(p) else p) >= conditions.threshold_pct:
+                    serve = r
+                    break
+        out["serves"].append(serve)
+    return pd.DataFrame(out, index=structures.index)
+
+
+def assert_matches(got: pd.DataFrame, want: pd.DataFrame) -> None:
+    """Same columns in order, the summary's types, text equal, shares to 1e-9 relative, polyhalide to 1e-6 points."""
+    assert list(got.columns) == list(SUMMARY_COLUMNS)
+    assert got.index.equals(want.index)
+    assert got["n_products"].dtype == np.int32
+    for col in SUMMARY_COLUMNS:
+        if col in TEXT_COLUMNS:
+            assert got[col].dtype == TEXT, col
+            assert list(got[col]) == list(want[col]), col
+        elif col != "n_products":
+            assert got[col].dtype == np.float64, col
+            a, b = got[col].to_numpy(), want[col].to_numpy(dtype=np.float64)
+            assert np.array_equal(np.isnan(a), np.isnan(b)), col
+            tol = {"abs": 1e-6} if col.endswith("poly_pct") else {"rel": 1e-9}
+            assert a[~np.isnan(a)] == pytest.approx(b[~np.isnan(b)], **tol), col
+    assert list(got["n_products"]) == list(want["n_products"])
+
+
+@pytest.fixture(scope="module")
+def perceived() -> Perception:
+    """A few hundred generated structures with the awkward cases added (C=C, aromatic only, rejects, one H)."""
+    extra = ["C", "CC", "C=CC", "CC=CCC", "c1ccccc1", "Cc1ccccc1", "CCO", "C1CC1", "C12CC(C1)C2", "CC(C)(C)C",
+             "C[C@H](Cl)C", "not smiles", "CC#CC", "C1=CCCCC1", "CC(C)c1ccccc1"]
+    return engine.perceive([*make_library(250, seed=11), *extra])
+
+
+@pytest.mark.parametrize("conditions", CONDITIONS)
+def test_library_matches_reference(perceived: Perception, conditions: Conditions) -> None:
+    assert_matches(summarise(perceived, conditions), reference(perceived, conditions))
+
+
+def _synthetic(seed: int, object_text: bool) -> Perception:
+    """Site tables no molecule gives: runs of equal class and H, exact ties, odd strings, rejects, empty rows.
+
+    Products carry 'Cl' at every position a SMILES can, neighbours' first and last
+    characters are chosen to spell 'Cl' across two strings, and some text is not ASCII.
+    """
+    rng = np.random.default_rng(seed)
+    n = 300
+    rows = []
+    status, flags = [], []
+    for s in range(n):
+        rejected = rng.random() < 0.05
+        status.append("rejected" if rejected else "ok")
+        flags.append("" if rejected else str(rng.choice(["", "alkene", "bridgehead,alkene", "cage", "alkenes"])))
+        if rejected:
+            continue
+        classes = rng.choice(len(SITE_CLASSES), size=rng.integers(1, 5))
+        for _ in range(rng.integers(0, 14)):
+            c = int(rng.choice(classes))
+            hh = int(rng.integers(1, 4))
+            rows.append((s, c, hh, str(rng.choice(["CCl", "ClC", "C(Cl)C", "CC", "éCl→C", "lCl", "Cllc"])) + str(len(rows)) + "C",
+                         str(rng.choice(["achiral", "racemate", "single", "", "diastereomers"]))))
+    sites = pd.DataFrame(rows, columns=["struct", "site_code", "h_count", "product", "stereo"])
+    sites = sites.astype({"struct": "int32", "site_code": "int8", "h_count": "int32"})
+    if object_text:
+        sites = sites.astype({"product": object, "stereo": object})
+    else:
+        sites = sites.astype({"product": TEXT, "stereo": TEXT})
+    structures = pd.DataFrame({"status": status, "flags": flags})
+    return Perception(structures, sites, empty_frame())
+
+
+@pytest.mark.parametrize("object_text", [False, True])
+@pytest.mark.parametrize("conditions", CONDITIONS[:3])
+def test_synthetic_sites_match_reference(object_text: bool, conditions: Conditions) -> None:
+    p = _synthetic(3, object_text)
+    assert_matches(summarise(p, conditions), reference(p, conditions))
+
+
+def test_live_memo_gives_the_fresh_summary_and_shares_nothing() -> None:
+    p = _synthetic(4, False)
+    memo: dict = {}
+    first = summarise(p, CONDITIONS[1], memo)
+    first.loc[:, "cl2_major_pct"] = -1.0  # a caller writing into one summary must not reach the next
+    first.loc[:, "n_products"] = -1
+    for c in (Conditions(cl2_temp_c=60.0, br2_temp_c=95.0), Conditions(cl2_temp_c=60.0, br2_temp_c=95.0, threshold_pct=80.0)):
+        pd.testing.assert_frame_equal(summarise(p, c, memo), summarise(p, c))
+
+
+def test_empty_perception() -> None:
+    p = Perception(pd.DataFrame({"status": pd.Series([], dtype=TEXT), "flags": pd.Series([], dtype=TEXT)}),
+                   _synthetic(0, False).sites.iloc[:0], empty_frame())
+    out = summarise(p, Conditions())
+    assert list(out.columns) == list(SUMMARY_COLUMNS) and len(out) == 0

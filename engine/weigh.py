@@ -151,24 +151,61 @@ def _labels_column(labels: Sequence[str], codes: np.ndarray) -> object:
     return np.array(list(labels), dtype=object)[codes]
 
 
-def _swap_pair(data: np.ndarray, offsets: np.ndarray, old: str, new: str) -> np.ndarray:
-    """UTF-8 bytes ``data`` of strings bounded by ``offsets`` with every ``old`` replaced by ``new`` (a copy).
+#: Bytes per pass of the Cl→Br rewrite: its temporaries stay small and are reused pass to pass.
+_SWAP_CHUNK = 1 << 20
+
+
+def _arrow_owned(nbytes: int) -> tuple[pa.Buffer, np.ndarray]:
+    """A writable buffer from Arrow's memory pool and a uint8 view of it.
+
+    Output text is built here rather than in numpy memory: Arrow's pool reuses what
+    earlier Arrow results freed, where a fresh numpy array of this size is new memory.
+    """
+    buf = pa.allocate_buffer(nbytes)
+    return buf, np.frombuffer(buf, dtype=np.uint8)
+
+
+def _swap_pair(data: np.ndarray, offsets: np.ndarray, old: str, new: str) -> pa.Buffer:
+    """UTF-8 bytes ``data`` of strings bounded by ``offsets`` with every ``old`` replaced by ``new``, as a new buffer.
 
     Only for two ASCII strings of two characters whose first and last differ: no UTF-8
     continuation byte can match, lengths stay put, and such a pattern cannot overlap
     itself, so this equals ``str.replace`` string by string.
     """
-    out = data.copy()
-    if len(data) < 2:
-        return out
-    match = data[:-1] == ord(old[0])
-    match &= data[1:] == ord(old[1])
-    across = offsets[1:-1] - 1  # a match from one string's last byte into the next's first is none
-    match[across[(across >= 0) & (across < len(match))]] = False
-    hits = np.flatnonzero(match)
-    hits = hits[(hits >= offsets[0]) & (hits < offsets[-1] - 1)]
-    out[hits], out[hits + 1] = ord(new[0]), ord(new[1])
-    return out
+    buf, out = _arrow_owned(len(data))
+    out[:] = data
+    first, second = ord(old[0]), ord(old[1])
+    lo, hi = int(offsets[0]), int(offsets[-1])
+    for start in range(lo, hi, _SWAP_CHUNK):
+        stop = min(start + _SWAP_CHUNK, hi)
+        # A match may start on this piece's last byte and end on the next piece's first.
+        match = data[start:stop] == first
+        match[:-1] &= data[start + 1 : stop] == second
+        match[-1] &= stop < hi and data[stop] == second
+        # A match from one string's last byte into the next's first is none.
+        bounds = offsets[np.searchsorted(offsets, start + 1) : np.searchsorted(offsets, stop, side="right")]
+        match[bounds - 1 - start] = False
+        hits = np.flatnonzero(match) + start
+        out[hits], out[hits + 1] = ord(new[0]), ord(new[1])
+    return buf
+
+
+def _expand(text: pa.LargeStringArray, has: np.ndarray) -> pa.LargeStringArray:
+    """``text`` (one string per set entry of ``has``) spread over ``len(has)`` entries, '' where unset.
+
+    The strings' bytes are shared; only new offsets are written (in Arrow's pool).
+    """
+    _, offsets_buf, data_buf = text.buffers()
+    offsets = np.frombuffer(offsets_buf, dtype=np.int64)[text.offset : text.offset + len(text) + 1]
+    buf, raw = _arrow_owned(8 * (len(has) + 1))
+    out = raw.view(np.int64)
+    out[0] = offsets[0]
+    lengths = out[1:]
+    lengths[:] = 0
+    lengths[has] = np.diff(offsets)
+    np.cumsum(lengths, out=lengths)
+    lengths += offsets[0]
+    return pa.LargeStringArray.from_buffers(len(has), buf, data_buf)
 
 
 def _gather_text(column: pd.Series, rows: np.ndarray, swap: tuple[str, str] | None = None) -> object:
@@ -182,18 +219,12 @@ def _gather_text(column: pd.Series, rows: np.ndarray, swap: tuple[str, str] | No
         if taken.null_count or (swap is not None and not swappable):  # not met in perceptions: the general way
             out = pc.fill_null(pc.take(arrow(), pa.array(rows, mask=~has)), "")
             return pd.array(pc.replace_substring(out, *swap) if swap else out, dtype=_TEXT_DTYPE)
-        # Built from the taken buffers: the rows without a product get empty strings by their offsets alone.
-        _, offsets_buf, data_buf = taken.buffers()
-        offsets = np.frombuffer(offsets_buf, dtype=np.int64)[taken.offset : taken.offset + len(taken) + 1]
-        data = np.frombuffer(data_buf, dtype=np.uint8) if data_buf is not None else np.zeros(0, dtype=np.uint8)
-        if swap is not None:
-            data = _swap_pair(data, offsets, *swap)
-        if not has.all():
-            lengths = np.zeros(len(rows), dtype=np.int64)
-            lengths[has] = np.diff(offsets)
-            offsets = np.concatenate([offsets[:1], offsets[0] + np.cumsum(lengths)])
-        text = pa.LargeStringArray.from_buffers(len(rows), pa.py_buffer(offsets), pa.py_buffer(data))
-        return pd.array(text, dtype=_TEXT_DTYPE)
+        if swap is not None and taken.buffers()[2] is not None:
+            _, offsets_buf, data_buf = taken.buffers()
+            offsets = np.frombuffer(offsets_buf, dtype=np.int64)[taken.offset : taken.offset + len(taken) + 1]
+            swapped = _swap_pair(np.frombuffer(data_buf, dtype=np.uint8), offsets, *swap)
+            taken = pa.LargeStringArray.from_buffers(len(taken), offsets_buf, swapped, None, 0, taken.offset)
+        return pd.array(taken if has.all() else _expand(taken, has), dtype=_TEXT_DTYPE)
     values = column.to_numpy(dtype=object)
     out = np.full(len(rows), "", dtype=object)
     out[has] = values[rows[has]]
@@ -382,15 +413,18 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     """
     structures = perception.structures
     n = len(structures)
+    # NBS first: its temporaries are the largest, and memory it frees is reused below rather than taken anew.
+    nbs_major, nbs_major_pct = _memo(
+        memo, conditions.reagent_key("nbs"), lambda: nbs_majors(perception.allylic, conditions.per_h("nbs"), n))
     static = _memo(memo, ("static",), lambda: _static(perception))
     parts = {
         r: _memo(memo, conditions.reagent_key(r), lambda r=r: _reagent_part(perception, static, conditions, r))
         for r in REAGENTS
     }
+    if memo is None:
+        del static["blocks"]  # done with: the text columns below can reuse its memory
     # A structure's weakest basis over all reagents is the weakest of each reagent's.
     confidence = _labels_column((*BASES, ""), reduce(np.minimum, (parts[r]["worst"] for r in REAGENTS)))
-    nbs_major, nbs_major_pct = _memo(
-        memo, conditions.reagent_key("nbs"), lambda: nbs_majors(perception.allylic, conditions.per_h("nbs"), n))
 
     ok, n_products = static["ok"], static["n_products"]
     verdict = np.zeros(n, dtype=np.int8)  # indices into ("", *VERDICTS)

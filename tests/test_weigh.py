@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import importlib
 import math
 import sys
 from collections import defaultdict
@@ -212,3 +213,17 @@ def test_empty_perception() -> None:
                    _synthetic(0, False).sites.iloc[:0], empty_frame())
     out = summarise(p, Conditions())
     assert list(out.columns) == list(SUMMARY_COLUMNS) and len(out) == 0
+
+
+@pytest.mark.parametrize("chunk", [1, 2, 3, 7, 1 << 20])
+def test_cl_to_br_rewrite_equals_str_replace(monkeypatch: pytest.MonkeyPatch, chunk: int) -> None:
+    weigh = importlib.import_module("engine.weigh")  # the module: engine.weigh is also a function's name
+    monkeypatch.setattr(weigh, "_SWAP_CHUNK", chunk)  # pieces of every size, so matches straddle their edges
+    rng = np.random.default_rng(chunk)
+    parts = ["C", "l", "Cl", "lC", "é", "→", "(", ")", "Br", "c"]
+    strings = ["".join(rng.choice(parts, size=rng.integers(0, 6))) for _ in range(400)]
+    column = pd.Series(strings, dtype=TEXT)
+    rows = rng.integers(-1, len(strings), size=600)
+    got = weigh._gather_text(column, rows, ("Cl", "Br"))
+    assert list(got) == ["" if r < 0 else strings[r].replace("Cl", "Br") for r in rows]
+    assert list(weigh._gather_text(column.astype(object), rows, ("Cl", "Br"))) == list(got)

@@ -11,10 +11,12 @@ import numpy as np
 def percent_of_structure(weights: np.ndarray, struct: np.ndarray, n_struct: int) -> np.ndarray:
     """Each row's weight as a percent of its structure's total (0 where the total is 0)."""
     totals = np.bincount(struct, weights=weights, minlength=n_struct)
-    denom = totals[struct] if len(struct) else np.zeros(0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        # Divide first: 100·w/total can round to 99.99999999999999 for a lone product.
-        return np.where(denom > 0, 100.0 * (weights / np.where(denom > 0, denom, 1.0)), 0.0)
+    out = totals[struct] if len(struct) else np.zeros(0)
+    # In place, one array: this runs on every row of a library at each re-weighing.
+    # Divide first: 100·w/total can round to 99.99999999999999 for a lone product.
+    np.divide(weights, out, out=out, where=out > 0)  # a total of 0 stays 0
+    out *= 100.0
+    return out
 
 
 def blocks_by_length(starts: np.ndarray, lengths: np.ndarray) -> list[tuple[np.ndarray, np.ndarray]]:

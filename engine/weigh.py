@@ -274,7 +274,7 @@ def _memo(memo: dict | None, key: tuple, compute):
 _CHUNK_ROWS = 1 << 20
 _SLICE_RUNS = 1 << 18
 #: Bit of each site code in a structure's site-type mask.
-_CODE_BIT = np.left_shift(np.int64(1), np.arange(len(SITE_CLASSES), dtype=np.int64))
+_CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int32))
 
 
 @dataclass(frozen=True)
@@ -337,7 +337,7 @@ def _static(perception: Perception) -> dict:
     h = sites["h_count"].to_numpy()
     row_type = np.int32 if len(struct) < 2**31 else np.int64
     n_products = np.zeros(n, dtype=np.int32)
-    masks = np.zeros(n, dtype=np.int64)
+    masks = np.zeros(n, dtype=np.int32)
     pieces: dict[int, list[_Block]] = {}
     bounds = _chunk_bounds(struct, _CHUNK_ROWS)
     for lo, hi in zip(bounds[:-1], bounds[1:]):
@@ -369,6 +369,14 @@ def _static(perception: Perception) -> dict:
     }
 
 
+def _nbs_part(perception: Perception, conditions: Conditions) -> tuple[object, np.ndarray]:
+    """NBS major (as a text column, so a live re-weighing need not convert it again) and its percent."""
+    major, pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), len(perception.structures))
+    if _ARROW_TEXT:
+        major = pd.array(pa.array(major, type=pa.large_string()), dtype=_TEXT_DTYPE)
+    return major, pct
+
+
 def _reagent_part(perception: Perception, static: dict, conditions: Conditions, reagent: str) -> dict:
     """One reagent's major product and percent (for br2 also its stereo), polyhalide, and confidence rank."""
     sites = perception.sites
@@ -397,7 +405,10 @@ def _reagent_part(perception: Perception, static: dict, conditions: Conditions, 
             ranks[pct < CONFIDENCE_MIN_PCT] = none
             worst[part.struct] = ranks.min(axis=0)
             per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
-            poly[part.struct] = poly_pct_of_block(per_h * (part.h * part.count), f * (1.0 - per_h))
+            # H of the whole run: in float, since int16 H times int16 count need not fit int16.
+            share = np.multiply(part.h, part.count, dtype=np.float64)
+            share *= per_h
+            poly[part.struct] = poly_pct_of_block(share, f * (1.0 - per_h))
     # The site table holds monochlorides; a monobromide is the same SMILES with Br for Cl.
     major = _gather_text(sites["product"], rows, ("Cl", "Br") if reagent == "br2" else None)
     stereo = _gather_text(sites["stereo"], rows) if reagent == "br2" else None
@@ -414,8 +425,7 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     structures = perception.structures
     n = len(structures)
     # NBS first: its temporaries are the largest, and memory it frees is reused below rather than taken anew.
-    nbs_major, nbs_major_pct = _memo(
-        memo, conditions.reagent_key("nbs"), lambda: nbs_majors(perception.allylic, conditions.per_h("nbs"), n))
+    nbs_major, nbs_major_pct = _memo(memo, conditions.reagent_key("nbs"), lambda: _nbs_part(perception, conditions))
     static = _memo(memo, ("static",), lambda: _static(perception))
     parts = {
         r: _memo(memo, conditions.reagent_key(r), lambda r=r: _reagent_part(perception, static, conditions, r))

@@ -227,3 +227,14 @@ def test_cl_to_br_rewrite_equals_str_replace(monkeypatch: pytest.MonkeyPatch, ch
     got = weigh._gather_text(column, rows, ("Cl", "Br"))
     assert list(got) == ["" if r < 0 else strings[r].replace("Cl", "Br") for r in rows]
     assert list(weigh._gather_text(column.astype(object), rows, ("Cl", "Br"))) == list(got)
+
+
+def test_long_runs_of_many_hydrogens() -> None:
+    # One structure whose run of equal products holds more H than int16 can count (3 H × 12,000 products).
+    primary, tertiary = SITE_CLASSES.index("primary"), SITE_CLASSES.index("tertiary")
+    rows = [(0, primary, 3, f"C{i}Cl", "achiral") for i in range(12_000)] + [(0, tertiary, 1, "CC(C)(C)Cl", "achiral")]
+    sites = pd.DataFrame(rows, columns=["struct", "site_code", "h_count", "product", "stereo"])
+    sites = sites.astype({"struct": "int32", "site_code": "int8", "h_count": "int32", "product": TEXT, "stereo": TEXT})
+    p = Perception(pd.DataFrame({"status": ["ok"], "flags": [""]}), sites, empty_frame())
+    for conditions in CONDITIONS[:2]:
+        assert_matches(summarise(p, conditions), reference(p, conditions))

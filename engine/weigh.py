@@ -14,9 +14,12 @@ structures' majors.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import os
+from collections.abc import Callable, Sequence
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from functools import reduce
+from typing import Any
 
 import numpy as np
 import pandas as pd
@@ -260,7 +263,7 @@ def _serves_codes(
     return out
 
 
-def _memo(memo: dict | None, key: tuple, compute):
+def _memo(memo: dict | None, key: tuple, compute: Callable[[], Any]) -> Any:
     """``compute()``, remembered in ``memo`` under ``key`` when a memo is given."""
     if memo is None:
         return compute()
@@ -269,6 +272,45 @@ def _memo(memo: dict | None, key: tuple, compute):
     return memo[key]
 
 
+class _Known:
+    """A value already at hand, answering like a finished future."""
+
+    def __init__(self, value: Any) -> None:
+        """Hold ``value``."""
+        self.value = value
+
+    def result(self) -> Any:
+        """The value."""
+        return self.value
+
+
+def _start(memo: dict | None, key: tuple, compute: Callable[[], Any], pool: ThreadPoolExecutor | None) -> Any:
+    """A future of ``compute()``: remembered in ``memo``, else run on ``pool`` (or here, without one)."""
+    if memo is not None and key in memo:
+        return _Known(memo[key])
+    return pool.submit(compute) if pool is not None else _Known(compute())
+
+
+def _finish(memo: dict | None, key: tuple, future: Any) -> Any:
+    """The future's value, remembered in ``memo`` under ``key`` when a memo is given."""
+    value = future.result()
+    if memo is not None:
+        memo[key] = value
+    return value
+
+
+def _pool(perception: Perception) -> ThreadPoolExecutor | None:
+    """Threads for the NBS split and the two reagents' parts, when there is more than one core and work to share."""
+    try:
+        cores = len(os.sched_getaffinity(0))
+    except AttributeError:  # not Linux
+        cores = os.cpu_count() or 1
+    # numpy and Arrow release the GIL inside their loops, so these parts overlap on separate cores.
+    return ThreadPoolExecutor(3) if cores > 1 and len(perception.sites) >= _THREADED_MIN_ROWS else None
+
+
+#: Site tables smaller than this are weighed in one thread: sharing out would cost more than it saves.
+_THREADED_MIN_ROWS = 100_000
 #: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
 #: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
 _CHUNK_ROWS = 1 << 20
@@ -424,13 +466,19 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     """
     structures = perception.structures
     n = len(structures)
-    # NBS first: its temporaries are the largest, and memory it frees is reused below rather than taken anew.
-    nbs_major, nbs_major_pct = _memo(memo, conditions.reagent_key("nbs"), lambda: _nbs_part(perception, conditions))
-    static = _memo(memo, ("static",), lambda: _static(perception))
-    parts = {
-        r: _memo(memo, conditions.reagent_key(r), lambda r=r: _reagent_part(perception, static, conditions, r))
-        for r in REAGENTS
-    }
+    keys = {r: conditions.reagent_key(r) for r in ("nbs", *REAGENTS)}
+    pool = _pool(perception)
+    try:
+        # NBS first (without threads its temporaries, the largest, are then reused by what follows).
+        nbs = _start(memo, keys["nbs"], lambda: _nbs_part(perception, conditions), pool)
+        static = _memo(memo, ("static",), lambda: _static(perception))
+        started = {r: _start(memo, keys[r], lambda r=r: _reagent_part(perception, static, conditions, r), pool)
+                   for r in REAGENTS}
+        nbs_major, nbs_major_pct = _finish(memo, keys["nbs"], nbs)
+        parts = {r: _finish(memo, keys[r], started[r]) for r in REAGENTS}
+    finally:
+        if pool is not None:
+            pool.shutdown()
     if memo is None:
         del static["blocks"]  # done with: the text columns below can reuse its memory
     # A structure's weakest basis over all reagents is the weakest of each reagent's.

@@ -191,11 +191,20 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
     return Perception(structures, sites, empty_frame())
 
 
+@pytest.mark.parametrize("threaded", [False, True])
 @pytest.mark.parametrize("object_text", [False, True])
 @pytest.mark.parametrize("conditions", CONDITIONS[:3])
-def test_synthetic_sites_match_reference(object_text: bool, conditions: Conditions) -> None:
+def test_synthetic_sites_match_reference(
+    monkeypatch: pytest.MonkeyPatch, threaded: bool, object_text: bool, conditions: Conditions
+) -> None:
+    weigh = importlib.import_module("engine.weigh")
+    # Large site tables are weighed on several threads; any table is when the floor is 0.
+    monkeypatch.setattr(weigh, "_THREADED_MIN_ROWS", 0 if threaded else 10**12)
     p = _synthetic(3, object_text)
     assert_matches(summarise(p, conditions), reference(p, conditions))
+    memo: dict = {}
+    summarise(p, CONDITIONS[3], memo)  # parts of other settings in the memo, then these
+    assert_matches(summarise(p, conditions, memo), reference(p, conditions))
 
 
 def test_live_memo_gives_the_fresh_summary_and_shares_nothing() -> None:

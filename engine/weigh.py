@@ -9,7 +9,8 @@ stands for it as a candidate major and for the confidence cut-off, and in the
 polyhalide estimate it is one term (terms of equal κ add). Runs are laid out
 in blocks of structures with equally many (:func:`engine.shares.blocks_by_length`),
 so per-structure sums are whole-array passes; text is gathered only for the
-structures' majors.
+structures' majors. Large libraries weigh the NBS split and the two reagents on
+threads (numpy and Arrow release the GIL in their loops).
 """
 
 from __future__ import annotations
@@ -51,6 +52,18 @@ _TIE_PCT = 1e-9
 #: The column type pandas gives a column of Python strings (Arrow-backed ``str`` from pandas 3 on, else object).
 _TEXT_DTYPE = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
 _ARROW_TEXT = isinstance(_TEXT_DTYPE, pd.StringDtype) and _TEXT_DTYPE.storage == "pyarrow"
+#: Bit of each site code in a structure's site-type mask.
+_CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int32))
+
+# Tuning of the fast path (program choices, no science): none of these changes a result.
+#: Site tables smaller than this are weighed in one thread: sharing out would cost more than it saves.
+_THREADED_MIN_ROWS = 100_000
+#: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
+#: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
+_CHUNK_ROWS = 1 << 20
+_SLICE_RUNS = 1 << 18
+#: Bytes per pass of the Cl→Br rewrite: its temporaries stay small and are reused pass to pass.
+_SWAP_CHUNK = 1 << 20
 
 
 def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> np.ndarray:
@@ -152,10 +165,6 @@ def _labels_column(labels: Sequence[str], codes: np.ndarray) -> object:
     if _ARROW_TEXT:
         return pd.array(pc.take(pa.array(list(labels), type=pa.large_string()), pa.array(codes)), dtype=_TEXT_DTYPE)
     return np.array(list(labels), dtype=object)[codes]
-
-
-#: Bytes per pass of the Cl→Br rewrite: its temporaries stay small and are reused pass to pass.
-_SWAP_CHUNK = 1 << 20
 
 
 def _arrow_owned(nbytes: int) -> tuple[pa.Buffer, np.ndarray]:
@@ -307,16 +316,6 @@ def _pool(perception: Perception) -> ThreadPoolExecutor | None:
         cores = os.cpu_count() or 1
     # numpy and Arrow release the GIL inside their loops, so these parts overlap on separate cores.
     return ThreadPoolExecutor(3) if cores > 1 and len(perception.sites) >= _THREADED_MIN_ROWS else None
-
-
-#: Site tables smaller than this are weighed in one thread: sharing out would cost more than it saves.
-_THREADED_MIN_ROWS = 100_000
-#: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
-#: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
-_CHUNK_ROWS = 1 << 20
-_SLICE_RUNS = 1 << 18
-#: Bit of each site code in a structure's site-type mask.
-_CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int32))
 
 
 @dataclass(frozen=True)

@@ -247,3 +247,12 @@ def test_long_runs_of_many_hydrogens() -> None:
     p = Perception(pd.DataFrame({"status": ["ok"], "flags": [""]}), sites, empty_frame())
     for conditions in CONDITIONS[:2]:
         assert_matches(summarise(p, conditions), reference(p, conditions))
+
+
+@pytest.mark.parametrize(("chunk_rows", "slice_runs"), [(1, 1), (5, 3), (64, 1000)])
+def test_pass_sizes_change_nothing(monkeypatch: pytest.MonkeyPatch, chunk_rows: int, slice_runs: int) -> None:
+    weigh = importlib.import_module("engine.weigh")
+    monkeypatch.setattr(weigh, "_CHUNK_ROWS", chunk_rows)  # run finder cut into many passes between structures
+    monkeypatch.setattr(weigh, "_SLICE_RUNS", slice_runs)  # blocks weighed in many column slices
+    p = _synthetic(6, False)
+    assert_matches(summarise(p, CONDITIONS[1]), reference(p, CONDITIONS[1]))

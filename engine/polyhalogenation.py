@@ -276,12 +276,15 @@ def left_and_mono_at_ratio(phi: np.ndarray, kappa: np.ndarray, ratio: float = DE
         mono, slope, curv = block.evaluate(left)
         excess = 2.0 * (1.0 - left) - mono - available  # halogen used minus halogen charged; falls as A rises
         done = live & (np.abs(excess) <= (_SETTLED if step < _SCREEN_STEPS else _ACCEPTED))
-        left_out[ids[done]], mono_out[ids[done]] = left[done], mono[done]
-        live &= ~done
-        if step == _SCREEN_STEPS or not live.any():
+        if done.any():
+            left_out[ids[done]], mono_out[ids[done]] = left[done], mono[done]
+            live &= ~done
+        remaining = int(np.count_nonzero(live))
+        if step == _SCREEN_STEPS or remaining == 0:
             break
-        lo = np.where(excess >= 0, left, lo)
-        hi = np.where(excess < 0, left, hi)
+        above = excess >= 0
+        np.copyto(lo, left, where=above)
+        np.copyto(hi, left, where=~above)
         d1 = -2.0 - slope
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             newton = excess / d1
@@ -290,7 +293,7 @@ def left_and_mono_at_ratio(phi: np.ndarray, kappa: np.ndarray, ratio: float = DE
             nxt = left - np.where(bend > 0.5, newton / bend, newton)
         inside = np.isfinite(nxt) & (nxt >= lo) & (nxt <= hi)
         left = np.where(live, np.where(inside, nxt, (lo + hi) / 2), left)
-        if live.mean() < 0.75:  # repacking costs about a third of an evaluation: only once many are done
+        if remaining < 0.75 * len(live):  # repacking costs about a third of an evaluation: only once many are done
             block, ids, left, lo, hi = block.subset(live), ids[live], left[live], lo[live], hi[live]
             live = np.ones(len(ids), dtype=bool)
     if live.any():

@@ -58,6 +58,8 @@ _CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int
 # Tuning of the fast path (program choices, no science): none of these changes a result.
 #: Site tables smaller than this are weighed in one thread: sharing out would cost more than it saves.
 _THREADED_MIN_ROWS = 100_000
+#: Shares each reagent's weighing is cut into when threaded (two cores keep busy while one share runs late).
+_TASKS_PER_REAGENT = 2
 #: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
 #: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
 _CHUNK_ROWS = 1 << 20
@@ -418,42 +420,62 @@ def _nbs_part(perception: Perception, conditions: Conditions) -> tuple[object, n
     return major, pct
 
 
-def _reagent_part(perception: Perception, static: dict, conditions: Conditions, reagent: str) -> dict:
-    """One reagent's major product and percent (for br2 also its stereo), polyhalide, and confidence rank."""
-    sites = perception.sites
-    n = len(perception.structures)
+def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reagent: str) -> None:
+    """Fill ``part`` (see :func:`_reagent_tasks`) for the structures of ``slices``, and no others."""
     k_of_code = conditions.per_h(reagent)
     rank_of_code = basis_rank(conditions, reagent)
     none = np.int8(len(BASES))
     f = deactivation(reagent)
-    major_pct, poly = np.full(n, np.nan), np.full(n, np.nan)
-    rows = np.full(n, -1, dtype=np.int64 if len(sites) >= 2**31 else np.int32)
-    worst = np.full(n, none, dtype=np.int8)
-    for block in static["blocks"]:
-        for part in block.slices():
-            k = k_of_code[part.code]
-            weight = part.h * k  # rate of forming each product of the run
-            total = (weight * part.count).sum(axis=0)
-            pct = weight / total  # divided first, as in shares.percent_of_structure
-            pct *= 100.0
-            # The major: the first run (in site-table order) within a hair of the largest share.
-            win = np.argmax(pct >= pct.max(axis=0) - _TIE_PCT, axis=0)
-            cols = np.arange(len(part.struct))
-            major_pct[part.struct] = pct[win, cols]
-            rows[part.struct] = part.first[win, cols]
-            # Confidence: the weakest basis among products at or above the cut-off under this reagent.
-            ranks = rank_of_code[part.code]
-            ranks[pct < CONFIDENCE_MIN_PCT] = none
-            worst[part.struct] = ranks.min(axis=0)
-            per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
-            # H of the whole run: in float, since int16 H times int16 count need not fit int16.
-            share = np.multiply(part.h, part.count, dtype=np.float64)
-            share *= per_h
-            poly[part.struct] = poly_pct_of_block(share, f * (1.0 - per_h))
+    for piece in slices:
+        k = k_of_code[piece.code]
+        weight = piece.h * k  # rate of forming each product of the run
+        total = (weight * piece.count).sum(axis=0)
+        pct = weight / total  # divided first, as in shares.percent_of_structure
+        pct *= 100.0
+        # The major: the first run (in site-table order) within a hair of the largest share.
+        win = np.argmax(pct >= pct.max(axis=0) - _TIE_PCT, axis=0)
+        cols = np.arange(len(piece.struct))
+        part["major_pct"][piece.struct] = pct[win, cols]
+        part["rows"][piece.struct] = piece.first[win, cols]
+        # Confidence: the weakest basis among products at or above the cut-off under this reagent.
+        ranks = rank_of_code[piece.code]
+        ranks[pct < CONFIDENCE_MIN_PCT] = none
+        part["worst"][piece.struct] = ranks.min(axis=0)
+        per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
+        # H of the whole run: in float, since int16 H times int16 count need not fit int16.
+        share = np.multiply(piece.h, piece.count, dtype=np.float64)
+        share *= per_h
+        part["poly"][piece.struct] = poly_pct_of_block(share, f * (1.0 - per_h))
+
+
+def _reagent_tasks(
+    perception: Perception, static: dict, conditions: Conditions, reagent: str, tasks: int
+) -> tuple[dict, list[Callable[[], None]]]:
+    """One reagent's arrays, and ``tasks`` calls that fill them between them (any order, or at once).
+
+    Arrays: ``major_pct``, ``poly`` (NaN without products), ``rows`` (site row of the
+    major, −1 without) and ``worst`` (confidence rank under this reagent). Each call
+    weighs its own structures, so the calls can run on separate threads.
+    """
+    n = len(perception.structures)
+    part = {
+        "major_pct": np.full(n, np.nan), "poly": np.full(n, np.nan),
+        "rows": np.full(n, -1, dtype=np.int64 if len(perception.sites) >= 2**31 else np.int32),
+        "worst": np.full(n, len(BASES), dtype=np.int8),
+    }
+    slices = sorted((piece for block in static["blocks"] for piece in block.slices()), key=lambda p: -p.code.size)
+    shares = [slices[i::tasks] for i in range(tasks)]  # largest first, dealt round: about even work
+    return part, [lambda share=share: _weigh_slices(part, share, conditions, reagent) for share in shares if share]
+
+
+def _reagent_text(perception: Perception, part: dict, reagent: str) -> dict:
+    """A reagent's part with its text: the major product (and, for br2, the major's stereo)."""
+    sites = perception.sites
     # The site table holds monochlorides; a monobromide is the same SMILES with Br for Cl.
-    major = _gather_text(sites["product"], rows, ("Cl", "Br") if reagent == "br2" else None)
-    stereo = _gather_text(sites["stereo"], rows) if reagent == "br2" else None
-    return {"major": major, "major_pct": major_pct, "stereo": stereo, "poly": poly, "worst": worst}
+    major = _gather_text(sites["product"], part["rows"], ("Cl", "Br") if reagent == "br2" else None)
+    stereo = _gather_text(sites["stereo"], part["rows"]) if reagent == "br2" else None
+    return {"major": major, "major_pct": part["major_pct"], "stereo": stereo, "poly": part["poly"],
+            "worst": part["worst"]}
 
 
 def summarise(perception: Perception, conditions: Conditions, memo: dict | None = None) -> pd.DataFrame:
@@ -471,10 +493,19 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
         # NBS first (without threads its temporaries, the largest, are then reused by what follows).
         nbs = _start(memo, keys["nbs"], lambda: _nbs_part(perception, conditions), pool)
         static = _memo(memo, ("static",), lambda: _static(perception))
-        started = {r: _start(memo, keys[r], lambda r=r: _reagent_part(perception, static, conditions, r), pool)
-                   for r in REAGENTS}
+        parts = {r: memo[keys[r]] for r in REAGENTS if memo is not None and keys[r] in memo}
+        # Each missing reagent is weighed in _TASKS_PER_REAGENT shares, br2 (the longer) first, then its text.
+        filling = {}
+        for r in sorted(set(REAGENTS) - set(parts), key=lambda r: r != "br2"):
+            part, calls = _reagent_tasks(perception, static, conditions, r, _TASKS_PER_REAGENT if pool else 1)
+            filling[r] = part, [pool.submit(c) if pool else _Known(c()) for c in calls]
+        texts = {}
+        for r, (part, futures) in filling.items():
+            for future in futures:
+                future.result()
+            texts[r] = pool.submit(_reagent_text, perception, part, r) if pool else _Known(_reagent_text(perception, part, r))
+        parts |= {r: _finish(memo, keys[r], texts[r]) for r in texts}
         nbs_major, nbs_major_pct = _finish(memo, keys["nbs"], nbs)
-        parts = {r: _finish(memo, keys[r], started[r]) for r in REAGENTS}
     finally:
         if pool is not None:
             pool.shutdown()

@@ -30,7 +30,7 @@ there.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -129,7 +129,7 @@ class Split:
         poly = np.maximum(0.0, converted - self.mono(left))
         return np.divide(poly, converted, out=np.zeros_like(converted), where=converted > 1e-15)
 
-    def _bisect(self, test, target: np.ndarray, iterations: int) -> np.ndarray:
+    def _bisect(self, test: Callable[[np.ndarray], np.ndarray], target: np.ndarray, iterations: int) -> np.ndarray:
         """Largest A in [0, 1] per structure with test(A) ≥ target, where test falls as A rises."""
         lo, hi = np.zeros(self.n), np.ones(self.n)
         for _ in range(iterations):

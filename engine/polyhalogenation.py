@@ -160,7 +160,7 @@ class Split:
 
 @lru_cache(maxsize=8)
 def _stand_in_table(available: float) -> np.ndarray:
-    """Substrate left for a one-site stand-in, 2(1 − A) − (A^κ − A)/(1 − κ) = available, at each κ of the grid.
+    """Substrate left for a one-site stand-in, 2(1 − A) − (A^κ − A)/(1 − κ) = available, at each grid κ.
 
     The stand-in depends on nothing but κ, so it is bisected finely once per ratio and
     interpolated: a start for the full model at the cost of one lookup per structure.
@@ -247,7 +247,9 @@ class _Block:
         return lo, self.evaluate(lo, derivatives=False)[0]
 
 
-def left_and_mono_at_ratio(phi: np.ndarray, kappa: np.ndarray, ratio: float = DEFAULT_RATIO) -> tuple[np.ndarray, np.ndarray]:
+def left_and_mono_at_ratio(
+    phi: np.ndarray, kappa: np.ndarray, ratio: float = DEFAULT_RATIO
+) -> tuple[np.ndarray, np.ndarray]:
     """Per structure: substrate left when halogen (1/``ratio`` mol per mol) is used up, and ΣB_i there.
 
     ``phi``, ``kappa``: shape (terms, structures), one column per structure (padding: φ = 0; terms of

@@ -19,7 +19,7 @@ import os
 from collections.abc import Callable, Sequence
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
-from functools import reduce
+from functools import partial, reduce
 from typing import Any
 
 import numpy as np
@@ -401,7 +401,7 @@ def _static(perception: Perception) -> dict:
             masks[piece.struct] = np.bitwise_or.reduce(_CODE_BIT[piece.code], axis=0)
             pieces.setdefault(index.shape[0], []).append(piece)
     blocks = [
-        _Block(*(np.concatenate([getattr(p, f) for p in group], axis=-1) for f in ("struct", "code", "h", "count", "first")))
+        _Block(*(np.concatenate([getattr(p, f) for p in group], axis=-1) for f in _Block.__dataclass_fields__))
         if len(group) > 1 else group[0]
         for _, group in sorted(pieces.items())
     ]
@@ -503,7 +503,8 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
         for r, (part, futures) in filling.items():
             for future in futures:
                 future.result()
-            texts[r] = pool.submit(_reagent_text, perception, part, r) if pool else _Known(_reagent_text(perception, part, r))
+            text = partial(_reagent_text, perception, part, r)
+            texts[r] = pool.submit(text) if pool else _Known(text())
         parts |= {r: _finish(memo, keys[r], texts[r]) for r in texts}
         nbs_major, nbs_major_pct = _finish(memo, keys["nbs"], nbs)
     finally:
@@ -516,11 +517,12 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
 
     ok, n_products = static["ok"], static["n_products"]
     verdict = np.zeros(n, dtype=np.int8)  # indices into ("", *VERDICTS)
+    code = {v: i for i, v in enumerate(VERDICTS, start=1)}
     br_pct = np.nan_to_num(parts["br2"]["major_pct"], nan=0.0)
-    verdict[ok] = 3
-    verdict[ok & (br_pct >= conditions.threshold_pct)] = 2
-    verdict[ok & (n_products == 1)] = 1
-    verdict[ok & (n_products == 0)] = 4
+    verdict[ok] = code["mixture"]
+    verdict[ok & (br_pct >= conditions.threshold_pct)] = code["br-selective"]
+    verdict[ok & (n_products == 1)] = code["single"]
+    verdict[ok & (n_products == 0)] = code["inert"]
     majors = {f"{r}_major_pct": parts[r]["major_pct"] for r in REAGENTS} | {"nbs_major_pct": nbs_major_pct}
     out = {
         "n_products": n_products,

@@ -179,8 +179,8 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
         for _ in range(rng.integers(0, 14)):
             c = int(rng.choice(classes))
             hh = int(rng.integers(1, 4))
-            rows.append((s, c, hh, str(rng.choice(["CCl", "ClC", "C(Cl)C", "CC", "éCl→C", "lCl", "Cllc"])) + str(len(rows)) + "C",
-                         str(rng.choice(["achiral", "racemate", "single", "", "diastereomers"]))))
+            text = str(rng.choice(["CCl", "ClC", "C(Cl)C", "CC", "éCl→C", "lCl", "Cllc"])) + str(len(rows)) + "C"
+            rows.append((s, c, hh, text, str(rng.choice(["achiral", "racemate", "single", "", "diastereomers"]))))
     sites = pd.DataFrame(rows, columns=["struct", "site_code", "h_count", "product", "stereo"])
     sites = sites.astype({"struct": "int32", "site_code": "int8", "h_count": "int32"})
     if object_text:
@@ -213,7 +213,8 @@ def test_live_memo_gives_the_fresh_summary_and_shares_nothing() -> None:
     first = summarise(p, CONDITIONS[1], memo)
     first.loc[:, "cl2_major_pct"] = -1.0  # a caller writing into one summary must not reach the next
     first.loc[:, "n_products"] = -1
-    for c in (Conditions(cl2_temp_c=60.0, br2_temp_c=95.0), Conditions(cl2_temp_c=60.0, br2_temp_c=95.0, threshold_pct=80.0)):
+    hotter = Conditions(cl2_temp_c=60.0, br2_temp_c=95.0)
+    for c in (hotter, Conditions(cl2_temp_c=60.0, br2_temp_c=95.0, threshold_pct=80.0)):
         pd.testing.assert_frame_equal(summarise(p, c, memo), summarise(p, c))
 
 

@@ -260,14 +260,25 @@ def nbs_majors(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> tuple
     struct = allylic["struct"].to_numpy(dtype=np.int64)
     pid = allylic["product_id"].to_numpy(dtype=np.int64)
     width = int(pid.max()) + 1
-    keys, first, inverse = np.unique(struct * width + pid, return_index=True, return_inverse=True)
-    summed = np.bincount(inverse.ravel(), weights=row_pct)
-    key_struct = keys // width
-    order = np.lexsort((first, -summed, key_struct))
-    head = np.r_[True, key_struct[order][1:] != key_struct[order][:-1]]
-    best = order[head]
+    key = struct * width + pid
+    if len(key) > 1 and (np.diff(key) < 0).any():
+        # Perception writes rows in (struct, product_id) order; anything else gets sorted once here.
+        order = np.argsort(key, kind="stable")
+        key, row_pct = key[order], row_pct[order]
+        rows = order
+    else:
+        rows = np.arange(len(key))
+    starts = np.flatnonzero(np.r_[True, key[1:] != key[:-1]])  # one run per (struct, product)
+    summed = np.add.reduceat(row_pct, starts)
+    key_struct = key[starts] // width
+    # Per structure, the first product with the largest share (products are in perception order).
+    seg = np.flatnonzero(np.r_[True, key_struct[1:] != key_struct[:-1]])
+    seg_max = np.maximum.reduceat(summed, seg)
+    seg_of = np.repeat(np.arange(len(seg)), np.diff(np.r_[seg, len(summed)]))
+    hits = np.flatnonzero(summed >= seg_max[seg_of])
+    best = hits[np.r_[True, seg_of[hits][1:] != seg_of[hits][:-1]]]
     best = best[summed[best] > 0]
     idx = key_struct[best]
-    major[idx] = allylic["product"].to_numpy(dtype=object)[first[best]]
+    major[idx] = allylic["product"].to_numpy(dtype=object)[rows[starts[best]]]
     pct[idx] = summed[best]
     return major, pct

@@ -124,10 +124,14 @@ def main() -> int:
         big = take(perception, rows)
         big = Perception(big.structures, big.sites, big.allylic)
         cond = engine.Conditions(cl2_temp_c=60.0, br2_temp_c=80.0)
-        t = time.perf_counter()
-        engine.summarise(big, cond)
-        e = time.perf_counter() - t
-        print(f"(e) re-weigh {opts.rows:,} perceived structures ({len(big.sites):,} sites): {e:5.2f} s (target ≤ {TARGETS['reweigh_s']} s)")
+        fresh = []
+        for _ in range(3):  # each call without a memo: nothing from the previous one is reused
+            t = time.perf_counter()
+            engine.summarise(big, cond)
+            fresh.append(time.perf_counter() - t)
+        e = float(np.median(fresh))
+        print(f"(e) re-weigh {opts.rows:,} perceived structures ({len(big.sites):,} sites), fresh, median of 3: {e:5.2f} s "
+              f"(calls: {', '.join(f'{x:.2f}' for x in fresh)} s; target ≤ {TARGETS['reweigh_s']} s)")
         # The app's live path keeps the parts that a change does not touch.
         memo: dict = {}
         engine.summarise(big, cond, memo)

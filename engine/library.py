@@ -215,11 +215,13 @@ def _perceive_with_cache(
     max_heavy_atoms: int,
     progress: ProgressFn | None,
     cancel: threading.Event | None,
+    caller_helps: bool,
 ) -> Perception:
     store = PerceptionCache(cache_folder) if use_cache and max_heavy_atoms == DEFAULT_MAX_HEAVY_ATOMS else None
     if store is None:
         return perceive_parallel(
-            keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False
+            keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False,
+            caller_helps=caller_helps,
         )
     hit, cached = store.lookup(keys)
     miss_idx = np.flatnonzero(~hit)
@@ -231,7 +233,8 @@ def _perceive_with_cache(
             progress(n_hit + done, n_hit + total)
 
     fresh = perceive_parallel(
-        missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel, detail=False
+        missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel, detail=False,
+        caller_helps=caller_helps,
     )
     store.store(missing, fresh)
     if cached is None:
@@ -255,8 +258,12 @@ def load_library(
     max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS,
     progress: ProgressFn | None = None,
     cancel: threading.Event | None = None,
+    caller_helps: bool = False,
 ) -> Library:
     """Read a library file (or DataFrame) and perceive it.
+
+    ``caller_helps``: this thread perceives too, alongside one worker process
+    fewer (batch runs; see :func:`engine.parallel.perceive_parallel`).
 
     Raises :class:`engine.io.LibraryError` for whole-file problems and
     :class:`engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
@@ -294,7 +301,7 @@ def load_library(
 
     perception = _perceive_with_cache(
         keys, workers=workers, use_cache=use_cache, cache_folder=cache_folder,
-        max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel,
+        max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel, caller_helps=caller_helps,
     )
     return Library(
         input=frame,

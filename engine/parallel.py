@@ -68,11 +68,16 @@ def perceive_parallel(
     progress: Callable[[int, int], None] | None = None,
     cancel: threading.Event | None = None,
     detail: bool = True,
+    caller_helps: bool = False,
 ) -> Perception:
     """Perceive many strings, in worker processes when it pays; order is kept.
 
     ``detail=False`` works out product SMILES and stereo only where a major
     product can come from (see :func:`engine.perception.perceive`).
+    ``caller_helps``: the calling thread perceives chunks itself between
+    collecting results, so ``workers`` counts it and one process fewer is
+    started (one interpreter and import fewer). For batch runs only: in an
+    interactive app the calling process must stay free for the interface.
     """
     total = len(smiles)
     workers = default_workers() if workers is None else max(1, workers)
@@ -95,9 +100,11 @@ def perceive_parallel(
 
     # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
     ctx = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(max_workers=workers, mp_context=ctx) as pool:
+    processes = workers - 1 if caller_helps else workers
+    with ProcessPoolExecutor(max_workers=processes, mp_context=ctx) as pool:
         pending: dict[Future, int] = {}
-        next_chunk = 0
+        next_chunk = 0  # chunks [next_chunk, end) are not handed out yet
+        end = len(chunks)
 
         def submit() -> None:
             nonlocal next_chunk
@@ -105,20 +112,30 @@ def perceive_parallel(
             pending[pool.submit(perceive_batch, batch, max_heavy_atoms, detail)] = next_chunk
             next_chunk += 1
 
+        def record(i: int, part: Perception) -> None:
+            nonlocal done
+            parts[i] = part
+            done += len(chunks[i])
+            if progress:
+                progress(done, total)
+
         # Keep a bounded number of tasks in flight so memory stays flat.
-        while next_chunk < len(chunks) and len(pending) < 2 * workers:
+        while next_chunk < end and len(pending) < 2 * processes:
             submit()
-        while pending:
-            finished, _ = wait(pending, timeout=0.2, return_when=FIRST_COMPLETED)
+        while pending or next_chunk < end:
             if cancel is not None and cancel.is_set():
                 pool.shutdown(wait=False, cancel_futures=True)
                 raise Cancelled()
+            timeout = 0.2
+            if caller_helps and next_chunk < end:
+                # The caller works from the back of the queue, the processes from the front.
+                end -= 1
+                record(end, perceive(chunks[end], max_heavy_atoms, detail))
+                timeout = 0.0
+            finished, _ = wait(pending, timeout=timeout, return_when=FIRST_COMPLETED) if pending else (set(), set())
             for fut in finished:
                 i = pending.pop(fut)
-                parts[i] = _from_batches(*fut.result())
-                done += len(chunks[i])
-                if progress:
-                    progress(done, total)
-                if next_chunk < len(chunks):
+                record(i, _from_batches(*fut.result()))
+                if next_chunk < end:
                     submit()
     return concat([p for p in parts if p is not None])

@@ -315,7 +315,7 @@ def _load(args: argparse.Namespace, *, quiet: bool):
     try:
         return load_library(
             args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
-            use_cache=not args.no_cache, progress=bar,
+            use_cache=not args.no_cache, progress=bar, caller_helps=True,  # no interface to keep free here
         )
     finally:
         bar.close()

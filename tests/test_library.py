@@ -76,6 +76,11 @@ def test_one_and_two_workers_agree(monkeypatch: pytest.MonkeyPatch) -> None:
     one = engine.screen(frame, workers=1, use_cache=False)
     two = engine.screen(frame, workers=2, use_cache=False)
     pd.testing.assert_frame_equal(one, two)
+    # The batch mode: this thread takes chunks from the back while one process takes the front.
+    helped = engine.screen(frame, workers=2, use_cache=False, caller_helps=True)
+    pd.testing.assert_frame_equal(one, helped)
+    three = engine.screen(frame, workers=3, use_cache=False, caller_helps=True)
+    pd.testing.assert_frame_equal(one, three)
 
 
 def test_cold_and_warm_cache_agree(tmp_path, mixed_frame: pd.DataFrame) -> None:

@@ -137,3 +137,11 @@ def test_product_smiles_are_rdkit_canonical(both) -> None:
     full, _ = both
     for smiles in list(full.sites["product"]) + list(full.allylic["product"]):
         assert Chem.MolToSmiles(Chem.MolFromSmiles(smiles)) == smiles
+
+
+def test_evaluate_refuses_conditions_outside_the_checked_range() -> None:
+    # The pruning is proved only up to MAX_TEMP_C; beyond it the library must refuse, not guess.
+    library = engine.load_library(pd.DataFrame({"smiles": ["CC(C)CC"]}), use_cache=False)
+    with pytest.raises(ValueError, match="beyond any model"):
+        library.evaluate(Conditions(br2_temp_c=MAX_TEMP_C + 1))
+    assert library.evaluate(Conditions(br2_temp_c=MAX_TEMP_C))["status"].iloc[0] == "ok"

@@ -107,7 +107,7 @@ class Library:
         if conditions not in self._summaries:
             if len(self._summaries) > 8:
                 self._summaries.clear()
-            if len(self._parts) > 24:  # a few reagent settings' worth of arrays; the static part is re-derived
+            if len(self._parts) > 8:  # ~70 MB per reagent setting at 1M structures; the static part is re-derived
                 self._parts.clear()
             self._summaries[conditions] = summarise(self.perception, conditions, self._parts)
         return self._summaries[conditions]

@@ -30,7 +30,7 @@ there.
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -52,6 +52,12 @@ DEFAULT_MAX_POLY_PCT = 10.0
 DEFAULT_RATIO = P.POLY_SCREEN_RATIO
 #: Bisection steps: 2⁻⁴⁸ in A.
 _ITERATIONS = 48
+#: ln A searched down to here: with κ ≥ 1e-11, A^κ ≤ e^-10 at the floor (a slow monohalide spent too).
+LOG_FLOOR = -1e12
+#: Bisection steps in ln A: 2⁻⁸⁰ of the range, ≈ 1e-12 in ln A (a relative 1e-12 in A).
+_LOG_ITERATIONS = 80
+#: Below this substrate fraction the screen's steps in A are not trusted and ln A is bisected instead.
+_TINY_LEFT = 1e-9
 #: Halley steps of the screen column (recomputed on every re-weighing of a whole library) before the
 #: structures not yet settled fall back to bisection.
 _SCREEN_STEPS = 12
@@ -108,14 +114,22 @@ class Split:
         """ΣB_i per structure at substrate left ``left`` (one value per structure)."""
         left = np.clip(np.asarray(left, dtype=np.float64), 0.0, 1.0)
         # A floored at 1e-300: A^κ → 0 at A = 0 for κ > 0, and stays 1 for κ = 0 (a substrate with one H).
-        log_left = np.log(np.maximum(left, 1e-300))
+        return self.mono_log(np.log(np.maximum(left, 1e-300)))
+
+    def mono_log(self, log_left: np.ndarray) -> np.ndarray:
+        """ΣB_i per structure at ln A = ``log_left``.
+
+        With halogen in excess the substrate can be spent far below what a double holds
+        (A ≪ 1e-300 while a slow monohalide's A^κ is still large), so the ratio solve works in ln A.
+        """
+        log_left = np.minimum(np.asarray(log_left, dtype=np.float64), 0.0)
+        left = np.exp(log_left)
         powered = np.exp(self.kappa * log_left[self.struct])
         total = np.bincount(self.struct, weights=self._coef * powered, minlength=self.n)[: self.n].astype(np.float64)
         total -= left * self._coef_sum
         if self._near.any():  # κ = 1: B = −φ·A·ln A
             rows = np.flatnonzero(self._near)
-            a = left[self.struct[rows]]
-            b = monohalide(a, self.phi[rows], self.kappa[rows])
+            b = -self.phi[rows] * left[self.struct[rows]] * log_left[self.struct[rows]]
             total += np.bincount(self.struct[rows], weights=b, minlength=self.n)[: self.n]
         return total
 
@@ -125,25 +139,34 @@ class Split:
 
     def poly_fraction(self, left: np.ndarray) -> np.ndarray:
         """Polyhalide, fraction of the halogenated product (0 at no conversion)."""
-        converted = 1.0 - left
-        poly = np.maximum(0.0, converted - self.mono(left))
+        left = np.clip(np.asarray(left, dtype=np.float64), 0.0, 1.0)
+        return self.poly_fraction_log(np.log(np.maximum(left, 1e-300)))
+
+    def poly_fraction_log(self, log_left: np.ndarray) -> np.ndarray:
+        """:meth:`poly_fraction` at ln A = ``log_left`` (for a substrate spent below what a double holds)."""
+        converted = -np.expm1(np.minimum(np.asarray(log_left, dtype=np.float64), 0.0))
+        poly = np.maximum(0.0, converted - self.mono_log(log_left))
         return np.divide(poly, converted, out=np.zeros_like(converted), where=converted > 1e-15)
 
-    def _bisect(self, test: Callable[[np.ndarray], np.ndarray], target: np.ndarray, iterations: int) -> np.ndarray:
-        """Largest A in [0, 1] per structure with test(A) ≥ target, where test falls as A rises."""
-        lo, hi = np.zeros(self.n), np.ones(self.n)
-        for _ in range(iterations):
+    def log_left_at_ratio(self, ratio: float) -> np.ndarray:
+        """ln of the substrate left when halogen (1/ratio mol per mol substrate) is used up.
+
+        Bisected in ln A on [LOG_FLOOR, 0], where halogen used falls as ln A rises; 0 where
+        nothing reacts, -inf where more than two halogens per substrate are charged.
+        """
+        available = 1.0 / ratio
+        lo, hi = np.full(self.n, LOG_FLOOR), np.zeros(self.n)
+        for _ in range(_LOG_ITERATIONS):
             mid = (lo + hi) / 2
-            above = test(mid) >= target
+            above = 2.0 * (1.0 - np.exp(mid)) - self.mono_log(mid) >= available
             lo = np.where(above, mid, lo)
             hi = np.where(above, hi, mid)
-        return lo
+        out = np.where(available >= 2.0, -np.inf, lo)
+        return np.where(self.reacts, out, 0.0)
 
-    def left_at_ratio(self, ratio: float, iterations: int = _ITERATIONS) -> np.ndarray:
+    def left_at_ratio(self, ratio: float) -> np.ndarray:
         """Substrate left when halogen (1/ratio mol per mol substrate) is used up; 1 where nothing reacts."""
-        available = np.full(self.n, 1.0 / ratio)
-        left = np.where(available >= 2.0, 0.0, self._bisect(self.halogen_used, available, iterations))
-        return np.where(self.reacts, left, 1.0)
+        return np.exp(self.log_left_at_ratio(ratio))
 
     def left_at_cap(self, cap: float) -> np.ndarray:
         """Substrate left at the conversion where polyhalide reaches ``cap`` (fraction of product)."""
@@ -236,15 +259,23 @@ class _Block:
                 curv -= self.near_phi / safe
         return mono, slope, curv
 
+    def mono_log(self, log_left: np.ndarray) -> np.ndarray:
+        """ΣB_i per structure at ln A = ``log_left`` (as :meth:`Split.mono_log`: A may be below any double)."""
+        left = np.exp(log_left)
+        mono = (self.coef * np.exp(self.kappa * log_left)).sum(axis=0) - left * self.coef_sum
+        if self.near_phi is not None:
+            mono -= self.near_phi * left * log_left
+        return mono
+
     def bisect(self, available: float) -> tuple[np.ndarray, np.ndarray]:
-        """Substrate left (largest A with halogen used ≥ ``available``) and ΣB_i there, by bisection."""
-        lo, hi = np.zeros(self.kappa.shape[1]), np.ones(self.kappa.shape[1])
-        for _ in range(_ITERATIONS):
+        """Substrate left (largest A with halogen used ≥ ``available``) and ΣB_i there, by bisection in ln A."""
+        lo, hi = np.full(self.kappa.shape[1], LOG_FLOOR), np.zeros(self.kappa.shape[1])
+        for _ in range(_LOG_ITERATIONS):
             mid = (lo + hi) / 2
-            above = 2.0 * (1.0 - mid) - self.evaluate(mid, derivatives=False)[0] >= available
+            above = 2.0 * (1.0 - np.exp(mid)) - self.mono_log(mid) >= available
             lo = np.where(above, mid, lo)
             hi = np.where(above, hi, mid)
-        return lo, self.evaluate(lo, derivatives=False)[0]
+        return np.exp(lo), self.mono_log(lo)
 
 
 def left_and_mono_at_ratio(
@@ -255,7 +286,8 @@ def left_and_mono_at_ratio(
     ``phi``, ``kappa``: shape (terms, structures), one column per structure (padding: φ = 0; terms of
     equal κ may also be merged by adding their φ). Bracketed Halley steps from the stand-in start;
     a structure is done once its halogen balance settles, and the others alone are evaluated
-    again. Structures that do not settle fall back to bisection, as :meth:`Split.left_at_ratio`.
+    again. Structures that do not settle, and with halogen in excess those whose substrate is
+    all but spent, fall back to bisection in ln A, as :meth:`Split.log_left_at_ratio`.
     """
     phi, kappa = np.asarray(phi, dtype=np.float64), np.asarray(kappa, dtype=np.float64)
     block = _Block(phi, kappa)
@@ -301,6 +333,11 @@ def left_and_mono_at_ratio(
     if live.any():
         rest = block.subset(live) if not live.all() else block
         left_out[ids[live]], mono_out[ids[live]] = rest.bisect(available)
+    if available > 1.0:
+        # Halogen in excess can spend the substrate below what steps in A resolve; those go by ln A.
+        tiny = np.flatnonzero(left_out < _TINY_LEFT)
+        if len(tiny):
+            left_out[tiny], mono_out[tiny] = _Block(phi[:, tiny], kappa[:, tiny]).bisect(available)
     return left_out, mono_out
 
 
@@ -388,10 +425,11 @@ def plan(
     h = np.asarray(h_counts, dtype=np.float64)
     f = deactivation(reagent)
     split = Split(np.zeros(len(h), dtype=np.int64), h, np.asarray(shares_pct, float) / 100.0, f, 1)
-    left = split.left_at_ratio(ratio)
-    mono = split.mono(left)
+    log_left = split.log_left_at_ratio(ratio)
+    left = np.exp(log_left)
+    mono = split.mono_log(log_left)
     at = left if conversion_pct is None else np.array([1.0 - conversion_pct / 100.0])
-    poly = split.poly_fraction(at)
+    poly = split.poly_fraction_log(log_left if conversion_pct is None else np.log(at))
     cap_left = split.left_at_cap(max_poly_pct / 100.0)
     used = split.halogen_used(cap_left)
     min_ratio = float(1.0 / used[0]) if used[0] > 0 else float("inf")

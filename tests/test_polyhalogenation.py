@@ -142,3 +142,19 @@ def test_cli_planner(capsys: pytest.CaptureFixture) -> None:
     assert "polyhalide" not in capsys.readouterr().out.replace("polyhalogenated", "")
     assert main(["explain", "CCC", "--ratio", "0"]) == 2
     assert "ratio" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("ratio", [0.9, 0.8, 0.6, 0.51])
+def test_excess_bromine_on_a_tertiary_dominated_substrate(ratio: float) -> None:
+    # Isobutane-like with Br·: 9 primary H at 1 and 1 tertiary H at 1600 per H (the textbook per-H
+    # ratio at 127 °C, engine.parameters). The tertiary bromide keeps only slow primary C–H (κ ≈ 0.006),
+    # so with halogen in excess the substrate is spent long before the monobromide: the root lies far
+    # below 1e-300 in A. Checked against the explicit simulation, which has no such limit.
+    h, k = [9, 1], [1.0, 1600.0]
+    shares = 100 * np.array(h) * np.array(k) / np.dot(h, k)
+    a, mono, poly = _simulate(h, k, 1.0, 1.0 / ratio)
+    p = plan("br2", h, list(shares), ratio=ratio)
+    assert p.unreacted_pct == pytest.approx(100 * a, abs=0.1)
+    assert p.mono_pct_of_charge == pytest.approx(100 * mono, abs=0.1)
+    assert p.poly_pct_of_charge == pytest.approx(100 * poly, abs=0.1)
+    assert p.poly_pct == pytest.approx(100 * poly / (1 - a), abs=0.1)

@@ -111,7 +111,7 @@ class Explanation:
     def confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
         """Weakest rate basis among products with ≥ 5 % under any of ``reagents``; '' when none.
 
-        The same rule as the ``confidence`` column of a screen (engine.weigh.confidence_labels).
+        The same rule as the ``confidence`` column of a screen (engine.weigh.ranks_at_cutoff).
         """
         ranks = [
             BASES.index(p.rate_basis[r])

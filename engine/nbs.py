@@ -24,7 +24,7 @@ from rdkit import Chem
 from engine import parameters as P
 from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CLASSES
-from engine.stereo import Skeleton, StereoOutcome, canonical, stereo_outcome
+from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, stereo_outcome
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
@@ -34,7 +34,6 @@ NBS_SITES: tuple[str, ...] = tuple(
     f"{kind}-{degree}" for kind in ("allylic", "benzylic") for degree in ("primary", "secondary", "tertiary")
 )
 TERMINI = ("radical carbon", "allylic shift")
-_NOT_WORKED_OUT = StereoOutcome("", 0, 0)
 
 #: Column types of :attr:`engine.perception.Perception.allylic` (one row per site group × NBS product).
 ALLYLIC_SCHEMA = pa.schema(
@@ -196,7 +195,7 @@ def allylic_rows(
         products = mols[key]
         (only, (_, termini_only, _)), *others = by_group.items()
         if not stereo:
-            st = _NOT_WORKED_OUT
+            st = NOT_ANALYSED
         elif outcomes is not None and not others and termini_only == {"radical carbon"}:
             st = outcomes[only]
         else:

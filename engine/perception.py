@@ -21,12 +21,9 @@ from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
 from engine.special_sites import small_bridgeheads, structure_flags
-from engine.stereo import Skeleton, StereoOutcome, stereo_outcome
+from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
-#: Radical halogenation never substitutes vinyl/aryl/alkynyl C–H, so their
-#: products get no stereo analysis (it would be spent on compounds that never form).
-_NOT_FORMED = StereoOutcome("", 0, 0)
 
 #: Column types of :attr:`Perception.structures`, with what each column means.
 STRUCTURE_SCHEMA = pa.schema(
@@ -108,7 +105,7 @@ def _perceive_one(smiles: object, max_heavy: int, detail: bool) -> tuple[tuple, 
                 products += [substitute(mol, i) for i in group.atoms[1:]]
             st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
-            st = _NOT_FORMED
+            st = NOT_ANALYSED  # never formed (vinyl/aryl/alkynyl C–H), or not a possible Br2 major
         shown = named is None or g in named or g in stereo_wanted
         outcomes.append(st)
         rows.append(

@@ -303,6 +303,9 @@ def _independent(product: Chem.Mol, elements: list, symmetries: tuple[tuple[int,
 
 
 _ACHIRAL = StereoOutcome("achiral", 1, 1)
+#: The stereo columns of a product not analysed: never formed (vinyl, aryl, alkynyl C–H), or not
+#: a possible major in a screen (empty outcome, zero counts).
+NOT_ANALYSED = StereoOutcome("", 0, 0)
 
 
 def _cumulated(atom: Chem.Atom) -> bool:

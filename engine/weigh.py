@@ -80,50 +80,15 @@ def basis_rank(conditions: Conditions, reagent: str) -> np.ndarray:
     return np.array([rank.get(b, len(BASES)) for b in conditions.bases(reagent)], dtype=np.int8)
 
 
-def _product_ranks(site_code: np.ndarray, pct: dict[str, np.ndarray], conditions: Conditions) -> np.ndarray:
-    """Per product, the weakest basis (index in :data:`BASES`) among the reagents under which it reaches the cut-off."""
-    none = np.int8(len(BASES))
-    out = np.full(np.shape(site_code), none, dtype=np.int8)
-    for reagent, p in pct.items():
-        ranks = basis_rank(conditions, reagent)[site_code]
-        ranks[p < CONFIDENCE_MIN_PCT] = none
-        np.minimum(out, ranks, out=out)
-    return out
+def ranks_at_cutoff(site_code: np.ndarray, pct: np.ndarray, rank_of_code: np.ndarray) -> np.ndarray:
+    """Per product under one reagent: the index in :data:`BASES` of its rate basis, or len(BASES) below the cut-off.
 
-
-def confidence_ranks(
-    site_code: np.ndarray,
-    pct: dict[str, np.ndarray],
-    struct: np.ndarray,
-    n_struct: int,
-    conditions: Conditions,
-    starts: np.ndarray | None = None,
-) -> np.ndarray:
-    """As :func:`confidence_labels`, as indices into ``(*BASES, "")`` (int8)."""
-    worst = np.full(n_struct, len(BASES), dtype=np.int8)
-    if len(struct):
-        if starts is None:
-            starts = _segments(struct)  # sites come grouped by structure, so a segment reduction serves
-        worst[struct[starts]] = np.minimum.reduceat(_product_ranks(site_code, pct, conditions), starts)
-    return worst
-
-
-def confidence_labels(
-    site_code: np.ndarray,
-    pct: dict[str, np.ndarray],
-    struct: np.ndarray,
-    n_struct: int,
-    conditions: Conditions,
-    starts: np.ndarray | None = None,
-) -> np.ndarray:
-    """Per structure, the weakest basis among products with ≥ CONFIDENCE_MIN_PCT % under any reagent in ``pct``.
-
-    A product's basis under a reagent is that of the rate constant of its site
-    class toward that reagent's radical; a product counts only for the
-    reagents under which it reaches the cut-off. Empty when no product does.
+    ``rank_of_code`` is :func:`basis_rank` for that reagent. A structure's
+    ``confidence`` is the smallest of these over its products and the reagents.
     """
-    labels = np.array([*BASES, ""], dtype=object)
-    return labels[confidence_ranks(site_code, pct, struct, n_struct, conditions, starts)]
+    ranks = rank_of_code[site_code]
+    ranks[pct < CONFIDENCE_MIN_PCT] = len(BASES)
+    return ranks
 
 
 def weigh(
@@ -424,7 +389,6 @@ def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reag
     """Fill ``part`` (see :func:`_reagent_tasks`) for the structures of ``slices``, and no others."""
     k_of_code = conditions.per_h(reagent)
     rank_of_code = basis_rank(conditions, reagent)
-    none = np.int8(len(BASES))
     f = deactivation(reagent)
     for piece in slices:
         k = k_of_code[piece.code]
@@ -438,9 +402,7 @@ def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reag
         part["major_pct"][piece.struct] = pct[win, cols]
         part["rows"][piece.struct] = piece.first[win, cols]
         # Confidence: the weakest basis among products at or above the cut-off under this reagent.
-        ranks = rank_of_code[piece.code]
-        ranks[pct < CONFIDENCE_MIN_PCT] = none
-        part["worst"][piece.struct] = ranks.min(axis=0)
+        part["worst"][piece.struct] = ranks_at_cutoff(piece.code, pct, rank_of_code).min(axis=0)
         per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
         # H of the whole run: in float, since int16 H times int16 count need not fit int16.
         share = np.multiply(piece.h, piece.count, dtype=np.float64)

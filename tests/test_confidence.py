@@ -10,7 +10,7 @@ import engine
 from engine import Conditions
 from engine.library import RESULT_COLUMNS, RESULT_DOCS
 from engine.site_classes import SITE_CLASSES
-from engine.weigh import confidence_labels
+from engine.weigh import BASES, basis_rank, ranks_at_cutoff
 
 SMILES = ["CCC", "CC(C)C", "CCc1ccccc1", "C", "CC1CC1", "c1ccccc1", "CCO", "C=CC", "CC(C)CC"]
 
@@ -42,17 +42,22 @@ def test_screen_agrees_with_explain(conditions: Conditions) -> None:
             assert e.to_dict()["confidence"] == conf
 
 
+def _label(code: np.ndarray, pct: dict[str, np.ndarray], cond: Conditions) -> list[str]:
+    """One structure's confidence from the screen's own rule (engine.weigh.ranks_at_cutoff)."""
+    worst = min(int(ranks_at_cutoff(code, p, basis_rank(cond, r)).min()) for r, p in pct.items())
+    return [(*BASES, "")[worst]]
+
+
 def test_five_percent_cut_off() -> None:
     code = np.array([SITE_CLASSES.index("primary"), SITE_CLASSES.index("benzylic-primary")])
-    struct = np.array([0, 0])
     cond = Conditions()
     below = {"cl2": np.array([96.0, 4.0]), "br2": np.array([97.0, 3.0])}
     above = {"cl2": np.array([94.0, 6.0]), "br2": np.array([97.0, 3.0])}
-    assert list(confidence_labels(code, below, struct, 1, cond)) == ["textbook"]
-    assert list(confidence_labels(code, above, struct, 1, cond)) == ["estimate"]
+    assert _label(code, below, cond) == ["textbook"]
+    assert _label(code, above, cond) == ["estimate"]
     # Per reagent: a primary site weighed only under Cl2 (measured) is measured.
     only_cl = {"cl2": np.array([100.0, 0.0])}
-    assert list(confidence_labels(code, only_cl, struct, 1, cond)) == ["measured"]
+    assert _label(code, only_cl, cond) == ["measured"]
 
 
 def test_solvent_makes_cl2_estimate() -> None:

@@ -9,52 +9,11 @@ from functools import cached_property
 
 from rdkit import Chem
 
-from engine.special_sites import small_bridgeheads, special_site_class
+from engine.special_sites import small_bridgeheads
 from engine.stereo import canonical
 
 _SINGLE = Chem.BondType.SINGLE
-_DOUBLE = Chem.BondType.DOUBLE
-_TRIPLE = Chem.BondType.TRIPLE
 _DEGREE_NAMES = {1: "primary", 2: "secondary", 3: "tertiary"}
-
-
-def classify_carbon(atom: Chem.Atom) -> str:
-    """Site class of an H-bearing carbon (see :mod:`engine.site_classes`)."""
-    if atom.GetIsAromatic():
-        return "aryl"
-    bonds = [b.GetBondType() for b in atom.GetBonds()]
-    if _TRIPLE in bonds:
-        return "alkynyl"
-    if _DOUBLE in bonds:
-        return "vinyl"
-    degree = atom.GetDegree()
-    if degree == 0:
-        return "methane"
-    if atom.IsInRingSize(3):
-        # A cyclopropyl radical is a σ radical: neighbouring π systems barely help it.
-        return "cyclopropyl"
-    if (special := special_site_class(atom)) is not None:
-        return special
-    kinds: set[str] = set()
-    for nbr in atom.GetNeighbors():
-        if nbr.GetIsAromatic():
-            kinds.add("benzylic")
-            continue
-        for bond in nbr.GetBonds():
-            other = bond.GetOtherAtom(nbr)
-            if other.GetIdx() == atom.GetIdx():
-                continue
-            if bond.GetBondType() == _DOUBLE:
-                kinds.add("allylic")
-            elif bond.GetBondType() == _TRIPLE:
-                kinds.add("propargylic")
-    name = _DEGREE_NAMES[degree]
-    # Where several π systems are adjacent, the weakest C–H wins the label:
-    # allyl (88.8) < benzyl (89.7) < propargyl (≈90) kcal/mol.
-    for kind in ("allylic", "benzylic", "propargylic"):
-        if kind in kinds:
-            return f"{kind}-{name}"
-    return name
 
 
 #: Per-molecule pattern sets behind :func:`site_classes`: one C++ match each
@@ -76,11 +35,16 @@ def _matched(mol: Chem.Mol, name: str) -> set[int]:
 
 
 def site_classes(mol: Chem.Mol, atoms: Iterable[int], bridgeheads: frozenset[int]) -> list[str]:
-    """:func:`classify_carbon` for each of ``atoms`` (H-bearing carbons), from a few substructure matches.
+    """Site class (see :mod:`engine.site_classes`) of each of ``atoms`` (H-bearing carbons).
 
     ``bridgeheads``: :func:`engine.special_sites.small_bridgeheads` of ``mol``.
-    Same rules and precedence as :func:`classify_carbon`, which stays the
-    reference (the tests compare the two).
+    First rule that applies: aryl, alkynyl, vinyl (never abstracted); methane;
+    cyclopropyl (a σ radical, which neighbouring π systems barely help);
+    bridgehead (a small bicycle's bridgehead cannot planarise, so it overrides
+    the π classes too); then allylic, benzylic or propargylic by degree —
+    where several π systems are adjacent the weakest C–H names it, allyl
+    (88.8) < benzyl (89.7) < propargyl (≈90 kcal/mol); else the plain degree.
+    The tests compare this with a per-atom walk over the same rules.
     """
     sets = {name: _matched(mol, name) for name in _SITE_SMARTS}
     out = []

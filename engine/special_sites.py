@@ -76,16 +76,6 @@ FLAG_NOTES: dict[str, FlagNote] = {
 FLAGS: tuple[str, ...] = tuple(FLAG_NOTES)
 
 
-def _abstractable_sp3(atom: Chem.Atom) -> bool:
-    """An H-bearing, non-aromatic carbon with only single bonds (the sites radicals take H from)."""
-    return (
-        atom.GetAtomicNum() == 6
-        and atom.GetTotalNumHs() > 0
-        and not atom.GetIsAromatic()
-        and all(b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds())
-    )
-
-
 def is_small_bridgehead(atom: Chem.Atom) -> bool:
     """True when ``atom`` joins three bridges of 1–2 atoms each to another bridgehead.
 
@@ -129,20 +119,6 @@ def is_small_bridgehead(atom: Chem.Atom) -> bool:
     return False
 
 
-def special_site_class(atom: Chem.Atom) -> str | None:
-    """A site class that overrides the degree/π classes, or None.
-
-    Today: ``bridgehead`` for an abstractable bridgehead C–H of a small bicycle
-    (see :func:`is_small_bridgehead`). Meant to be called by
-    ``engine.sites.classify_carbon`` after its cyclopropyl test (a bridgehead
-    radical cannot overlap with a neighbouring π system either, so it also
-    overrides the allylic/benzylic classes).
-    """
-    if _abstractable_sp3(atom) and is_small_bridgehead(atom):
-        return "bridgehead"
-    return None
-
-
 def _small_ring_counts(mol: Chem.Mol) -> list[int]:
     """Per atom, how many rings of ≤ CAGE_MAX_RING atoms it lies on (symmetrised SSSR)."""
     counts = [0] * mol.GetNumAtoms()
@@ -154,7 +130,7 @@ def _small_ring_counts(mol: Chem.Mol) -> list[int]:
 
 
 _SMARTS = {
-    # H-bearing carbon with only single bonds (what _abstractable_sp3 tests), on two or more rings:
+    # H-bearing carbon with only single bonds (an abstractable sp3 C–H), on two or more rings:
     # a small bicycle's bridgehead lies on at least two rings of any smallest set of rings.
     "ring_junction": "[CX4;!H0;!R0;!R1]",
     "cyclopropylmethyl": "[CX4;!H0;!r3]-[r3]",

@@ -1,8 +1,8 @@
 """The pattern-based site classes and flags agree with plain per-atom walks over the same rules.
 
-``classify_carbon`` walks each atom's bonds in Python and is the reference;
-``site_classes`` and ``structure_flags`` use substructure patterns for speed.
-The per-atom flag walk below is written out here so the two are independent.
+``site_classes`` and ``structure_flags`` use substructure patterns for speed;
+the per-atom walks below are written out here, bond by bond, so the two are
+independent.
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ import pandas as pd
 import pytest
 from rdkit import Chem
 
-from engine.sites import classify_carbon, site_classes
+from engine.sites import site_classes
 from engine.special_sites import (
     CAGE_MAX_RING, CAGE_MIN_ATOMS, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags,
 )
@@ -31,12 +31,50 @@ EDGE_CASES = [
 ]
 
 
+_DEGREE = {1: "primary", 2: "secondary", 3: "tertiary"}
+
+
+def _sp3_h(atom: Chem.Atom) -> bool:
+    return (atom.GetTotalNumHs() > 0 and not atom.GetIsAromatic()
+            and all(b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds()))
+
+
+def _reference_class(atom: Chem.Atom) -> str:
+    """Site class of one H-bearing carbon, walking its bonds (the rules of engine.sites.site_classes)."""
+    if atom.GetIsAromatic():
+        return "aryl"
+    bonds = [b.GetBondType() for b in atom.GetBonds()]
+    if Chem.BondType.TRIPLE in bonds:
+        return "alkynyl"
+    if Chem.BondType.DOUBLE in bonds:
+        return "vinyl"
+    degree = atom.GetDegree()
+    if degree == 0:
+        return "methane"
+    if atom.IsInRingSize(3):
+        return "cyclopropyl"
+    if _sp3_h(atom) and is_small_bridgehead(atom):
+        return "bridgehead"
+    kinds: set[str] = set()
+    for nbr in atom.GetNeighbors():
+        if nbr.GetIsAromatic():
+            kinds.add("benzylic")
+            continue
+        for bond in nbr.GetBonds():
+            if bond.GetOtherAtomIdx(nbr.GetIdx()) == atom.GetIdx():
+                continue
+            if bond.GetBondType() == Chem.BondType.DOUBLE:
+                kinds.add("allylic")
+            elif bond.GetBondType() == Chem.BondType.TRIPLE:
+                kinds.add("propargylic")
+    kind = next((k for k in ("allylic", "benzylic", "propargylic") if k in kinds), None)
+    return f"{kind}-{_DEGREE[degree]}" if kind else _DEGREE[degree]
+
+
 def _reference_flags(mol: Chem.Mol) -> tuple[str, ...]:
     found = set()
     for atom in mol.GetAtoms():
-        sp3_h = (atom.GetTotalNumHs() > 0 and not atom.GetIsAromatic()
-                 and all(b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds()))
-        if not sp3_h:
+        if not _sp3_h(atom):
             continue
         if not atom.IsInRingSize(3) and any(n.IsInRingSize(3) for n in atom.GetNeighbors()):
             found.add("cyclopropylmethyl")
@@ -66,7 +104,7 @@ def test_site_classes_match_the_per_atom_walk(molecules: list[Chem.Mol]) -> None
     seen = set()
     for mol in molecules:
         atoms = [a.GetIdx() for a in mol.GetAtoms() if a.GetTotalNumHs() > 0]
-        expected = [classify_carbon(mol.GetAtomWithIdx(i)) for i in atoms]
+        expected = [_reference_class(mol.GetAtomWithIdx(i)) for i in atoms]
         assert site_classes(mol, atoms, small_bridgeheads(mol)) == expected, Chem.MolToSmiles(mol)
         seen.update(expected)
     # The sample must exercise the classes it claims to check.

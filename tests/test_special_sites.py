@@ -14,7 +14,7 @@ from engine import parameters as P
 from engine.perception import STRUCTURE_SCHEMA
 from engine.rates import rate_table
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
-from engine.special_sites import FLAG_NOTES, FLAGS, is_small_bridgehead, special_site_class, structure_flags
+from engine.special_sites import FLAG_NOTES, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags
 
 
 def flags(smiles: str) -> tuple[str, ...]:
@@ -59,10 +59,10 @@ def test_every_flag_has_a_note_with_source() -> None:
 def test_bridgehead_atoms_of_norbornane() -> None:
     mol = Chem.MolFromSmiles("C1CC2CCC1C2")  # atoms 2 and 5 are C1/C4, atom 6 is C7
     assert [a.GetIdx() for a in mol.GetAtoms() if is_small_bridgehead(a)] == [2, 5]
-    assert [special_site_class(a) for a in mol.GetAtoms()] == [None, None, "bridgehead", None, None, "bridgehead", None]
-    # A fully substituted bridgehead has no C–H: no class.
+    assert small_bridgeheads(mol) == {2, 5}
+    # A fully substituted bridgehead has no C–H: not an abstractable bridgehead site.
     camphane = Chem.MolFromSmiles("CC12CCC(CC1)C2(C)C")
-    assert special_site_class(camphane.GetAtomWithIdx(1)) is None
+    assert 1 not in small_bridgeheads(camphane)
 
 
 def test_perception_stores_flags() -> None:

@@ -23,7 +23,7 @@ from rdkit import Chem
 
 from engine import parameters as P
 from engine.shares import percent_of_structure
-from engine.site_classes import SITE_CLASSES
+from engine.site_classes import SITE_CODE
 from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, stereo_outcome
 
 _SINGLE = Chem.BondType.SINGLE
@@ -204,7 +204,7 @@ def allylic_rows(
         for g, (share, termini, n) in by_group.items():
             site = groups[g].site
             rows.append(
-                (smiles, product_id, site, SITE_CLASSES.index(site), groups[g].h_count,
+                (smiles, product_id, site, SITE_CODE[site], groups[g].h_count,
                  ",".join(t for t in TERMINI if t in termini), n, share,
                  st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate, stereo and _ez_open(products[0]))
             )

@@ -18,7 +18,7 @@ from engine.contenders import contenders
 from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
 from engine.special_sites import small_bridgeheads, structure_flags
 from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome
@@ -59,7 +59,6 @@ SITE_SCHEMA = pa.schema(
     ]
 )
 
-_CODE = {name: i for i, name in enumerate(SITE_CLASSES)}
 _BDE_BY_CODE = np.array([site_bde(s).value for s in SITE_CLASSES])
 
 
@@ -93,7 +92,7 @@ def _perceive_one(smiles: object, max_heavy: int, detail: bool) -> tuple[tuple, 
     bridgeheads = small_bridgeheads(mol)
     groups = site_groups(mol, specified, bridgeheads)
     # A screen names only majors: Cl2 contenders need their SMILES, Br2 contenders also their stereo.
-    named, stereo_wanted = (None, None) if detail else contenders([(_CODE[g.site], g.h_count) for g in groups])
+    named, stereo_wanted = (None, None) if detail else contenders([(SITE_CODE[g.site], g.h_count) for g in groups])
     outcomes: list[StereoOutcome] = []
     for g, group in enumerate(groups):
         formed = group.site in _ABSTRACTABLE
@@ -162,8 +161,7 @@ def _site_frame(rows: list[tuple]) -> pd.DataFrame:
     cols = ["struct", "product", "site", "h_count", "n_carbons", "atom", "stereo", "n_stereoisomers",
             "n_diastereomers", "stereo_approx"]
     df = pd.DataFrame(rows, columns=cols)
-    codes = {name: i for i, name in enumerate(SITE_CLASSES)}
-    df["site_code"] = df["site"].map(codes).astype("int8")
+    df["site_code"] = df["site"].map(SITE_CODE).astype("int8")
     df["bde"] = _BDE_BY_CODE[df["site_code"].to_numpy()] if len(df) else pd.Series(dtype="float64")
     df = df.astype(
         {"struct": "int32", "h_count": "int32", "n_carbons": "int32", "atom": "int32",

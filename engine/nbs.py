@@ -24,7 +24,7 @@ from rdkit import Chem
 from engine import parameters as P
 from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CODE
-from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, stereo_outcome
+from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
@@ -150,7 +150,7 @@ def _ez_open(product: Chem.Mol) -> bool:
     """True when the product has a double bond whose E/Z geometry nothing fixes (both form)."""
     return any(
         e.type == Chem.StereoType.Bond_Double and e.specified == Chem.StereoSpecified.Unspecified
-        for e in Chem.FindPotentialStereo(Chem.Mol(product))
+        for e in potential_stereo(Chem.Mol(product))
     )
 
 

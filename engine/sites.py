@@ -179,9 +179,10 @@ def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | N
     """
     ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     by_rank: dict[int, list[int]] = defaultdict(list)
-    for atom in mol.GetAtoms():
-        if atom.GetTotalNumHs() > 0:
-            by_rank[ranks[atom.GetIdx()]].append(atom.GetIdx())
+    h_counts = [mol.GetAtomWithIdx(i).GetTotalNumHs() for i in range(mol.GetNumAtoms())]  # indexing beats GetAtoms()
+    for idx, h in enumerate(h_counts):
+        if h:
+            by_rank[ranks[idx]].append(idx)
     perms = automorphisms(mol)
     cyclic = mol.GetRingInfo().NumRings() > 0
     groups: list[SiteGroup] = []
@@ -219,7 +220,7 @@ def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | N
             SiteGroup(
                 atoms=tuple(idxs),
                 site=site,
-                h_count=sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in idxs),
+                h_count=sum(h_counts[i] for i in idxs),
                 substrate=mol,
                 has_stereo=has_stereo,
                 substrate_automorphisms=automorphism_list,

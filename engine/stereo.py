@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import itertools
 import math
+import operator
+from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import lru_cache
@@ -45,6 +47,24 @@ class StereoOutcome:
     approximate: bool = False
     """True when the count is not fully checked: more than :data:`MAX_OPEN_ELEMENTS`
     open elements, or a bridged ring system that could not be embedded in 3D."""
+
+
+def potential_stereo(mol: Chem.Mol) -> list:
+    """RDKit's potential stereo elements of ``mol`` as a plain list.
+
+    Indexing the returned vector is cheap; iterating it directly costs
+    microseconds per element in the binding, which adds up over a library.
+    """
+    found = Chem.FindPotentialStereo(mol)
+    return [found[i] for i in range(len(found))]
+
+
+def _controlling(element) -> tuple[int, ...]:
+    """A double bond's four controlling atoms (empty for other elements, which do not need them)."""
+    if element.type != _DOUBLE_BOND:
+        return ()
+    atoms = element.controllingAtoms
+    return tuple(atoms[i] for i in range(len(atoms)))
 
 
 def canonical(mol: Chem.Mol) -> str:
@@ -344,6 +364,193 @@ def _classify(isomers: dict[str, Chem.Mol], mirrors: dict[str, str], approximate
     return StereoOutcome("diastereomers", n, len(classes), approximate)
 
 
+#: Largest configuration set × automorphism count that the orbit count walks explicitly
+#: (bridged skeletons); beyond it the enumeration below takes over.
+MAX_ORBIT_WORK = 4096
+
+
+def _neighbours(product: Chem.Mol, idx: int) -> list[int]:
+    """Neighbours of an atom in bond order: the order an RDKit tetrahedral tag refers to."""
+    return [b.GetOtherAtomIdx(idx) for b in product.GetAtomWithIdx(idx).GetBonds()]
+
+
+def _parity_table() -> dict[tuple[int, ...], int]:
+    table = {}
+    for n in (2, 3, 4):
+        for perm in itertools.permutations(range(n)):
+            inversions = sum(1 for i in range(n) for j in range(i + 1, n) if perm[i] > perm[j])
+            table[perm] = inversions % 2
+    return table
+
+
+#: Parity (1: odd) of each permutation of up to four neighbour positions.
+_PARITY = _parity_table()
+
+
+def _signed_actions(
+    product: Chem.Mol, elements: list[tuple], symmetries: tuple[tuple[int, ...], ...]
+) -> tuple[list[list[tuple[int, int]]], list[int]] | None:
+    """How the automorphisms move the stereo elements: distinct actions and how many automorphisms give each.
+
+    A configuration gives each element a bit (tetrahedral: the tag, CW or
+    CCW, relative to the centre's bond order; double bond: cis or trans of
+    its two reference atoms). Carrying a configuration along an automorphism
+    puts element ``e``'s bit on its image, inverted when the carried
+    neighbours come out in odd order (tetrahedral) or a reference atom lands
+    on the other substituent (double bond). An action is, per element,
+    (image element, flip). Automorphisms that agree on the atoms around the
+    elements act alike (the methyls of a tert-butyl, say), so each distinct
+    action is worked out once. None when an image is not an element or an
+    element is not of these two kinds (then enumeration decides).
+    """
+    n_substrate = product.GetNumAtoms() - 1  # the halogen is the last atom; automorphisms fix it
+    keys: dict[tuple[str, int], int] = {}
+    parts: list[tuple] = []
+    nbrs_of: dict[int, list[int]] = {}
+    for pos, (kind, centre, controlling) in enumerate(elements):
+        if kind == _TETRAHEDRAL:
+            keys[("t", centre)] = pos
+            nbrs_of[centre] = _neighbours(product, centre)
+            parts.append(("t", centre))
+        elif kind == _DOUBLE_BOND and len(controlling) == 4:
+            bond = product.GetBondWithIdx(centre)
+            u, w = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
+            ref_u, ref_w = controlling[0], controlling[2]
+            if _cumulated(product.GetAtomWithIdx(u)) or _cumulated(product.GetAtomWithIdx(w)):
+                return None  # allenes: axial stereo
+            if product.GetBondBetweenAtoms(u, ref_u) is None or product.GetBondBetweenAtoms(w, ref_w) is None:
+                return None
+            keys[("d", centre)] = pos
+            parts.append(("d", u, w, ref_u, ref_w))
+        else:
+            return None
+    ends = {(min(part[1], part[2]), max(part[1], part[2])): (keys[("d", elements[pos][1])], part)
+            for pos, part in enumerate(parts) if part[0] == "d"}
+    relevant = sorted({a for part in parts for a in part[1:]} | {n for nbrs in nbrs_of.values() for n in nbrs})
+    relevant = [a for a in relevant if a < n_substrate]
+    restrict = operator.itemgetter(*relevant, relevant[0])  # a trailing repeat keeps one atom a tuple too
+    counts = Counter(map(restrict, symmetries))
+    actions, weights = [], []
+    for key, weight in counts.items():
+        image = dict(zip(relevant, key))
+        moved = []
+        for part in parts:
+            if part[0] == "t":
+                centre = part[1]
+                target_centre = image.get(centre, centre)
+                target_nbrs = nbrs_of.get(target_centre)
+                if target_nbrs is None:
+                    return None
+                try:
+                    order = tuple(target_nbrs.index(image.get(n, n)) for n in nbrs_of[centre])
+                except ValueError:
+                    return None
+                moved.append((keys[("t", target_centre)], _PARITY[order]))
+            else:
+                _, u, w, ref_u, ref_w = part
+                u1, w1 = image.get(u, u), image.get(w, w)
+                hit = ends.get((min(u1, w1), max(u1, w1)))
+                if hit is None:
+                    return None
+                target, (_, u2, w2, ref_u2, ref_w2) = hit
+                r_u, r_w = image.get(ref_u, ref_u), image.get(ref_w, ref_w)
+                if u1 == u2:
+                    flip = (r_u != ref_u2) ^ (r_w != ref_w2)
+                else:
+                    flip = (r_u != ref_w2) ^ (r_w != ref_u2)
+                moved.append((target, int(flip)))
+        actions.append(moved)
+        weights.append(weight)
+    return actions, weights
+
+
+def _fixed_count(action: list[tuple[int, int]], extra_flips: list[int]) -> int:
+    """Configurations of the full 2^k set left unchanged by one signed permutation (Burnside's lemma)."""
+    seen = [False] * len(action)
+    cycles = 0
+    for start in range(len(action)):
+        if seen[start]:
+            continue
+        parity, e = 0, start
+        while not seen[e]:
+            seen[e] = True
+            target, flip = action[e]
+            parity ^= flip ^ extra_flips[e]
+            e = target
+        if parity:
+            return 0  # going round the cycle inverts the bit: no configuration survives
+        cycles += 1
+    return 2**cycles
+
+
+def _apply(action: list[tuple[int, int]], config: int, extra: int) -> int:
+    out = 0
+    for e, (target, flip) in enumerate(action):
+        if ((config >> e) & 1) ^ flip ^ ((extra >> e) & 1):
+            out |= 1 << target
+    return out
+
+
+def _orbit_outcome(
+    product: Chem.Mol, elements: list[tuple], symmetries: tuple[tuple[int, ...], ...], skeleton: Skeleton
+) -> StereoOutcome | None:
+    """Stereo outcome of one product of a stereo-free input by counting orbits, without building isomers.
+
+    Stereoisomers are the configurations of the open elements up to the
+    product's automorphisms, and pairs of mirror images are the orbits once
+    reflection (every tetrahedral bit inverted) joins the group. On the full
+    set of 2^k configurations Burnside's lemma counts them from the cycles of
+    each automorphism; where a bridged skeleton allows only its two mirror
+    forms, the feasible configurations are walked explicitly. None hands the
+    product to enumeration (too many elements, an unusual element, a skeleton
+    that does not embed). ``elements``: (type, centred-on index, controlling
+    atoms) of each element, all open.
+    """
+    k = len(elements)
+    if k > MAX_OPEN_ELEMENTS:
+        return None
+    signed = _signed_actions(product, elements, symmetries)
+    if signed is None:
+        return None
+    actions, weights = signed
+    order = sum(weights)
+    tetra = [int(kind == _TETRAHEDRAL) for kind, _, _ in elements]
+    none = [0] * k
+    geometric = [pos for pos, (kind, centre, _) in enumerate(elements) if kind == _TETRAHEDRAL and centre in skeleton.geometric]
+    tags = skeleton.tags([elements[pos][1] for pos in geometric]) if geometric else {}
+    if tags is None:
+        return None  # cannot embed: enumeration marks the count approximate
+    if not tags:
+        fixed = sum(w * _fixed_count(a, none) for a, w in zip(actions, weights))
+        mirrored = sum(w * _fixed_count(a, tetra) for a, w in zip(actions, weights))
+        n, n_pairs = fixed // order, (fixed + mirrored) // (2 * order)
+    else:
+        fixed = {pos: int(tags[elements[pos][1]] == _CCW) for pos in geometric if elements[pos][1] in tags}
+        free = [pos for pos in range(k) if pos not in fixed]
+        base = sum(bit << pos for pos, bit in fixed.items())
+        inverted = sum((1 - bit) << pos for pos, bit in fixed.items())
+        feasible = set()
+        for choice in range(2 ** len(free)):
+            spread = sum(((choice >> j) & 1) << pos for j, pos in enumerate(free))
+            feasible.add(base | spread)
+            feasible.add(inverted | spread)
+        if len(feasible) * len(actions) > MAX_ORBIT_WORK:
+            return None
+        mirror_mask = sum(bit << pos for pos, bit in enumerate(tetra))
+        n = n_pairs = 0
+        for config in feasible:
+            images = [_apply(a, config, 0) for a in actions]
+            if any(i not in feasible for i in images):
+                return None  # the embedding disagrees with the symmetry: let enumeration decide
+            if config == min(images):
+                n += 1
+            if config == min(images + [_apply(a, config, mirror_mask) for a in actions]):
+                n_pairs += 1
+    if n == 1:
+        return _ACHIRAL
+    return StereoOutcome("racemate" if n_pairs == 1 else "diastereomers", n, n_pairs)
+
+
 def stereo_outcome(
     products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
 ) -> StereoOutcome:
@@ -355,16 +562,24 @@ def stereo_outcome(
     skeleton fixes the bridgeheads: one 3D embedding gives their feasible
     configuration (and its inverse), so impossible isomers such as a twisted
     norbornane are never counted. ``symmetries`` (all automorphisms of a single
-    product, when known) makes the symmetry test exact and cheap.
+    product, when known) lets a product of a stereo-free input be counted by
+    orbits (:func:`_orbit_outcome`) instead: exact where canonical SMILES are
+    not (an axially chiral spirane, a bridge carbon on a mirror plane), and
+    much cheaper.
     """
     isomers: dict[str, Chem.Mol] = {}
     mirrors: dict[str, str] = {}
     approximate = False
     for product in products:
-        elements = Chem.FindPotentialStereo(product)
+        elements = potential_stereo(product)
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
         if not elements and not isomers and len(products) == 1:
             return _ACHIRAL  # no stereo element at all: the common primary/achiral case
+        if len(products) == 1 and symmetries is not None and len(open_elements) == len(elements):
+            info = [(e.type, e.centeredOn, _controlling(e)) for e in elements]
+            counted = _orbit_outcome(product, info, symmetries, skeleton)
+            if counted is not None:
+                return counted
         if not open_elements:
             isomers.setdefault(canonical(product), product)
             continue

@@ -87,3 +87,71 @@ def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
             assert _tag_from_positions(heavy, atom.GetIdx(), position) == atom.GetChiralTag()
             checked += 1
     assert checked
+
+
+# Cases where the product's symmetry, not its constitution alone, decides; each was
+# miscounted when isomers were told apart by canonical SMILES. Stereo counts follow
+# from the point groups (Eliel & Wilen, Stereochemistry of Organic Compounds, Wiley
+# 1994: ch. 14 for axially chiral spiranes; ch. 11 for adamantane and norbornane symmetry).
+SYMMETRY_CASES = [
+    # 3,9-disubstituted spiro[5.5]undecane: the two rings lie crossed, so it is axially chiral.
+    ("CC1CCC2(CC1)CCCCC2", "CC1CCC2(CC1)CCC(Cl)CC2", "racemate", 2, 1),
+    # ... and with a stereocentre in the chain too: 2 × 2 stereoisomers, two pairs.
+    ("CCC(C)C1CCC2(CCCCC2)CC1", "CCC(C)C1CCC2(CCC(Cl)CC2)CC1", "diastereomers", 4, 2),
+    # 2-substituted adamantanes keep a mirror plane through C2 and C6.
+    ("CCCCC1C2CC3CC(C2)CC1C3", "ClCCCCC1C2CC3CC(C2)CC1C3", "achiral", 1, 1),
+    ("CCCCC1C2CC3CC(C2)CC1C3", "CC(Cl)CCC1C2CC3CC(C2)CC1C3", "racemate", 2, 1),
+    # A 7-substituted norbornane: C7 sits on the mirror plane between the two ethano bridges.
+    ("CC1C2CCC1CC2", "ClCC1C2CCC1CC2", "achiral", 1, 1),
+    # A 2-substituted bicyclo[1.1.1]pentane: C2 lies on the plane that swaps the bridgeheads.
+    ("CCC(C)CC1C2CC1C2", "CCC(C)(Cl)CC1C2CC1C2", "racemate", 2, 1),
+]
+
+
+@pytest.mark.parametrize(("substrate", "chloride", "outcome", "n_iso", "n_dia"), SYMMETRY_CASES)
+def test_symmetry_decides_the_count(substrate: str, chloride: str, outcome: str, n_iso: int, n_dia: int) -> None:
+    p = product(substrate, chloride)
+    assert (p.stereo, p.n_stereoisomers, p.n_diastereomers) == (outcome, n_iso, n_dia)
+
+
+def _simple_ring_systems(mol: Chem.Mol) -> bool:
+    """No spiro atom and no bridged or small fused system: canonical SMILES tell every isomer apart."""
+    from engine.stereo import geometry_atoms
+
+    ring_count = [0] * mol.GetNumAtoms()
+    for ring in mol.GetRingInfo().AtomRings():
+        for i in ring:
+            ring_count[i] += 1
+    spiro = any(c > 1 and not any(ring_count[n.GetIdx()] > 1 for n in mol.GetAtomWithIdx(i).GetNeighbors())
+                for i, c in enumerate(ring_count))
+    return not spiro and not geometry_atoms(mol)
+
+
+def test_orbit_count_agrees_with_enumeration_where_smiles_are_reliable() -> None:
+    # Independent check: build every configuration and let RDKit's canonical SMILES
+    # sort them (the enumeration path), against counting orbits of the automorphisms.
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
+    from library_gen import make_library
+
+    from engine.molecules import parse_hydrocarbon
+    from engine.site_classes import ABSTRACTABLE
+    from engine.sites import site_groups
+    from engine.stereo import Skeleton, stereo_outcome
+
+    compared = with_elements = 0
+    for smiles in make_library(1500, seed=23):
+        mol = parse_hydrocarbon(smiles).mol
+        if mol is None or not _simple_ring_systems(mol):
+            continue
+        for group in site_groups(mol, False):
+            if group.site not in ABSTRACTABLE or group.stabiliser is None:
+                continue
+            counted = stereo_outcome([group.product], Skeleton(mol, False), group.stabiliser)
+            enumerated = stereo_outcome([group.product], Skeleton(mol, False), None)
+            assert counted == enumerated, group.product_smiles
+            compared += 1
+            with_elements += counted.n_stereoisomers > 1
+    assert compared > 5000 and with_elements > 1500

@@ -24,8 +24,10 @@ import pyarrow.parquet as pq
 from engine.nbs import frame_from_rows
 from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
+#: Every engine module perception runs (a test derives the list from the imports).
 _FINGERPRINTED = (
-    "molecules.py", "nbs.py", "parameters.py", "perception.py", "site_classes.py", "sites.py", "special_sites.py",
+    "conditions.py", "contenders.py", "molecules.py", "nbs.py", "parameters.py", "perception.py", "rates.py",
+    "rdkit_log.py", "reagents.py", "shares.py", "site_classes.py", "sites.py", "solvent.py", "special_sites.py",
     "stereo.py",
 )
 #: Merge shards into one when there are more than this many.

@@ -126,8 +126,12 @@ def _shifted_bromide(mol: Chem.Mol, a: int, b: int, c: int) -> Chem.Mol:
     return rw.GetMol()
 
 
-def _termini(mol: Chem.Mol, a: int) -> list[tuple[str, Chem.Mol, int]]:
-    """(terminus, product, substituents on the product's C=C) for the radical at atom ``a``."""
+def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[tuple[str, Chem.Mol | None, int]]:
+    """(terminus, product, substituents on the product's C=C) for the radical at atom ``a``.
+
+    ``build_radical_carbon=False`` leaves the bromide at the radical carbon
+    itself as None, for a caller that knows its SMILES already.
+    """
     atom = mol.GetAtomWithIdx(a)
     shifted = []
     kept_subst = -1
@@ -143,7 +147,7 @@ def _termini(mol: Chem.Mol, a: int) -> list[tuple[str, Chem.Mol, int]]:
             product = _shifted_bromide(mol, a, b, c)
             shifted.append(("allylic shift", product, _alkene_substituents(product, a, b)))
     # At the radical carbon the existing C=C stays (benzylic: none, -1).
-    return [("radical carbon", _bromide_at_radical(mol, a), kept_subst), *shifted]
+    return [("radical carbon", _bromide_at_radical(mol, a) if build_radical_carbon else None, kept_subst), *shifted]
 
 
 def _ez_open(product: Chem.Mol) -> bool:
@@ -173,6 +177,10 @@ def allylic_rows(
     ``stereo=False`` leaves the stereo columns empty (a library screen's rows).
     """
     factor = P.NBS_SUBSTITUENT_FACTOR.value
+    # A screen's rows of a stereo-free input need only each product's constitution, and the
+    # bromide at the radical carbon is the group's monochloride with Br for Cl: the halogen is
+    # the one terminal heteroatom, so canonical order is the same (the tests check this).
+    constitution_only = not stereo and not specified
     # product constitution → {group index: [share, termini, subst]}, plus every product molecule formed
     per_product: dict[str, dict[int, list]] = {}
     mols: dict[str, list[Chem.Mol]] = {}
@@ -181,18 +189,21 @@ def allylic_rows(
             continue
         atoms = group.atoms if specified else group.atoms[:1]
         for a in atoms:
-            termini = _termini(mol, a)
-            weights = np.array([factor ** max(n, 0) for _, _, n in termini])
-            weights /= weights.sum()
+            termini = _termini(mol, a, build_radical_carbon=not constitution_only)
+            weights = [factor ** max(n, 0) for _, _, n in termini]
+            total = sum(weights) * len(atoms)
             for (terminus, product, n), w in zip(termini, weights):
-                key = Chem.MolToSmiles(product, isomericSmiles=False)
+                if product is None:
+                    key = group.product_smiles.replace("Cl", "Br")
+                else:
+                    key = Chem.MolToSmiles(product, isomericSmiles=False)
+                    mols.setdefault(key, []).append(product)
                 entry = per_product.setdefault(key, {}).setdefault(g, [0.0, set(), n])
-                entry[0] += w / len(atoms)
+                entry[0] += w / total
                 entry[1].add(terminus)
-                mols.setdefault(key, []).append(product)
     rows = []
     for product_id, (key, by_group) in enumerate(per_product.items()):
-        products = mols[key]
+        products = mols.get(key, [])
         (only, (_, termini_only, _)), *others = by_group.items()
         if not stereo:
             st = NOT_ANALYSED

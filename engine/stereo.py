@@ -211,7 +211,8 @@ class Skeleton:
         self._specified = specified
         self.geometric = geometry_atoms(substrate)
         """Atoms of bridged or small fused ring systems (the same in every product)."""
-        self._tags: dict[int, Chem.ChiralType] | None = None
+        self._position: dict[int, Vec] | None = None
+        self._tags: dict[int, Chem.ChiralType | None] = {}
         self._tried = False
 
     def _positions(self) -> dict[int, Vec] | None:
@@ -232,31 +233,29 @@ class Skeleton:
         placed = {atom: coords[pos] for pos, atom in enumerate(order)}
         return {a: placed[a] for a in atoms if a in placed}
 
-    def _embed(self) -> dict[int, Chem.ChiralType] | None:
-        try:
-            position = self._positions()
-        except Exception:  # noqa: BLE001 - any RDKit failure just means "cannot check"
-            return None
-        if position is None:
-            return None
-        tags = {}
-        for idx in position:
-            tag = _tag_from_positions(self._substrate, idx, position)
-            if tag is not None:
-                tags[idx] = tag
-        return tags
-
     def tags(self, atoms: list[int]) -> dict[int, Chem.ChiralType] | None:
         """Feasible tags for those of ``atoms`` the skeleton fixes (None: cannot embed).
 
         An atom that was CH2 in the substrate has no tag there: which of its
         two hydrogens is replaced is the product's own choice, so it stays open.
+        The geometry is found at the first call; each atom's tag when first asked for.
         """
         if not self._tried:
-            self._tags, self._tried = self._embed(), True
-        if self._tags is None:
+            try:
+                self._position = self._positions()
+            except Exception:  # noqa: BLE001 - any RDKit failure just means "cannot check"
+                self._position = None
+            self._tried = True
+        if self._position is None:
             return None
-        return {i: self._tags[i] for i in atoms if i in self._tags}
+        out = {}
+        for i in atoms:
+            if i not in self._tags:
+                self._tags[i] = _tag_from_positions(self._substrate, i, self._position)
+            tag = self._tags[i]
+            if tag is not None:
+                out[i] = tag
+        return out
 
 
 def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[tuple[tuple[int, ...], Chem.Mol]]:

@@ -72,6 +72,15 @@ def test_pruned_rows_keep_everything_but_product_detail(both) -> None:
     pd.testing.assert_frame_equal(full.sites[stereo][with_stereo], lean.sites[stereo][with_stereo])
 
 
+def test_nbs_rows_agree_but_for_stereo(both) -> None:
+    # A screen writes the radical-carbon bromide as the chloride's SMILES with Br for Cl;
+    # detail mode builds that bromide and asks RDKit for its canonical SMILES.
+    full, lean = both
+    assert len(full.allylic) > 200
+    kept = [c for c in full.allylic.columns if c not in ("stereo", "n_stereoisomers", "n_diastereomers", "stereo_approx", "ez_open")]
+    pd.testing.assert_frame_equal(full.allylic[kept], lean.allylic[kept])
+
+
 def test_detail_on_demand_matches_full(structures: list[str]) -> None:
     frame = pd.DataFrame({"smiles": structures[::7]})
     library = engine.load_library(frame, use_cache=False)

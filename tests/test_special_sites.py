@@ -130,9 +130,26 @@ def test_norbornane_with_bridgehead_class() -> None:
     assert e.confidence(("br2",)) == "textbook"
 
 
-def test_cache_fingerprint_covers_flag_code() -> None:
-    # Flags (and, once sites.py calls it, the bridgehead class) come from engine/special_sites.py:
-    # editing it must invalidate cached perceptions.
+def test_cache_fingerprint_covers_everything_perception_imports() -> None:
+    # Editing any module that perception runs (flags, contenders, rates behind them, ...)
+    # must invalidate cached perceptions, so the fingerprint covers perception's whole
+    # import closure inside the engine, found here by reading the import statements.
+    import ast
+    from pathlib import Path
+
     from engine import cache
 
-    assert "special_sites.py" in cache._FINGERPRINTED
+    root = Path(cache.__file__).parent
+    seen: set[str] = set()
+    todo = ["perception"]
+    while todo:
+        name = todo.pop()
+        if name in seen or not (root / f"{name}.py").exists():
+            continue
+        seen.add(name)
+        for node in ast.walk(ast.parse((root / f"{name}.py").read_text())):
+            if isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("engine"):
+                parts = node.module.split(".")[1:]
+                todo.extend([parts[0]] if parts else [alias.name for alias in node.names])
+    assert {"special_sites", "contenders", "stereo"} <= seen
+    assert {f"{m}.py" for m in seen} <= set(cache._FINGERPRINTED)

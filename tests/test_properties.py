@@ -120,11 +120,11 @@ def _rdkit_stereoisomer_count(smiles: str) -> int:
     return len(seen)
 
 
-def _bridged_or_small_fused(smiles: str) -> bool:
+def _bridged_small_fused_or_spiro(smiles: str) -> bool:
     mol = Chem.MolFromSmiles(smiles)  # keep a reference: RingInfo does not own the molecule
     rings = [set(r) for r in mol.GetRingInfo().AtomRings()]
     return any(
-        len(a & b) >= 3 or (len(a & b) == 2 and min(len(a), len(b)) <= 4)
+        len(a & b) >= 3 or (len(a & b) == 2 and min(len(a), len(b)) <= 4) or len(a & b) == 1
         for i, a in enumerate(rings) for b in rings[i + 1 :]
     )
 
@@ -133,8 +133,10 @@ def _bridged_or_small_fused(smiles: str) -> bool:
 @given(hydrocarbons())
 def test_stereoisomer_counts_match_rdkit_enumeration(smiles: str) -> None:
     # Outside bridged/small fused rings (where RDKit's enumerator also counts
-    # geometrically impossible isomers), our count must equal RDKit's.
-    assume(not _bridged_or_small_fused(smiles))
+    # geometrically impossible isomers) and spiranes (where canonical SMILES do not
+    # tell axial enantiomers apart; tests/test_stereo.py checks those), our count
+    # must equal RDKit's.
+    assume(not _bridged_small_fused_or_spiro(smiles))
     for p in engine.explain(smiles).products:
         if p.stereo and not p.stereo_approximate:
             assert p.n_stereoisomers == _rdkit_stereoisomer_count(p.smiles), p.smiles

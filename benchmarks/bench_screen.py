@@ -138,11 +138,19 @@ def main() -> int:
         env = dict(os.environ, HALOSIFT_CACHE_DIR=str(tmpd / "cache"))
         lib = tmpd / "unique.csv"
         pd.DataFrame({"id": [f"B{i:07d}" for i in range(len(smiles))], "smiles": smiles}).to_csv(lib, index=False)
-        c, _ = run_screen([str(lib), "-o", str(tmpd / "out.parquet"), "--no-cache", "--quiet"], env)
-        print(f"(c) halosift screen, {workers} workers, whole process: {c:6.2f} s  c/a = {c / a:5.1f}  (target ≤ {TARGETS['c/a']})")
-        c1, _ = run_screen([str(lib), "-o", str(tmpd / "out1.parquet"), "--no-cache", "--quiet", "--workers", "1"], env)
+        # This VM's speed drifts by 10 % within minutes: all-worker and one-worker runs alternate, three each.
+        runs_all, runs_one = [], []
+        for _ in range(3):
+            runs_all.append(run_screen([str(lib), "-o", str(tmpd / "out.parquet"), "--no-cache", "--quiet", "--force"], env)[0])
+            runs_one.append(run_screen([str(lib), "-o", str(tmpd / "out1.parquet"), "--no-cache", "--quiet", "--force",
+                                        "--workers", "1"], env)[0])
+        c, c1 = float(np.median(runs_all)), float(np.median(runs_one))
+        print(f"(c) halosift screen, {workers} workers, whole process, median of 3: {c:6.2f} s  c/a = {c / a:5.1f}  "
+              f"(runs: {', '.join(f'{x:.2f}' for x in runs_all)} s; target ≤ {TARGETS['c/a']})")
         speedup = c1 / c
-        print(f"(d) 1 worker {c1:.2f} s → {workers} workers {c:.2f} s: speed-up {speedup:4.2f}× (target ≥ {TARGETS['speed-up']})")
+        pairs = ", ".join(f"{one / every:.2f}" for one, every in zip(runs_one, runs_all))
+        print(f"(d) 1 worker {c1:.2f} s → {workers} workers {c:.2f} s (medians): speed-up {speedup:4.2f}× "
+              f"(run by run: {pairs}; target ≥ {TARGETS['speed-up']})")
 
         # (e) re-weighing: tile the perceived structures up to the requested count.
         rows = np.arange(opts.rows) % len(perception.structures)

@@ -20,10 +20,11 @@ from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Per
 
 #: Most strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
 CHUNK = 2_000
-#: Fewest strings per task, and how many tasks each worker should get at least (so the
-#: last tasks do not leave one worker idle while another finishes a big one).
+#: Fewest strings per task. Tasks shrink towards the end (each takes a share of
+#: what is left, divided by TASKS_PER_WORKER per worker), so the last ones are
+#: short and no worker waits long for another to finish.
 MIN_CHUNK = 100
-TASKS_PER_WORKER = 8
+TASKS_PER_WORKER = 4
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
 
@@ -50,6 +51,26 @@ def perceive_batch(
 
 def _from_batches(structures: pa.RecordBatch, sites: pa.RecordBatch, allylic: pa.RecordBatch) -> Perception:
     return Perception(structures.to_pandas(), sites.to_pandas(), frame_from_rows(allylic.to_pandas()))
+
+
+def chunk_bounds(total: int, workers: int) -> list[tuple[int, int]]:
+    """(start, stop) of each task: up to :data:`CHUNK` strings, shrinking towards the end.
+
+    One worker gets full-size tasks. With more, each task takes what is left
+    divided by ``workers`` × :data:`TASKS_PER_WORKER` (at least
+    :data:`MIN_CHUNK`, at most :data:`CHUNK`).
+    """
+    bounds = []
+    start = 0
+    while start < total:
+        if workers > 1:
+            size = max(MIN_CHUNK, -(-(total - start) // (workers * TASKS_PER_WORKER)))
+        else:
+            size = CHUNK
+        size = max(1, min(size, CHUNK))  # a test may shrink CHUNK below MIN_CHUNK
+        bounds.append((start, min(start + size, total)))
+        start += size
+    return bounds
 
 
 def default_workers() -> int:
@@ -81,9 +102,7 @@ def perceive_parallel(
     """
     total = len(smiles)
     workers = default_workers() if workers is None else max(1, workers)
-    size = max(MIN_CHUNK, min(CHUNK, -(-total // (workers * TASKS_PER_WORKER)))) if workers > 1 else CHUNK
-    size = min(size, CHUNK)  # a test may shrink CHUNK below MIN_CHUNK
-    chunks = [list(smiles[i : i + size]) for i in range(0, total, size)]
+    chunks = [list(smiles[start:stop]) for start, stop in chunk_bounds(total, workers)]
     parts: list[Perception | None] = [None] * len(chunks)
     done = 0
     if progress:
@@ -128,9 +147,10 @@ def perceive_parallel(
                 raise Cancelled()
             timeout = 0.2
             if caller_helps and next_chunk < end:
-                # The caller works from the back of the queue, the processes from the front.
-                end -= 1
-                record(end, perceive(chunks[end], max_heavy_atoms, detail))
+                # The caller takes the next task in line too, so the short ones stay for last.
+                mine = next_chunk
+                next_chunk += 1
+                record(mine, perceive(chunks[mine], max_heavy_atoms, detail))
                 timeout = 0.0
             finished, _ = wait(pending, timeout=timeout, return_when=FIRST_COMPLETED) if pending else (set(), set())
             for fut in finished:

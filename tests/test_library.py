@@ -76,11 +76,24 @@ def test_one_and_two_workers_agree(monkeypatch: pytest.MonkeyPatch) -> None:
     one = engine.screen(frame, workers=1, use_cache=False)
     two = engine.screen(frame, workers=2, use_cache=False)
     pd.testing.assert_frame_equal(one, two)
-    # The batch mode: this thread takes chunks from the back while one process takes the front.
+    # The batch mode: this thread takes the next chunk in line too, alongside one process.
     helped = engine.screen(frame, workers=2, use_cache=False, caller_helps=True)
     pd.testing.assert_frame_equal(one, helped)
     three = engine.screen(frame, workers=3, use_cache=False, caller_helps=True)
     pd.testing.assert_frame_equal(one, three)
+
+
+@pytest.mark.parametrize(("total", "workers"), [(0, 2), (1, 2), (99, 2), (20_000, 2), (20_000, 1), (1_000_003, 8)])
+def test_tasks_cover_every_string_once_and_shrink(total: int, workers: int) -> None:
+    bounds = parallel.chunk_bounds(total, workers)
+    assert [b[0] for b in bounds] == [0, *[b[1] for b in bounds[:-1]]][: len(bounds)]  # contiguous, in order
+    assert (bounds[-1][1] if bounds else 0) == total
+    sizes = [stop - start for start, stop in bounds]
+    assert all(s <= parallel.CHUNK for s in sizes)
+    assert all(s >= parallel.MIN_CHUNK for s in sizes[:-1])
+    assert sizes == sorted(sizes, reverse=True)  # the short tasks come last
+    if workers > 1 and total > 10 * parallel.CHUNK:
+        assert sizes[0] == parallel.CHUNK and sizes[-2] < parallel.CHUNK / 4
 
 
 def test_cold_and_warm_cache_agree(tmp_path, mixed_frame: pd.DataFrame) -> None:

@@ -162,6 +162,11 @@ def _triple(u: Vec, v: Vec, w: Vec) -> float:
     return u[0] * (v[1] * w[2] - v[2] * w[1]) + u[1] * (v[2] * w[0] - v[0] * w[2]) + u[2] * (v[0] * w[1] - v[1] * w[0])
 
 
+def _neighbours(mol: Chem.Mol, idx: int) -> list[int]:
+    """Neighbours of an atom in bond order: the order an RDKit tetrahedral tag refers to."""
+    return [b.GetOtherAtomIdx(idx) for b in mol.GetAtomWithIdx(idx).GetBonds()]
+
+
 def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, Vec]) -> Chem.ChiralType | None:
     """RDKit tag of atom ``idx`` from 3D positions of (at least three of) its neighbours.
 
@@ -171,9 +176,8 @@ def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, Vec]) -> Ch
     or H) is placed opposite the mean direction of the others. Plain floats:
     numpy on 3-vectors costs more in call overhead than the arithmetic.
     """
-    atom = mol.GetAtomWithIdx(idx)
-    nbrs = [b.GetOtherAtomIdx(idx) for b in atom.GetBonds()]
-    slots = nbrs + [None] * atom.GetTotalNumHs()
+    nbrs = _neighbours(mol, idx)
+    slots = nbrs + [None] * mol.GetAtomWithIdx(idx).GetTotalNumHs()
     if len(slots) != 4 or idx not in position:
         return None
     known = [position[n] for n in nbrs if n in position]
@@ -368,11 +372,6 @@ def _classify(isomers: dict[str, Chem.Mol], mirrors: dict[str, str], approximate
 MAX_ORBIT_WORK = 4096
 
 
-def _neighbours(product: Chem.Mol, idx: int) -> list[int]:
-    """Neighbours of an atom in bond order: the order an RDKit tetrahedral tag refers to."""
-    return [b.GetOtherAtomIdx(idx) for b in product.GetAtomWithIdx(idx).GetBonds()]
-
-
 def _parity_table() -> dict[tuple[int, ...], int]:
     table = {}
     for n in (2, 3, 4):
@@ -524,10 +523,10 @@ def _orbit_outcome(
         mirrored = sum(w * _fixed_count(a, tetra) for a, w in zip(actions, weights))
         n, n_pairs = fixed // order, (fixed + mirrored) // (2 * order)
     else:
-        fixed = {pos: int(tags[elements[pos][1]] == _CCW) for pos in geometric if elements[pos][1] in tags}
-        free = [pos for pos in range(k) if pos not in fixed]
-        base = sum(bit << pos for pos, bit in fixed.items())
-        inverted = sum((1 - bit) << pos for pos, bit in fixed.items())
+        pinned = {pos: int(tags[elements[pos][1]] == _CCW) for pos in geometric if elements[pos][1] in tags}
+        free = [pos for pos in range(k) if pos not in pinned]
+        base = sum(bit << pos for pos, bit in pinned.items())
+        inverted = sum((1 - bit) << pos for pos, bit in pinned.items())
         feasible = set()
         for choice in range(2 ** len(free)):
             spread = sum(((choice >> j) & 1) << pos for j, pos in enumerate(free))

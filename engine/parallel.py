@@ -7,13 +7,13 @@ and send back Arrow record batches (cheap to pickle, typed).
 from __future__ import annotations
 
 import multiprocessing
-import os
 import threading
 from collections.abc import Callable, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
 
 import pyarrow as pa
 
+from engine.cores import usable_cores
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.nbs import frame_from_rows
 from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
@@ -74,11 +74,8 @@ def chunk_bounds(total: int, workers: int) -> list[tuple[int, int]]:
 
 
 def default_workers() -> int:
-    """All cores this process may use."""
-    try:
-        return max(1, len(os.sched_getaffinity(0)))
-    except AttributeError:  # not Linux
-        return max(1, os.cpu_count() or 1)
+    """Worker count when none is asked for: every core this process may use."""
+    return usable_cores()
 
 
 def perceive_parallel(
@@ -122,8 +119,7 @@ def perceive_parallel(
     processes = workers - 1 if caller_helps else workers
     with ProcessPoolExecutor(max_workers=processes, mp_context=ctx) as pool:
         pending: dict[Future, int] = {}
-        next_chunk = 0  # chunks [next_chunk, end) are not handed out yet
-        end = len(chunks)
+        next_chunk = 0  # chunks from next_chunk on are not handed out yet
 
         def submit() -> None:
             nonlocal next_chunk
@@ -139,14 +135,14 @@ def perceive_parallel(
                 progress(done, total)
 
         # Keep a bounded number of tasks in flight so memory stays flat.
-        while next_chunk < end and len(pending) < 2 * processes:
+        while next_chunk < len(chunks) and len(pending) < 2 * processes:
             submit()
-        while pending or next_chunk < end:
+        while pending or next_chunk < len(chunks):
             if cancel is not None and cancel.is_set():
                 pool.shutdown(wait=False, cancel_futures=True)
                 raise Cancelled()
             timeout = 0.2
-            if caller_helps and next_chunk < end:
+            if caller_helps and next_chunk < len(chunks):
                 # The caller takes the next task in line too, so the short ones stay for last.
                 mine = next_chunk
                 next_chunk += 1
@@ -156,6 +152,6 @@ def perceive_parallel(
             for fut in finished:
                 i = pending.pop(fut)
                 record(i, _from_batches(*fut.result()))
-                if next_chunk < end:
+                if next_chunk < len(chunks):
                     submit()
     return concat([p for p in parts if p is not None])

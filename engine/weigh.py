@@ -15,7 +15,6 @@ threads (numpy and Arrow release the GIL in their loops).
 
 from __future__ import annotations
 
-import os
 from collections.abc import Callable, Sequence
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
@@ -28,6 +27,7 @@ import pyarrow as pa
 import pyarrow.compute as pc
 
 from engine.conditions import REAGENTS, Conditions
+from engine.cores import usable_cores
 from engine.nbs import nbs_majors
 from engine.polyhalogenation import deactivation, poly_pct_of_block
 from engine.perception import Perception
@@ -277,12 +277,8 @@ def _finish(memo: dict | None, key: tuple, future: Any) -> Any:
 
 def _pool(perception: Perception) -> ThreadPoolExecutor | None:
     """Threads for the NBS split and the two reagents' parts, when there is more than one core and work to share."""
-    try:
-        cores = len(os.sched_getaffinity(0))
-    except AttributeError:  # not Linux
-        cores = os.cpu_count() or 1
     # numpy and Arrow release the GIL inside their loops, so these parts overlap on separate cores.
-    return ThreadPoolExecutor(3) if cores > 1 and len(perception.sites) >= _THREADED_MIN_ROWS else None
+    return ThreadPoolExecutor(3) if usable_cores() > 1 and len(perception.sites) >= _THREADED_MIN_ROWS else None
 
 
 @dataclass(frozen=True)

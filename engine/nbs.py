@@ -24,6 +24,7 @@ from rdkit import Chem
 from engine import parameters as P
 from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CODE
+from engine.sites import substitute
 from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
 
 _SINGLE = Chem.BondType.SINGLE
@@ -94,17 +95,6 @@ def _refresh(rw: Chem.RWMol) -> None:
     rw.UpdatePropertyCache(strict=False)
 
 
-def _bromide_at_radical(mol: Chem.Mol, a: int) -> Chem.Mol:
-    rw = Chem.RWMol(mol)
-    atom = rw.GetAtomWithIdx(a)
-    _drop_h(atom)
-    atom.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)  # planar radical: configuration lost
-    new = rw.AddAtom(Chem.Atom(_BR))
-    rw.AddBond(a, new, _SINGLE)
-    _refresh(rw)
-    return rw.GetMol()
-
-
 def _shifted_bromide(mol: Chem.Mol, a: int, b: int, c: int) -> Chem.Mol:
     """a–b=c → a=b–c(Br): the allylic transposition product (atom indices kept, Br appended)."""
     rw = Chem.RWMol(mol)
@@ -147,7 +137,9 @@ def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[t
             product = _shifted_bromide(mol, a, b, c)
             shifted.append(("allylic shift", product, _alkene_substituents(product, a, b)))
     # At the radical carbon the existing C=C stays (benzylic: none, -1).
-    return [("radical carbon", _bromide_at_radical(mol, a) if build_radical_carbon else None, kept_subst), *shifted]
+    # The bromide at the radical carbon is the substitution product (planar radical: its configuration is lost).
+    radical_carbon = substitute(mol, a, _BR) if build_radical_carbon else None
+    return [("radical carbon", radical_carbon, kept_subst), *shifted]
 
 
 def _ez_open(product: Chem.Mol) -> bool:

@@ -30,7 +30,7 @@ there.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -91,6 +91,21 @@ def _site_terms(h: np.ndarray, share: np.ndarray, f: float | np.ndarray) -> tupl
     """(φ, κ) per product from H counts and monohalide shares (fractions)."""
     per_h = np.divide(share, h, out=np.zeros_like(share), where=h > 0)
     return share, f * (1.0 - per_h)
+
+
+def _bisect_log_left(mono_log: Callable[[np.ndarray], np.ndarray], n: int, available: float) -> np.ndarray:
+    """Largest ln A in [LOG_FLOOR, 0] per structure with halogen used ≥ ``available``.
+
+    Halogen used, 2(1 − A) − ΣB_i, falls as A rises; ``mono_log`` gives ΣB_i at ln A
+    for the ``n`` structures (of :class:`Split` or of a screen's block).
+    """
+    lo, hi = np.full(n, LOG_FLOOR), np.zeros(n)
+    for _ in range(_LOG_ITERATIONS):
+        mid = (lo + hi) / 2
+        above = 2.0 * (1.0 - np.exp(mid)) - mono_log(mid) >= available
+        lo = np.where(above, mid, lo)
+        hi = np.where(above, hi, mid)
+    return lo
 
 
 class Split:
@@ -155,13 +170,7 @@ class Split:
         nothing reacts, -inf where more than two halogens per substrate are charged.
         """
         available = 1.0 / ratio
-        lo, hi = np.full(self.n, LOG_FLOOR), np.zeros(self.n)
-        for _ in range(_LOG_ITERATIONS):
-            mid = (lo + hi) / 2
-            above = 2.0 * (1.0 - np.exp(mid)) - self.mono_log(mid) >= available
-            lo = np.where(above, mid, lo)
-            hi = np.where(above, hi, mid)
-        out = np.where(available >= 2.0, -np.inf, lo)
+        out = np.where(available >= 2.0, -np.inf, _bisect_log_left(self.mono_log, self.n, available))
         return np.where(self.reacts, out, 0.0)
 
     def left_at_ratio(self, ratio: float) -> np.ndarray:
@@ -269,13 +278,8 @@ class _Block:
 
     def bisect(self, available: float) -> tuple[np.ndarray, np.ndarray]:
         """Substrate left (largest A with halogen used ≥ ``available``) and ΣB_i there, by bisection in ln A."""
-        lo, hi = np.full(self.kappa.shape[1], LOG_FLOOR), np.zeros(self.kappa.shape[1])
-        for _ in range(_LOG_ITERATIONS):
-            mid = (lo + hi) / 2
-            above = 2.0 * (1.0 - np.exp(mid)) - self.mono_log(mid) >= available
-            lo = np.where(above, mid, lo)
-            hi = np.where(above, hi, mid)
-        return np.exp(lo), self.mono_log(lo)
+        log_left = _bisect_log_left(self.mono_log, self.kappa.shape[1], available)
+        return np.exp(log_left), self.mono_log(log_left)
 
 
 def left_and_mono_at_ratio(

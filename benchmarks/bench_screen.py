@@ -23,6 +23,7 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
+from rdkit import Chem
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
@@ -86,8 +87,6 @@ def run_screen(args: list[str], env: dict[str, str]) -> tuple[float, int]:
 
 def _unavoidable_calls(smiles: str) -> None:
     """The RDKit work any screen of one structure must do, with no Python logic around it."""
-    from rdkit import Chem
-
     mol = Chem.MolFromSmiles(smiles)
     Chem.MolToSmiles(mol)
     Chem.CanonicalRankAtoms(mol, breakTies=False)
@@ -110,8 +109,6 @@ def main() -> int:
     print(f"machine: {os.cpu_count()} CPUs visible, {workers} usable; unique structures {opts.unique:,}")
 
     smiles = make_library(opts.unique, seed=7)
-    from rdkit import Chem
-
     t = time.perf_counter()
     for s in smiles:
         Chem.MolFromSmiles(s)

@@ -439,11 +439,21 @@ def test_text_that_is_not_sdf(tmp_path: Path) -> None:
     assert "does not look like an SD file" in _message(path)
 
 
-def test_truncated_gzip_fails_during_reading_with_library_error(tmp_path: Path) -> None:
+def test_truncated_gzip_csv_fails_at_open_with_library_error(tmp_path: Path) -> None:
+    # A CSV is read whole when opened, so a stream cut short is a whole-file error before any work.
     rng = random.Random(5)
     body = "smiles,id\n" + "".join(f"C{'C' * rng.randrange(9)},{rng.random()}\n" for _ in range(200_000))
     data = gzip.compress(body.encode())
     path = _write(tmp_path / "cut.csv.gz", data[: len(data) // 2])
+    with pytest.raises(LibraryError, match="is not a readable gzip file"):
+        open_library(path)
+
+
+def test_truncated_gzip_smi_fails_during_reading_with_library_error(tmp_path: Path) -> None:
+    rng = random.Random(5)
+    body = "".join(f"C{'C' * rng.randrange(9)} m{i}\n" for i in range(200_000))
+    data = gzip.compress(body.encode())
+    path = _write(tmp_path / "cut.smi.gz", data[: len(data) // 2])
     source = open_library(path)  # the start of the stream is fine
     with pytest.raises(LibraryError, match="is not a readable gzip file"):
         for _ in source.iter_batches():

@@ -8,11 +8,22 @@ from pathlib import Path
 from typing import TextIO
 
 import pandas as pd
+import pyarrow as pa
 
 from .columns import choose, unique_names
 from .errors import LibraryError
 from .source import LibrarySource, RawBatch
-from .textfile import UNDECODABLE, MarkedLines, open_output_text, open_text, probe_encoding, read_errors
+from .fastcsv import read_fast
+from .textfile import (
+    _PROBE_BYTES,
+    UNDECODABLE,
+    MarkedLines,
+    encoding_of,
+    open_output_text,
+    read_bytes,
+    read_errors,
+    text_of,
+)
 
 UNBALANCED_QUOTE = "unbalanced quote in row"
 """row_errors text for the line where a quoted field opened and never closed cleanly."""
@@ -150,23 +161,39 @@ def _sniff_delimiter(header_line: str, fmt: str) -> str:
 def open_delimited(
     path: Path, fmt: str, gzipped: bool, smiles_column: str | None, id_column: str | None
 ) -> LibrarySource:
-    """Check a CSV/TSV file (encoding, header, at least one row) and return its source."""
-    encoding = probe_encoding(path, gzipped)
-    with read_errors(path), open_text(path, gzipped, encoding, newline="") as text:
+    """Check a CSV/TSV file (encoding, header, at least one row) and return its source.
+
+    The file is opened once: its bytes are read whole, offered to Arrow's parser
+    (:mod:`engine.io.fastcsv`) and, when that declines, streamed from memory by the
+    careful reader.
+    """
+    data = read_bytes(path, gzipped)
+    encoding = encoding_of(data[:_PROBE_BYTES], path)
+    with read_errors(path), text_of(data, encoding, newline="") as text:
         first_line = next((line for line in text if line.strip()), "")
     delimiter = _sniff_delimiter(first_line, fmt)
-    with read_errors(path), open_text(path, gzipped, encoding, newline="") as text:
-        rows = _Rows(text, delimiter)
-        header = rows.read_header()
-        if header is None:
-            raise LibraryError(f"{path} is empty")
-        if next(iter(rows), None) is None:
-            raise LibraryError(f"{path} has a header line but no rows")
-    names = unique_names(header)
-    smiles, ident = choose(names, str(path), smiles_column, id_column)
+    fast = read_fast(data, delimiter) if encoding == "utf-8-sig" else None
+    if fast is not None and fast.rows.num_rows:
+        names = unique_names(fast.header)
+        smiles, ident = choose(names, str(path), smiles_column, id_column)
+        table = fast.rows.rename_columns(names)
 
-    def read(batch_rows: int) -> Iterator[RawBatch]:
-        return _batches(path, gzipped, encoding, delimiter, names, names.index(smiles), batch_rows)
+        def read(batch_rows: int) -> Iterator[RawBatch]:
+            return _fast_batches(table, names.index(smiles), batch_rows)
+
+    else:
+        with read_errors(path), text_of(data, encoding, newline="") as text:
+            rows = _Rows(text, delimiter)
+            header = rows.read_header()
+            if header is None:
+                raise LibraryError(f"{path} is empty")
+            if next(iter(rows), None) is None:
+                raise LibraryError(f"{path} has a header line but no rows")
+        names = unique_names(header)
+        smiles, ident = choose(names, str(path), smiles_column, id_column)
+
+        def read(batch_rows: int) -> Iterator[RawBatch]:
+            return _batches(path, data, encoding, delimiter, names, names.index(smiles), batch_rows)
 
     return LibrarySource(
         path=path,
@@ -174,25 +201,35 @@ def open_delimited(
         columns=tuple(names),
         smiles_column=smiles,
         id_column=ident,
-        total_rows=None,
+        total_rows=fast.rows.num_rows if fast is not None and fast.rows.num_rows else None,
         _read=read,
     )
 
 
+def _fast_batches(table: pa.Table, smiles_at: int, batch_rows: int) -> Iterator[RawBatch]:
+    """RawBatches of batch_rows rows from a table Arrow parsed (every row clean)."""
+    for start in range(0, table.num_rows, batch_rows):
+        part = table.slice(start, batch_rows)
+        # astype: the text dtype pd.DataFrame(rows, dtype=str) gives in the careful reader, on any pandas.
+        frame = part.to_pandas().astype(str)
+        smiles = [cell.strip() or None for cell in part.column(smiles_at).to_pylist()]
+        yield RawBatch(start_row=start, frame=frame, smiles=smiles, row_errors=[""] * len(smiles))
+
+
 def _batches(
     path: Path,
-    gzipped: bool,
+    data: bytes,
     encoding: str,
     delimiter: str,
     names: list[str],
     smiles_at: int,
     batch_rows: int,
 ) -> Iterator[RawBatch]:
-    """Stream RawBatches of batch_rows rows."""
+    """Stream RawBatches of batch_rows rows through the careful reader."""
     start = 0
     rows: list[list[str]] = []
     errors: list[str] = []
-    with read_errors(path), open_text(path, gzipped, encoding, newline="") as text:
+    with read_errors(path), text_of(data, encoding, newline="") as text:
         parsed = _Rows(text, delimiter)
         parsed.read_header()
         for fields, error in parsed:

@@ -35,6 +35,17 @@ def open_text(path: Path, gzipped: bool, encoding: str, newline: str | None) -> 
     )
 
 
+def read_bytes(path: Path, gzipped: bool) -> bytes:
+    """The whole file's bytes, decompressed when gzipped, read in one opening."""
+    with read_errors(path), open_binary(path, gzipped) as stream:
+        return stream.read()
+
+
+def text_of(data: bytes, encoding: str, newline: str | None) -> TextIO:
+    """Bytes already read, as text the same way :func:`open_text` gives a file."""
+    return io.TextIOWrapper(io.BytesIO(data), encoding=encoding, errors="surrogateescape", newline=newline)
+
+
 def open_output_text(target: Path, gzipped: bool) -> TextIO:
     """UTF-8 text stream writing "\\n" line ends to target, gzipped when asked.
 
@@ -97,6 +108,11 @@ def probe_encoding(path: Path, gzipped: bool) -> str:
     """
     with read_errors(path), open_binary(path, gzipped) as stream:
         head = stream.read(_PROBE_BYTES)
+    return encoding_of(head, path)
+
+
+def encoding_of(head: bytes, path: Path) -> str:
+    """As :func:`probe_encoding`, from the first bytes of the file already read."""
     if not head.strip():
         raise LibraryError(f"{path} is empty")
     if head.startswith((b"\xff\xfe", b"\xfe\xff")):

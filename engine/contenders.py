@@ -5,8 +5,11 @@ rest keep their counts and weights (all a re-weighing needs) and get their
 detail on demand.
 
 Why the test is exact. Every rate per H is Arrhenius, k_c = A_c·exp(−E_c/RT),
-and a Cl2 solvent multiplies every log-selectivity against primary by one
-exponent s (:func:`engine.solvent.scale_rates`). So, up to a term common to
+in each of the rate tables a condition can select (Cl· gas phase, Cl· neat
+liquid, Br·), and a Cl2 solvent multiplies every log-selectivity against
+primary by one exponent s (:func:`engine.solvent.scale_rates`). The winners
+over a union of tables are the union of each table's winners, so each table
+is checked on its own. So, up to a term common to
 all products, the log-weight of a group g of site class c with h_g hydrogens is
 
     score_g(x, y) = ln h_g + x·(ln A_c − ln A_primary) − y·(E_c − E_primary)/R
@@ -32,7 +35,7 @@ import numpy as np
 
 from engine.conditions import MAX_TEMP_C
 from engine.parameters import KELVIN, R_KCAL
-from engine.rates import rate_table
+from engine.rates import PHASES, rate_table
 from engine.site_classes import ABSTRACTABLE
 
 #: Scores within this of the maximum count as tied (ties are kept: a superset is safe).
@@ -42,9 +45,9 @@ _INVERSE_T_MAX = 1.0 / (MAX_TEMP_C + KELVIN)
 
 
 @lru_cache(maxsize=None)
-def _class_terms(radical: str) -> tuple[np.ndarray, np.ndarray]:
-    """Per abstractable site code: (ln A − ln A_primary, (E − E_primary)/R) toward ``radical``."""
-    params = rate_table(radical).params
+def _class_terms(radical: str, phase: str) -> tuple[np.ndarray, np.ndarray]:
+    """Per abstractable site code: (ln A − ln A_primary, (E − E_primary)/R) toward ``radical`` in ``phase``."""
+    params = rate_table(radical, phase).params
     ln_a = np.array([math.log(params[s].a_per_h) for s in ABSTRACTABLE])
     ea = np.array([params[s].ea for s in ABSTRACTABLE])
     return ln_a - ln_a[_PRIMARY], (ea - ea[_PRIMARY]) / R_KCAL
@@ -100,16 +103,20 @@ def contending_classes(classes: tuple[tuple[int, int], ...], radical: str) -> fr
 
     ``classes``: (site code, H count of that class's largest group) for every
     abstractable class present, sorted. Cl· is weighed over the whole cone
-    (any allowed temperature, any solvent exponent), Br· over the ray x = 1
+    (any allowed temperature, any solvent exponent) of each of its phase
+    tables (gas, liquid) and the winners are united; Br· over the ray x = 1
     (no solvent term). Cached: libraries repeat these patterns.
     """
     if len(classes) <= 1:
         return frozenset(code for code, _ in classes)
     codes = np.array([c for c, _ in classes])
     ln_h = np.log(np.array([h for _, h in classes], dtype=np.float64))
-    a, e = (t[codes] for t in _class_terms(radical))
-    vertices = _cone_vertices(ln_h, a, e) if radical == "cl" else _ray_vertices(ln_h, a, e)
-    return frozenset(int(codes[i]) for i in _winners(ln_h, a, e, vertices))
+    won: set[int] = set()
+    for phase in PHASES if radical == "cl" else ("liquid",):
+        a, e = (t[codes] for t in _class_terms(radical, phase))
+        vertices = _cone_vertices(ln_h, a, e) if radical == "cl" else _ray_vertices(ln_h, a, e)
+        won |= _winners(ln_h, a, e, vertices)
+    return frozenset(int(codes[i]) for i in won)
 
 
 def contenders(groups: Sequence[tuple[int, int]]) -> tuple[set[int], set[int]]:

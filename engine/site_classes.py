@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
-from engine.parameters import BDE, BDE_BRIDGEHEAD, Value
+from engine.parameters import BDE, BDE_BRIDGEHEAD, NORBORNYL7_EXTRA_BDE, Value
 
 DEGREES = ("primary", "secondary", "tertiary")
 DELOCALISED = ("allylic", "benzylic", "propargylic")
+#: Norbornane-type positions by degree (a CH3 cannot sit in a ring, so no primary ones).
+BICYCLIC: tuple[str, ...] = tuple(f"norbornyl-{pos}-{d}" for pos in ("2", "7") for d in ("secondary", "tertiary"))
 
 #: Sites radical halogenation abstracts, in a fixed order (their integer codes).
 ABSTRACTABLE: tuple[str, ...] = (
@@ -16,6 +18,9 @@ ABSTRACTABLE: tuple[str, ...] = (
     # cannot planarise, so the C–H is stronger than an ordinary tertiary one.
     "bridgehead",
     *(f"{kind}-{degree}" for kind in DELOCALISED for degree in DEGREES),
+    # Positions of a saturated bicyclo[2.2.1] skeleton (engine.sites): C2/C3/C5/C6 (the
+    # 2-halide forms exo and endo) and the one-atom bridge C7, each by degree.
+    *BICYCLIC,
 )
 #: C–H bonds on sp2/sp carbons: listed, never weighted (their radicals are σ
 #: radicals with no stabilisation; BDE 110–133 kcal/mol).
@@ -45,6 +50,14 @@ def site_bde(site: str) -> Value:
         return BDE["phenyl"]
     if site == "alkynyl":
         return BDE["ethynyl"]
+    if site.startswith("norbornyl-"):
+        _, pos, degree = site.split("-")
+        if pos == "2":
+            return BDE[degree]
+        return Value(
+            BDE[degree].value + NORBORNYL7_EXTRA_BDE.value, "estimate",
+            f"{degree} alkyl C–H + {NORBORNYL7_EXTRA_BDE.value:g} kcal/mol: {NORBORNYL7_EXTRA_BDE.source}",
+        )
     kind, degree = site.split("-")
     parent = BDE[_PARENT_OF_DELOCALISED[kind]]
     if degree == "primary":

@@ -12,13 +12,14 @@ Model (an estimate; the assumptions are the whole of it):
 2. Scaling. A solvent multiplies every Cl· log-selectivity by one factor ``s``:
    k'(site) = k(primary) · (k(site) / k(primary))^s, i.e. the effective
    activation difference ΔEa(site) = −RT·ln(k(site)/k(primary)) is scaled by
-   ``s``. ``s`` is fixed so that the model's own tertiary : primary ratio at
-   25 °C equals the interpolated measured ratio; the same ``s`` is applied at
-   every temperature and to every site class (secondary, benzylic …), which
-   Russell's data do not test.
-3. ``none`` leaves the model as it is (its constants are gas-phase fits);
-   ``benzene``/``cs2`` at 0 M means the neat liquid hydrocarbon of Russell's
-   series, whose ratio (≈ 4) is a little below the gas-phase model's (≈ 5).
+   ``s``. ``s`` is fixed so that the neat-liquid table's tertiary : primary
+   ratio at 25 °C (Russell's neat point, ≈ 4, by construction of
+   :func:`engine.rates.neat_liquid_exponent`) becomes the interpolated measured
+   ratio; the same ``s`` is applied at every temperature and to every site
+   class (secondary, benzylic …), which Russell's data do not test.
+3. ``none`` leaves the table of the chosen phase as it is (engine.conditions:
+   the neat liquid by default, or the gas phase); ``benzene``/``cs2`` at 0 M is
+   the neat liquid too, so s = 1 there.
 """
 
 from __future__ import annotations
@@ -75,7 +76,7 @@ def extrapolated(solvent: str, molar: float) -> bool:
 def _model_ratio_25c() -> float:
     from engine.rates import rate_table
 
-    k = rate_table("cl").per_h(P.RUSSELL_T_K)
+    k = rate_table("cl", "liquid").per_h(P.RUSSELL_T_K)
     return float(k[_TERTIARY] / k[_PRIMARY])
 
 

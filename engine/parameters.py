@@ -56,6 +56,11 @@ BDE: dict[str, Value] = {
     "propargyl": Value(90.0, "estimate", "HC≡CCH2–H ≈ 90 kcal/mol, Luo 2007 (from memory)"),
     "ethynyl": Value(133.3, "measured", _BE + ": HC≡C–H (from memory)"),
     "cyclopropyl": Value(106.3, "measured", "c-C3H5–H, Luo 2007 (from memory)"),
+    # An allylic or benzylic C–H whose radical is conjugated further (pentadienyl, 1-phenylallyl,
+    # diphenylmethyl): between 1,4-pentadiene's 76.6 and allylbenzene's ≈ 82 kcal/mol (both from memory
+    # of Blanksby & Ellison 2003 / Luo 2007); one value for the class (estimate).
+    "conjugated": Value(80.0, "estimate", "pentadienyl/1-phenylallyl-type C–H, 76.6–82 kcal/mol; 80 taken "
+                        "(from memory; estimate)"),
 }
 
 BDE_HX: dict[str, Value] = {
@@ -421,7 +426,14 @@ NBS_SUBSTITUENT_FACTOR = Value(
     (100.0 - NBS_OCTENE_SPLIT.value) / NBS_OCTENE_SPLIT.value,
     "estimate",
     "F = 83/17 per extra alkyl substituent on the product C=C, from the 1-octene split; one factor for every "
-    "alkene, conjugation not credited (estimate)",
+    "alkene (estimate); a product C=C conjugated with an arene or another C=C counts one substituent more "
+    "(NBS_CONJUGATION_SUBSTITUENTS)",
+)
+#: A product C=C conjugated with an arene or another C=C: worth this many extra substituents in the terminus
+#: weight. Hydrogenation enthalpies put styrene-type conjugation at ≈ 2 kcal/mol, about what one more alkyl
+#: substituent on a C=C is worth (from memory; estimate).
+NBS_CONJUGATION_SUBSTITUENTS = Value(
+    1.0, "estimate", "conjugation of the product C=C ≈ one alkyl substituent (≈ 2 kcal/mol; from memory; estimate)"
 )
 
 # ---------------------------------------------------------------------------

@@ -244,6 +244,11 @@ def _br_table() -> dict[str, Arrhenius]:
                 f"{kind}-primary × {factor.value:g} per H at {t_b - P.KELVIN:.0f} °C ({factor.source}"
                 + ("" if kind == "benzylic" else f"; carried over to the {kind} class") + "; equal A: estimate)",
             )
+    shift = site_bde("conjugated").value - P.BDE["primary"].value
+    out["conjugated"] = Arrhenius(
+        prim.a_per_h, prim.ea + alpha_d * shift, "estimate",
+        f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol ({site_bde('conjugated').source}), α = {alpha_d}",
+    )
     return out
 
 
@@ -282,6 +287,9 @@ def _derive(radical: str, phase: str) -> RateTable:
         valid = (max(lo, valid[0]), hi)
     params |= _cl_delocalised(params, phase)
     params |= _bicyclic(params, "cl")
+    b = params["benzylic-primary"]
+    params["conjugated"] = Arrhenius(b.a_per_h, b.ea, "estimate",
+                                     "as a primary benzylic C–H (estimate; Cl· barely tells radicals apart)")
     missing = set(ABSTRACTABLE) - set(params)
     assert not missing, missing  # every class has a rate: a new class must be derived here
     return RateTable("cl", phase, params, valid)

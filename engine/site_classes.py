@@ -21,6 +21,10 @@ ABSTRACTABLE: tuple[str, ...] = (
     # Positions of a saturated bicyclo[2.2.1] skeleton (engine.sites): C2/C3/C5/C6 (the
     # 2-halide forms exo and endo) and the one-atom bridge C7, each by degree.
     *BICYCLIC,
+    # An allylic/benzylic radical conjugated further (pentadienyl, 1-phenylallyl, diphenylmethyl). Only
+    # NBS radical formation uses it (engine.nbs.radical_class); the site table names such carbons by
+    # their first π neighbour, as ever.
+    "conjugated",
 )
 #: C–H bonds on sp2/sp carbons: listed, never weighted (their radicals are σ
 #: radicals with no stabilisation; BDE 110–133 kcal/mol).

@@ -32,6 +32,21 @@ NOT_ABSTRACTED: tuple[str, ...] = ("vinyl", "aryl", "alkynyl")
 SITE_CLASSES: tuple[str, ...] = ABSTRACTABLE + NOT_ABSTRACTED
 SITE_CODE: dict[str, int] = {name: i for i, name in enumerate(SITE_CLASSES)}
 
+
+def _solvent_base(name: str) -> str:
+    if name == "conjugated":
+        return "primary"
+    kind, _, degree = name.partition("-")
+    return degree if kind in DELOCALISED else name
+
+
+#: Per site code, the code whose log-selectivity a Cl2 solvent scales (engine.solvent.scale_rates): the
+#: alkyl class of the same degree for a π-activated class, whose excess over it is left as measured
+#: (those data come from neat alkylbenzenes, an aromatic medium already); the class itself otherwise.
+SOLVENT_BASE: tuple[int, ...] = tuple(SITE_CODE[_solvent_base(n)] for n in ABSTRACTABLE) + tuple(
+    SITE_CODE[n] for n in NOT_ABSTRACTED
+)
+
 _PARENT_OF_DELOCALISED = {"allylic": "allyl", "benzylic": "benzyl", "propargylic": "propargyl"}
 
 

@@ -113,6 +113,24 @@ CL_OTHER_FITS: dict[str, tuple[float, int, float]] = {
 #: Gas-phase Cl· data span Sarzyński & Sztuba's 295–469 K and the 300 °C vapour-phase products below.
 CL_RANGE_K = (295.0, 300.0 + KELVIN)
 
+# Neighbour effects. Aschmann & Atkinson's structure–activity relationship for Cl· + alkanes
+# (Int. J. Chem. Kinet. 1995, 27, 613; values from memory, not re-checked) writes
+# k(CH3–X) = k_prim·F(X), k(X–CH2–Y) = k_sec·F(X)·F(Y), k(tertiary) = k_tert·F(X)F(Y)F(Z) with
+# F(–CH3) = 1 and F(–CH2–) = F(>CH–) = F(>C<) = 0.79 at 298 K, fitted to whole-molecule rate constants.
+# NOT USED: the site-resolved kinetics contradict it. Per H at 298 K, n-butane's CH2 (an ethyl
+# neighbour) reacts 0.97× propane's CH2, isobutane's CH3 (next to CH) 1.04× propane's CH3 (next to
+# CH2) (Sarzyński & Sztuba, fits above), and ethane's CH3 (next to CH3) ≈ 0.97× propane's CH3 (JPL
+# 19-5, below) — where the relationship predicts 0.79, 1.0 and 1.27. Its own constants (k_prim
+# 3.32e-11, k_sec 8.34e-11, k_tert 6.09e-11 per group) give propane 39/61 and isobutane 56/44
+# against the published 45/55 and 62–64/36, where the site fits give 45/55 and 64/36. The engine
+# therefore keeps one rate per class; tests/test_rates.py checks the neighbour-independence on
+# these data. (The site code could carry a neighbour count; with F ≈ 1 it would change nothing.)
+CL_SAR_F_NONMETHYL = Value(0.79, "measured", "Aschmann & Atkinson, Int. J. Chem. Kinet. 1995, 27, 613 (from memory; "
+                           "not used, see above)")
+CL_SAR_GROUP_K298 = {"primary": 3.32e-11, "secondary": 8.34e-11, "tertiary": 6.09e-11}  # same source; per group
+#: Cl + ethane, JPL Publication 19-5: 7.2e-11·exp(−70/T) for 6 H (from memory) — a check of neighbour-independence.
+CL_ETHANE = _from_b(7.2e-11, 6, 70.0, "JPL Publication 19-5, Cl + C2H6, 7.2e-11·exp(−70/T) (from memory)")
+
 #: Vapour-phase chlorination at 300 °C: per-H relative rates primary : secondary : tertiary
 #: 1 : 3.25 : 4.43 — the rule Hass, McBee & Weber drew from their product analyses of propane,
 #: butanes and pentanes (Ind. Eng. Chem. 1935, 27, 1190; 1936, 28, 333; values and pages from

@@ -7,12 +7,16 @@ from dataclasses import dataclass
 import numpy as np
 
 from engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
-from engine.rates import rate_table
+from engine.rates import RateTable, rate_table
 from engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
-__all__ = ["Conditions", "EXPLAIN_REAGENTS", "MAX_TEMP_C", "REAGENTS", "REAGENT_LABELS"]
+__all__ = ["CL2_PHASES", "Conditions", "EXPLAIN_REAGENTS", "MAX_TEMP_C", "REAGENTS", "REAGENT_LABELS"]
+
+#: Phases of a Cl2 chlorination: the gas phase (vapour-phase kinetics), the neat liquid hydrocarbon
+#: (the preparative default), or a solution in cl2_solvent (``liquid`` with a solvent means the same).
+CL2_PHASES = ("gas", "liquid", "solution")
 
 #: Highest temperature accepted, °C (a limit of this program: beyond it no rate here means anything).
 MAX_TEMP_C = 1500.0
@@ -36,6 +40,9 @@ class Conditions:
     """Solvent concentration, mol/L (0 with a solvent: Russell's neat-liquid point)."""
     nbs_temp_c: float = DEFAULT_TEMP_C["nbs"]
     """NBS (with initiator) temperature, °C; sets the Br· rates of the allylic/benzylic sites."""
+    cl2_phase: str = "liquid"
+    """Cl2 phase: gas, liquid (the neat hydrocarbon, a preparative chlorination's usual state) or solution
+    (in cl2_solvent; liquid with a solvent set means the same). SO2Cl2 is always weighed as a liquid."""
 
     def temp_c(self, reagent: str) -> float:
         """Temperature of one reagent, °C."""
@@ -53,13 +60,21 @@ class Conditions:
         return selectivity_exponent(self.cl2_solvent, self.cl2_solvent_molar)
 
     def reagent_key(self, reagent: str) -> tuple:
-        """Everything one reagent's split depends on (its temperature; for cl2 also the solvent)."""
+        """Everything one reagent's split depends on (its temperature; for cl2 also phase and solvent)."""
         key: tuple = (reagent, self.temp_c(reagent))
-        return key + ((self.cl2_solvent, self.cl2_solvent_molar) if reagent == "cl2" else ())
+        return key + ((self.cl2_phase, self.cl2_solvent, self.cl2_solvent_molar) if reagent == "cl2" else ())
+
+    def phase(self, reagent: str) -> str:
+        """Rate table phase of one reagent: 'gas' only for Cl2 in the gas phase, else 'liquid'."""
+        return "gas" if reagent == "cl2" and self.cl2_phase == "gas" else "liquid"
+
+    def table(self, reagent: str) -> RateTable:
+        """The rate table one reagent is weighed with."""
+        return rate_table(RADICAL_OF[reagent], self.phase(reagent))
 
     def per_h(self, reagent: str) -> np.ndarray:
         """Rate constant per H for every site class (by site code) under these conditions."""
-        k = rate_table(RADICAL_OF[reagent]).per_h(self.temp_k(reagent))
+        k = self.table(reagent).per_h(self.temp_k(reagent))
         return scale_rates(k, self.solvent_exponent(reagent))
 
     def bases(self, reagent: str) -> np.ndarray:
@@ -69,7 +84,7 @@ class Conditions:
         makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
         an assumption (common practice), so its rates are estimates too.
         """
-        table = rate_table(RADICAL_OF[reagent])
+        table = self.table(reagent)
         assumed = reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
         out = np.full(len(SITE_CLASSES), "not abstracted", dtype=object)
         for i, site in enumerate(ABSTRACTABLE):
@@ -87,12 +102,18 @@ class Conditions:
         if not 0 <= self.threshold_pct <= 100:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
         check_solvent(self.cl2_solvent, self.cl2_solvent_molar)
+        if self.cl2_phase not in CL2_PHASES:
+            raise ValueError(f"unknown cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")
+        if self.cl2_phase == "gas" and self.cl2_solvent != "none":
+            raise ValueError("a cl2 solvent needs phase solution (or liquid), not gas")
+        if self.cl2_phase == "solution" and self.cl2_solvent == "none":
+            raise ValueError("cl2 phase solution needs a solvent (benzene or cs2)")
 
     def warnings(self, reagents: tuple[str, ...] = (*REAGENTS, "nbs")) -> list[str]:
         """Temperatures outside the range the rate data were measured over, and solvent extrapolation."""
         out = []
         for reagent in reagents:
-            lo, hi = rate_table(RADICAL_OF[reagent]).valid_k
+            lo, hi = self.table(reagent).valid_k
             t = self.temp_k(reagent)
             if not lo <= t <= hi:
                 out.append(
@@ -111,9 +132,10 @@ class Conditions:
 
     def describe(self) -> str:
         """One line for headers and file metadata."""
-        solvent = (
-            f" in {self.cl2_solvent_molar:g} M {self.cl2_solvent}" if self.cl2_solvent != "none" else ""
-        )
+        if self.cl2_solvent != "none":
+            solvent = f" in {self.cl2_solvent_molar:g} M {self.cl2_solvent}"
+        else:
+            solvent = " (gas phase)" if self.cl2_phase == "gas" else " (neat liquid)"
         return (
             f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, NBS at {self.nbs_temp_c:g} °C, "
             f"br-selective threshold {self.threshold_pct:g} %"

@@ -2,14 +2,15 @@
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import asdict, dataclass, field
 
 from engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
 from engine.nbs import nbs_products
 from engine.parameters import NBS_NOTE, SO2CL2_NOTE
 from engine.perception import perceive
 from engine.reagents import NBS, check_reagent
-from engine.rates import enthalpy_of_abstraction
+from engine.rates import enthalpy_of_abstraction, exo_fraction
+from engine.reagents import RADICAL_OF
 from engine.site_classes import SITE_CLASSES, site_bde
 from engine.special_sites import FlagNote, flag_notes
 from engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
@@ -51,6 +52,13 @@ class ProductRecord:
     """True when the stereoisomer count could not be fully checked."""
     pct: dict[str, float]
     """Percent of the monohalide mixture, per reagent."""
+    exo_fraction: dict[str, float] = field(default_factory=dict)
+    """Per reagent, the exo share of this product (a norbornane 2-halide forms exo and endo); empty otherwise."""
+
+    def exo_endo(self, reagent: str) -> str:
+        """'exo:endo 70:30' for a norbornane 2-halide under ``reagent``; '' for other products."""
+        f = self.exo_fraction.get(reagent)
+        return "" if f is None else f"exo:endo {100 * f:.0f}:{100 * (1 - f):.0f}"
 
 
 @dataclass(frozen=True)
@@ -133,6 +141,7 @@ class Explanation:
             d["pct"] = {r: round(p.pct[r], 2) for r in site_reagents}
             d["relative_rate"] = {r: p.relative_rate[r] for r in site_reagents}
             d["rate_basis"] = {r: p.rate_basis[r] for r in site_reagents}
+            d["exo_fraction"] = {r: p.exo_fraction[r] for r in site_reagents if r in p.exo_fraction}
             products.append(d)
         extra: dict = {}
         if NBS in reagents:
@@ -187,6 +196,9 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
                 n_diastereomers=int(row.n_diastereomers),
                 stereo_approximate=bool(row.stereo_approx),
                 pct={r: float(getattr(row, f"{r}_pct")) for r in reagents},
+                exo_fraction={
+                    r: f for r in reagents if (f := exo_fraction(row.site, RADICAL_OF[r])) is not None
+                },
             )
         )
     records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -p.pct["cl2"], -p.pct["br2"], p.smiles))

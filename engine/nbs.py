@@ -9,9 +9,13 @@ product's C=C (:data:`engine.parameters.NBS_SUBSTITUENT_FACTOR`), stored as
 followed: only termini one bond away from the radical carbon's neighbours.
 
 Weighing side (numpy/pandas, any conditions): rate of each radical = H count ×
-Br· rate per H of its site class at the NBS temperature; product share =
-radical rate × terminus share, normalised per structure over these rows only
-(every other C–H gets no share under NBS).
+Br· rate per H of the *radical's* class at the NBS temperature
+(:func:`radical_class`: an allyl radical is weighed by the alkyl substituents
+on both its termini, so the CH3 of 2-butene and C3 of 1-butene, which give
+the same 1-methylallyl radical, weigh alike; a radical conjugated further,
+with an arene or a second C=C, is ``conjugated``); product share = radical
+rate × terminus share, normalised per structure over these rows only (every
+other C–H gets no share under NBS).
 """
 
 from __future__ import annotations
@@ -44,6 +48,8 @@ ALLYLIC_SCHEMA = pa.schema(
         pa.field("product_id", pa.int32(), metadata={"doc": "number of that product within its structure, from 0"}),
         pa.field("site", pa.string(), metadata={"doc": "site class of the carbon that loses H"}),
         pa.field("site_code", pa.int8(), metadata={"doc": "index of site in engine.SITE_CLASSES"}),
+        pa.field("radical_code", pa.int8(), metadata={"doc": "index in engine.SITE_CLASSES of the radical's class "
+                                                                "(engine.nbs.radical_class), which sets its rate"}),
         pa.field("h_count", pa.int32(), metadata={"doc": "hydrogens of that site group"}),
         pa.field("terminus", pa.string(), metadata={"doc": "radical carbon / allylic shift (comma-joined when both)"}),
         pa.field("alkene_subst", pa.int32(), metadata={"doc": "carbon substituents on the product's C=C (-1: none)"}),
@@ -66,7 +72,8 @@ def frame_from_rows(rows: list[tuple]) -> pd.DataFrame:
     """Rows (in :data:`ALLYLIC_SCHEMA` order, ``site_code`` included) as a typed frame."""
     df = pd.DataFrame(rows, columns=ALLYLIC_SCHEMA.names)
     return df.astype(
-        {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8", "h_count": "int32",
+        {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8",
+         "radical_code": "int8", "h_count": "int32",
          "terminus": object, "alkene_subst": "int32", "share": "float64", "stereo": object,
          "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool", "ez_open": "bool"}
     )
@@ -77,6 +84,54 @@ def _alkene_substituents(mol: Chem.Mol, i: int, j: int) -> int:
     return sum(1 for n in mol.GetAtomWithIdx(i).GetNeighbors() if n.GetIdx() != j) + sum(
         1 for n in mol.GetAtomWithIdx(j).GetNeighbors() if n.GetIdx() != i
     )
+
+
+def _sp3_carbon(atom: Chem.Atom) -> bool:
+    return atom.GetAtomicNum() == 6 and not atom.GetIsAromatic() and all(
+        b.GetBondType() == _SINGLE for b in atom.GetBonds())
+
+
+def _pi_bonds(atom: Chem.Atom, skip: int) -> bool:
+    """True when ``atom`` is aromatic or carries a double or triple bond to an atom other than ``skip``."""
+    return atom.GetIsAromatic() or any(
+        b.GetBondType() != _SINGLE and b.GetOtherAtomIdx(atom.GetIdx()) != skip for b in atom.GetBonds())
+
+
+def radical_class(mol: Chem.Mol, a: int, site: str) -> str:
+    """Class whose Br· rate forms the radical at atom ``a`` (an allylic or benzylic site of class ``site``).
+
+    The degree is the number of alkyl (sp3 carbon) substituents on the radical's termini: on ``a`` itself
+    and, for an allyl radical a–b=c, on c (b's substituents barely touch the spin). 0, 1, ≥ 2 give the
+    ``-primary``, ``-secondary``, ``-tertiary`` class of the site's kind. A radical delocalised further — a
+    second π neighbour of ``a`` (1-phenylallyl from allylbenzene, pentadienyl, diphenylmethyl) or an arene
+    or C=C on the far terminus c — is ``conjugated``.
+    """
+    kind = site.split("-")[0]
+    atom = mol.GetAtomWithIdx(a)
+    pi_neighbours = [n for n in atom.GetNeighbors() if _pi_bonds(n, a)]
+    alkyl = sum(1 for n in atom.GetNeighbors() if _sp3_carbon(n))
+    conjugated = len(pi_neighbours) > 1
+    if kind == "allylic" and not conjugated:
+        b_atom = pi_neighbours[0]
+        b = b_atom.GetIdx()
+        for bond in b_atom.GetBonds():
+            c = bond.GetOtherAtomIdx(b)
+            if c == a or bond.GetBondType() != _DOUBLE:
+                continue
+            c_atom = mol.GetAtomWithIdx(c)
+            alkyl += sum(1 for n in c_atom.GetNeighbors() if n.GetIdx() != b and _sp3_carbon(n))
+            conjugated = conjugated or any(n.GetIdx() != b and _pi_bonds(n, c) for n in c_atom.GetNeighbors())
+    if conjugated:
+        return "conjugated"
+    return f"{kind}-{('primary', 'secondary', 'tertiary')[min(alkyl, 2)]}"
+
+
+def _conjugation(mol: Chem.Mol, i: int, j: int) -> int:
+    """1 when the C=C i=j is conjugated with an arene or another multiple bond, else 0."""
+    for x, y in ((i, j), (j, i)):
+        if any(n.GetIdx() != y and _pi_bonds(n, x) for n in mol.GetAtomWithIdx(x).GetNeighbors()):
+            return 1
+    return 0
 
 
 def _drop_h(atom: Chem.Atom) -> None:
@@ -116,8 +171,10 @@ def _shifted_bromide(mol: Chem.Mol, a: int, b: int, c: int) -> Chem.Mol:
     return rw.GetMol()
 
 
-def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[tuple[str, Chem.Mol | None, int]]:
-    """(terminus, product, substituents on the product's C=C) for the radical at atom ``a``.
+def _termini(
+    mol: Chem.Mol, a: int, build_radical_carbon: bool = True
+) -> list[tuple[str, Chem.Mol | None, int, int]]:
+    """(terminus, product, substituents on the product's C=C, 1 if that C=C is conjugated) for the radical at ``a``.
 
     ``build_radical_carbon=False`` leaves the bromide at the radical carbon
     itself as None, for a caller that knows its SMILES already.
@@ -125,6 +182,7 @@ def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[t
     atom = mol.GetAtomWithIdx(a)
     shifted = []
     kept_subst = -1
+    kept_conj = 0
     for b_atom in atom.GetNeighbors():
         b = b_atom.GetIdx()
         for bond in b_atom.GetBonds():
@@ -133,13 +191,14 @@ def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[t
                 continue
             if mol.GetAtomWithIdx(c).GetAtomicNum() != 6:
                 continue
-            kept_subst = max(kept_subst, _alkene_substituents(mol, b, c))
+            if _alkene_substituents(mol, b, c) > kept_subst:
+                kept_subst, kept_conj = _alkene_substituents(mol, b, c), _conjugation(mol, b, c)
             product = _shifted_bromide(mol, a, b, c)
-            shifted.append(("allylic shift", product, _alkene_substituents(product, a, b)))
+            shifted.append(("allylic shift", product, _alkene_substituents(product, a, b), _conjugation(product, a, b)))
     # At the radical carbon the existing C=C stays (benzylic: none, -1).
     # The bromide at the radical carbon is the substitution product (planar radical: its configuration is lost).
     radical_carbon = substitute(mol, a, _BR) if build_radical_carbon else None
-    return [("radical carbon", radical_carbon, kept_subst), *shifted]
+    return [("radical carbon", radical_carbon, kept_subst, kept_conj), *shifted]
 
 
 def _ez_open(product: Chem.Mol) -> bool:
@@ -169,6 +228,7 @@ def allylic_rows(
     ``stereo=False`` leaves the stereo columns empty (a library screen's rows).
     """
     factor = P.NBS_SUBSTITUENT_FACTOR.value
+    conj_weight = P.NBS_CONJUGATION_SUBSTITUENTS.value
     # A screen's rows of a stereo-free input need only each product's constitution, and the
     # bromide at the radical carbon is the group's monochloride with Br for Cl: the halogen is
     # the one terminal heteroatom, so canonical order is the same (the tests check this).
@@ -176,15 +236,18 @@ def allylic_rows(
     # product constitution → {group index: [share, termini, subst]}, plus every product molecule formed
     per_product: dict[str, dict[int, list]] = {}
     mols: dict[str, list[Chem.Mol]] = {}
+    radical_code: dict[int, int] = {}
     for g, group in enumerate(groups):
         if group.site not in NBS_SITES:
             continue
+        # Equivalent carbons give equivalent radicals: the first names the class.
+        radical_code[g] = SITE_CODE[radical_class(mol, group.atoms[0], group.site)]
         atoms = group.atoms if specified else group.atoms[:1]
         for a in atoms:
             termini = _termini(mol, a, build_radical_carbon=not constitution_only)
-            weights = [factor ** max(n, 0) for _, _, n in termini]
+            weights = [factor ** (max(n, 0) + conj_weight * conj) for _, _, n, conj in termini]
             total = sum(weights) * len(atoms)
-            for (terminus, product, n), w in zip(termini, weights):
+            for (terminus, product, n, _), w in zip(termini, weights):
                 if product is None:
                     key = group.product_smiles.replace("Cl", "Br")
                 else:
@@ -207,7 +270,7 @@ def allylic_rows(
         for g, (share, termini, n) in by_group.items():
             site = groups[g].site
             rows.append(
-                (smiles, product_id, site, SITE_CODE[site], groups[g].h_count,
+                (smiles, product_id, site, SITE_CODE[site], radical_code[g], groups[g].h_count,
                  ",".join(t for t in TERMINI if t in termini), n, share,
                  st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate, stereo and _ez_open(products[0]))
             )
@@ -218,7 +281,7 @@ def nbs_percent(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> np.n
     """Percent of each row's product among the structure's NBS monobromides (rows of one product add up)."""
     struct = allylic["struct"].to_numpy()
     weights = (
-        allylic["h_count"].to_numpy(dtype=np.float64) * per_h[allylic["site_code"].to_numpy()]
+        allylic["h_count"].to_numpy(dtype=np.float64) * per_h[allylic["radical_code"].to_numpy()]
         * allylic["share"].to_numpy(dtype=np.float64)
     )
     return percent_of_structure(weights, struct, n_struct)

@@ -56,6 +56,11 @@ BDE: dict[str, Value] = {
     "propargyl": Value(90.0, "estimate", "HC≡CCH2–H ≈ 90 kcal/mol, Luo 2007 (from memory)"),
     "ethynyl": Value(133.3, "measured", _BE + ": HC≡C–H (from memory)"),
     "cyclopropyl": Value(106.3, "measured", "c-C3H5–H, Luo 2007 (from memory)"),
+    # An allylic or benzylic C–H whose radical is conjugated further (pentadienyl, 1-phenylallyl,
+    # diphenylmethyl): between 1,4-pentadiene's 76.6 and allylbenzene's ≈ 82 kcal/mol (both from memory
+    # of Blanksby & Ellison 2003 / Luo 2007); one value for the class (estimate).
+    "conjugated": Value(80.0, "estimate", "pentadienyl/1-phenylallyl-type C–H, 76.6–82 kcal/mol; 80 taken "
+                        "(from memory; estimate)"),
 }
 
 BDE_HX: dict[str, Value] = {
@@ -105,29 +110,85 @@ CL_OTHER_FITS: dict[str, tuple[float, int, float]] = {
     "n-butane secondary": (9.9e-11, 4, -106.0),
     "isobutane primary": (13.0e-11, 9, 104.0),
 }
-CL_RANGE_K = (295.0, 469.0)
+#: Gas-phase Cl· data span Sarzyński & Sztuba's 295–469 K and the 300 °C vapour-phase products below.
+CL_RANGE_K = (295.0, 300.0 + KELVIN)
 
-# Ethylbenzene, liquid-phase photochlorination: α 90 % / β 10 % near room
-# temperature — the widely quoted value (attributed to G. A. Russell's
-# photochlorination work of the 1950s; attribution from memory, not re-checked),
-# i.e. 13.5 per H relative to the β CH3. We attribute the benzylic excess over
-# an ordinary secondary C–H entirely to the activation energy (same A as the
-# secondary anchor) — an assumption, so the derived constants are estimates.
-CL_ETHYLBENZENE_ALPHA_PCT = Value(
-    90.0, "measured", "ethylbenzene + Cl2, liquid phase, α 90 %/β 10 % (G. A. Russell's photochlorination work; from memory)"
+# Neighbour effects. Aschmann & Atkinson's structure–activity relationship for Cl· + alkanes
+# (Int. J. Chem. Kinet. 1995, 27, 613; values from memory, not re-checked) writes
+# k(CH3–X) = k_prim·F(X), k(X–CH2–Y) = k_sec·F(X)·F(Y), k(tertiary) = k_tert·F(X)F(Y)F(Z) with
+# F(–CH3) = 1 and F(–CH2–) = F(>CH–) = F(>C<) = 0.79 at 298 K, fitted to whole-molecule rate constants.
+# NOT USED: the site-resolved kinetics contradict it. Per H at 298 K, n-butane's CH2 (an ethyl
+# neighbour) reacts 0.97× propane's CH2, isobutane's CH3 (next to CH) 1.04× propane's CH3 (next to
+# CH2) (Sarzyński & Sztuba, fits above), and ethane's CH3 (next to CH3) ≈ 0.97× propane's CH3 (JPL
+# 19-5, below) — where the relationship predicts 0.79, 1.0 and 1.27. Its own constants (k_prim
+# 3.32e-11, k_sec 8.34e-11, k_tert 6.09e-11 per group) give propane 39/61 and isobutane 56/44
+# against the published 45/55 and 62–64/36, where the site fits give 45/55 and 64/36. The engine
+# therefore keeps one rate per class; tests/test_rates.py checks the neighbour-independence on
+# these data. (The site code could carry a neighbour count; with F ≈ 1 it would change nothing.)
+CL_SAR_F_NONMETHYL = Value(0.79, "measured", "Aschmann & Atkinson, Int. J. Chem. Kinet. 1995, 27, 613 (from memory; "
+                           "not used, see above)")
+CL_SAR_GROUP_K298 = {"primary": 3.32e-11, "secondary": 8.34e-11, "tertiary": 6.09e-11}  # same source; per group
+#: Cl + ethane, JPL Publication 19-5: 7.2e-11·exp(−70/T) for 6 H (from memory) — a check of neighbour-independence.
+CL_ETHANE = _from_b(7.2e-11, 6, 70.0, "JPL Publication 19-5, Cl + C2H6, 7.2e-11·exp(−70/T) (from memory)")
+
+#: Vapour-phase chlorination at 300 °C: per-H relative rates primary : secondary : tertiary
+#: 1 : 3.25 : 4.43 — the rule Hass, McBee & Weber drew from their product analyses of propane,
+#: butanes and pentanes (Ind. Eng. Chem. 1935, 27, 1190; 1936, 28, 333; values and pages from
+#: memory, not re-checked). The gas-phase Cl· table passes through Sarzyński & Sztuba's per-H
+#: ratios at 298 K and these at 300 °C: the two fixed points set each class's A and Ea relative
+#: to primary (the primary constants stay Sarzyński & Sztuba's propane fit).
+_HMW = "Hass, McBee & Weber, Ind. Eng. Chem. 1936, 28, 333 (vapour phase, 300 °C; from memory)"
+CL_VAPOUR_T_K = 300.0 + KELVIN
+CL_VAPOUR_RATIOS: dict[str, Value] = {
+    "secondary": Value(3.25, "measured", _HMW + ": secondary : primary per H 3.25"),
+    "tertiary": Value(4.43, "measured", _HMW + ": tertiary : primary per H 4.43"),
+}
+#: Sarzyński & Sztuba's per-H ratios at this temperature are the low-temperature fixed point.
+CL_LOW_T_K = 298.15
+
+# Benzylic C–H toward Cl·.
+# Gas phase: Cl + toluene k = 5.9e-11 cm³ molecule⁻¹ s⁻¹ at 298 K, all benzylic abstraction
+# (Shi & Bernhard, Int. J. Chem. Kinet. 1997, 29, 349, as quoted by Finlayson-Pitts & Pitts,
+# Chemistry of the Upper and Lower Atmosphere, 2000; journal pages from memory). Its temperature
+# dependence is slight (from memory), so the benzylic excess over an alkyl C–H of the same degree
+# is put into A, not Ea (estimate).
+CL_TOLUENE_K298 = Value(
+    5.9e-11, "measured",
+    "Cl + toluene, 298 K, gas phase: 5.9e-11 cm³ molecule⁻¹ s⁻¹ for 3 benzylic H (Shi & Bernhard 1997, "
+    "quoted in Finlayson-Pitts & Pitts 2000; pages from memory)",
 )
+CL_TOLUENE_H = 3
+# Liquid phase: photochlorination of ethylbenzene gives α 90 % / β 10 %, and over 22–98 °C the
+# α and β chlorinations differ in activation energy by 3.13 kcal/mol (α the lower: it is the
+# favoured one) — liquid-phase photochlorination of C6H5R, R = Et, Pr, iPr, Bu, s-Bu, pentyl
+# (abstract indexed at scilit.com/publications/fa60b48db7bc69fde73c358cee4778ba; authors and
+# journal not checked; the temperature of the 90/10 split is taken as 25 °C, an assumption).
+_EB = ("liquid-phase photochlorination of alkylbenzenes, 22–98 °C (abstract indexed at "
+       "scilit.com/publications/fa60b48db7bc69fde73c358cee4778ba; authors/journal not checked)")
+CL_ETHYLBENZENE_ALPHA_PCT = Value(90.0, "measured", _EB + ": ethylbenzene α 90 % / β 10 %")
 CL_ETHYLBENZENE_T_K = 298.15
+CL_ETHYLBENZENE_DEA = Value(
+    -3.13, "measured", _EB + ": Eα − Eβ of ethylbenzene = 3.13 kcal/mol in size, α lower (sign read from which is favoured)"
+)
+CL_LIQUID_BENZYLIC_RANGE_K = (22.0 + KELVIN, 98.0 + KELVIN)
 
 # ---------------------------------------------------------------------------
 # Br·: relative per-H reactivity 1 : 82 : 1600 (primary : secondary : tertiary)
 # at 127 °C, liquid phase — Morrison & Boyd, Organic Chemistry (textbook,
 # from memory). Kinetics near 400 K in the gas phase give a steeper
-# ≈1 : 200 : 6500 (Seakins, Pilling et al., J. Phys. Chem. 1992, 96, 9847).
-# We adopt the textbook ratios because halosift predicts preparative product
-# mixtures, which is what those ratios were measured on, and they reproduce
-# published bromination product ratios (propane 3/97 at 127 °C). With no
-# site-specific A factors available we assume equal A per H, so the ratios
-# become activation-energy differences ΔEa = −RT·ln(ratio) at 400.15 K.
+# ≈1 : 200 : 6500 (Seakins et al., below). We keep the textbook ratios at
+# 127 °C because halosift predicts preparative product mixtures, which is
+# what they were measured on, and they reproduce propane's 3/97 at 127 °C.
+#
+# Temperature dependence: the activation energy of each alkyl class comes
+# from thermochemistry and the measured reverse reactions,
+# Ea(R–H + Br·) = ΔH + Ea(R· + HBr), exact by microscopic reversibility up
+# to small heat-capacity terms; ΔH from the bond enthalpies above,
+# Ea(R· + HBr) from Seakins, Pilling, Niiranen, Gutman & Krasnoperov,
+# J. Phys. Chem. 1992, 96, 9847 (numbers checked against its abstract).
+# The textbook ratios at 127 °C then fix each class's A per H. (Before,
+# equal A was assumed and the whole ratio went into Ea: an effective
+# Evans–Polanyi slope of 1.3 on bond enthalpy, which is unphysical.)
 # ---------------------------------------------------------------------------
 _MB = "Morrison & Boyd, Organic Chemistry, per-H 1 : 82 : 1600 at 127 °C (textbook, from memory)"
 BR_REFERENCE_T_K = 127.0 + KELVIN
@@ -136,20 +197,50 @@ BR_RATIOS: dict[str, Value] = {
     "secondary": Value(82.0, "textbook", _MB),
     "tertiary": Value(1600.0, "textbook", _MB),
 }
-#: Absolute scale for Br· is irrelevant to product ratios; a representative
-#: A per H (order of magnitude of Br + C2H6) keeps the numbers physical.
-BR_A_PER_H = Value(
-    1.0e-11, "estimate", "order of magnitude of Br + alkane A factors per H; cancels in every product ratio"
+_SP = "Seakins, Pilling, Niiranen, Gutman & Krasnoperov, J. Phys. Chem. 1992, 96, 9847"
+KJ = 1.0 / 4.184
+#: Activation energy of R· + HBr → R–H + Br·, kcal/mol, by the class of the radical formed.
+BR_REVERSE_EA: dict[str, Value] = {
+    "methane": Value(
+        -1.6 * KJ, "measured",
+        _SP + ": CH3 + HBr, 299–536 K, |Ea| = 1.6 kJ/mol (the indexed abstract garbles the sign; taken "
+        "negative like the other three, not re-checked)",
+    ),
+    "primary": Value(-4.2 * KJ, "measured", _SP + ": C2H5 + HBr, 297–530 K, Ea = −4.2 kJ/mol"),
+    "secondary": Value(-6.4 * KJ, "measured", _SP + ": i-C3H7 + HBr, 298–530 K, Ea = −6.4 kJ/mol"),
+    "tertiary": Value(-7.8 * KJ, "measured", _SP + ": t-C4H9 + HBr, 298–530 K, Ea = −7.8 kJ/mol"),
+}
+#: The same paper's direct Br + RH measurements (whole molecule): (A cm³ molecule⁻¹ s⁻¹, H, Ea kJ/mol,
+#: range K). Not used by the model: they are the independent check of the Ea construction above.
+BR_FORWARD_FITS: dict[str, tuple[float, int, float, tuple[float, float]]] = {
+    "ethane": (2.35e-10, 6, 53.3, (473.0, 621.0)),
+    "propane": (8.78e-11, 8, 36.0, (476.0, 667.0)),
+    "isobutane": (1.61e-10, 10, 28.8, (423.0, 621.0)),
+}
+#: A per H of a primary C–H: Br + C2H6, 2.35e-10 for 6 H (same paper); sets only the absolute scale.
+BR_A_PER_H = Value(2.35e-10 / 6, "measured", _SP + ": Br + C2H6, A = 2.35e-10 for 6 H; cancels in every product ratio")
+BR_RANGE_K = (298.0, 536.0)  # the 127 °C ratios and the reverse kinetics (297–536 K)
+
+#: Evans–Polanyi slope for saturated C–H without data of their own toward Br· (cyclopropyl; the
+#: bicyclic classes below when no distribution covers them): the abstraction is endothermic by
+#: 9–18 kcal/mol, so the transition state is late and the barrier follows most of any further change
+#: of ΔH, but the slope must stay below 1 (a barrier cannot grow faster than the endothermicity).
+BEP_ALPHA_SATURATED_BR = Value(
+    0.9, "estimate",
+    "late transition state of an endothermic abstraction (Hammond), bounded below 1; value chosen (estimate)",
 )
-BR_EA_PRIMARY = Value(
-    13.5, "estimate", "Br + C2H6 activation energy ≈ 13–14 kcal/mol (NIST kinetics database, from memory); cancels in ratios"
-)
-BR_RANGE_K = (298.0, 473.0)  # where liquid-phase ratios are in common use (common practice)
 
 # ---------------------------------------------------------------------------
-# Bell–Evans–Polanyi transfer coefficients α: ΔEa = α·ΔH for sites that have
-# no measurement of their own (benzylic/allylic/propargylic toward Br·;
-# methane and cyclopropyl C–H toward both radicals).
+# Benzylic and allylic C–H toward Br·. The primary benzylic site is placed by
+# an Evans–Polanyi slope from the primary alkyl site. Within the benzylic
+# series the degree matters far less than in alkanes (the radical is already
+# delocalised): per-H relative rates toluene : ethylbenzene : cumene
+# ≈ 1 : 17 : 37 toward Br· (Russell & DeBoer, J. Am. Chem. Soc. 1963, 85,
+# 3136, photobromination of alkylbenzenes; values, temperature (≈ 40 °C) and
+# pages from memory, not re-checked). Equal A per H within the series is
+# assumed, so each factor becomes an activation-energy difference at that
+# temperature (estimate). Allylic and propargylic sites take the same
+# factors (estimate: no competitive alkene data used).
 # ---------------------------------------------------------------------------
 BEP_ALPHA_DELOCALISED_BR = Value(
     0.5,
@@ -157,13 +248,14 @@ BEP_ALPHA_DELOCALISED_BR = Value(
     "chosen so Ea(Br + toluene) − Ea(Br + ethane) ≈ −5.7 kcal/mol, in line with the "
     "≈ −6 kcal/mol of gas-phase Br· data (NIST kinetics database, from memory)",
 )
-#: α for saturated sites is fitted here to the measured anchors of each radical
-#: (see ``engine.rates``); it extrapolates the alkyl series to methane and
-#: cyclopropane C–H, which are stronger bonds.
-BEP_NOTE_ALKYL = (
-    "α fitted by least squares to the primary/secondary/tertiary anchors of the same radical "
-    "against their C–H bond enthalpies (estimate)"
-)
+_RD = ("Russell & DeBoer, J. Am. Chem. Soc. 1963, 85, 3136: per-H toluene : ethylbenzene : cumene "
+       "≈ 1 : 17 : 37 toward Br· (from memory, not re-checked)")
+BR_BENZYLIC_T_K = 40.0 + KELVIN
+BR_BENZYLIC_RATIOS: dict[str, Value] = {
+    "primary": Value(1.0, "measured", _RD),
+    "secondary": Value(17.0, "measured", _RD),
+    "tertiary": Value(37.0, "measured", _RD),
+}
 
 # ---------------------------------------------------------------------------
 # Cl· + methane, for completeness (a one-product substrate; absolute k only).
@@ -241,9 +333,43 @@ BDE_BRIDGEHEAD = Value(
     "(from memory; one value for all small bicycles is itself an estimate)",
 )
 NORBORNANE_CL2_NOTE = (
-    "norbornane + Cl2 chlorinates mainly at C2, mostly exo; bridgehead C1 chloride is minor "
-    "(from memory)"
+    "norbornane + Cl2 chlorinates almost only at C2, exo more than endo; 7- and bridgehead C1 chlorides "
+    "are minor (from memory; engine.parameters.NORBORNANE_CL2)"
 )
+
+# ---------------------------------------------------------------------------
+# Bicyclo[2.2.1] skeletons (norbornane): three site classes of their own.
+# C2/C3/C5/C6 ("norbornyl-2") give a 2-norbornyl radical that takes the
+# halogen mostly from the exo face; C7 ("norbornyl-7") gives a radical whose
+# C1–C7–C4 angle (≈ 94°) resists planarisation; C1/C4 are bridgeheads.
+# Published: norbornane + Cl2 (liquid, near room temperature) gives the
+# 2-chloride almost exclusively, exo over endo (Kooyman & Vegter, Tetrahedron
+# 1958, 4, 382; Russell & Hendry on norbornane chlorination — the split below
+# is from memory, not re-checked: 2-Cl 96 %, 7-Cl 3 %, 1-Cl 1 %).
+# Per-H factors relative to an open-chain C–H of the same degree follow, with
+# the 2-position H taken as ordinary (factor 1, an assumption): C7 and the
+# bridgehead get factors from that split, put into Ea at 25 °C with equal A
+# (estimate).
+# ---------------------------------------------------------------------------
+_KV = ("norbornane + Cl2, liquid, ≈ 25 °C: 2-Cl 96 %, 7-Cl 3 %, 1-Cl 1 % (Kooyman & Vegter, Tetrahedron 1958, "
+       "4, 382; Russell & Hendry; split from memory, not re-checked)")
+NORBORNANE_CL2: dict[str, Value] = {
+    "norbornyl-2": Value(96.0, "measured", _KV),
+    "norbornyl-7": Value(3.0, "measured", _KV),
+    "bridgehead": Value(1.0, "measured", _KV),
+}
+NORBORNANE_H = {"norbornyl-2": 8, "norbornyl-7": 2, "bridgehead": 2}
+NORBORNANE_T_K = 25.0 + KELVIN
+#: Exo share of the 2-halide: set by which face of the 2-norbornyl radical the halogen donor meets,
+#: so a property of the radical and the donor, not of the H abstracted.
+EXO_FRACTION: dict[str, Value] = {
+    "cl": Value(0.70, "measured", "2-norbornyl radical + Cl2: exo : endo ≈ 70 : 30 (Kooyman & Vegter 1958; from memory)"),
+    "br": Value(0.95, "estimate", "2-norbornyl radical + Br2: exo ≥ 95 % (common practice: the larger donor is more "
+                "exo-selective; from memory)"),
+}
+#: C7–H of norbornane toward Br· (no distribution used): the 7-norbornyl radical lies ≈ 3 kcal/mol above a
+#: 2-norbornyl radical (from memory of computed radical stabilities; estimate), placed by BEP_ALPHA_SATURATED_BR.
+NORBORNYL7_EXTRA_BDE = Value(3.0, "estimate", "7-norbornyl vs 2-norbornyl radical ≈ +3 kcal/mol (from memory; estimate)")
 
 # ---------------------------------------------------------------------------
 # Alkenes under Cl2/Br2: addition to C=C competes at ordinary temperatures;
@@ -318,7 +444,14 @@ NBS_SUBSTITUENT_FACTOR = Value(
     (100.0 - NBS_OCTENE_SPLIT.value) / NBS_OCTENE_SPLIT.value,
     "estimate",
     "F = 83/17 per extra alkyl substituent on the product C=C, from the 1-octene split; one factor for every "
-    "alkene, conjugation not credited (estimate)",
+    "alkene (estimate); a product C=C conjugated with an arene or another C=C counts one substituent more "
+    "(NBS_CONJUGATION_SUBSTITUENTS)",
+)
+#: A product C=C conjugated with an arene or another C=C: worth this many extra substituents in the terminus
+#: weight. Hydrogenation enthalpies put styrene-type conjugation at ≈ 2 kcal/mol, about what one more alkyl
+#: substituent on a C=C is worth (from memory; estimate).
+NBS_CONJUGATION_SUBSTITUENTS = Value(
+    1.0, "estimate", "conjugation of the product C=C ≈ one alkyl substituent (≈ 2 kcal/mol; from memory; estimate)"
 )
 
 # ---------------------------------------------------------------------------

@@ -2,6 +2,10 @@
 
 The measured anchors live in :mod:`engine.parameters`; this module derives
 the rest (documented per class) and exposes vectorised look-ups.
+
+Three tables: Cl· in the gas phase, Cl· in the liquid (the neat hydrocarbon,
+which is what a preparative chlorination is), and Br·. Every entry of every
+table is Arrhenius, which :mod:`engine.contenders` relies on.
 """
 
 from __future__ import annotations
@@ -16,6 +20,7 @@ from engine import parameters as P
 from engine.parameters import Arrhenius
 from engine.site_classes import (
     ABSTRACTABLE,
+    BICYCLIC,
     DEGREES,
     DELOCALISED,
     SITE_CLASSES,
@@ -24,38 +29,35 @@ from engine.site_classes import (
 )
 
 RADICALS = ("cl", "br")
+#: Phases of a Cl2 chlorination (Br· has one table: its ratios are liquid-phase data).
+PHASES = ("gas", "liquid")
+#: Every table a condition can select: (radical, phase).
+TABLES: tuple[tuple[str, str], ...] = (("cl", "gas"), ("cl", "liquid"), ("br", "liquid"))
+_RT = P.R_KCAL
 
 
-def _fit_alpha(anchors: dict[str, Arrhenius]) -> float:
-    """Least-squares slope of Ea against C–H BDE over the alkyl anchors."""
-    xs = [P.BDE[d].value for d in DEGREES]
-    ys = [anchors[d].ea for d in DEGREES]
-    mx, my = sum(xs) / 3, sum(ys) / 3
-    return sum((x - mx) * (y - my) for x, y in zip(xs, ys)) / sum((x - mx) ** 2 for x in xs)
+def _k(p: Arrhenius, temp_k: float) -> float:
+    return p.a_per_h * math.exp(-p.ea / (_RT * temp_k))
 
 
-def _br_anchors() -> dict[str, Arrhenius]:
-    rt = P.R_KCAL * P.BR_REFERENCE_T_K
-    return {
-        d: Arrhenius(
-            P.BR_A_PER_H.value,
-            P.BR_EA_PRIMARY.value - rt * math.log(P.BR_RATIOS[d].value),
-            "textbook",
-            P.BR_RATIOS[d].source + "; equal A per H assumed, so ΔEa = −RT·ln(ratio) at 400 K",
-        )
-        for d in DEGREES
-    }
+def _times(base: Arrhenius, factor: float, temp_k: float, basis: str, source: str) -> Arrhenius:
+    """``base`` made ``factor`` times faster at ``temp_k`` through Ea alone (equal A)."""
+    return Arrhenius(base.a_per_h, base.ea - _RT * temp_k * math.log(factor), basis, source)  # type: ignore[arg-type]
 
 
-def _cl_benzylic_alpha() -> float:
-    """α for π-delocalised sites toward Cl·, from the ethylbenzene α/β split."""
-    t = P.CL_ETHYLBENZENE_T_K
-    alpha_pct = P.CL_ETHYLBENZENE_ALPHA_PCT.value
-    per_h_ratio = (alpha_pct / 2) / ((100 - alpha_pct) / 3)
-    prim, sec = P.CL_ANCHORS["primary"], P.CL_ANCHORS["secondary"]
-    k_benzylic = per_h_ratio * prim.a_per_h * math.exp(-prim.ea / (P.R_KCAL * t))
-    ea_benzylic = -P.R_KCAL * t * math.log(k_benzylic / sec.a_per_h)
-    return (ea_benzylic - sec.ea) / delocalisation_shift("benzylic")
+def _a_times(base: Arrhenius, factor: float, basis: str, source: str) -> Arrhenius:
+    """``base`` made ``factor`` times faster at every temperature (through A alone)."""
+    return Arrhenius(base.a_per_h * factor, base.ea, basis, source)  # type: ignore[arg-type]
+
+
+def _two_point(prim: Arrhenius, r1: float, t1: float, r2: float, t2: float, source: str) -> Arrhenius:
+    """Arrhenius parameters whose ratio to ``prim`` is r1 at t1 and r2 at t2."""
+    dea = -_RT * math.log(r1 / r2) / (1.0 / t1 - 1.0 / t2)
+    a = prim.a_per_h * r2 * math.exp(dea / (_RT * t2))
+    return Arrhenius(a, prim.ea + dea, "measured", source)
+
+
+# --- Cl· -------------------------------------------------------------------
 
 
 def _cl_cyclopropyl() -> Arrhenius:
@@ -63,7 +65,7 @@ def _cl_cyclopropyl() -> Arrhenius:
     k = P.CL_CYCLOPROPANE_K298
     a = P.CL_ANCHORS["secondary"].a_per_h
     k_per_h = k.value / P.CL_CYCLOPROPANE_H
-    ea = P.R_KCAL * P.CL_CYCLOPROPANE_T_K * math.log(a / k_per_h)
+    ea = _RT * P.CL_CYCLOPROPANE_T_K * math.log(a / k_per_h)
     return Arrhenius(
         a, ea, "measured",
         f"{k.source}; per H {k_per_h:.2e}; A per H taken from the secondary anchor, so Ea = {ea:.2f} kcal/mol "
@@ -71,18 +73,195 @@ def _cl_cyclopropyl() -> Arrhenius:
     )
 
 
+def _cl_gas_alkyl() -> dict[str, Arrhenius]:
+    """Methane, primary, secondary, tertiary and cyclopropyl C–H toward Cl· in the gas phase."""
+    ss = P.CL_ANCHORS
+    prim = ss["primary"]
+    out = {"primary": prim}
+    for degree in ("secondary", "tertiary"):
+        r_low = _k(ss[degree], P.CL_LOW_T_K) / _k(prim, P.CL_LOW_T_K)
+        hot = P.CL_VAPOUR_RATIOS[degree]
+        out[degree] = _two_point(
+            prim, r_low, P.CL_LOW_T_K, hot.value, P.CL_VAPOUR_T_K,
+            f"through {ss[degree].source} (per H {r_low:.2f} × primary at 298 K) and {hot.source}",
+        )
+    out["methane"] = P.CL_METHANE
+    out["cyclopropyl"] = _cl_cyclopropyl()
+    return out
+
+
+def neat_liquid_exponent() -> float:
+    """Factor on gas-phase Cl· log-selectivities (vs primary) that gives the neat liquid: Russell's 2,3-dimethylbutane."""
+    gas = _cl_gas_alkyl()
+    t = P.RUSSELL_T_K
+    return math.log(P.RUSSELL_NEAT.value) / math.log(_k(gas["tertiary"], t) / _k(gas["primary"], t))
+
+
+def _scaled(params: dict[str, Arrhenius], s: float, source: str) -> dict[str, Arrhenius]:
+    """Every log-selectivity vs primary multiplied by ``s`` (ln A and Ea differences scale alike)."""
+    prim = params["primary"]
+    out = {}
+    for site, p in params.items():
+        a = math.exp(math.log(prim.a_per_h) + s * (math.log(p.a_per_h) - math.log(prim.a_per_h)))
+        ea = prim.ea + s * (p.ea - prim.ea)
+        out[site] = Arrhenius(a, ea, p.basis if site == "primary" else "estimate",
+                              p.source if site == "primary" else f"{p.source}; {source}")
+    return out
+
+
+def _cl_delocalised(table: dict[str, Arrhenius], phase: str) -> dict[str, Arrhenius]:
+    """Benzylic (and, by the same factors, allylic and propargylic) C–H toward Cl·."""
+    out = {}
+    if phase == "gas":
+        tol = P.CL_TOLUENE_K298
+        g = tol.value / P.CL_TOLUENE_H / _k(table["primary"], P.CL_LOW_T_K)
+        for kind in DELOCALISED:
+            for degree in DEGREES:
+                out[f"{kind}-{degree}"] = _a_times(
+                    table[degree], g, "measured" if (kind, degree) == ("benzylic", "primary") else "estimate",
+                    f"{degree} alkyl × {g:.2f} in A (benzylic excess at 298 K from {tol.source}; "
+                    "temperature-independent, and carried over to other degrees"
+                    + ("" if kind == "benzylic" else " and to the " + kind + " class") + ": estimate)",
+                )
+        return out
+    t = P.CL_ETHYLBENZENE_T_K
+    pct = P.CL_ETHYLBENZENE_ALPHA_PCT.value
+    per_h = (pct / 2) / ((100 - pct) / 3)
+    dea = P.CL_ETHYLBENZENE_DEA.value
+    prim = table["primary"]
+    a = prim.a_per_h * per_h * math.exp(dea / (_RT * t))
+    sec = Arrhenius(a, prim.ea + dea, "measured",
+                    f"{P.CL_ETHYLBENZENE_ALPHA_PCT.source}, i.e. {per_h:.1f} × the β CH3 per H at 25 °C; "
+                    f"{P.CL_ETHYLBENZENE_DEA.source}")
+    for kind in DELOCALISED:
+        for degree in DEGREES:
+            if (kind, degree) == ("benzylic", "secondary"):
+                out[f"{kind}-{degree}"] = sec
+                continue
+            base = table[degree]
+            ratio_a = base.a_per_h / table["secondary"].a_per_h
+            out[f"{kind}-{degree}"] = Arrhenius(
+                sec.a_per_h * ratio_a, sec.ea + base.ea - table["secondary"].ea, "estimate",
+                f"benzylic-secondary (ethylbenzene α, liquid) × the liquid {degree}/secondary alkyl ratio"
+                + ("" if kind == "benzylic" else f", carried over to the {kind} class") + " (additivity estimate)",
+            )
+    return out
+
+
+def _bicyclic(table: dict[str, Arrhenius], radical: str) -> dict[str, Arrhenius]:
+    """Bridgehead and the norbornane positions (C2-type, C7) toward one radical."""
+    out = {}
+    src = P.NORBORNANE_CL2
+    h = P.NORBORNANE_H
+    per_h_c2 = src["norbornyl-2"].value / h["norbornyl-2"]
+    for degree in ("secondary", "tertiary"):
+        out[f"norbornyl-2-{degree}"] = Arrhenius(
+            table[degree].a_per_h, table[degree].ea, table[degree].basis,
+            f"as an open-chain {degree} C–H (assumption: the 2-norbornyl radical is unstrained); "
+            f"the exo/endo split is engine.rates.exo_fraction",
+        )
+    if radical == "cl":
+        t = P.NORBORNANE_T_K
+        f7 = (src["norbornyl-7"].value / h["norbornyl-7"]) / per_h_c2
+        fb = (src["bridgehead"].value / h["bridgehead"]) / per_h_c2
+        for degree in ("secondary", "tertiary"):
+            out[f"norbornyl-7-{degree}"] = _times(
+                table[degree], f7, t, "estimate",
+                f"{f7:.3f} × an open-chain {degree} C–H per H at 25 °C, from {src['norbornyl-7'].source} "
+                "(the 2-position taken as ordinary; equal A: estimate)",
+            )
+        out["bridgehead"] = _times(
+            table["secondary"], fb, t, "estimate",
+            f"{fb:.3f} × a secondary C–H per H at 25 °C, from {src['bridgehead'].source} (equal A: estimate; "
+            "one factor for every small bicycle)",
+        )
+        return out
+    alpha = P.BEP_ALPHA_SATURATED_BR.value
+    for degree in ("secondary", "tertiary"):
+        gap = P.NORBORNYL7_EXTRA_BDE.value
+        b = table[degree]
+        out[f"norbornyl-7-{degree}"] = Arrhenius(
+            b.a_per_h, b.ea + alpha * gap, "estimate",
+            f"BEP from {degree}, α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source}), ΔBDE +{gap:g} "
+            f"({P.NORBORNYL7_EXTRA_BDE.source})",
+        )
+    gap = P.BDE_BRIDGEHEAD.value - P.BDE["tertiary"].value
+    b = table["tertiary"]
+    out["bridgehead"] = Arrhenius(
+        b.a_per_h, b.ea + alpha * gap, "estimate",
+        f"BEP from tertiary with ΔBDE {gap:+.1f} kcal/mol (bridgehead bond enthalpy is an estimate), "
+        f"α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source})",
+    )
+    return out
+
+
+# --- Br· -------------------------------------------------------------------
+
+
+def br_activation_energy(site: str) -> float:
+    """Ea of Br· + R–H, kcal/mol, for methane/primary/secondary/tertiary: ΔH + Ea(R· + HBr)."""
+    return site_bde(site).value - P.BDE_HX["br"].value + P.BR_REVERSE_EA[site].value
+
+
+def _br_table() -> dict[str, Arrhenius]:
+    t_ref = P.BR_REFERENCE_T_K
+    ea = {d: br_activation_energy(d) for d in ("methane", *DEGREES)}
+    a_p = P.BR_A_PER_H.value
+    out: dict[str, Arrhenius] = {}
+    for d in DEGREES:
+        ratio = P.BR_RATIOS[d].value
+        a = a_p * ratio * math.exp((ea[d] - ea["primary"]) / (_RT * t_ref))
+        out[d] = Arrhenius(
+            a, ea[d], "textbook",
+            f"Ea = ΔH + Ea(R· + HBr) = {ea[d]:.2f} kcal/mol ({P.BR_REVERSE_EA[d].source}); "
+            f"A per H set so the per-H ratio is {P.BR_RATIOS[d].source}",
+        )
+    out["methane"] = Arrhenius(
+        a_p, ea["methane"], "estimate",
+        f"Ea = ΔH + Ea(CH3 + HBr) = {ea['methane']:.2f} kcal/mol ({P.BR_REVERSE_EA['methane'].source}); "
+        "A per H taken as the primary one (estimate)",
+    )
+    alpha = P.BEP_ALPHA_SATURATED_BR.value
+    gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
+    sec = out["secondary"]
+    out["cyclopropyl"] = Arrhenius(
+        sec.a_per_h, sec.ea + alpha * gap, "estimate",
+        f"BEP from secondary with ΔBDE {gap:+.1f} kcal/mol, α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source})",
+    )
+    alpha_d = P.BEP_ALPHA_DELOCALISED_BR.value
+    t_b = P.BR_BENZYLIC_T_K
+    prim = out["primary"]
+    for kind in DELOCALISED:
+        shift = delocalisation_shift(kind)
+        first = Arrhenius(
+            prim.a_per_h, prim.ea + alpha_d * shift, "estimate",
+            f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol, α = {alpha_d} ({P.BEP_ALPHA_DELOCALISED_BR.source})",
+        )
+        for degree in DEGREES:
+            factor = P.BR_BENZYLIC_RATIOS[degree]
+            out[f"{kind}-{degree}"] = first if degree == "primary" else _times(
+                first, factor.value, t_b, "estimate",
+                f"{kind}-primary × {factor.value:g} per H at {t_b - P.KELVIN:.0f} °C ({factor.source}"
+                + ("" if kind == "benzylic" else f"; carried over to the {kind} class") + "; equal A: estimate)",
+            )
+    shift = site_bde("conjugated").value - P.BDE["primary"].value
+    out["conjugated"] = Arrhenius(
+        prim.a_per_h, prim.ea + alpha_d * shift, "estimate",
+        f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol ({site_bde('conjugated').source}), α = {alpha_d}",
+    )
+    return out
+
+
 @dataclass(frozen=True)
 class RateTable:
-    """Arrhenius parameters of every site class toward one radical."""
+    """Arrhenius parameters of every site class toward one radical in one phase."""
 
     radical: str
     """'cl' or 'br'."""
+    phase: str
+    """'gas' or 'liquid' (Br·: 'liquid', its only table)."""
     params: dict[str, Arrhenius]
     """Site class → per-H Arrhenius parameters (abstractable classes only)."""
-    alpha_alkyl: float
-    """BEP slope fitted on the alkyl anchors, used for bridgehead (and methane, cyclopropyl toward Br·)."""
-    alpha_delocalised: float
-    """BEP slope used for allylic, benzylic and propargylic sites."""
     valid_k: tuple[float, float]
     """Temperature range (K) the underlying data cover."""
 
@@ -90,69 +269,52 @@ class RateTable:
         """k per H at ``temp_k`` for every class, indexed by site code (0 when not abstracted)."""
         out = np.zeros(len(SITE_CLASSES))
         for i, site in enumerate(ABSTRACTABLE):
-            p = self.params[site]
-            out[i] = p.a_per_h * math.exp(-p.ea / (P.R_KCAL * temp_k))
+            out[i] = _k(self.params[site], temp_k)
         return out
 
 
-def _derive(radical: str) -> RateTable:
-    if radical == "cl":
-        anchors = dict(P.CL_ANCHORS)
-        alpha_deloc = _cl_benzylic_alpha()
-        deloc_note = (
-            f"α = {alpha_deloc:.3f} from the ethylbenzene α/β split with the secondary A factor "
-            "(estimate; benzylic-secondary reproduces it by construction)"
-        )
-        valid = P.CL_RANGE_K
-    else:
-        anchors = _br_anchors()
-        alpha_deloc = P.BEP_ALPHA_DELOCALISED_BR.value
-        deloc_note = f"α = {alpha_deloc} ({P.BEP_ALPHA_DELOCALISED_BR.source})"
-        valid = P.BR_RANGE_K
-    alpha_alkyl = _fit_alpha(anchors)
-    params: dict[str, Arrhenius] = dict(anchors)
-
-    def shifted(base: str, bde_gap: float, alpha: float, note: str) -> Arrhenius:
-        b = anchors[base]
-        return Arrhenius(b.a_per_h, b.ea + alpha * bde_gap, "estimate", note)
-
-    if radical == "cl":
-        params["methane"] = P.CL_METHANE
-    else:
-        gap = P.BDE["methane"].value - P.BDE["primary"].value
-        params["methane"] = shifted(
-            "primary", gap, alpha_alkyl, f"BEP from primary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
-        )
-    if radical == "cl":
-        params["cyclopropyl"] = _cl_cyclopropyl()
-    else:
-        gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
-        params["cyclopropyl"] = shifted(
-            "secondary", gap, alpha_alkyl, f"BEP from secondary, α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}"
-        )
-    gap = P.BDE_BRIDGEHEAD.value - P.BDE["tertiary"].value
-    params["bridgehead"] = shifted(
-        "tertiary", gap, alpha_alkyl,
-        f"BEP from tertiary with ΔBDE {gap:+.1f} kcal/mol (bridgehead bond enthalpy is an estimate), "
-        f"α = {alpha_alkyl:.2f}: {P.BEP_NOTE_ALKYL}",
-    )
-    for kind in DELOCALISED:
-        for degree in DEGREES:
-            gap = site_bde(f"{kind}-{degree}").value - P.BDE[degree].value
-            params[f"{kind}-{degree}"] = shifted(
-                degree, gap, alpha_deloc, f"BEP from {degree} with ΔBDE {gap:+.1f} kcal/mol, {deloc_note}"
-            )
-    return RateTable(radical, params, alpha_alkyl, alpha_deloc, valid)
+def _derive(radical: str, phase: str) -> RateTable:
+    if radical == "br":
+        params = _br_table()
+        params |= _bicyclic(params, "br")
+        return RateTable("br", "liquid", params, P.BR_RANGE_K)
+    params = _cl_gas_alkyl()
+    valid = P.CL_RANGE_K
+    if phase == "liquid":
+        s = neat_liquid_exponent()
+        params = _scaled(params, s, f"× {s:.3f} on log-selectivities for the neat liquid ({P.RUSSELL_NEAT.source})")
+        lo, hi = P.CL_LIQUID_BENZYLIC_RANGE_K
+        valid = (max(lo, valid[0]), hi)
+    params |= _cl_delocalised(params, phase)
+    params |= _bicyclic(params, "cl")
+    b = params["benzylic-primary"]
+    params["conjugated"] = Arrhenius(b.a_per_h, b.ea, "estimate",
+                                     "as a primary benzylic C–H (estimate; Cl· barely tells radicals apart)")
+    missing = set(ABSTRACTABLE) - set(params)
+    assert not missing, missing  # every class has a rate: a new class must be derived here
+    return RateTable("cl", phase, params, valid)
 
 
 @cache
-def rate_table(radical: str) -> RateTable:
-    """The (cached) rate table for 'cl' or 'br'."""
+def rate_table(radical: str, phase: str = "gas") -> RateTable:
+    """The (cached) rate table for 'cl' or 'br'; ``phase`` 'gas' or 'liquid' selects the Cl· table."""
     if radical not in RADICALS:
         raise ValueError(f"unknown radical {radical!r}; expected one of {', '.join(RADICALS)}")
-    return _derive(radical)
+    if phase not in PHASES:
+        raise ValueError(f"unknown phase {phase!r}; expected one of {', '.join(PHASES)}")
+    return _derive(radical, "liquid" if radical == "br" else phase)
+
+
+def exo_fraction(site: str, radical: str) -> float | None:
+    """Share of the exo 2-halide among the 2-halides of a norbornane C2-type site; None for other sites."""
+    if not site.startswith("norbornyl-2-"):
+        return None
+    return P.EXO_FRACTION[radical].value
 
 
 def enthalpy_of_abstraction(site: str, radical: str) -> float:
     """ΔH of R–H + X· → R· + H–X, kcal/mol (negative = exothermic)."""
     return site_bde(site).value - P.BDE_HX[radical].value
+
+
+__all__ = ["BICYCLIC", "PHASES", "RADICALS", "RateTable", "TABLES", "exo_fraction", "rate_table"]

@@ -28,6 +28,26 @@ _SITE_SMARTS = {
     "propargylic": "[CX4;!H0]-[A]#*",
 }
 _SITE_PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SITE_SMARTS.items()}
+#: A saturated bicyclo[2.2.1] skeleton; pattern atoms 0, 1, 3, 4 are C2-type positions, 6 is C7
+#: (atoms 2 and 5 are the bridgeheads, which engine.special_sites finds on its own).
+_NORBORNANE = Chem.MolFromSmarts("[CX4]1[CX4][CX4]2[CX4][CX4][CX4]1[CX4]2")
+_NORBORNANE_ROLE = {0: "2", 1: "2", 3: "2", 4: "2", 6: "7"}
+
+
+def norbornane_positions(mol: Chem.Mol) -> dict[int, str]:
+    """Atom index → '2' or '7' for every carbon at a C2-type or C7 position of a saturated norbornane skeleton.
+
+    An atom met in both roles (fused or caged skeletons) counts as '7', the slower site.
+    """
+    out: dict[int, str] = {}
+    if mol.GetRingInfo().NumRings() < 2:
+        return out
+    for match in mol.GetSubstructMatches(_NORBORNANE, uniquify=False, maxMatches=10_000):
+        for pos, role in _NORBORNANE_ROLE.items():
+            idx = match[pos]
+            if out.get(idx) != "7":
+                out[idx] = role
+    return out
 
 
 def _matched(mol: Chem.Mol, name: str) -> set[int]:
@@ -43,10 +63,13 @@ def site_classes(mol: Chem.Mol, atoms: Iterable[int], bridgeheads: frozenset[int
     bridgehead (a small bicycle's bridgehead cannot planarise, so it overrides
     the π classes too); then allylic, benzylic or propargylic by degree —
     where several π systems are adjacent the weakest C–H names it, allyl
-    (88.8) < benzyl (89.7) < propargyl (≈90 kcal/mol); else the plain degree.
+    (88.8) < benzyl (89.7) < propargyl (≈90 kcal/mol); then the C7 and C2-type
+    positions of a saturated norbornane skeleton (:func:`norbornane_positions`),
+    by degree; else the plain degree.
     The tests compare this with a per-atom walk over the same rules.
     """
     sets = {name: _matched(mol, name) for name in _SITE_SMARTS}
+    bicyclic = norbornane_positions(mol)
     out = []
     for idx in atoms:
         if idx in sets["aryl"]:
@@ -66,7 +89,12 @@ def site_classes(mol: Chem.Mol, atoms: Iterable[int], bridgeheads: frozenset[int
             else:
                 kind = next((k for k in ("allylic", "benzylic", "propargylic") if idx in sets[k]), None)
                 name = _DEGREE_NAMES[degree]
-                out.append(f"{kind}-{name}" if kind else name)
+                if kind:
+                    out.append(f"{kind}-{name}")
+                elif idx in bicyclic:
+                    out.append(f"norbornyl-{bicyclic[idx]}-{name}")
+                else:
+                    out.append(name)
     return out
 
 

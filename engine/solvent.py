@@ -12,13 +12,18 @@ Model (an estimate; the assumptions are the whole of it):
 2. Scaling. A solvent multiplies every Cl· log-selectivity by one factor ``s``:
    k'(site) = k(primary) · (k(site) / k(primary))^s, i.e. the effective
    activation difference ΔEa(site) = −RT·ln(k(site)/k(primary)) is scaled by
-   ``s``. ``s`` is fixed so that the model's own tertiary : primary ratio at
-   25 °C equals the interpolated measured ratio; the same ``s`` is applied at
-   every temperature and to every site class (secondary, benzylic …), which
-   Russell's data do not test.
-3. ``none`` leaves the model as it is (its constants are gas-phase fits);
-   ``benzene``/``cs2`` at 0 M means the neat liquid hydrocarbon of Russell's
-   series, whose ratio (≈ 4) is a little below the gas-phase model's (≈ 5).
+   ``s``. ``s`` is fixed so that the neat-liquid table's tertiary : primary
+   ratio at 25 °C (Russell's neat point, ≈ 4, by construction of
+   :func:`engine.rates.neat_liquid_exponent`) becomes the interpolated measured
+   ratio; the same ``s`` is applied at every temperature and to every alkyl
+   site class (secondary, bicyclic …), which Russell's data do not test.
+   Benzylic, allylic and propargylic classes keep their excess over the alkyl
+   class of the same degree unscaled: the liquid benzylic data were measured
+   on neat alkylbenzenes, which are an aromatic medium already (an estimate;
+   without it ethylbenzene in 8 M benzene came out 99.7 % α).
+3. ``none`` leaves the table of the chosen phase as it is (engine.conditions:
+   the neat liquid by default, or the gas phase); ``benzene``/``cs2`` at 0 M is
+   the neat liquid too, so s = 1 there.
 """
 
 from __future__ import annotations
@@ -29,7 +34,7 @@ from functools import cache
 import numpy as np
 
 from engine import parameters as P
-from engine.site_classes import SITE_CLASSES
+from engine.site_classes import SITE_CLASSES, SOLVENT_BASE
 
 SOLVENTS: tuple[str, ...] = ("none", "benzene", "cs2")
 _PRIMARY = SITE_CLASSES.index("primary")
@@ -75,7 +80,7 @@ def extrapolated(solvent: str, molar: float) -> bool:
 def _model_ratio_25c() -> float:
     from engine.rates import rate_table
 
-    k = rate_table("cl").per_h(P.RUSSELL_T_K)
+    k = rate_table("cl", "liquid").per_h(P.RUSSELL_T_K)
     return float(k[_TERTIARY] / k[_PRIMARY])
 
 
@@ -86,12 +91,20 @@ def selectivity_exponent(solvent: str, molar: float) -> float:
     return math.log(measured_ratio(solvent, molar)) / math.log(_model_ratio_25c())
 
 
+_BASE = np.array(SOLVENT_BASE)
+
+
 def scale_rates(k: np.ndarray, s: float) -> np.ndarray:
-    """Per-H rates by site code with every log-selectivity vs primary multiplied by ``s``."""
+    """Per-H rates by site code with each class's alkyl log-selectivity vs primary multiplied by ``s``.
+
+    A π-activated class keeps its excess over the alkyl class of the same degree
+    (:data:`engine.site_classes.SOLVENT_BASE`): k' = k_p · (k_base / k_p)^s · k / k_base.
+    """
     if s == 1.0:
         return k
     prim = k[_PRIMARY]
     out = np.zeros_like(k)
     pos = k > 0
-    out[pos] = prim * (k[pos] / prim) ** s
+    base = k[_BASE]
+    out[pos] = prim * (base[pos] / prim) ** s * (k[pos] / base[pos])
     return out

@@ -73,6 +73,15 @@ def _add_solvent_option(p: argparse.ArgumentParser) -> None:
     )
 
 
+def _add_phase_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--phase",
+        choices=["gas", "liquid", "solution"],
+        help="Cl2 phase: liquid (the neat hydrocarbon, default), gas (vapour-phase kinetics) or solution "
+        "(needs --solvent, where offered)",
+    )
+
+
 def _reagent_arg(text: str) -> str:
     """Reagent names are checked later, so F2/I2 get their reasoned refusal rather than a usage error."""
     return text.strip().lower()
@@ -93,6 +102,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     _add_condition_options(ex, "the reagents given")
     _add_solvent_option(ex)
+    _add_phase_option(ex)
     ex.add_argument("--ratio", type=float, metavar="S:X",
                     help="polyhalogenation planner: substrate : halogen charged, mol/mol, all halogen consumed "
                     "(default 1)")
@@ -108,6 +118,7 @@ def build_parser() -> argparse.ArgumentParser:
     sc.add_argument("-o", "--output", required=True, help="CSV, TSV, Parquet or SDF (by extension)")
     _add_condition_options(sc, "both reagents")
     _add_solvent_option(sc)
+    _add_phase_option(sc)
     _add_library_options(sc)
     _add_run_options(sc)
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
@@ -116,6 +127,7 @@ def build_parser() -> argparse.ArgumentParser:
     rp.add_argument("input", help="a library as for screen (a screen result re-reads as a library)")
     rp.add_argument("-o", "--output", required=True, help="the report file (.html)")
     _add_condition_options(rp, "both reagents")
+    _add_phase_option(rp)
     _add_library_options(rp)
     rp.add_argument("--only", action="append", choices=["single", "br-selective", "mixture", "inert"],
                     help="report only rows with this verdict (repeatable; default: every row)")
@@ -149,7 +161,7 @@ def _add_library_options(p: argparse.ArgumentParser) -> None:
 def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
     from engine import Conditions
 
-    kwargs: dict[str, float] = {}
+    kwargs: dict[str, float | str] = {}
     for name, value in args.temp or ():
         for r in ([name] if name else reagents):
             kwargs[f"{r}_temp_c"] = value
@@ -158,6 +170,8 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
     solvent = getattr(args, "solvent", None)  # only explain and screen offer --solvent
     if solvent is not None:
         kwargs["cl2_solvent"], kwargs["cl2_solvent_molar"] = solvent
+    if getattr(args, "phase", None) is not None:
+        kwargs["cl2_phase"] = args.phase
     cond = Conditions(**kwargs)
     cond.validate()
     return cond

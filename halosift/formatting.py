@@ -27,7 +27,10 @@ def explanation_table(
     cond = result.conditions
     lines = [f"substrate  {result.canonical_smiles}"]
     def label(r: str) -> str:
-        solvent = f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if r == "cl2" and cond.cl2_solvent != "none" else ""
+        solvent = ""
+        if r == "cl2":
+            solvent = (f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if cond.cl2_solvent != "none"
+                       else " (gas phase)" if cond.cl2_phase == "gas" else " (neat liquid)")
         return f"{REAGENT_LABELS[r]} at {cond.temp_c(r):g} °C{solvent}"
 
     lines.append("conditions " + "; ".join(label(r) for r in reagents))
@@ -38,6 +41,10 @@ def explanation_table(
     rows = []
     for p in result.products:
         stereo = p.stereo if p.n_stereoisomers == 1 else f"{p.stereo} ({p.n_stereoisomers})"
+        # A norbornane 2-halide: its exo/endo split, per reagent shown (a rate-model property).
+        splits = [f"{p.exo_endo(r).removeprefix('exo:endo ')} {r}" for r in reagents if p.exo_endo(r)]
+        if splits:
+            stereo += "; exo:endo " + ", ".join(splits)
         rows.append(
             [
                 p.smiles,

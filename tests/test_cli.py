@@ -28,7 +28,7 @@ def test_explain_table(capsys: pytest.CaptureFixture) -> None:
 
 
 def test_explain_json(capsys: pytest.CaptureFixture) -> None:
-    assert main(["explain", "CCC", "--json"]) == 0
+    assert main(["explain", "CCC", "--json", "--phase", "gas"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert data["verdict"] == "br-selective"
     by_smiles = {p["smiles"]: p for p in data["products"]}
@@ -123,3 +123,17 @@ def test_whole_file_errors(tmp_path: Path) -> None:
         assert "\n" not in line and "Traceback" not in line, line
         assert expected in line, (expected, line)
         assert not (tmp_path / "o.csv").exists()
+
+
+def test_phase_option(capsys: pytest.CaptureFixture) -> None:
+    # --phase picks the Cl2 rate table: the neat liquid (default) is less selective than the gas phase here.
+    shares = {}
+    for phase in ("gas", "liquid"):
+        assert main(["explain", "CCC", "--json", "--phase", phase]) == 0
+        data = json.loads(capsys.readouterr().out)
+        assert data["conditions"]["cl2_phase"] == phase
+        shares[phase] = {p["smiles"]: p["pct"]["cl2"] for p in data["products"]}["CCCCl"]
+    assert shares["liquid"] > shares["gas"]
+    # solution without a solvent is refused in one line
+    assert main(["explain", "CCC", "--phase", "solution"]) == 2
+    assert "needs a solvent" in capsys.readouterr().err

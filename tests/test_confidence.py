@@ -21,9 +21,14 @@ def test_columns_documented() -> None:
 
 
 def test_known_cases() -> None:
-    result = engine.screen(pd.DataFrame({"smiles": SMILES}), use_cache=False).set_index("smiles")
-    # propane: Cl· sites measured (Sarzyński & Sztuba 2002), Br· ratios textbook (Morrison & Boyd) → textbook
+    gas = Conditions(cl2_phase="gas")
+    result = engine.screen(pd.DataFrame({"smiles": SMILES}), gas, use_cache=False).set_index("smiles")
+    # propane: gas-phase Cl· sites measured (Sarzyński & Sztuba 2002; Hass, McBee & Weber), Br· ratios
+    # textbook (Morrison & Boyd) → textbook
     assert result.loc["CCC", "confidence"] == "textbook"
+    # the neat-liquid default scales the gas-phase selectivities to one measured liquid ratio → estimate
+    neat = engine.screen(pd.DataFrame({"smiles": ["CCC"]}), use_cache=False)
+    assert neat["confidence"].iloc[0] == "estimate"
     # ethylbenzene: the benzylic constants are BEP estimates → estimate
     assert result.loc["CCc1ccccc1", "confidence"] == "estimate"
     # methane under Br· is a BEP extrapolation → estimate
@@ -68,5 +73,5 @@ def test_solvent_makes_cl2_estimate() -> None:
 
 def test_products_carry_bases() -> None:
     lib = engine.load_library(pd.DataFrame({"smiles": ["CCC"]}), use_cache=False)
-    prods = lib.products(0)
+    prods = lib.products(0, Conditions(cl2_phase="gas"))
     assert set(prods["cl2_basis"]) == {"measured"} and set(prods["br2_basis"]) == {"textbook"}

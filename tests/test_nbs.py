@@ -96,7 +96,7 @@ def test_serves_rule() -> None:
     s = engine.summarise(p, engine.Conditions())
     assert list(s["serves"]) == ["cl2", "br2", "br2", "", "", "cl2", "", ""]
     # Lower the threshold: the alkene is still never offered Cl2 or Br2, only NBS.
-    low = engine.summarise(p, engine.Conditions(threshold_pct=40))
+    low = engine.summarise(p, engine.Conditions(threshold_pct=30))  # 1-methylcyclohexene: 36 % at best
     assert list(low["serves"])[3:5] == ["nbs", "nbs"]
     assert low["cl2_major_pct"].iloc[3] >= 40  # Cl2 would pass the threshold, but it adds to C=C
 

@@ -111,6 +111,7 @@ def test_contenders_cover_every_winner_on_a_condition_grid(both) -> None:
     patterns = _class_patterns(full)
     temps = np.geomspace(-200.0 + KELVIN, MAX_TEMP_C + KELVIN, 60) - KELVIN
     grid = [Conditions(cl2_temp_c=t, br2_temp_c=t) for t in temps]
+    grid += [Conditions(cl2_temp_c=t, cl2_phase="gas") for t in temps]
     grid += [Conditions(cl2_temp_c=t, cl2_solvent=s, cl2_solvent_molar=m)
              for t in temps[::6] for s, m in (("benzene", 2.0), ("benzene", 11.2), ("cs2", 16.6))]
     rates = {r: np.array([c.per_h(r) for c in grid]) for r in ("cl2", "br2")}
@@ -130,13 +131,15 @@ def test_contenders_cover_every_winner_on_a_condition_grid(both) -> None:
 
 def test_contenders_prune_where_a_class_can_never_win() -> None:
     # 2-methylbutane's classes: primary (6 H in the larger CH3 group), secondary (2 H), tertiary (1 H).
-    # With this program's Br· rates the tertiary bromide leads up to about 1400 °C and the primary
-    # beyond; the 2 secondary H are never ahead of both, so that product needs no SMILES or stereo.
+    # With this program's Br· rates (A per H larger for secondary and tertiary C–H) the tertiary bromide
+    # leads up to about 1300 °C and the secondary beyond; the 6 primary H are never ahead of both, so
+    # that product needs no SMILES or stereo.
     code = SITE_CLASSES.index
     pattern = tuple(sorted(((code("primary"), 6), (code("secondary"), 2), (code("tertiary"), 1))))
-    assert contending_classes(pattern, "br") == {code("primary"), code("tertiary")}
+    assert contending_classes(pattern, "br") == {code("secondary"), code("tertiary")}
     hot, cold = Conditions(br2_temp_c=MAX_TEMP_C).per_h("br2"), Conditions(br2_temp_c=25.0).per_h("br2")
-    assert 6 * hot[code("primary")] > hot[code("tertiary")] and cold[code("tertiary")] > 6 * cold[code("primary")]
+    assert 2 * hot[code("secondary")] > max(hot[code("tertiary")], 6 * hot[code("primary")])
+    assert cold[code("tertiary")] > max(6 * cold[code("primary")], 2 * cold[code("secondary")])
     assert {code("primary"), code("tertiary")} <= contending_classes(pattern, "cl")
 
 

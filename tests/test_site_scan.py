@@ -28,6 +28,8 @@ EDGE_CASES = [
     "C", "CC", "C=C", "C#C", "CC#CC", "C=C=CC", "C=CC#C", "Cc1ccccc1", "C=Cc1ccccc1", "CC(=C)c1ccccc1",
     "C1CC1", "CC1CC1", "C1CC1C1CC1", "C1CC2CC1C2", "C12CC(C1)C2", "C1CC2CCC1CC2", "C12C3C4C1C5C2C3C45",
     "C1CC2(C1)CC2", "C1=CC2CC1C=C2", "c1ccc2c(c1)CCC2", "C1CCC2CCCCC2C1", "CC=CC(C)C#CC", "C1CC=CC1",
+    "C1CC2CCC1C2", "CC1CC2CCC1C2", "CC1C2CCC1CC2", "CC1(C)C2CCC1(C)CC2", "C1=CC2CCC1C2", "C1CC2C3CCC(C3)C2C1",
+    "C1CC2CC1C1CCCC21", "C=C1CC2CCC1C2",
 ]
 
 
@@ -37,6 +39,60 @@ _DEGREE = {1: "primary", 2: "secondary", 3: "tertiary"}
 def _sp3_h(atom: Chem.Atom) -> bool:
     return (atom.GetTotalNumHs() > 0 and not atom.GetIsAromatic()
             and all(b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds()))
+
+
+def _sp3(atom: Chem.Atom) -> bool:
+    return atom.GetAtomicNum() == 6 and not atom.GetIsAromatic() and all(
+        b.GetBondType() == Chem.BondType.SINGLE for b in atom.GetBonds())
+
+
+def _two_bridges(mol: Chem.Mol, b1: int, b2: int, avoid: set[int]) -> list[tuple[int, int]]:
+    """Two-atom paths b1–p–q–b2 of sp3 carbons, none of them in ``avoid``."""
+    out = []
+    for p in mol.GetAtomWithIdx(b1).GetNeighbors():
+        if p.GetIdx() in avoid or p.GetIdx() == b2 or not _sp3(p):
+            continue
+        for q in p.GetNeighbors():
+            if q.GetIdx() in avoid | {b1, b2} or not _sp3(q):
+                continue
+            if mol.GetBondBetweenAtoms(q.GetIdx(), b2) is not None:
+                out.append((p.GetIdx(), q.GetIdx()))
+    return out
+
+
+def _reference_norbornane_role(atom: Chem.Atom) -> str | None:
+    """'7' when the atom is the one-atom bridge of a saturated bicyclo[2.2.1] skeleton, '2' when it lies on a
+    two-atom bridge of one, else None (a per-atom walk: bridgeheads, then disjoint bridges)."""
+    mol = atom.GetOwningMol()
+    me = atom.GetIdx()
+    if not _sp3(atom):
+        return None
+    roles = set()
+    # As C7: two sp3 neighbours joined by two disjoint two-atom bridges that avoid this atom.
+    nbrs = [n.GetIdx() for n in atom.GetNeighbors() if _sp3(n)]
+    for i, b1 in enumerate(nbrs):
+        for b2 in nbrs[i + 1:]:
+            if not _sp3(mol.GetAtomWithIdx(b1)) or not _sp3(mol.GetAtomWithIdx(b2)):
+                continue
+            bridges = _two_bridges(mol, b1, b2, {me})
+            if any(not set(x) & set(y) for x in bridges for y in bridges):
+                roles.add("7")
+    # As C2: a neighbour b1 and a path me–q–b2 such that b1, b2 also share a one-atom bridge and a second,
+    # disjoint two-atom bridge.
+    for b1 in nbrs:
+        for q in nbrs:
+            if q == b1:
+                continue
+            for b2 in (n.GetIdx() for n in mol.GetAtomWithIdx(q).GetNeighbors()):
+                if b2 in (me, b1) or not _sp3(mol.GetAtomWithIdx(b2)):
+                    continue
+                for c in mol.GetAtomWithIdx(b1).GetNeighbors():
+                    c7 = c.GetIdx()
+                    if c7 in (me, q, b2) or not _sp3(c) or mol.GetBondBetweenAtoms(c7, b2) is None:
+                        continue
+                    if _two_bridges(mol, b1, b2, {me, q, c7}):
+                        roles.add("2")
+    return "7" if "7" in roles else ("2" if roles else None)
 
 
 def _reference_class(atom: Chem.Atom) -> str:
@@ -68,7 +124,10 @@ def _reference_class(atom: Chem.Atom) -> str:
             elif bond.GetBondType() == Chem.BondType.TRIPLE:
                 kinds.add("propargylic")
     kind = next((k for k in ("allylic", "benzylic", "propargylic") if k in kinds), None)
-    return f"{kind}-{_DEGREE[degree]}" if kind else _DEGREE[degree]
+    if kind:
+        return f"{kind}-{_DEGREE[degree]}"
+    role = _reference_norbornane_role(atom)
+    return f"norbornyl-{role}-{_DEGREE[degree]}" if role else _DEGREE[degree]
 
 
 def _reference_flags(mol: Chem.Mol) -> tuple[str, ...]:
@@ -109,7 +168,8 @@ def test_site_classes_match_the_per_atom_walk(molecules: list[Chem.Mol]) -> None
         seen.update(expected)
     # The sample must exercise the classes it claims to check.
     assert {"methane", "aryl", "vinyl", "alkynyl", "cyclopropyl", "bridgehead", "benzylic-secondary",
-            "allylic-secondary", "propargylic-secondary", "tertiary"} <= seen
+            "allylic-secondary", "propargylic-secondary", "tertiary", "norbornyl-2-secondary",
+            "norbornyl-2-tertiary", "norbornyl-7-secondary", "norbornyl-7-tertiary"} <= seen
 
 
 def test_flags_match_the_per_atom_walk(molecules: list[Chem.Mol]) -> None:

@@ -27,18 +27,27 @@ RESULT_DOCS: dict[str, str] = {
     "status": "ok, or rejected (the row could not be modelled)",
     "reason": "why a row was rejected; empty when ok",
     "n_products": "distinct constitutional monohalides from abstractable C–H",
-    "verdict": "single / br-selective / mixture / inert (empty when rejected)",
+    "verdict": (
+        "by-symmetry (the reagent offered can form only one monohalide) / selective (several can form; the "
+        "reagent offered makes one at or above the threshold) / mixture (no reagent reaches it) / ruled-out "
+        "(every reagent takes another pathway or is not modelled) / inert (no abstractable C–H); read off the "
+        "per-reagent outcomes only; empty when rejected"
+    ),
     "cl2_major": "SMILES of the major monochloride under Cl2",
     "cl2_major_pct": "its share of the monochlorides, percent",
     "br2_major": "SMILES of the major monobromide under Br2",
     "br2_major_pct": "its share of the monobromides, percent",
-    "stereo": "stereo outcome of the bromination major product: achiral / single / racemate / diastereomers",
+    "stereo": (
+        "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "
+        "configuration fixed by the input) / racemate / diastereomers"
+    ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (
         "measured / textbook / estimate: the weakest basis (estimate weakest, measured strongest) of the rate "
-        "constants behind the products that carry at least 5 % of the Cl2 or of the Br2 monohalides; a product "
-        "counts only for the reagent under which it reaches 5 %; a Cl2 solvent makes every Cl2 rate an estimate; "
-        "empty when rejected or inert"
+        "constants behind the products that carry at least 5 % of the Cl2, Br2 or NBS monohalides; a product "
+        "counts only for the reagent under which it reaches 5 %, and only reagents whose outcome is not ruled-out "
+        "count (SO2Cl2, whose constants are Cl2's by assumption, only when it is the reagent offered); a Cl2 "
+        "solvent makes every Cl2 rate an estimate; empty when rejected, inert or ruled-out"
     ),
     "nbs_major": (
         "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "
@@ -46,9 +55,9 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "nbs_major_pct": "its share of the NBS monobromides, percent; empty when there is no allylic or benzylic C–H",
     "serves": (
-        "the reagent that gives one major monohalide at or above the threshold: the first of cl2, br2, nbs that "
-        "does (plainest first, a rule of this program); substrates with C=C are offered only nbs, since Cl2 and "
-        "Br2 add to the double bond; empty when none reaches the threshold, and for rejected or inert rows"
+        "the reagent offered: the first of cl2, br2, so2cl2, nbs whose outcome is clean (plainest first, a rule "
+        "of this program); a reagent whose outcome is mixture or ruled-out is never offered; empty when none is "
+        "clean, and for rejected rows"
     ),
     "cl2_poly_pct": (
         "polyhalide, percent of the chlorinated product, when substrate and Cl2 are charged 1 : 1 and all Cl2 "
@@ -60,9 +69,29 @@ RESULT_DOCS: dict[str, str] = {
         "cl2_poly_pct); empty when inert or rejected"
     ),
     "flags": (
-        "special-site warnings, comma-separated: cyclopropylmethyl (ring opening risk), bridgehead (small-bicycle "
-        "bridgehead C–H), cage (strained cage), alkene (addition competes); see engine.special_sites; empty when none"
+        "special-site warnings, comma-separated: cyclopropylmethyl (ring opening of the radical), bridgehead "
+        "(small-bicycle bridgehead C–H, its own rate class), cage (strained cage), cyclopropane (Br· opens the "
+        "ring), central_bond (halogens add across a strained central C–C bond), alkene and alkyne (halogens add "
+        "to the π bond); see engine.special_sites; every flag but bridgehead rules some reagents out "
+        "(engine.outcomes); empty when none"
     ),
+    **{f"{r}_outcome": (
+        f"{label}: clean (substitution weighed, one monohalide at or above the threshold) / mixture (weighed, "
+        "none reaches it) / ruled-out (the substitution percentages do not apply; see "
+        f"{r}_reason){extra}; empty when rejected"
+    ) for r, label, extra in (
+        ("cl2", "Cl2 with light", ""), ("br2", "Br2 with light", ""),
+        ("so2cl2", "SO2Cl2 with initiator, weighed as Cl· at its own temperature", ""),
+        ("nbs", "NBS with initiator", "; judged on nbs_major_pct"),
+    )},
+    **{f"{r}_reason": (
+        f"why {r}_outcome is ruled-out: no abstractable C–H, no allylic or benzylic C–H (nbs), adds across the "
+        "strained central C–C bond, strained cage: not modelled, opens the cyclopropane ring (br2, nbs), "
+        "cyclopropylmethyl radical ring-opens, adds to C=C at this temperature (below the temperature at which "
+        "allylic substitution wins; not nbs), adds to C≡C (not nbs); empty when clean, mixture or rejected"
+    ) for r in ("cl2", "br2", "so2cl2", "nbs")},
+    "so2cl2_major": "SMILES of the major monochloride under SO2Cl2 (Cl· at so2cl2's temperature)",
+    "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent",
     "canonical_smiles": "RDKit canonical SMILES of the substrate",
     "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
 }

@@ -14,8 +14,10 @@ from textual.widgets import Button, Input, Label, RadioSet, Static
 from tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
 from tui.toggles import ChoiceButton, TickBox
 
+from engine.outcomes import VERDICTS
+
 #: Verdict names in display order (the engine's own order).
-VERDICT_ORDER = ("single", "br-selective", "mixture", "inert")
+VERDICT_ORDER = VERDICTS
 
 
 class FilterForm(ModalScreen[FilterSpec | None]):

@@ -14,12 +14,14 @@ import pytest
 
 import engine
 from engine import Conditions
-from engine.nbs import empty_frame, nbs_majors, nbs_percent
+from engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
 from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
 from engine.perception import Perception
 from engine.polyhalogenation import deactivation
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
+
+ALKENE_RULE = next(p for p in PATHWAYS if p.feature == "alkene")
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
 from library_gen import make_library  # noqa: E402
@@ -83,8 +85,10 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     allylic = perception.allylic
     nbs_row_pct = nbs_percent(allylic, conditions.per_h("nbs"), n) if len(allylic) else []
     nbs_products: dict[int, dict[int, list]] = defaultdict(dict)
+    allylic_rows: dict[tuple[int, int], list[int]] = defaultdict(list)
     for i in range(len(allylic)):
         s_, pid = int(allylic["struct"].iloc[i]), int(allylic["product_id"].iloc[i])
+        allylic_rows[(s_, pid)].append(i)
         entry = nbs_products[s_].setdefault(pid, [0.0, len(BASES)])
         entry[0] += float(nbs_row_pct[i])
         entry[1] = min(entry[1], rank["nbs"][int(allylic["site_code"].iloc[i])])
@@ -122,6 +126,28 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
                 if p >= CONFIDENCE_MIN_PCT:
                     worst[r] = min(worst[r], rank[r][code[i]])
         products_nbs = nbs_products.get(s, {})
+        one_site = {r: len(formed) == 1 for r in site_reagents}
+        hot = [r for r in site_reagents if not pathway_applies(ALKENE_RULE, r, conditions)]
+        if ok and "alkene" in flags and formed and hot:
+            # A C=C substrate that substitutes: allylic radicals give both termini (the allylic table's products).
+            for r in hot:
+                w = {i: h[i] * k[r][code[i]] for i in formed}
+                total = math.fsum(w.values())
+                cands = [((product[i].replace("Cl", "Br") if r == "br2" else product[i]), 100.0 * w[i] / total)
+                         for i in formed if SITE_CLASSES[code[i]] not in NBS_SITES]
+                for pid in sorted(products_nbs):
+                    rows_p = allylic_rows[(s, pid)]
+                    share = math.fsum(float(allylic["h_count"].iloc[i]) * k[r][int(allylic["site_code"].iloc[i])]
+                                      * float(allylic["share"].iloc[i]) for i in rows_p)
+                    name = str(allylic["product"].iloc[rows_p[0]])
+                    cands.append((name if r == "br2" else name.replace("Br", "Cl"), 100.0 * share / total))
+                top = max((p for _, p in cands), default=0.0)
+                plain = [c for c in cands[: len(cands) - len(products_nbs)] if c[1] >= top - 1e-9]
+                name, share = plain[0] if plain else next((c for c in cands if c[1] >= top - 1e-9), ("", 0.0))
+                out[f"{r}_major"][-1], out[f"{r}_major_pct"][-1] = name, share
+                if r == "br2":
+                    out["stereo"][-1] = ""  # not analysed for a transposed major in a screen
+                one_site[r] = len(cands) == 1
         worst["nbs"] = min([b for p, b in products_nbs.values() if p >= CONFIDENCE_MIN_PCT], default=len(BASES))
         out["nbs_major"].append(nbs_major[s])
         out["nbs_major_pct"].append(nbs_pct[s])
@@ -136,7 +162,7 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
                 else "mixture"
             out[f"{r}_outcome"].append(outcome[r])
             out[f"{r}_reason"].append(why if ok else "")
-            one[r] = len(products_nbs) == 1 if r == "nbs" else len(formed) == 1
+            one[r] = len(products_nbs) == 1 if r == "nbs" else one_site[r]
         serve = next((r for r in SERVES_ORDER if outcome[r] == "clean"), "")
         out["serves"].append(serve)
         if not ok:

@@ -17,6 +17,7 @@ from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.perception import Perception, concat, perceive
 from engine.site_classes import ABSTRACTABLE
 from engine.nbs import nbs_products
+from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
@@ -85,11 +86,12 @@ RESULT_DOCS: dict[str, str] = {
         ("nbs", "NBS with initiator", "; judged on nbs_major_pct"),
     )},
     **{f"{r}_reason": (
-        f"why {r}_outcome is ruled-out: no abstractable C–H, no allylic or benzylic C–H (nbs), adds across the "
-        "strained central C–C bond, strained cage: not modelled, opens the cyclopropane ring (br2, nbs), "
-        "cyclopropylmethyl radical ring-opens, adds to C=C at this temperature (below the temperature at which "
-        "allylic substitution wins; not nbs), adds to C≡C (not nbs); empty when clean, mixture or rejected"
-    ) for r in ("cl2", "br2", "so2cl2", "nbs")},
+        f"why {r}_outcome is ruled-out, the first that applies of: "
+        + "; ".join(p.reason + ("" if set(p.reagents) == set(OUTCOME_REAGENTS) else f" ({', '.join(p.reagents)})")
+                    for p in PATHWAYS)
+        + " (engine.outcomes.PATHWAYS; C=C addition applies below the temperature at which allylic substitution "
+        "wins, engine.parameters); empty when clean, mixture or rejected"
+    ) for r in OUTCOME_REAGENTS},
     "so2cl2_major": "SMILES of the major monochloride under SO2Cl2 (Cl· at so2cl2's temperature)",
     "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent",
     "canonical_smiles": "RDKit canonical SMILES of the substrate",

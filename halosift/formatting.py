@@ -96,6 +96,11 @@ def outcome_lines(result: Explanation) -> list[str]:
     shown = " ".join([*(f.source for f in result.flags), *REAGENT_NOTES.values()])
     sources = dict.fromkeys(o.source for o in result.outcomes if o.source and o.source not in shown)
     lines.extend(f"rule       {src}" for src in sources)
+    if any(f.flag == "alkene" for f in result.flags) and any(
+        o.outcome != "ruled-out" for o in result.outcomes if o.reagent != NBS
+    ):
+        lines.append("note       hot enough to substitute a C=C substrate: each allylic radical's share is split "
+                     "between its two termini (as under NBS) in the outcome; the product table lists one per site")
     meaning = verdict_docs(cond.threshold_pct).get(result.verdict, "")
     lines.append(f"verdict    {result.verdict}  ({meaning})")
     served = result.serves or "none"

@@ -518,7 +518,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         head = plain(screen.query_one("#detail-head"))
         assert f"Confidence: {record['confidence']}" in head and "Flags: alkene" in head
         notes = plain(screen.query_one("#detail-notes"))
-        assert "addition to the double bond competes with substitution" in notes
+        assert "add to the double bond at ordinary temperatures" in notes
         assert "NBS" in notes and "serves allylic substitution" in notes
         nbs = plain(screen.query_one("#detail-nbs"))
         for p in app.library.nbs_products(row, app.conditions).itertuples():

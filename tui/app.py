@@ -45,7 +45,7 @@ from tui.messages import (
     ViewFailed,
 )
 from tui.search import SearchBar
-from tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, Column, LibraryTable
+from tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -431,13 +431,14 @@ class HalosiftApp(App[int]):
         else:
             cols += [
                 Column("verdict", "Verdict", 12, "verdict"),
-                *OUTCOME_COLUMNS,
+                SERVES_COLUMN,
                 Column("n_products", "Prods", 7, "count"),
                 Column("cl2_major", "Cl2 major", 18),
                 Column("cl2_major_pct", "Cl2 %", 7, "pct"),
                 Column("br2_major", "Br2 major", 18),
                 Column("br2_major_pct", "Br2 %", 7, "pct"),
                 Column("stereo", "Br2 stereo", 13),
+                *OUTCOME_COLUMNS,
             ]
             if self.show_more_columns:
                 cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]

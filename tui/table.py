@@ -56,13 +56,14 @@ class Column:
         return self.kind in ("pct", "count", "row")
 
 
-#: After the verdict: the reagent offered and each reagent's outcome (engine.outcomes), the verdict's grounds.
+#: Beside the verdict: the reagent offered.
+SERVES_COLUMN = Column("serves", "Serves", 8)
+#: After the majors: each reagent's outcome (engine.outcomes), the grounds of the verdict and of Serves.
 OUTCOME_COLUMNS: tuple[Column, ...] = (
-    Column("serves", "Serves", 8),
-    Column("cl2_outcome", "Cl2", 10),
-    Column("br2_outcome", "Br2", 10),
-    Column("so2cl2_outcome", "SO2Cl2", 10),
-    Column("nbs_outcome", "NBS", 10),
+    Column("cl2_outcome", "Cl2 outcome", 13),
+    Column("br2_outcome", "Br2 outcome", 13),
+    Column("so2cl2_outcome", "SO2Cl2 outcome", 16),
+    Column("nbs_outcome", "NBS outcome", 13),
 )
 #: Why a reagent is ruled out, and the SO2Cl2 split: shown with the other extra columns (o).
 REASON_COLUMNS: tuple[Column, ...] = (

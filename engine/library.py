@@ -21,6 +21,10 @@ from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
+_HOT_ALKENE = (
+    "; a C=C substrate above the temperature at which substitution wins is judged on the split with each allyl "
+    "radical's share divided between its two ends, as under NBS (the major columns stay per site)"
+)
 #: Columns :meth:`Library.evaluate` adds after the input's own, in order.
 RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "flags", "canonical_smiles", "duplicate_of")
 #: What each added column means (README and file metadata quote this).
@@ -81,8 +85,8 @@ RESULT_DOCS: dict[str, str] = {
         "none reaches it) / ruled-out (the substitution percentages do not apply; see "
         f"{r}_reason){extra}; empty when rejected"
     ) for r, label, extra in (
-        ("cl2", "Cl2 with light", ""), ("br2", "Br2 with light", ""),
-        ("so2cl2", "SO2Cl2 with initiator, weighed as Cl· at its own temperature", ""),
+        ("cl2", "Cl2 with light", _HOT_ALKENE), ("br2", "Br2 with light", _HOT_ALKENE),
+        ("so2cl2", "SO2Cl2 with initiator, weighed as Cl· at its own temperature", _HOT_ALKENE),
         ("nbs", "NBS with initiator", "; judged on nbs_major_pct"),
     )},
     **{f"{r}_reason": (

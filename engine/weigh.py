@@ -457,15 +457,16 @@ _NBS_CODES = np.array([SITE_CODE[s] for s in NBS_SITES], dtype=np.int8)
 
 
 def _transposed_split(
-    perception: Perception, conditions: Conditions, reagent: str, rows: np.ndarray, part: dict
-) -> tuple[dict, np.ndarray]:
-    """``part`` with the majors of structures ``rows`` (bool per structure) re-weighed with allylic transposition.
+    perception: Perception, conditions: Conditions, reagent: str, rows: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """For structures ``rows`` (bool per structure): the share of the largest product, and how many form, when
+    each allylic radical takes the halogen at either terminus; NaN and 0 elsewhere.
 
     Used where a C=C substrate substitutes (Cl2/Br2/SO2Cl2 above the temperature at which
-    addition gives way, engine.outcomes): an allylic radical takes the halogen at either
-    terminus, as under NBS, so its share is split between the allylic table's products
-    (their terminus shares, engine.nbs); every other C–H keeps its own product. Returns
-    the new part (``part`` itself untouched) and, per structure, how many products form.
+    addition gives way, engine.outcomes): an allylic radical's share is split between the
+    allylic table's products (their terminus shares, engine.nbs), as under NBS; every
+    other C–H keeps its own product. Numbers only: the outcome needs no product name,
+    and a screen names only the products that can lead the per-site split.
     """
     n = len(perception.structures)
     sites, allylic = perception.sites, perception.allylic
@@ -477,49 +478,22 @@ def _transposed_split(
     total = np.bincount(struct, weights=w, minlength=n)
     plain = inside & ~np.isin(code, _NBS_CODES)  # sites whose radical has one terminus only
     best = np.zeros(n)
-    text = np.full(n, "", dtype=object)
     count = np.bincount(struct[plain], minlength=n).astype(np.int64)
     order = np.flatnonzero(plain)
     if len(order):
-        pct = 100.0 * w[order] / total[struct[order]]
-        np.maximum.at(best, struct[order], pct)
-        win = order[pct >= best[struct[order]] - _TIE_PCT]
-        first = win[np.unique(struct[win], return_index=True)[1]]
-        product = sites["product"].to_numpy(dtype=object)
-        text[struct[first]] = [str(product[i]).replace("Cl", "Br") if reagent == "br2" else str(product[i])
-                               for i in first]
+        np.maximum.at(best, struct[order], 100.0 * w[order] / total[struct[order]])
     a_struct = allylic["struct"].to_numpy(dtype=np.int64) if len(allylic) else np.zeros(0, dtype=np.int64)
     a_in = np.flatnonzero(rows[a_struct]) if len(a_struct) else a_struct
     if len(a_in):
         pid = allylic["product_id"].to_numpy(dtype=np.int64)[a_in]
         aw = (allylic["h_count"].to_numpy(dtype=np.float64)[a_in] * k[allylic["site_code"].to_numpy()[a_in]]
               * allylic["share"].to_numpy(dtype=np.float64)[a_in])
-        keys, first_row, inverse = np.unique(a_struct[a_in] * (int(pid.max()) + 1) + pid, return_index=True,
-                                             return_inverse=True)
+        _, first_row, inverse = np.unique(a_struct[a_in] * (int(pid.max()) + 1) + pid, return_index=True,
+                                          return_inverse=True)
         p_struct = a_struct[a_in][first_row]
-        p_pct = 100.0 * np.bincount(inverse, weights=aw) / total[p_struct]
         count += np.bincount(p_struct, minlength=n)
-        top = np.zeros(n)
-        np.maximum.at(top, p_struct, p_pct)
-        # The plain major stands unless a transposed product beats it by more than a hair; then the first
-        # product (in perception order) within a hair of the largest wins.
-        near = np.flatnonzero((p_pct >= top[p_struct] - _TIE_PCT) & (top[p_struct] > best[p_struct] + _TIE_PCT))
-        win = near[np.unique(p_struct[near], return_index=True)[1]]  # keys sort by struct, then product
-        if len(win):
-            names = allylic["product"].to_numpy(dtype=object)[a_in[first_row[win]]]
-            # The allylic table names bromides; a chloride is the same SMILES with Cl for Br.
-            text[p_struct[win]] = [str(x) if reagent == "br2" else str(x).replace("Br", "Cl") for x in names]
-            best[p_struct[win]] = p_pct[win]
-    new = dict(part)
-    new["major_pct"] = np.where(rows & (total > 0), best, part["major_pct"])
-    major = np.asarray(part["major"], dtype=object).copy()
-    major[rows] = text[rows]
-    new["major"] = _labels_column(*np.unique(major, return_inverse=True))
-    if part.get("stereo") is not None:  # the transposed major's stereo is not analysed in a screen
-        stereo = np.asarray(part["stereo"], dtype=object).copy()
-        stereo[rows] = ""
-        new["stereo"] = _labels_column(*np.unique(stereo, return_inverse=True))
-    return new, count
+        np.maximum.at(best, p_struct, 100.0 * np.bincount(inverse, weights=aw) / total[p_struct])
+    return np.where(rows & (total > 0), best, np.nan), count
 
 
 def _borrowed_so2cl2(conditions: Conditions, cl2: dict) -> dict | None:
@@ -588,12 +562,14 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     ok, n_products = static["ok"], static["n_products"]
     one_product = {r: n_products == 1 for r in SITE_REAGENTS} | {"nbs": static["nbs_count"] == 1}
     alkene = static["features"]["alkene"]
+    majors = {r: parts[r]["major_pct"] for r in SITE_REAGENTS} | {"nbs": nbs_major_pct}
     for r in SITE_REAGENTS:
         if alkene.any() and not pathway_applies(_ALKENE_RULE, r, conditions):
-            # Hot enough that a C=C substrate substitutes: its allylic radicals give both termini.
-            parts[r], count = _transposed_split(perception, conditions, r, alkene & ok, parts[r])
+            # Hot enough that a C=C substrate substitutes: its allylic radicals give both termini, so its
+            # outcome is judged on that split (the major columns stay per site).
+            pct, count = _transposed_split(perception, conditions, r, alkene & ok)
+            majors[r] = np.where(alkene & ok, pct, majors[r])
             one_product[r] = np.where(alkene, count == 1, one_product[r])
-    majors = {r: parts[r]["major_pct"] for r in SITE_REAGENTS} | {"nbs": nbs_major_pct}
     result = reagent_outcomes(static["features"], majors, ok, one_product, conditions)
     # Confidence: the weakest basis of each reagent whose percentages apply (not ruled out); so2cl2 only when it
     # is the reagent offered, since its constants are Cl2's by assumption and would mark every row an estimate.

@@ -99,8 +99,8 @@ def outcome_lines(result: Explanation) -> list[str]:
     if any(f.flag == "alkene" for f in result.flags) and any(
         o.outcome != "ruled-out" for o in result.outcomes if o.reagent != NBS
     ):
-        lines.append("note       hot enough to substitute a C=C substrate: each allylic radical's share is split "
-                     "between its two termini (as under NBS) in the outcome; the product table lists one per site")
+        lines.append("note       hot enough to substitute a C=C substrate: the outcome splits each allylic radical's "
+                     "share between its two termini (as under NBS); the products and majors shown are per site")
     meaning = verdict_docs(cond.threshold_pct).get(result.verdict, "")
     lines.append(f"verdict    {result.verdict}  ({meaning})")
     served = result.serves or "none"

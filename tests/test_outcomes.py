@@ -117,7 +117,9 @@ def test_hot_alkene_counts_both_allyl_termini() -> None:
     hot = Conditions(cl2_temp_c=450, br2_temp_c=450, so2cl2_temp_c=450)
     row = engine.summarise(engine.perceive(["C=CCCC=C"]), hot).iloc[0]
     assert row["n_products"] == 1 and row["cl2_outcome"] == M and row["verdict"] == "mixture"
-    assert row["cl2_major_pct"] == pytest.approx(row["nbs_major_pct"])  # the same split of the same radical
+    # The split is NBS's (same radical, same terminus weights): clean at a threshold below its major share only.
+    low = engine.summarise(engine.perceive(["C=CCCC=C"]), Conditions(cl2_temp_c=450, threshold_pct=80)).iloc[0]
+    assert row["nbs_major_pct"] >= 80 and low["cl2_outcome"] == C and low["verdict"] == "selective"
 
 
 def test_so2cl2_is_cl_at_its_own_temperature() -> None:

@@ -127,6 +127,7 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
                     worst[r] = min(worst[r], rank[r][code[i]])
         products_nbs = nbs_products.get(s, {})
         one_site = {r: len(formed) == 1 for r in site_reagents}
+        judged: dict[str, float] = {}
         hot = [r for r in site_reagents if not pathway_applies(ALKENE_RULE, r, conditions)]
         if ok and "alkene" in flags and formed and hot:
             # A C=C substrate that substitutes: allylic radicals give both termini (the allylic table's products).
@@ -141,12 +142,7 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
                                       * float(allylic["share"].iloc[i]) for i in rows_p)
                     name = str(allylic["product"].iloc[rows_p[0]])
                     cands.append((name if r == "br2" else name.replace("Br", "Cl"), 100.0 * share / total))
-                top = max((p for _, p in cands), default=0.0)
-                plain = [c for c in cands[: len(cands) - len(products_nbs)] if c[1] >= top - 1e-9]
-                name, share = plain[0] if plain else next((c for c in cands if c[1] >= top - 1e-9), ("", 0.0))
-                out[f"{r}_major"][-1], out[f"{r}_major_pct"][-1] = name, share
-                if r == "br2":
-                    out["stereo"][-1] = ""  # not analysed for a transposed major in a screen
+                judged[r] = max((p for _, p in cands), default=0.0)  # the outcome's share; columns stay per site
                 one_site[r] = len(cands) == 1
         worst["nbs"] = min([b for p, b in products_nbs.values() if p >= CONFIDENCE_MIN_PCT], default=len(BASES))
         out["nbs_major"].append(nbs_major[s])
@@ -156,7 +152,7 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
         outcome, one = {}, {}
         for r in OUTCOME_REAGENTS:
             why = next((p.reason for p in PATHWAYS if p.feature in features and pathway_applies(p, r, conditions)), "")
-            share = out[f"{r}_major_pct"][-1]
+            share = judged.get(r, out[f"{r}_major_pct"][-1])
             share = 0.0 if math.isnan(share) else share
             outcome[r] = "" if not ok else "ruled-out" if why else "clean" if share >= conditions.threshold_pct \
                 else "mixture"

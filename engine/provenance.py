@@ -13,7 +13,9 @@ MODEL_SOURCES = (
     "Cl· site kinetics: Sarzyński & Sztuba, Int. J. Chem. Kinet. 2002, 34, 651; "
     "Br· per-H ratios 1:82:1600 at 127 °C: Morrison & Boyd (textbook); "
     "C–H and H–X bond enthalpies: Blanksby & Ellison, Acc. Chem. Res. 2003, 36, 255; "
-    "unmeasured sites: Bell–Evans–Polanyi estimates (see engine/parameters.py)"
+    "unmeasured sites: Bell–Evans–Polanyi estimates (see engine/parameters.py); "
+    "pathways other than substitution (addition to C=C below 400 °C: Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1530; "
+    "ring opening, strained central bonds, cages): engine/outcomes.py, sources in engine/parameters.py"
 )
 
 

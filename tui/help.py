@@ -41,7 +41,7 @@ CONFIDENCE_NOTE = (
 
 def sources() -> list[tuple[str, str]]:
     """The model's sources, in brief; the numbers quoted are read from engine.parameters."""
-    from engine.parameters import BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
+    from engine.parameters import ALKENE_SUBSTITUTION_T_C, BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
 
     ratios = " : ".join(f"{BR_RATIOS[k].value:g}" for k in ("primary", "secondary", "tertiary"))
     lo, hi = (t - KELVIN for t in CL_RANGE_K)
@@ -53,6 +53,9 @@ def sources() -> list[tuple[str, str]]:
         ("C–H bond enthalpies", "Blanksby & Ellison 2003 (Acc. Chem. Res.)"),
         ("Sites without data", "Bell–Evans–Polanyi estimates from the bond enthalpies (benzylic, allylic, "
          "propargylic toward Br·; methane and cyclopropyl C–H)"),
+        ("Other pathways", f"C=C adds Cl2/Br2 below {ALKENE_SUBSTITUTION_T_C.value:.0f} °C (propene + Cl2 gives allyl "
+         "chloride only hotter: Groll & Hearne 1939); Br· opens cyclopropane rings; halogens add across the central "
+         "bond of propellanes and bicyclo[1.1.0]butanes; cyclopropylmethyl radicals ring-open (engine/outcomes.py)"),
     ]
 
 

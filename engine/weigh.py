@@ -11,6 +11,11 @@ in blocks of structures with equally many (:func:`engine.shares.blocks_by_length
 so per-structure sums are whole-array passes; text is gathered only for the
 structures' majors. Large libraries weigh the NBS split and the two reagents on
 threads (numpy and Arrow release the GIL in their loops).
+
+SO2Cl2 is weighed as Cl· at its own temperature (its part is read off Cl2's
+when the two match). Each reagent's outcome, the reagent offered and the
+verdict come from :mod:`engine.outcomes`, from the majors and the structure
+flags only.
 """
 
 from __future__ import annotations
@@ -36,8 +41,6 @@ from engine.polyhalogenation import deactivation, poly_pct_of_block
 from engine.perception import Perception
 from engine.shares import blocks_by_length, percent_of_structure
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
-
-__all__ = ["BASES", "CONFIDENCE_MIN_PCT", "SERVES_ORDER", "SUMMARY_COLUMNS", "VERDICTS", "summarise", "weigh"]
 
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",

@@ -377,7 +377,8 @@ CYCLOPROPANE_BR2_NOTE = (
 CYCLOPROPANE_CL2_NOTE = (
     "photochlorination of cyclopropane gives mainly chlorocyclopropane, with ring-opened 1,3-dichloropropane "
     "as a by-product (Roberts & Dirstine, J. Am. Chem. Soc. 1945, 67, 1281; from memory, not re-checked); "
-    "SO2Cl2 follows Cl· (common practice)"
+    "ring opening can take over: in the cold solid (10–77 K) the Cl· chain gives 1,3-dichloropropane by "
+    "ring-opening addition (Tague & Wight, J. Phys. Chem. 1993, 97, 3266); SO2Cl2 follows Cl· (common practice)"
 )
 #: [1.1.1]propellane and bicyclo[1.1.0]butane: the central C–C bond, not a C–H, reacts with halogens and radicals.
 CENTRAL_BOND_NOTE = (

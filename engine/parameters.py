@@ -370,8 +370,9 @@ POLY_SCREEN_RATIO = 1.0
 #: Br· opens cyclopropane rings by attack at carbon (homolytic substitution), so Br2 gives 1,3-dibromides.
 CYCLOPROPANE_BR2_NOTE = (
     "cyclopropane + Br2 under light gives 1,3-dibromopropane by ring-opening addition, not bromocyclopropane "
-    "(textbook, from memory); Br· is the chain carrier under NBS too, so NBS is ruled out alike (rule of this "
-    "program, common practice)"
+    "(textbook, from memory); photolytic Br· opens 1,2-diarylcyclopropanes in CCl4 to the "
+    "1,3-dibromo-1,3-diarylpropanes (> 80 %; Hoffmann, Graham & Rowell, J. Org. Chem. 1975, 40, 3005); Br· is the "
+    "chain carrier under NBS too, so NBS is ruled out alike (rule of this program, common practice)"
 )
 #: Cl· mostly abstracts H from cyclopropane: substitution is weighed, with ring opening as a caution.
 CYCLOPROPANE_CL2_NOTE = (

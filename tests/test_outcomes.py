@@ -40,7 +40,8 @@ KNOWN = [
      "halogens add across C1–C3 giving 1,3-dihalocyclobutanes (from memory)"),
     ("C1CC1", "cyclopropane", C, X, C, X, "by-symmetry", "cl2",
      "Cl2/light gives chlorocyclopropane mostly (Roberts & Dirstine, J. Am. Chem. Soc. 1945, 67, 1281; from "
-     "memory); Br2 opens the ring to 1,3-dibromopropane (textbook, from memory); no allylic C–H for NBS"),
+     "memory); Br2 opens the ring to 1,3-dibromopropane (textbook, from memory; Br· opens arylcyclopropanes, "
+     "Hoffmann, Graham & Rowell, J. Org. Chem. 1975, 40, 3005); no allylic C–H for NBS"),
     ("CC1CC1", "methylcyclopropane", X, X, X, X, "ruled-out", "",
      "the cyclopropylmethyl radical ring-opens at ≈ 1e8 s⁻¹ (Griller & Ingold, Acc. Chem. Res. 1980, 13, 317; "
      "from memory); Br· opens the ring"),

@@ -165,6 +165,21 @@ class Explanation:
             ranks += [BASES.index(p.rate_basis) for p in self.nbs if p.pct >= CONFIDENCE_MIN_PCT]
         return BASES[min(ranks)] if ranks else ""
 
+    def counted_reagents(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> tuple[str, ...]:
+        """The reagents whose bases the confidence shown for ``reagents`` rests on.
+
+        The default pair (cl2, br2) stands for the whole prediction, so it gets the
+        screen's rule (see :meth:`confidence`); reagents asked for by name get theirs.
+        """
+        if tuple(reagents) == tuple(REAGENTS):
+            out = tuple(r for r in ("cl2", "br2", "nbs") if self._weighed(r))
+            return out + (("so2cl2",) if self.serves == "so2cl2" else ())
+        return tuple(r for r in reagents if self._weighed(r))
+
+    def shown_confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
+        """The confidence explain prints and writes for ``reagents`` (see :meth:`counted_reagents`)."""
+        return self.confidence(self.counted_reagents(reagents))
+
     def to_dict(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> dict:
         """Plain JSON-ready dict; percentages limited to ``reagents`` (f2/i2 raise UnsupportedReagent)."""
         reagents = tuple(check_reagent(r) for r in reagents)
@@ -189,7 +204,7 @@ class Explanation:
             "status": "ok",
             "canonical_smiles": self.canonical_smiles,
             "verdict": self.verdict,
-            "confidence": self.confidence(),
+            "confidence": self.shown_confidence(reagents),
             "serves": self.serves,
             "outcomes": {
                 o.reagent: {"outcome": o.outcome, "reason": o.reason, "source": o.source, "major": o.major,

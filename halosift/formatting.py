@@ -58,10 +58,10 @@ def explanation_table(
         lines += _nbs_lines(result)
     lines.append("")
     lines += outcome_lines(result)
-    confidence = result.confidence()
+    asked = tuple(dict.fromkeys([*reagents, *([NBS] if nbs else [])]))
+    confidence = result.shown_confidence(asked)
     if confidence:
-        counted = [o.reagent for o in result.outcomes if o.outcome != "ruled-out" and o.reagent != "so2cl2"]
-        counted += ["so2cl2"] if result.serves == "so2cl2" else []
+        counted = result.counted_reagents(asked)
         lines.append(
             f"confidence {confidence}  (weakest rate basis among products with ≥ 5 % under {', '.join(counted)}; "
             "ruled-out reagents do not count)"

@@ -31,9 +31,9 @@ class Conditions:
     br2_temp_c: float = DEFAULT_TEMP_C["br2"]
     """Bromination temperature, °C."""
     threshold_pct: float = DEFAULT_THRESHOLD_PCT
-    """Share of the bromination major product (percent) that earns 'br-selective'."""
+    """Share of a reagent's major product (percent) at which its outcome is clean (engine.outcomes)."""
     so2cl2_temp_c: float = DEFAULT_TEMP_C["so2cl2"]
-    """Sulfuryl chloride (with initiator) temperature, °C; used by explain only."""
+    """Sulfuryl chloride (with initiator) temperature, °C: Cl· rates at this temperature (screen and explain)."""
     cl2_solvent: str = "none"
     """Solvent of the Cl2 chlorination: none, benzene or cs2 (see engine.solvent)."""
     cl2_solvent_molar: float = 0.0
@@ -137,6 +137,6 @@ class Conditions:
         else:
             solvent = " (gas phase)" if self.cl2_phase == "gas" else " (neat liquid)"
         return (
-            f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, NBS at {self.nbs_temp_c:g} °C, "
-            f"br-selective threshold {self.threshold_pct:g} %"
+            f"Cl2 at {self.cl2_temp_c:g} °C{solvent}, Br2 at {self.br2_temp_c:g} °C, SO2Cl2 at "
+            f"{self.so2cl2_temp_c:g} °C, NBS at {self.nbs_temp_c:g} °C, threshold {self.threshold_pct:g} %"
         )

@@ -4,14 +4,17 @@ from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
 
+import math
+
 from engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
 from engine.nbs import nbs_products
+from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from engine.parameters import NBS_NOTE, SO2CL2_NOTE
 from engine.perception import perceive
 from engine.reagents import NBS, check_reagent
 from engine.rates import enthalpy_of_abstraction, exo_fraction
 from engine.reagents import RADICAL_OF
-from engine.site_classes import SITE_CLASSES, site_bde
+from engine.site_classes import SITE_CLASSES, SITE_CODE, site_bde
 from engine.special_sites import FlagNote, flag_notes
 from engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
 
@@ -43,7 +46,7 @@ class ProductRecord:
     relative_rate: dict[str, float]
     """Per reagent: rate per H relative to a primary C–H at the same temperature."""
     stereo: str
-    """achiral / single / racemate / diastereomers."""
+    """achiral / one-enantiomer / racemate / diastereomers."""
     n_stereoisomers: int
     """Stereoisomers of this product formed."""
     n_diastereomers: int
@@ -74,7 +77,7 @@ class NbsProduct:
     alkene_substituents: int
     """Carbon substituents on the product's C=C (-1: no C=C, benzylic); more favours that terminus."""
     stereo: str
-    """achiral / single / racemate / diastereomers (E/Z isomers of a new C=C count as diastereomers)."""
+    """achiral / one-enantiomer / racemate / diastereomers (E/Z isomers of a new C=C count as diastereomers)."""
     n_stereoisomers: int
     """Stereoisomers of this product formed."""
     n_diastereomers: int
@@ -85,6 +88,28 @@ class NbsProduct:
     """True when a C=C of the product forms as both E and Z (their ratio is not modelled)."""
     pct: float
     """Percent of the NBS monobromides."""
+    rate_basis: str = "estimate"
+    """Weakest basis of the Br· rates of the sites that give it: measured / textbook / estimate."""
+
+
+@dataclass(frozen=True)
+class ReagentOutcome:
+    """What one reagent does to the substrate (engine.outcomes): the screen's ``<reagent>_outcome`` and reason."""
+
+    reagent: str
+    """cl2, br2, so2cl2 or nbs."""
+    outcome: str
+    """clean / mixture / ruled-out."""
+    reason: str
+    """Why it is ruled out; empty when clean or mixture."""
+    source: str
+    """Where the rule that rules it out comes from; empty when clean or mixture."""
+    major: str
+    """SMILES of the major monohalide of the substitution split (shown even when ruled out); '' without one."""
+    major_pct: float
+    """Its share, percent (NaN without one)."""
+    temp_c: float
+    """The reagent's temperature, °C."""
 
 
 @dataclass(frozen=True)
@@ -104,7 +129,7 @@ class Explanation:
     products: tuple[ProductRecord, ...]
     """Every monohalide, abstractable sites first, largest chlorination share first."""
     verdict: str
-    """single / br-selective / mixture / inert (empty when rejected)."""
+    """by-symmetry / selective / mixture / ruled-out / inert (engine.outcomes.VERDICTS; empty when rejected)."""
     conditions: Conditions
     """The conditions weighed."""
     warnings: tuple[str, ...]
@@ -114,20 +139,54 @@ class Explanation:
     nbs: tuple[NbsProduct, ...] = ()
     """Monobromides under NBS, largest first; empty without allylic or benzylic C–H."""
     serves: str = ""
-    """Reagent that gives one major monohalide at ≥ threshold (engine.weigh.serves), or ''."""
+    """The reagent offered: the first of cl2, br2, so2cl2, nbs whose outcome is clean, or ''."""
+    outcomes: tuple[ReagentOutcome, ...] = ()
+    """Per reagent of engine.outcomes.OUTCOME_REAGENTS, what it does; empty when rejected."""
 
-    def confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
-        """Weakest rate basis among products with ≥ 5 % under any of ``reagents``; '' when none.
+    def outcome(self, reagent: str) -> ReagentOutcome | None:
+        """The outcome of one reagent, or None (rejected input)."""
+        return next((o for o in self.outcomes if o.reagent == reagent), None)
 
-        The same rule as the ``confidence`` column of a screen (engine.weigh.ranks_at_cutoff).
+    def _weighed(self, reagent: str) -> bool:
+        o = self.outcome(reagent)
+        return o is not None and o.outcome != "ruled-out"
+
+    def confidence(self, reagents: tuple[str, ...] | None = None) -> str:
+        """Weakest rate basis among products with ≥ 5 % under the reagents that count; '' when none.
+
+        Without ``reagents``: the rule of the screen's ``confidence`` column — cl2, br2
+        and nbs whose outcome is not ruled-out, and so2cl2 only when it is the reagent
+        offered. With ``reagents``: those of them whose outcome is not ruled-out.
         """
+        if reagents is None:
+            reagents = tuple(r for r in ("cl2", "br2", "nbs") if self._weighed(r))
+            reagents += ("so2cl2",) if self.serves == "so2cl2" else ()
+        else:
+            reagents = tuple(r for r in reagents if self._weighed(r))
         ranks = [
             BASES.index(p.rate_basis[r])
             for p in self.products
             for r in reagents
             if r in p.pct and p.pct[r] >= CONFIDENCE_MIN_PCT and p.rate_basis[r] in BASES
         ]
+        if NBS in reagents:
+            ranks += [BASES.index(p.rate_basis) for p in self.nbs if p.pct >= CONFIDENCE_MIN_PCT]
         return BASES[min(ranks)] if ranks else ""
+
+    def counted_reagents(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> tuple[str, ...]:
+        """The reagents whose bases the confidence shown for ``reagents`` rests on.
+
+        The default pair (cl2, br2) stands for the whole prediction, so it gets the
+        screen's rule (see :meth:`confidence`); reagents asked for by name get theirs.
+        """
+        if tuple(reagents) == tuple(REAGENTS):
+            out = tuple(r for r in ("cl2", "br2", "nbs") if self._weighed(r))
+            return out + (("so2cl2",) if self.serves == "so2cl2" else ())
+        return tuple(r for r in reagents if self._weighed(r))
+
+    def shown_confidence(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> str:
+        """The confidence explain prints and writes for ``reagents`` (see :meth:`counted_reagents`)."""
+        return self.confidence(self.counted_reagents(reagents))
 
     def to_dict(self, reagents: tuple[str, ...] = tuple(REAGENTS)) -> dict:
         """Plain JSON-ready dict; percentages limited to ``reagents`` (f2/i2 raise UnsupportedReagent)."""
@@ -154,8 +213,14 @@ class Explanation:
             "status": "ok",
             "canonical_smiles": self.canonical_smiles,
             "verdict": self.verdict,
-            "confidence": self.confidence(site_reagents),
+            "confidence": self.shown_confidence(reagents),
             "serves": self.serves,
+            "outcomes": {
+                o.reagent: {"outcome": o.outcome, "reason": o.reason, "source": o.source, "major": o.major,
+                            "major_pct": None if math.isnan(o.major_pct) else round(o.major_pct, 2),
+                            "temp_c": o.temp_c}
+                for o in self.outcomes
+            },
             "conditions": asdict(self.conditions),
             "products": products,
             "flags": [asdict(f) for f in self.flags],
@@ -203,12 +268,14 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
         )
     records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -p.pct["cl2"], -p.pct["br2"], p.smiles))
     nbs_frame = nbs_products(perception.allylic, conditions.per_h(NBS), 1)
+    nbs_bases = conditions.bases(NBS)
     nbs = sorted(
         (
             NbsProduct(
                 smiles=r.product, site=r.site, terminus=r.terminus, alkene_substituents=int(r.alkene_subst),
                 stereo=r.stereo, n_stereoisomers=int(r.n_stereoisomers), n_diastereomers=int(r.n_diastereomers),
                 stereo_approximate=bool(r.stereo_approx), e_and_z=bool(r.ez_open), pct=float(r.nbs_pct),
+                rate_basis=BASES[min(BASES.index(nbs_bases[SITE_CODE[x]]) for x in str(r.site).split(","))],
             )
             for r in nbs_frame.itertuples(index=False)
         ),
@@ -217,4 +284,19 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
     return Explanation(
         smiles, "ok", "", "", s["canonical_smiles"], tuple(records), summary["verdict"], conditions, warnings,
         flags=flag_notes(s["flags"]), nbs=tuple(nbs), serves=str(summary["serves"]),
+        outcomes=tuple(_outcome(summary, r, conditions) for r in OUTCOME_REAGENTS),
+    )
+
+
+_SOURCE_OF_REASON = {p.reason: p.source for p in PATHWAYS}
+
+
+def _outcome(summary, reagent: str, conditions: Conditions) -> ReagentOutcome:
+    """One reagent's outcome from a summary row (engine.weigh.summarise)."""
+    reason = str(summary[f"{reagent}_reason"])
+    pct = summary[f"{reagent}_major_pct"]
+    return ReagentOutcome(
+        reagent=reagent, outcome=str(summary[f"{reagent}_outcome"]), reason=reason,
+        source=_SOURCE_OF_REASON.get(reason, ""), major=str(summary[f"{reagent}_major"]),
+        major_pct=float("nan") if pct is None or pct != pct else float(pct), temp_c=conditions.temp_c(reagent),
     )

@@ -17,9 +17,14 @@ from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.perception import Perception, concat, perceive
 from engine.site_classes import ABSTRACTABLE
 from engine.nbs import nbs_products
+from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from engine.rates import enthalpy_of_abstraction
 from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
+_HOT_ALKENE = (
+    "; a C=C substrate above the temperature at which substitution wins is judged on the split with each allyl "
+    "radical's share divided between its two ends, as under NBS (the major columns stay per site)"
+)
 #: Columns :meth:`Library.evaluate` adds after the input's own, in order.
 RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "flags", "canonical_smiles", "duplicate_of")
 #: What each added column means (README and file metadata quote this).
@@ -27,18 +32,27 @@ RESULT_DOCS: dict[str, str] = {
     "status": "ok, or rejected (the row could not be modelled)",
     "reason": "why a row was rejected; empty when ok",
     "n_products": "distinct constitutional monohalides from abstractable C–H",
-    "verdict": "single / br-selective / mixture / inert (empty when rejected)",
+    "verdict": (
+        "by-symmetry (the reagent offered can form only one monohalide) / selective (several can form; the "
+        "reagent offered makes one at or above the threshold) / mixture (no reagent reaches it) / ruled-out "
+        "(every reagent takes another pathway or is not modelled) / inert (no abstractable C–H); read off the "
+        "per-reagent outcomes only; empty when rejected"
+    ),
     "cl2_major": "SMILES of the major monochloride under Cl2",
     "cl2_major_pct": "its share of the monochlorides, percent",
     "br2_major": "SMILES of the major monobromide under Br2",
     "br2_major_pct": "its share of the monobromides, percent",
-    "stereo": "stereo outcome of the bromination major product: achiral / single / racemate / diastereomers",
+    "stereo": (
+        "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "
+        "configuration fixed by the input) / racemate / diastereomers"
+    ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (
         "measured / textbook / estimate: the weakest basis (estimate weakest, measured strongest) of the rate "
-        "constants behind the products that carry at least 5 % of the Cl2 or of the Br2 monohalides; a product "
-        "counts only for the reagent under which it reaches 5 %; a Cl2 solvent makes every Cl2 rate an estimate; "
-        "empty when rejected or inert"
+        "constants behind the products that carry at least 5 % of the Cl2, Br2 or NBS monohalides; a product "
+        "counts only for the reagent under which it reaches 5 %, and only reagents whose outcome is not ruled-out "
+        "count (SO2Cl2, whose constants are Cl2's by assumption, only when it is the reagent offered); a Cl2 "
+        "solvent makes every Cl2 rate an estimate; empty when rejected, inert or ruled-out"
     ),
     "nbs_major": (
         "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "
@@ -46,9 +60,9 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "nbs_major_pct": "its share of the NBS monobromides, percent; empty when there is no allylic or benzylic C–H",
     "serves": (
-        "the reagent that gives one major monohalide at or above the threshold: the first of cl2, br2, nbs that "
-        "does (plainest first, a rule of this program); substrates with C=C are offered only nbs, since Cl2 and "
-        "Br2 add to the double bond; empty when none reaches the threshold, and for rejected or inert rows"
+        "the reagent offered: the first of cl2, br2, so2cl2, nbs whose outcome is clean (plainest first, a rule "
+        "of this program); a reagent whose outcome is mixture or ruled-out is never offered; empty when none is "
+        "clean, and for rejected rows"
     ),
     "cl2_poly_pct": (
         "polyhalide, percent of the chlorinated product, when substrate and Cl2 are charged 1 : 1 and all Cl2 "
@@ -60,9 +74,30 @@ RESULT_DOCS: dict[str, str] = {
         "cl2_poly_pct); empty when inert or rejected"
     ),
     "flags": (
-        "special-site warnings, comma-separated: cyclopropylmethyl (ring opening risk), bridgehead (small-bicycle "
-        "bridgehead C–H), cage (strained cage), alkene (addition competes); see engine.special_sites; empty when none"
+        "special-site warnings, comma-separated: cyclopropylmethyl (ring opening of the radical), bridgehead "
+        "(small-bicycle bridgehead C–H, its own rate class), cage (strained cage), cyclopropane (Br· opens the "
+        "ring), central_bond (halogens add across a strained central C–C bond), alkene and alkyne (halogens add "
+        "to the π bond); see engine.special_sites; every flag but bridgehead rules some reagents out "
+        "(engine.outcomes); empty when none"
     ),
+    **{f"{r}_outcome": (
+        f"{label}: clean (substitution weighed, one monohalide at or above the threshold) / mixture (weighed, "
+        "none reaches it) / ruled-out (the substitution percentages do not apply; see "
+        f"{r}_reason){extra}; empty when rejected"
+    ) for r, label, extra in (
+        ("cl2", "Cl2 with light", _HOT_ALKENE), ("br2", "Br2 with light", _HOT_ALKENE),
+        ("so2cl2", "SO2Cl2 with initiator, weighed as Cl· at its own temperature", _HOT_ALKENE),
+        ("nbs", "NBS with initiator", "; judged on nbs_major_pct"),
+    )},
+    **{f"{r}_reason": (
+        f"why {r}_outcome is ruled-out, the first that applies of: "
+        + "; ".join(p.reason + ("" if set(p.reagents) == set(OUTCOME_REAGENTS) else f" ({', '.join(p.reagents)})")
+                    for p in PATHWAYS)
+        + " (engine.outcomes.PATHWAYS; C=C addition applies below the temperature at which allylic substitution "
+        "wins, engine.parameters); empty when clean, mixture or rejected"
+    ) for r in OUTCOME_REAGENTS},
+    "so2cl2_major": "SMILES of the major monochloride under SO2Cl2 (Cl· at so2cl2's temperature)",
+    "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent",
     "canonical_smiles": "RDKit canonical SMILES of the substrate",
     "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
 }

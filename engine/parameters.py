@@ -372,14 +372,30 @@ EXO_FRACTION: dict[str, Value] = {
 NORBORNYL7_EXTRA_BDE = Value(3.0, "estimate", "7-norbornyl vs 2-norbornyl radical ≈ +3 kcal/mol (from memory; estimate)")
 
 # ---------------------------------------------------------------------------
-# Alkenes under Cl2/Br2: addition to C=C competes at ordinary temperatures;
-# substitution wins only hot.
+# Alkenes under Cl2/Br2: addition to C=C wins at ordinary temperatures;
+# substitution (allylic) wins only hot or at very low halogen concentration.
+# engine.outcomes rules Cl2, Br2 and SO2Cl2 out for a C=C substrate below
+# these temperatures and weighs allylic substitution above them.
 # ---------------------------------------------------------------------------
 ALKENE_SUBSTITUTION_T_C = Value(
     400.0,
     "measured",
-    "propene + Cl2 at 400–600 °C gives allyl chloride rather than 1,2-dichloropropane "
-    "(Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1239; authors and pages from memory)",
+    "propene + Cl2 in the gas phase at 400 °C and above gives allyl chloride rather than "
+    "1,2-dichloropropane, the industrial allyl chloride process (Groll & Hearne, Ind. Eng. Chem. 1939, "
+    "31, 1530, as cited by Hearne, Evans, Yale & Hoff, J. Am. Chem. Soc. 1953, 75, on the high-temperature "
+    "chlorination of chloropropenes; 400 °C gas phase as in the standard organic textbooks)",
+)
+BR_ALKENE_SUBSTITUTION_T_C = Value(
+    400.0,
+    "estimate",
+    "textbooks state that propene and Br2, like Cl2, substitute rather than add only at very high temperature "
+    "or very low halogen concentration, without a number for Br2; Cl2's 400 °C is borrowed (estimate)",
+)
+#: C≡C under Cl2/Br2/SO2Cl2: halogen atoms and halogens add to the triple bond; this program knows no
+#: temperature window in which substitution of an alkyne substrate wins, so none is offered (common practice).
+ALKYNE_ADDITION_NOTE = (
+    "Cl2 and Br2 (and Cl· from SO2Cl2) add to C≡C; no temperature at which substitution of an alkyne wins is "
+    "known to this program (common practice)"
 )
 
 # ---------------------------------------------------------------------------
@@ -478,3 +494,41 @@ POLY_DEACTIVATION: dict[str, Value] = {
 #: Substrate : halogen (mol/mol) at which the screen reports polyhalide (an equimolar charge, the
 #: naive default a planner is asked to improve on; common practice).
 POLY_SCREEN_RATIO = 1.0
+
+# ---------------------------------------------------------------------------
+# Strained rings: pathways other than C–H substitution (engine.outcomes).
+# These are rules with a source, not rate constants: they decide whether a
+# reagent's substitution percentages apply at all.
+# ---------------------------------------------------------------------------
+#: Br· opens cyclopropane rings by attack at carbon (homolytic substitution), so Br2 gives 1,3-dibromides.
+CYCLOPROPANE_BR2_NOTE = (
+    "cyclopropane + Br2 under light gives 1,3-dibromopropane by ring-opening addition, not bromocyclopropane "
+    "(textbook, from memory); photolytic Br· opens 1,2-diarylcyclopropanes in CCl4 to the "
+    "1,3-dibromo-1,3-diarylpropanes (> 80 %; Hoffmann, Graham & Rowell, J. Org. Chem. 1975, 40, 3005); Br· is the "
+    "chain carrier under NBS too, so NBS is ruled out alike (rule of this program, common practice)"
+)
+#: Cl· mostly abstracts H from cyclopropane: substitution is weighed, with ring opening as a caution.
+CYCLOPROPANE_CL2_NOTE = (
+    "photochlorination of cyclopropane gives mainly chlorocyclopropane, with ring-opened 1,3-dichloropropane "
+    "as a by-product (Roberts & Dirstine, J. Am. Chem. Soc. 1945, 67, 1281; from memory, not re-checked); "
+    "ring opening can take over: in the cold solid (10–77 K) the Cl· chain gives 1,3-dichloropropane by "
+    "ring-opening addition (Tague & Wight, J. Phys. Chem. 1993, 97, 3266); SO2Cl2 follows Cl· (common practice)"
+)
+#: [1.1.1]propellane and bicyclo[1.1.0]butane: the central C–C bond, not a C–H, reacts with halogens and radicals.
+CENTRAL_BOND_NOTE = (
+    "halogens and radicals add across the central bond of [1.1.1]propellane, giving 1,3-disubstituted "
+    "bicyclo[1.1.1]pentanes (I2 gives 1,3-diiodobicyclo[1.1.1]pentane; Wiberg & Waddell, J. Am. Chem. Soc. "
+    "1990, 112, 2194, from memory), and across C1–C3 of bicyclo[1.1.0]butanes, giving 1,3-dihalocyclobutanes "
+    "(from memory); no C–H substitution is predicted"
+)
+#: Cubane-like cages: neither their C–H rates nor the fate of the cage radical are modelled.
+CAGE_NOTE = (
+    "strained polycyclic cages (cubane, prismane, cuneane): no measured C–H rates and no model of the cage "
+    "radical's rearrangement or ring opening, so no reagent is offered (rule of this program)"
+)
+#: Cyclopropylmethyl radicals open faster than many halogen transfers: ring-opened halides form.
+CYCLOPROPYLMETHYL_NOTE = (
+    "a cyclopropylmethyl radical opens to but-3-enyl at ≈ 1e8 s⁻¹ (see K_CYCLOPROPYLMETHYL_OPENING), "
+    "comparable to its capture by the halogen, so ring-opened halides the percentages do not include form "
+    "(rule of this program: every reagent is ruled out when any such C–H is present)"
+)

@@ -5,13 +5,17 @@ from __future__ import annotations
 from datetime import datetime, timezone
 
 from engine.conditions import Conditions
+from engine.outcomes import OUTCOME_DOCS, VERDICT_DOCS
 from engine.safety import CAUTION
+from engine.stereo import OUTCOMES as STEREO_OUTCOMES
 
 MODEL_SOURCES = (
     "Cl· site kinetics: Sarzyński & Sztuba, Int. J. Chem. Kinet. 2002, 34, 651; "
     "Br· per-H ratios 1:82:1600 at 127 °C: Morrison & Boyd (textbook); "
     "C–H and H–X bond enthalpies: Blanksby & Ellison, Acc. Chem. Res. 2003, 36, 255; "
-    "unmeasured sites: Bell–Evans–Polanyi estimates (see engine/parameters.py)"
+    "unmeasured sites: Bell–Evans–Polanyi estimates (see engine/parameters.py); "
+    "pathways other than substitution (addition to C=C below 400 °C: Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1530; "
+    "ring opening, strained central bonds, cages): engine/outcomes.py, sources in engine/parameters.py"
 )
 
 
@@ -25,7 +29,14 @@ def export_metadata(conditions: Conditions, **extra: str) -> dict[str, str]:
         "conditions": conditions.describe(),
         "cl2_temp_c": f"{conditions.cl2_temp_c:g}",
         "br2_temp_c": f"{conditions.br2_temp_c:g}",
+        "so2cl2_temp_c": f"{conditions.so2cl2_temp_c:g}",
+        "nbs_temp_c": f"{conditions.nbs_temp_c:g}",
         "threshold_pct": f"{conditions.threshold_pct:g}",
+        "verdicts": "; ".join(f"{k}: {v.format(threshold=f'{conditions.threshold_pct:g}')}"
+                              for k, v in VERDICT_DOCS.items()),
+        "outcomes": "per reagent (cl2_outcome, br2_outcome, so2cl2_outcome, nbs_outcome): " + "; ".join(
+            f"{k}: {v.format(threshold=f'{conditions.threshold_pct:g}')}" for k, v in OUTCOME_DOCS.items()),
+        "stereo_outcomes": " / ".join(STEREO_OUTCOMES),
         "model_sources": MODEL_SOURCES,
         "caution": CAUTION,
     }

@@ -4,10 +4,11 @@ Two sets, kept apart on purpose:
 
 * :data:`REAGENTS` — the pair every screen weighs (``cl2``, ``br2``); the
   library columns ``cl2_*`` / ``br2_*`` are built from it and stay fixed.
-* :data:`EXPLAIN_REAGENTS` — also ``so2cl2``, which is available only in
-  :func:`engine.explain` (and ``halosift explain --reagent so2cl2``); it is
+* :data:`EXPLAIN_REAGENTS` — also ``so2cl2``, whose product table
+  :func:`engine.explain` lists (``halosift explain --reagent so2cl2``); it is
   treated as Cl· (see :data:`engine.parameters.SO2CL2_NOTE`), so a screen
-  column for it would repeat the Cl2 one at another temperature.
+  gives it only its major, share and outcome (``so2cl2_*``, engine.outcomes),
+  weighed at its own temperature.
 
 * :data:`NBS` — N-bromosuccinimide (Wohl–Ziegler): Br· at low Br2
   concentration, allylic/benzylic C–H only, with allylic transposition. Its

@@ -2,7 +2,8 @@
 
 Each flag names a risk the percentages do not show (ring opening, addition,
 cage rearrangement) or a site the ordinary degree classes would misjudge
-(bridgeheads). Flags are perception-level: computed with RDKit when a
+(bridgeheads). :mod:`engine.outcomes` turns the risks into per-reagent
+outcomes: a flag that names another pathway rules the reagents it concerns out. Flags are perception-level: computed with RDKit when a
 structure is perceived, stored as a comma-joined string in the structures
 table, and never depend on conditions.
 """
@@ -55,22 +56,41 @@ FLAG_NOTES: dict[str, FlagNote] = {
         "bridgehead",
         "a bridgehead C–H of a small bicycle (every bridge ≤ 2 atoms): the radical cannot planarise, "
         "so that site is strongly disfavoured; e.g. " + P.NORBORNANE_CL2_NOTE
-        + "; the exo/endo split is not modelled",
+        + "; a norbornane 2-halide's exo/endo split is shown beside its stereo (engine.parameters.EXO_FRACTION)",
         "bridgehead C–H bond enthalpy: " + P.BDE_BRIDGEHEAD.source,
     ),
     "cage": FlagNote(
         "cage",
-        "a strained polycyclic cage (cubane-like): its C–H are weighed as ordinary sites, and "
-        "rearrangement or ring opening of the cage radical is not modelled",
-        "structural rule of this program (common practice)",
+        "a strained polycyclic cage (cubane-like): no measured C–H rates and no model of the cage radical's "
+        "rearrangement or ring opening, so every reagent is ruled out",
+        P.CAGE_NOTE,
+    ),
+    "cyclopropane": FlagNote(
+        "cyclopropane",
+        "a cyclopropane ring: Br2 (and Br· under NBS) opens it by 1,3-addition, so bromination is ruled out; "
+        "Cl2 and SO2Cl2 mostly substitute its C–H (chlorocyclopropane), some ring-opened 1,3-dichloride forms",
+        P.CYCLOPROPANE_BR2_NOTE + "; " + P.CYCLOPROPANE_CL2_NOTE,
+    ),
+    "central_bond": FlagNote(
+        "central_bond",
+        "a strained central C–C bond (a bond on two 3-membered rings, as in bicyclo[1.1.0]butane, or on three "
+        "rings of ≤ 4 atoms, as in small propellanes): halogens and radicals add across it, so every reagent "
+        "is ruled out",
+        P.CENTRAL_BOND_NOTE,
     ),
     "alkene": FlagNote(
         "alkene",
-        "C=C present: under Cl2 or Br2, addition to the double bond competes with substitution at ordinary "
-        "temperatures and is not modelled; substitution wins only hot (propene + Cl2 gives allyl chloride at "
-        f"≥ {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C); NBS (Br· at low Br2 concentration) is the reagent that "
-        "serves allylic substitution",
-        P.ALKENE_SUBSTITUTION_T_C.source,
+        "C=C present: Cl2, Br2 and SO2Cl2 add to the double bond at ordinary temperatures, so they are ruled out "
+        f"below {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C (Cl·) / {P.BR_ALKENE_SUBSTITUTION_T_C.value:.0f} °C (Br·), "
+        "where allylic substitution takes over (propene + Cl2 gives allyl chloride); "
+        "NBS (Br· at low Br2 concentration) is the reagent that serves allylic substitution",
+        P.ALKENE_SUBSTITUTION_T_C.source + "; Br2: " + P.BR_ALKENE_SUBSTITUTION_T_C.source,
+    ),
+    "alkyne": FlagNote(
+        "alkyne",
+        "C≡C present: Cl2, Br2 and SO2Cl2 add to the triple bond, so they are ruled out at every temperature; "
+        "NBS is weighed on allylic and benzylic C–H only",
+        P.ALKYNE_ADDITION_NOTE,
     ),
 }
 FLAGS: tuple[str, ...] = tuple(FLAG_NOTES)
@@ -135,6 +155,7 @@ _SMARTS = {
     "ring_junction": "[CX4;!H0;!R0;!R1]",
     "cyclopropylmethyl": "[CX4;!H0;!r3]-[r3]",
     "alkene": "*=*",  # aromatic bonds do not match '='
+    "alkyne": "*#*",
 }
 _PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SMARTS.items()}
 
@@ -147,6 +168,27 @@ def small_bridgeheads(mol: Chem.Mol) -> frozenset[int]:
     """
     junctions = mol.GetSubstructMatches(_PATTERNS["ring_junction"], uniquify=False, maxMatches=100_000)
     return frozenset(i for (i,) in junctions if is_small_bridgehead(mol.GetAtomWithIdx(i)))
+
+
+def has_central_bond(mol: Chem.Mol) -> bool:
+    """True when some C–C bond lies on two 3-membered rings or on three rings of ≤ 4 atoms.
+
+    That is the central bond of a bicyclo[1.1.0]butane (two triangles share it)
+    or of a small propellane ([1.1.1]: three triangles; [2.2.2]: three
+    four-membered rings). A cubane edge lies on two 4-rings only, so cages
+    without such a bond are left to the ``cage`` flag.
+    """
+    for bond in mol.GetBonds():
+        if not bond.IsInRing():
+            continue
+        a, b = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
+        na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()} - {b}
+        nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()} - {a}
+        three = len(na & nb)
+        four = sum(1 for c in na for d in nb if c != d and mol.GetBondBetweenAtoms(c, d) is not None)
+        if three >= 2 or three + four >= 3:
+            return True
+    return False
 
 
 def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) -> tuple[str, ...]:
@@ -162,8 +204,14 @@ def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) ->
     ring_sizes = [len(r) for r in mol.GetRingInfo().AtomRings()]
     if any(size <= CAGE_MAX_RING for size in ring_sizes) and sum(c >= 3 for c in _small_ring_counts(mol)) >= CAGE_MIN_ATOMS:
         found.add("cage")
-    if mol.HasSubstructMatch(_PATTERNS["alkene"]):
-        found.add("alkene")
+    # A smallest set of rings holds a triangle whenever the molecule has one (none is shorter).
+    if any(size == 3 for size in ring_sizes):
+        found.add("cyclopropane")
+    if any(size <= CAGE_MAX_RING for size in ring_sizes) and has_central_bond(mol):
+        found.add("central_bond")
+    for flag in ("alkene", "alkyne"):
+        if mol.HasSubstructMatch(_PATTERNS[flag]):
+            found.add(flag)
     return tuple(f for f in FLAGS if f in found)
 
 

@@ -28,7 +28,7 @@ _UNSPECIFIED = Chem.StereoSpecified.Unspecified
 _CIS = Chem.BondStereo.STEREOCIS
 _TRANS = Chem.BondStereo.STEREOTRANS
 
-OUTCOMES = ("achiral", "single", "racemate", "diastereomers")
+OUTCOMES = ("achiral", "one-enantiomer", "racemate", "diastereomers")
 
 
 @dataclass(frozen=True)
@@ -37,7 +37,7 @@ class StereoOutcome:
 
     outcome: str
     """'achiral' (one stereoisomer, superimposable on its mirror image);
-    'single' (one chiral stereoisomer, its configuration fixed by the input);
+    'one-enantiomer' (one chiral stereoisomer, its configuration fixed by the input);
     'racemate' (a pair of enantiomers formed 1:1);
     'diastereomers' (two or more stereoisomers that are not mirror images)."""
     n_stereoisomers: int
@@ -346,7 +346,7 @@ def _counted(n_open: int, chiral: bool, specified: bool, skeleton_forms: int = 1
     if specified or not chiral:
         # Nothing is mirrored: fixed input stereo stays fixed, and E/Z isomers are achiral.
         if n == 1:
-            return StereoOutcome("single" if chiral else "achiral", 1, 1)
+            return StereoOutcome("one-enantiomer" if chiral else "achiral", 1, 1)
         return StereoOutcome("diastereomers", n, n)
     n_dia = n // 2
     return StereoOutcome("racemate" if n_dia == 1 else "diastereomers", n, n_dia)
@@ -361,7 +361,7 @@ def _classify(isomers: dict[str, Chem.Mol], mirrors: dict[str, str], approximate
     n = len(isomers)
     if n == 1:
         smi = next(iter(isomers))
-        return StereoOutcome("achiral" if mirrors[smi] == smi else "single", 1, 1, approximate)
+        return StereoOutcome("achiral" if mirrors[smi] == smi else "one-enantiomer", 1, 1, approximate)
     if len(classes) == 1:
         return StereoOutcome("racemate", n, 1, approximate)
     return StereoOutcome("diastereomers", n, len(classes), approximate)

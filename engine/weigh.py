@@ -11,6 +11,11 @@ in blocks of structures with equally many (:func:`engine.shares.blocks_by_length
 so per-structure sums are whole-array passes; text is gathered only for the
 structures' majors. Large libraries weigh the NBS split and the two reagents on
 threads (numpy and Arrow release the GIL in their loops).
+
+SO2Cl2 is weighed as Cl· at its own temperature (its part is read off Cl2's
+when the two match). Each reagent's outcome, the reagent offered and the
+verdict come from :mod:`engine.outcomes`, from the majors and the structure
+flags only.
 """
 
 from __future__ import annotations
@@ -28,19 +33,25 @@ import pyarrow.compute as pc
 
 from engine.conditions import REAGENTS, Conditions
 from engine.cores import usable_cores
-from engine.nbs import nbs_majors
+from engine.nbs import NBS_SITES, nbs_majors, nbs_percent
+from engine.outcomes import (
+    FEATURES, OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, SITE_REAGENTS, VERDICTS, pathway_applies, reagent_outcomes,
+)
 from engine.polyhalogenation import deactivation, poly_pct_of_block
 from engine.perception import Perception
 from engine.shares import blocks_by_length, percent_of_structure
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
 
-VERDICTS = ("single", "br-selective", "mixture", "inert")
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",
     "confidence", "nbs_major", "nbs_major_pct", "serves", "cl2_poly_pct", "br2_poly_pct",
+    *(f"{r}_outcome" for r in OUTCOME_REAGENTS), *(f"{r}_reason" for r in OUTCOME_REAGENTS),
+    "so2cl2_major", "so2cl2_major_pct",
 )
-#: Order in which ``serves`` tries the reagents: the plainest that reaches the threshold wins (program rule).
-SERVES_ORDER = ("cl2", "br2", "nbs")
+#: Order in which ``serves`` tries the reagents: the plainest whose outcome is clean wins (program rule).
+SERVES_ORDER = OUTCOME_REAGENTS
+#: Reagents with a polyhalide column (so2cl2 is weighed for its outcome only).
+POLY_REAGENTS = tuple(REAGENTS)
 #: Weakest first: the order in which a prediction's bases are ranked.
 BASES = ("estimate", "textbook", "measured")
 #: A product counts towards ``confidence`` when it carries at least this share
@@ -120,11 +131,12 @@ def _site_type_names(masks: np.ndarray) -> tuple[list[str], np.ndarray]:
     return names, index[masks]
 
 
-def _has_flag(flags: pd.Series, flag: str) -> np.ndarray:
-    """Per row, whether the comma-joined ``flags`` include ``flag`` (decided once per distinct value)."""
+def _has_flags(flags: pd.Series, names: Sequence[str]) -> dict[str, np.ndarray]:
+    """Per name, per row: whether the comma-joined ``flags`` include it (decided once per distinct value)."""
     codes, uniques = pd.factorize(flags)
-    has = np.array([flag in str(u).split(",") for u in uniques] + [False], dtype=bool)
-    return has[codes]  # a missing value (code −1) takes the trailing False
+    parts = [set(str(u).split(",")) for u in uniques]
+    # A missing value (code −1) takes the trailing False.
+    return {name: np.array([name in p for p in parts] + [False], dtype=bool)[codes] for name in names}
 
 
 def _labels_column(labels: Sequence[str], codes: np.ndarray) -> object:
@@ -209,33 +221,6 @@ def _gather_text(column: pd.Series, rows: np.ndarray, swap: tuple[str, str] | No
     out[has] = values[rows[has]]
     if swap is not None:
         out = np.array([s.replace(*swap) for s in out], dtype=object)
-    return out
-
-
-def serves(
-    columns: dict, alkene: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
-) -> np.ndarray:
-    """Per structure, the reagent that gives one major monohalide at ≥ threshold, or ''.
-
-    Tried in :data:`SERVES_ORDER` (cl2, br2, nbs): the first whose major share
-    reaches the threshold. A substrate with C=C (``alkene``: its flag, per structure) is offered
-    only nbs, because Cl2 and Br2 add to the double bond. Empty for rejected
-    and inert rows, and when no reagent reaches the threshold.
-    """
-    return np.array(["", *SERVES_ORDER], dtype=object)[_serves_codes(columns, alkene, ok, n_products, threshold_pct)]
-
-
-def _serves_codes(
-    columns: dict, alkene: np.ndarray, ok: np.ndarray, n_products: np.ndarray, threshold_pct: float
-) -> np.ndarray:
-    """As :func:`serves`, as indices into ``("", *SERVES_ORDER)`` (int8)."""
-    out = np.zeros(len(ok), dtype=np.int8)
-    open_ = ok & (n_products > 0)
-    for code, reagent in enumerate(SERVES_ORDER, start=1):
-        pct = np.nan_to_num(np.asarray(columns[f"{reagent}_major_pct"], dtype=np.float64), nan=0.0)
-        allowed = open_ if reagent == "nbs" else open_ & ~alkene
-        hit = allowed & (out == 0) & (pct >= threshold_pct)
-        out[hit] = code
     return out
 
 
@@ -333,7 +318,7 @@ def _chunk_bounds(struct: np.ndarray, size: int) -> list[int]:
 
 
 def _static(perception: Perception) -> dict:
-    """What does not depend on conditions: runs in blocks, product counts, site types, alkene and ok rows."""
+    """What does not depend on conditions: runs in blocks, product counts, site types, features and ok rows."""
     structures, sites = perception.structures, perception.sites
     n = len(structures)
     struct = sites["struct"].to_numpy()
@@ -367,22 +352,54 @@ def _static(perception: Perception) -> dict:
         for _, group in sorted(pieces.items())
     ]
     type_names, type_codes = _site_type_names(masks)
+    # NBS products per structure: perception numbers them from 0 within each structure.
+    nbs_count = np.zeros(n, dtype=np.int32)
+    allylic = perception.allylic
+    if len(allylic):
+        np.maximum.at(nbs_count, allylic["struct"].to_numpy(dtype=np.int64),
+                      allylic["product_id"].to_numpy(dtype=np.int32) + 1)
+    features = _has_flags(structures["flags"], [f for f in FEATURES if f not in ("no_ch", "no_nbs_site")])
+    features |= {"no_ch": n_products == 0, "no_nbs_site": nbs_count == 0}
     return {
         "blocks": blocks, "n_products": n_products, "site_types": _labels_column(type_names, type_codes),
-        "alkene": _has_flag(structures["flags"], "alkene"), "ok": (structures["status"] == "ok").to_numpy(),
+        "features": features, "nbs_count": nbs_count, "ok": (structures["status"] == "ok").to_numpy(),
     }
 
 
-def _nbs_part(perception: Perception, conditions: Conditions) -> tuple[object, np.ndarray]:
-    """NBS major (as a text column, so a live re-weighing need not convert it again) and its percent."""
-    major, pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), len(perception.structures))
+def _nbs_part(perception: Perception, conditions: Conditions) -> tuple[object, np.ndarray, np.ndarray]:
+    """NBS major (as a text column, so a live re-weighing need not convert it again), its percent, and the
+    confidence rank under NBS (weakest basis among NBS products at or above the cut-off)."""
+    n = len(perception.structures)
+    major, pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
     if _ARROW_TEXT:
         major = pd.array(pa.array(major, type=pa.large_string()), dtype=_TEXT_DTYPE)
-    return major, pct
+    return major, pct, _nbs_worst(perception.allylic, conditions, n)
+
+
+def _nbs_worst(allylic: pd.DataFrame, conditions: Conditions, n: int) -> np.ndarray:
+    """Per structure, the index in :data:`BASES` of the weakest rate basis among NBS products with ≥ the cut-off.
+
+    A product's share sums its rows (one per radical giving it); each row's basis is its site class's Br· rate.
+    """
+    worst = np.full(n, len(BASES), dtype=np.int8)
+    if allylic.empty:
+        return worst
+    row_pct = nbs_percent(allylic, conditions.per_h("nbs"), n)
+    struct = allylic["struct"].to_numpy(dtype=np.int64)
+    pid = allylic["product_id"].to_numpy(dtype=np.int64)
+    _, product = np.unique(struct * (int(pid.max()) + 1) + pid, return_inverse=True)
+    summed = np.bincount(product, weights=row_pct)
+    keep = summed[product] >= CONFIDENCE_MIN_PCT
+    rank = basis_rank(conditions, "nbs")[allylic["site_code"].to_numpy()]
+    np.minimum.at(worst, struct[keep], rank[keep])
+    return worst
 
 
 def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reagent: str) -> None:
-    """Fill ``part`` (see :func:`_reagent_tasks`) for the structures of ``slices``, and no others."""
+    """Fill ``part`` (see :func:`_reagent_tasks`) for the structures of ``slices``, and no others.
+
+    ``part["poly"]`` is None for a reagent without a polyhalide column (so2cl2): that solve is skipped.
+    """
     k_of_code = conditions.per_h(reagent)
     rank_of_code = basis_rank(conditions, reagent)
     f = deactivation(reagent)
@@ -399,6 +416,8 @@ def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reag
         part["rows"][piece.struct] = piece.first[win, cols]
         # Confidence: the weakest basis among products at or above the cut-off under this reagent.
         part["worst"][piece.struct] = ranks_at_cutoff(piece.code, pct, rank_of_code).min(axis=0)
+        if part["poly"] is None:
+            continue
         per_h = np.divide(k, total, out=k)  # share per H of the structure's monohalides
         # H of the whole run: in float, since int16 H times int16 count need not fit int16.
         share = np.multiply(piece.h, piece.count, dtype=np.float64)
@@ -411,13 +430,13 @@ def _reagent_tasks(
 ) -> tuple[dict, list[Callable[[], None]]]:
     """One reagent's arrays, and ``tasks`` calls that fill them between them (any order, or at once).
 
-    Arrays: ``major_pct``, ``poly`` (NaN without products), ``rows`` (site row of the
+    Arrays: ``major_pct``, ``poly`` (NaN without products; None for so2cl2), ``rows`` (site row of the
     major, −1 without) and ``worst`` (confidence rank under this reagent). Each call
     weighs its own structures, so the calls can run on separate threads.
     """
     n = len(perception.structures)
     part = {
-        "major_pct": np.full(n, np.nan), "poly": np.full(n, np.nan),
+        "major_pct": np.full(n, np.nan), "poly": np.full(n, np.nan) if reagent in POLY_REAGENTS else None,
         "rows": np.full(n, -1, dtype=np.int64 if len(perception.sites) >= 2**31 else np.int32),
         "worst": np.full(n, len(BASES), dtype=np.int8),
     }
@@ -436,8 +455,69 @@ def _reagent_text(perception: Perception, part: dict, reagent: str) -> dict:
             "worst": part["worst"]}
 
 
+_ALKENE_RULE = next(p for p in PATHWAYS if p.feature == "alkene")
+_NBS_CODES = np.array([SITE_CODE[s] for s in NBS_SITES], dtype=np.int8)
+
+
+def _transposed_split(
+    perception: Perception, conditions: Conditions, reagent: str, rows: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """For structures ``rows`` (bool per structure): the share of the largest product, and how many form, when
+    each allylic radical takes the halogen at either terminus; NaN and 0 elsewhere.
+
+    Used where a C=C substrate substitutes (Cl2/Br2/SO2Cl2 above the temperature at which
+    addition gives way, engine.outcomes): an allylic radical's share is split between the
+    allylic table's products (their terminus shares, engine.nbs), as under NBS; every
+    other C–H keeps its own product. Numbers only: the outcome needs no product name,
+    and a screen names only the products that can lead the per-site split.
+    """
+    n = len(perception.structures)
+    sites, allylic = perception.sites, perception.allylic
+    k = conditions.per_h(reagent)
+    struct = sites["struct"].to_numpy(dtype=np.int64)
+    code = sites["site_code"].to_numpy()
+    inside = rows[struct] & (code < len(ABSTRACTABLE))
+    w = np.where(inside, sites["h_count"].to_numpy(dtype=np.float64) * k[code], 0.0)
+    total = np.bincount(struct, weights=w, minlength=n)
+    plain = inside & ~np.isin(code, _NBS_CODES)  # sites whose radical has one terminus only
+    best = np.zeros(n)
+    count = np.bincount(struct[plain], minlength=n).astype(np.int64)
+    order = np.flatnonzero(plain)
+    if len(order):
+        np.maximum.at(best, struct[order], 100.0 * w[order] / total[struct[order]])
+    a_struct = allylic["struct"].to_numpy(dtype=np.int64) if len(allylic) else np.zeros(0, dtype=np.int64)
+    a_in = np.flatnonzero(rows[a_struct]) if len(a_struct) else a_struct
+    if len(a_in):
+        pid = allylic["product_id"].to_numpy(dtype=np.int64)[a_in]
+        aw = (allylic["h_count"].to_numpy(dtype=np.float64)[a_in] * k[allylic["site_code"].to_numpy()[a_in]]
+              * allylic["share"].to_numpy(dtype=np.float64)[a_in])
+        _, first_row, inverse = np.unique(a_struct[a_in] * (int(pid.max()) + 1) + pid, return_index=True,
+                                          return_inverse=True)
+        p_struct = a_struct[a_in][first_row]
+        count += np.bincount(p_struct, minlength=n)
+        np.maximum.at(best, p_struct, 100.0 * np.bincount(inverse, weights=aw) / total[p_struct])
+    return np.where(rows & (total > 0), best, np.nan), count
+
+
+def _borrowed_so2cl2(conditions: Conditions, cl2: dict) -> dict | None:
+    """The so2cl2 part read off Cl2's, when both weigh Cl· alike (same temperature, Cl2 neat); else None.
+
+    SO2Cl2 borrows the Cl· constants, so its shares are Cl2's; only its bases differ
+    (every one an estimate), and with one basis for every site the weakest among the
+    products at or above the cut-off is that basis wherever the major reaches it.
+    """
+    if conditions.cl2_solvent != "none" or conditions.so2cl2_temp_c != conditions.cl2_temp_c:
+        return None
+    rank = basis_rank(conditions, "so2cl2")[: len(ABSTRACTABLE)]
+    if len(set(rank.tolist())) != 1:
+        return None
+    pct = cl2["major_pct"]
+    worst = np.where(np.nan_to_num(pct, nan=0.0) >= CONFIDENCE_MIN_PCT, rank[0], len(BASES)).astype(np.int8)
+    return {"major": cl2["major"], "major_pct": pct, "stereo": None, "poly": None, "worst": worst}
+
+
 def summarise(perception: Perception, conditions: Conditions, memo: dict | None = None) -> pd.DataFrame:
-    """One row per structure: product count, verdict, majors, stereo, site types, confidence.
+    """One row per structure: product count, verdict, outcomes per reagent, majors, stereo, site types, confidence.
 
     ``memo`` (a dict the caller keeps per perception) remembers the parts that
     depend on only one reagent's settings, so a live change of one temperature
@@ -445,16 +525,19 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     """
     structures = perception.structures
     n = len(structures)
-    keys = {r: conditions.reagent_key(r) for r in ("nbs", *REAGENTS)}
+    keys = {r: conditions.reagent_key(r) for r in ("nbs", *SITE_REAGENTS)}
     pool = _pool(perception)
     try:
         # NBS first (without threads its temporaries, the largest, are then reused by what follows).
         nbs = _start(memo, keys["nbs"], lambda: _nbs_part(perception, conditions), pool)
         static = _memo(memo, ("static",), lambda: _static(perception))
-        parts = {r: memo[keys[r]] for r in REAGENTS if memo is not None and keys[r] in memo}
+        parts = {r: memo[keys[r]] for r in SITE_REAGENTS if memo is not None and keys[r] in memo}
+        # so2cl2 at Cl2's temperature (Cl2 neat) is Cl2's weighing: never weighed twice.
+        borrow = conditions.cl2_solvent == "none" and conditions.so2cl2_temp_c == conditions.cl2_temp_c
+        wanted = set(SITE_REAGENTS) - set(parts) - ({"so2cl2"} if borrow else set())
         # Each missing reagent is weighed in _TASKS_PER_REAGENT shares, br2 (the longer) first, then its text.
         filling = {}
-        for r in sorted(set(REAGENTS) - set(parts), key=lambda r: r != "br2"):
+        for r in sorted(wanted, key=lambda r: (r != "br2", r)):
             part, calls = _reagent_tasks(perception, static, conditions, r, _TASKS_PER_REAGENT if pool else 1)
             filling[r] = part, [pool.submit(c) if pool else _Known(c()) for c in calls]
         texts = {}
@@ -464,38 +547,63 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
             text = partial(_reagent_text, perception, part, r)
             texts[r] = pool.submit(text) if pool else _Known(text())
         parts |= {r: _finish(memo, keys[r], texts[r]) for r in texts}
-        nbs_major, nbs_major_pct = _finish(memo, keys["nbs"], nbs)
+        nbs_major, nbs_major_pct, nbs_worst = _finish(memo, keys["nbs"], nbs)
     finally:
         if pool is not None:
             pool.shutdown()
+    if "so2cl2" not in parts:
+        borrowed = _borrowed_so2cl2(conditions, parts["cl2"])
+        if borrowed is None:  # bases not uniform: weigh it after all
+            part, calls = _reagent_tasks(perception, static, conditions, "so2cl2", 1)
+            for call in calls:
+                call()
+            borrowed = _reagent_text(perception, part, "so2cl2")
+        parts["so2cl2"] = borrowed
     if memo is None:
         del static["blocks"]  # done with: the text columns below can reuse its memory
-    # A structure's weakest basis over all reagents is the weakest of each reagent's.
-    confidence = _labels_column((*BASES, ""), reduce(np.minimum, (parts[r]["worst"] for r in REAGENTS)))
 
     ok, n_products = static["ok"], static["n_products"]
-    verdict = np.zeros(n, dtype=np.int8)  # indices into ("", *VERDICTS)
-    code = {v: i for i, v in enumerate(VERDICTS, start=1)}
-    br_pct = np.nan_to_num(parts["br2"]["major_pct"], nan=0.0)
-    verdict[ok] = code["mixture"]
-    verdict[ok & (br_pct >= conditions.threshold_pct)] = code["br-selective"]
-    verdict[ok & (n_products == 1)] = code["single"]
-    verdict[ok & (n_products == 0)] = code["inert"]
-    majors = {f"{r}_major_pct": parts[r]["major_pct"] for r in REAGENTS} | {"nbs_major_pct": nbs_major_pct}
+    one_product = {r: n_products == 1 for r in SITE_REAGENTS} | {"nbs": static["nbs_count"] == 1}
+    alkene = static["features"]["alkene"]
+    majors = {r: parts[r]["major_pct"] for r in SITE_REAGENTS} | {"nbs": nbs_major_pct}
+    for r in SITE_REAGENTS:
+        if alkene.any() and not pathway_applies(_ALKENE_RULE, r, conditions):
+            # Hot enough that a C=C substrate substitutes: its allylic radicals give both termini, so its
+            # outcome is judged on that split (the major columns stay per site).
+            pct, count = _transposed_split(perception, conditions, r, alkene & ok)
+            majors[r] = np.where(alkene & ok, pct, majors[r])
+            one_product[r] = np.where(alkene, count == 1, one_product[r])
+    result = reagent_outcomes(static["features"], majors, ok, one_product, conditions)
+    # Confidence: the weakest basis of each reagent whose percentages apply (not ruled out); so2cl2 only when it
+    # is the reagent offered, since its constants are Cl2's by assumption and would mark every row an estimate.
+    worst = {r: parts[r]["worst"] for r in SITE_REAGENTS} | {"nbs": nbs_worst}
+    ruled = len(OUTCOMES)  # code of "ruled-out"
+    ranks = []
+    for code, r in enumerate(OUTCOME_REAGENTS, start=1):
+        counts = result.outcome[r] != ruled if r != "so2cl2" else result.serves == code
+        ranks.append(np.where(counts, worst[r], len(BASES)).astype(np.int8))
+    confidence = _labels_column((*BASES, ""), reduce(np.minimum, ranks))
     out = {
         "n_products": n_products,
-        "verdict": _labels_column(("", *VERDICTS), verdict),
+        "verdict": _labels_column(("", *VERDICTS), result.verdict),
         "cl2_major": parts["cl2"]["major"], "cl2_major_pct": parts["cl2"]["major_pct"],
         "br2_major": parts["br2"]["major"], "br2_major_pct": parts["br2"]["major_pct"],
         "stereo": parts["br2"]["stereo"],
         "site_types": static["site_types"],
         "confidence": confidence,
         "nbs_major": nbs_major, "nbs_major_pct": nbs_major_pct,
-        "serves": _labels_column(("", *SERVES_ORDER), _serves_codes(majors, static["alkene"], ok, n_products,
-                                                                     conditions.threshold_pct)),
+        "serves": _labels_column(("", *SERVES_ORDER), result.serves),
         "cl2_poly_pct": parts["cl2"]["poly"], "br2_poly_pct": parts["br2"]["poly"],
+        "so2cl2_major": parts["so2cl2"]["major"], "so2cl2_major_pct": parts["so2cl2"]["major_pct"],
     }
+    for r in OUTCOME_REAGENTS:
+        out[f"{r}_outcome"] = _labels_column(("", *OUTCOMES), result.outcome[r])
+        out[f"{r}_reason"] = _labels_column(("", *REASONS), result.reason[r])
     if memo is not None:  # the frame must not share arrays with what the memo hands to later frames
         out = {c: v.copy() if isinstance(v, np.ndarray) else v for c, v in out.items()}
+    # so2cl2 borrowed from cl2 shares its arrays: the frame gets its own.
+    if out["so2cl2_major_pct"] is out["cl2_major_pct"]:
+        out["so2cl2_major_pct"] = out["so2cl2_major_pct"].copy()
+        out["so2cl2_major"] = out["so2cl2_major"].copy()
     # Not copied again (nor consolidated into 2-D blocks): every array above is this frame's own.
     return pd.DataFrame({c: out[c] for c in SUMMARY_COLUMNS}, index=structures.index, copy=False)

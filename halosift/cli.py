@@ -8,6 +8,7 @@ import sys
 from dataclasses import asdict
 from collections.abc import Sequence
 
+from engine.outcomes import VERDICTS
 from halosift.formatting import explanation_table
 
 EXIT_OK = 0
@@ -129,7 +130,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_condition_options(rp, "both reagents")
     _add_phase_option(rp)
     _add_library_options(rp)
-    rp.add_argument("--only", action="append", choices=["single", "br-selective", "mixture", "inert"],
+    rp.add_argument("--only", action="append", choices=list(VERDICTS),
                     help="report only rows with this verdict (repeatable; default: every row)")
     rp.add_argument("--ids", metavar="FILE", help="report only the rows whose ID is listed in FILE (one per line)")
     rp.add_argument("--max-pages", type=int, default=200, metavar="N",
@@ -234,9 +235,10 @@ def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> li
     if result.status != "ok" or result.verdict == "inert":
         return []  # nothing to halogenate, nothing to plan
     h = [p.h_count for p in result.products]
+    # A reagent ruled out (addition, ring opening, …) does not substitute: its polyhalide plan would mislead.
     return [
         plan(r, h, [p.pct[r] for p in result.products], ratio=ratio, conversion_pct=args.conversion, max_poly_pct=cap)
-        for r in reagents if r in EXPLAIN_REAGENTS
+        for r in reagents if r in EXPLAIN_REAGENTS and result.outcome(r).outcome != "ruled-out"
     ]
 
 

@@ -64,15 +64,14 @@ def explanation_table(
         lines += [""] if reagents else []
         lines += _nbs_lines(result)
     lines.append("")
-    lines.append(f"verdict    {result.verdict}  (threshold {cond.threshold_pct:g} % for br-selective)")
-    served = result.serves or "none"
-    lines.append(
-        f"serves     {served}  (first of cl2, br2, nbs whose major product reaches the threshold; with C=C only nbs)"
-    )
-    confidence = result.confidence(tuple(reagents))
-    if confidence and reagents:
+    lines += outcome_lines(result)
+    asked = tuple(dict.fromkeys([*reagents, *([NBS] if nbs else [])]))
+    confidence = result.shown_confidence(asked)
+    if confidence:
+        counted = result.counted_reagents(asked)
         lines.append(
-            f"confidence {confidence}  (weakest rate basis among products with ≥ 5 % under {', '.join(reagents)})"
+            f"confidence {confidence}  (weakest rate basis among products with ≥ 5 % under {', '.join(counted)}; "
+            "ruled-out reagents do not count)"
         )
     lines.append("units      BDE and ΔH in kcal/mol; * marks an estimated bond enthalpy")
     lines.append("basis      what each rate constant rests on: measured / textbook / estimate (engine/parameters.py)")
@@ -85,6 +84,36 @@ def explanation_table(
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)
+
+
+def outcome_lines(result: Explanation) -> list[str]:
+    """Per reagent what it does (clean / mixture / ruled-out, with the reason), then the verdict and offer."""
+    from engine.outcomes import verdict_docs
+
+    cond = result.conditions
+    rows = []
+    for o in result.outcomes:
+        pct = "" if o.major_pct != o.major_pct else f"{o.major_pct:.1f}"
+        rows.append([o.reagent, f"{o.temp_c:g}", o.outcome, o.major or "-", pct, o.reason])
+    lines = [f"outcomes   per reagent (clean: one monohalide at ≥ {cond.threshold_pct:g} %; ruled-out: the "
+             "substitution split does not apply)"]
+    lines += ["  " + line for line in _table(["reagent", "°C", "outcome", "major (substitution split)", "%", "why"],
+                                              rows, right={1, 4})]
+    # A rule's source is printed once: not again where a flag line or a reagent note already gives it.
+    shown = " ".join([*(f.source for f in result.flags), *REAGENT_NOTES.values()])
+    sources = dict.fromkeys(o.source for o in result.outcomes if o.source and o.source not in shown)
+    lines.extend(f"rule       {src}" for src in sources)
+    if any(f.flag == "alkene" for f in result.flags) and any(
+        o.outcome != "ruled-out" for o in result.outcomes if o.reagent != NBS
+    ):
+        lines.append("note       hot enough to substitute a C=C substrate: the outcome splits each allylic radical's "
+                     "share between its two termini (as under NBS); the products and majors shown are per site")
+    meaning = verdict_docs(cond.threshold_pct).get(result.verdict, "")
+    lines.append(f"verdict    {result.verdict}  ({meaning})")
+    served = result.serves or "none"
+    lines.append(f"serves     {served}  (first of cl2, br2, so2cl2, nbs whose outcome is clean; never one that is "
+                 "mixture or ruled-out)")
+    return lines
 
 
 def _nbs_lines(result: Explanation) -> list[str]:

@@ -23,14 +23,14 @@ def test_explain_table(capsys: pytest.CaptureFixture) -> None:
     assert main(["explain", "CCC"]) == 0
     out = capsys.readouterr().out
     assert "CC(C)Cl" in out and "CCCCl" in out
-    assert "verdict    br-selective" in out
+    assert "verdict    selective" in out and "serves     br2" in out
     assert "SAFETY" in out
 
 
 def test_explain_json(capsys: pytest.CaptureFixture) -> None:
     assert main(["explain", "CCC", "--json", "--phase", "gas"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert data["verdict"] == "br-selective"
+    assert data["verdict"] == "selective" and data["serves"] == "br2"
     by_smiles = {p["smiles"]: p for p in data["products"]}
     assert set(by_smiles) == {"CC(C)Cl", "CCCCl"}
     assert by_smiles["CCCCl"]["h_count"] == 6

@@ -85,9 +85,11 @@ def test_cli_so2cl2_json(capsys: pytest.CaptureFixture) -> None:
     assert data["confidence"] == "estimate"
 
 
-def test_screen_columns_stay_cl2_br2_only() -> None:
+def test_screen_gives_so2cl2_its_outcome_only() -> None:
+    # A screen weighs SO2Cl2 for its outcome (engine.outcomes): major, share, outcome and reason, no polyhalide.
     result = engine.screen(__import__("pandas").DataFrame({"smiles": ["CCC"]}))
-    assert not [c for c in result.columns if c.startswith("so2cl2")]
+    assert {c for c in result.columns if c.startswith("so2cl2")} == {
+        "so2cl2_major", "so2cl2_major_pct", "so2cl2_outcome", "so2cl2_reason"}
     assert {"cl2_major", "br2_major", "cl2_major_pct", "br2_major_pct"} <= set(result.columns)
 
 

@@ -21,18 +21,19 @@ from halosift.report.charts import histogram, nice_ticks
 
 #: An invented supplier's list (IDs made up): every verdict, a repeated structure and several rejections.
 ROWS = [
-    ("KV-101", "CC"),              # single
-    ("KV-102", "CCC"),             # br-selective
+    ("KV-101", "CC"),              # by-symmetry
+    ("KV-102", "CCC"),             # selective (Br2)
     ("KV-103", "CC(C)CC"),         # mixture? decided by the engine, not here
-    ("KV-104", "Cc1ccccc1"),       # single (benzylic)
+    ("KV-104", "Cc1ccccc1"),       # by-symmetry (benzylic)
     ("KV-105", "c1ccccc1"),        # inert
     ("KV-106", "CCCCC"),           # mixture
     ("KV-107", "CCO"),             # rejected: oxygen
     ("KV-108", "C1CC"),            # rejected: unparsable
     ("KV-109", "CCC"),             # repeats KV-102
-    ("KV-110", "C[C@H](CC)C=C"),   # stereo-defined, allylic
+    ("KV-110", "C[C@H](CC)C=C"),   # stereo-defined, allylic: Cl2/Br2 add to its C=C
     ("KV-111", "[CH3]"),           # rejected: radical
-    ("KV-112", "C1CCCCC1"),        # single (one kind of CH2)
+    ("KV-112", "C1CCCCC1"),        # by-symmetry (one kind of CH2)
+    ("KV-113", "CC1CC1"),          # ruled-out: the cyclopropylmethyl radical ring-opens
 ]
 
 VOID = {"area", "base", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source", "track", "wbr"}
@@ -125,7 +126,7 @@ def test_page_is_well_formed_with_header_and_one_section_per_substrate(tmp_path:
 
 
 def test_summary_counts_equal_the_screen(tmp_path: Path) -> None:
-    page = report(tmp_path, "--only", "single")  # the selection must not change the summary
+    page = report(tmp_path, "--only", "by-symmetry")  # the selection must not change the summary
     screened = engine.screen(tmp_path / "kv_catalogue.csv")
     counts = summary_counts(page)
     ok = screened["status"] == "ok"
@@ -162,11 +163,11 @@ def _ids(folder: Path, ids: list[str]) -> Path:
 
 
 def test_only_filters_by_verdict(tmp_path: Path) -> None:
-    page = report(tmp_path, "--only", "single", "--only", "inert")
+    page = report(tmp_path, "--only", "by-symmetry", "--only", "inert")
     screened = engine.screen(tmp_path / "kv_catalogue.csv")
-    expected = [i + 1 for i, v in enumerate(screened["verdict"]) if v in ("single", "inert")]
+    expected = [i + 1 for i, v in enumerate(screened["verdict"]) if v in ("by-symmetry", "inert")]
     assert expected and section_rows(page) == expected
-    assert "verdict single or inert" in page
+    assert "verdict by-symmetry or inert" in page
 
 
 def test_ids_filter_and_unknown_ids(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:

@@ -30,6 +30,7 @@ EDGE_CASES = [
     "C1CC2(C1)CC2", "C1=CC2CC1C=C2", "c1ccc2c(c1)CCC2", "C1CCC2CCCCC2C1", "CC=CC(C)C#CC", "C1CC=CC1",
     "C1CC2CCC1C2", "CC1CC2CCC1C2", "CC1C2CCC1CC2", "CC1(C)C2CCC1(C)CC2", "C1=CC2CCC1C2", "C1CC2C3CCC(C3)C2C1",
     "C1CC2CC1C1CCCC21", "C=C1CC2CCC1C2",
+    "C1C23CC12C3", "C1C2CC12", "CC12CC1C2", "C1CC23CCC12CC3", "C1CC2CCC12", "C12C3C1C23",
 ]
 
 
@@ -130,8 +131,33 @@ def _reference_class(atom: Chem.Atom) -> str:
     return f"norbornyl-{role}-{_DEGREE[degree]}" if role else _DEGREE[degree]
 
 
+def _small_cycles_through(mol: Chem.Mol, a: int, b: int, longest: int = 4) -> int:
+    """Simple cycles of at most ``longest`` atoms that use bond a–b, by walking every path from b back to a."""
+    found = 0
+
+    def walk(path: list[int]) -> None:
+        nonlocal found
+        for n in mol.GetAtomWithIdx(path[-1]).GetNeighbors():
+            i = n.GetIdx()
+            if i == a and len(path) >= 3:
+                found += 1
+            elif i not in path and i != a and len(path) < longest:
+                walk(path + [i])
+
+    walk([a, b])
+    return found
+
+
 def _reference_flags(mol: Chem.Mol) -> tuple[str, ...]:
     found = set()
+    if any(atom.IsInRingSize(3) for atom in mol.GetAtoms()):
+        found.add("cyclopropane")
+    for bond in mol.GetBonds():
+        a, b = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
+        if _small_cycles_through(mol, a, b, 3) >= 2 or _small_cycles_through(mol, a, b, 4) >= 3:
+            found.add("central_bond")  # bicyclo[1.1.0]butane's C1–C3, a small propellane's central bond
+    if any(b.GetBondType() == Chem.BondType.TRIPLE for b in mol.GetBonds()):
+        found.add("alkyne")
     for atom in mol.GetAtoms():
         if not _sp3_h(atom):
             continue

@@ -24,11 +24,12 @@ def flags(smiles: str) -> tuple[str, ...]:
 @pytest.mark.parametrize(
     ("smiles", "expected", "why"),
     [
-        ("CC1CC1", ("cyclopropylmethyl",), "methylcyclopropane: CH3 on a ring carbon"),
-        ("CCC1CC1", ("cyclopropylmethyl",), "ethylcyclopropane: CH2 on a ring carbon"),
-        ("C1CC1", (), "cyclopropane: its C–H are on the ring itself (cyclopropyl, not cyclopropylmethyl)"),
-        ("C1CC12CC2", (), "spiropentane: every C–H is a ring C–H"),
-        ("CC(C)(C)C1CC1", (), "tert-butylcyclopropane: the carbon next to the ring has no H"),
+        ("CC1CC1", ("cyclopropylmethyl", "cyclopropane"), "methylcyclopropane: CH3 on a ring carbon"),
+        ("CCC1CC1", ("cyclopropylmethyl", "cyclopropane"), "ethylcyclopropane: CH2 on a ring carbon"),
+        ("C1CC1", ("cyclopropane",),
+         "cyclopropane: its C–H are on the ring itself (cyclopropyl, not cyclopropylmethyl); the ring is flagged"),
+        ("C1CC12CC2", ("cyclopropane",), "spiropentane: every C–H is a ring C–H"),
+        ("CC(C)(C)C1CC1", ("cyclopropane",), "tert-butylcyclopropane: the carbon next to the ring has no H"),
         ("C1CC2CCC1C2", ("bridgehead",), "norbornane, bicyclo[2.2.1]"),
         ("C1CC2CCC1CC2", ("bridgehead",), "bicyclo[2.2.2]octane"),
         ("C1C2CC1C2", ("bridgehead",), "bicyclo[1.1.1]pentane"),
@@ -37,6 +38,11 @@ def flags(smiles: str) -> tuple[str, ...]:
         ("C1CCC2CCCCC2C1", (), "decalin: fused (zero-atom bridge), not bridged"),
         ("C12C3C4C1C5C2C3C45", ("bridgehead", "cage"), "cubane"),
         ("C=CC", ("alkene",), "propene"),
+        ("CC#C", ("alkyne",), "propyne: halogens add to C≡C (common practice)"),
+        ("C1C23CC12C3", ("cyclopropane", "central_bond"), "[1.1.1]propellane: three triangles share the C1–C3 bond"),
+        ("C1C2CC12", ("cyclopropane", "central_bond"), "bicyclo[1.1.0]butane: two triangles share C1–C3"),
+        ("C1CC23CCC12CC3", ("central_bond",), "[2.2.2]propellane: three 4-rings share the central bond"),
+        ("C1CC2CCC12", (), "bicyclo[2.2.0]hexane: its shared bond lies on two 4-rings only"),
         ("C1=CC2CCC1C2", ("bridgehead", "alkene"), "norbornene"),
         ("Cc1ccccc1", (), "toluene: aromatic rings are not alkenes"),
         ("CCCC", (), "butane"),
@@ -52,7 +58,8 @@ def test_every_flag_has_a_note_with_source() -> None:
         assert note.note and note.source
     # Griller & Ingold, Acc. Chem. Res. 1980, 13, 317 (from memory): k ≈ 1e8 s⁻¹ at 25 °C.
     assert P.K_CYCLOPROPYLMETHYL_OPENING.value == 1e8 and "1e8" in FLAG_NOTES["cyclopropylmethyl"].note
-    # Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1239 (from memory): allyl chloride at 400–600 °C.
+    # Groll & Hearne, Ind. Eng. Chem. 1939, 31, 1530 (cited by Hearne et al., J. Am. Chem. Soc. 1953, 75):
+    # allyl chloride from propene + Cl2 at 400 °C and above.
     assert "400" in FLAG_NOTES["alkene"].note and "Groll" in FLAG_NOTES["alkene"].source
 
 
@@ -68,7 +75,7 @@ def test_bridgehead_atoms_of_norbornane() -> None:
 def test_perception_stores_flags() -> None:
     assert "flags" in STRUCTURE_SCHEMA.names
     p = engine.perceive(["CC1CC1", "C=CC", "CCC", "CCO", "C1CC2CCC1C2"])
-    assert list(p.structures["flags"]) == ["cyclopropylmethyl", "alkene", "", "", "bridgehead"]
+    assert list(p.structures["flags"]) == ["cyclopropylmethyl,cyclopropane", "alkene", "", "", "bridgehead"]
 
 
 def test_screen_flags_column_and_cache(tmp_path: Path) -> None:
@@ -76,7 +83,7 @@ def test_screen_flags_column_and_cache(tmp_path: Path) -> None:
     cold = engine.load_library(frame, cache_folder=tmp_path).evaluate()
     warm = engine.load_library(frame, cache_folder=tmp_path).evaluate()  # read back from the cache
     for result in (cold, warm):
-        assert list(result["flags"]) == ["cyclopropylmethyl", "", "cyclopropylmethyl,alkene", ""]
+        assert list(result["flags"]) == ["cyclopropylmethyl,cyclopropane", "", "cyclopropylmethyl,cyclopropane,alkene", ""]
 
 
 def test_explain_shows_flags(capsys: pytest.CaptureFixture) -> None:

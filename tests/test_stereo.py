@@ -44,7 +44,7 @@ def test_specified_input_stereo_is_counted_relative() -> None:
     assert product("CC[C@H](C)CCC", "CC(Cl)[C@@H](C)CCC").n_stereoisomers == 2
     assert product("CC[C@H](C)CCC", "CCC(C)(Cl)CCC").stereo == "racemate"
     # A remote, non-stereogenic position keeps the one configuration.
-    assert product("CC[C@H](C)CCC", "ClCC[C@H](C)CCC").stereo == "single"
+    assert product("CC[C@H](C)CCC", "ClCC[C@H](C)CCC").stereo == "one-enantiomer"
 
 
 def test_specified_meso_ring_gives_both_enantiomer_sets() -> None:

@@ -87,19 +87,19 @@ async def test_whole_path(tmp_path):
         counts = plain(app.query_one("#counts"))
         assert f"{len(frame):,} rows" in counts and f"{n_ok:,} shown" in counts
 
-        # --- filter to "single" with the filter form, keyboard only
+        # --- filter to "by-symmetry" with the filter form, keyboard only
         await pilot.press("f")
         assert isinstance(app.screen, FilterForm)
-        assert app.focused.id == "verdict-single"
+        assert app.focused.id == "verdict-by-symmetry"
         await pilot.press("tab")  # Tab walks the form
-        assert app.focused.id == "verdict-br-selective"
+        assert app.focused.id == "verdict-selective"
         await pilot.press("shift+tab", "space", "ctrl+s")
         await settle(pilot, app)
-        assert app.filters.verdicts == {"single"}
+        assert app.filters.verdicts == {"by-symmetry"}
         view = shown(app)
-        assert len(view) == int((frame["verdict"] == "single").sum()) > 0
-        assert set(view["verdict"]) == {"single"}
-        assert "verdict single" in plain(app.query_one("#settings"))
+        assert len(view) == int((frame["verdict"] == "by-symmetry").sum()) > 0
+        assert set(view["verdict"]) == {"by-symmetry"}
+        assert "verdict by-symmetry" in plain(app.query_one("#settings"))
 
         # --- sort by the SMILES column, both directions
         table = app.query_one(LibraryTable)
@@ -119,7 +119,7 @@ async def test_whole_path(tmp_path):
         await pilot.press("x")
         await settle(pilot, app)
         before = app.frame
-        mixtures = before.index[(before["verdict"] == "mixture") | (before["verdict"] == "br-selective")]
+        mixtures = before.index[(before["verdict"] == "mixture") | (before["verdict"] == "selective")]
         assert len(mixtures)
         first = int(mixtures[0])
         await pilot.press("t")
@@ -252,7 +252,7 @@ async def test_detail_shows_every_product_and_steps(tmp_path):
         # Bars: one line per product, both reagents, with the engine's percentages.
         for p in products.itertuples():
             assert f"{p.cl2_pct:5.1f} %" in text and f"{p.br2_pct:5.1f} %" in text
-        assert "br-selective" in head and "Cl2 at 25 °C" in head
+        assert "selective" in head and "Cl2 at 25 °C" in head
         # Space marks the shown row from the detail screen too.
         await pilot.press("space")
         await pilot.pause()
@@ -337,10 +337,10 @@ async def test_mark_all_shown_and_input_columns(tmp_path):
     app = HalosiftApp(str(small_library(tmp_path)))
     async with app.run_test(size=SIZE) as pilot:
         await settle(pilot, app)
-        app.filters = app.filters.__class__(verdicts=frozenset({"single"}))
+        app.filters = app.filters.__class__(verdicts=frozenset({"by-symmetry"}))
         await settle(pilot, app)
         await pilot.press("a")
-        assert int(app.marked.sum()) == len(shown(app)) == int((app.frame["verdict"] == "single").sum())
+        assert int(app.marked.sum()) == len(shown(app)) == int((app.frame["verdict"] == "by-symmetry").sum())
         await pilot.press("u")
         assert int(app.marked.sum()) == 0
         keys = [c.key for c in app.query_one(LibraryTable).columns]
@@ -518,7 +518,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         head = plain(screen.query_one("#detail-head"))
         assert f"Confidence: {record['confidence']}" in head and "Flags: alkene" in head
         notes = plain(screen.query_one("#detail-notes"))
-        assert "addition to the double bond competes with substitution" in notes
+        assert "add to the double bond at ordinary temperatures" in notes
         assert "NBS" in notes and "serves allylic substitution" in notes
         nbs = plain(screen.query_one("#detail-nbs"))
         for p in app.library.nbs_products(row, app.conditions).itertuples():

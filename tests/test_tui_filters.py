@@ -34,7 +34,7 @@ def frame() -> pd.DataFrame:
             "status": ["ok", "ok", "ok", "ok", "rejected", "ok", "ok"],
             "reason": ["", "", "", "", "contains oxygen", "", ""],
             "n_products": pd.array([1, 2, 2, 5, None, 0, 2], dtype="Int32"),
-            "verdict": ["single", "br-selective", "br-selective", "mixture", "", "inert", "br-selective"],
+            "verdict": ["by-symmetry", "selective", "selective", "mixture", "", "inert", "selective"],
             "br2_major_pct": [100.0, 96.5, 99.99, 49.5, np.nan, np.nan, 99.5],
             "stereo": ["achiral", "achiral", "racemate", "racemate", "", "", "achiral"],
             "site_types": [
@@ -59,8 +59,8 @@ def test_no_filters_keeps_every_screened_row_and_drops_rejected():
 
 
 def test_verdict_filter():
-    assert rows(filter_mask(frame(), FilterSpec(verdicts=frozenset({"single"})), *TEXT)) == [0]
-    both = FilterSpec(verdicts=frozenset({"single", "inert"}))
+    assert rows(filter_mask(frame(), FilterSpec(verdicts=frozenset({"by-symmetry"})), *TEXT)) == [0]
+    both = FilterSpec(verdicts=frozenset({"by-symmetry", "inert"}))
     assert rows(filter_mask(frame(), both, *TEXT)) == [0, 5]
 
 
@@ -102,13 +102,13 @@ def test_text_match_ignores_case_in_ids_but_not_in_smiles():
 
 
 def test_filters_combine_with_and():
-    spec = FilterSpec(verdicts=frozenset({"br-selective"}), min_br2_pct=99.0, no_new_stereo=True)
+    spec = FilterSpec(verdicts=frozenset({"selective"}), min_br2_pct=99.0, no_new_stereo=True)
     assert rows(filter_mask(frame(), spec, *TEXT)) == [6]
 
 
 def test_views():
     marked = np.array([False, True, False, False, True, False, False])
-    spec = FilterSpec(verdicts=frozenset({"single"}))
+    spec = FilterSpec(verdicts=frozenset({"by-symmetry"}))
     assert rows(view_mask(frame(), "library", spec, marked, *TEXT)) == [0]
     # The shortlist and rejected views ignore the filters.
     assert rows(view_mask(frame(), "shortlist", spec, marked, *TEXT)) == [1, 4]
@@ -121,10 +121,10 @@ def test_describe_and_active():
     assert FilterSpec().describe() == "no filters"
     assert not FilterSpec().active
     assert not FilterSpec(site_match="all").active
-    spec = FilterSpec(verdicts=frozenset({"single"}), min_br2_pct=90, max_products=2, no_new_stereo=True, text="QX")
+    spec = FilterSpec(verdicts=frozenset({"by-symmetry"}), min_br2_pct=90, max_products=2, no_new_stereo=True, text="QX")
     assert spec.active
     text = spec.describe()
-    for part in ("verdict single", "Br2 major ≥ 90 %", "≤ 2 products", "no new stereocentre", "QX"):
+    for part in ("verdict by-symmetry", "Br2 major ≥ 90 %", "≤ 2 products", "no new stereocentre", "QX"):
         assert part in text
     assert spec.without_text().text == ""
 
@@ -174,11 +174,11 @@ def test_text_sort_and_category_sort():
     f = frame()
     key, missing = sort_key(f["smiles"])
     assert [f["smiles"][i] for i in full_order(key, missing, False)] == sorted(f["smiles"])
-    ranks = {v: i for i, v in enumerate(("single", "br-selective", "mixture", "inert"))}
+    ranks = {v: i for i, v in enumerate(("by-symmetry", "selective", "mixture", "inert"))}
     key, missing = sort_key(f["verdict"], ranks)
     order = full_order(key, missing, False).tolist()
     assert [f["verdict"][i] for i in order] == [
-        "single", "br-selective", "br-selective", "br-selective", "mixture", "inert", "",
+        "by-symmetry", "selective", "selective", "selective", "mixture", "inert", "",
     ]
     # Descending keeps the rejected (empty) row last, and equal verdicts in input order.
     down = full_order(key, missing, True).tolist()
@@ -196,7 +196,7 @@ def test_ordered_rows_and_order_cache():
     cache = OrderCache(max_entries=2)
     order = cache.order(f, "t", "br2_major_pct", True)
     assert cache.order(f, "t", "br2_major_pct", True) is order
-    mask = filter_mask(f, FilterSpec(verdicts=frozenset({"br-selective"})), *TEXT)
+    mask = filter_mask(f, FilterSpec(verdicts=frozenset({"selective"})), *TEXT)
     assert ordered_rows(mask, order).tolist() == [2, 6, 1]
     assert ordered_rows(mask, None).tolist() == [1, 2, 6]
     cache.order(f, "t", "smiles", False)
@@ -214,7 +214,7 @@ def test_filters_work_on_a_real_evaluated_library():
 
     source = pd.DataFrame({"code": ["QX-1", "QX-2", "QX-3", "QX-4"], "smiles": ["CC", "CCC", "O", "c1ccccc1"]})
     evaluated = engine.load_library(source, use_cache=False).evaluate(engine.Conditions())
-    assert rows(filter_mask(evaluated, FilterSpec(verdicts=frozenset({"single"})), *TEXT)) == [0]
+    assert rows(filter_mask(evaluated, FilterSpec(verdicts=frozenset({"by-symmetry"})), *TEXT)) == [0]
     assert rows(view_mask(evaluated, "rejected", FilterSpec(), np.zeros(4, bool), *TEXT)) == [2]
     assert rows(filter_mask(evaluated, FilterSpec(text="c1"), ["code"], ["canonical_smiles"])) == [3]
     assert rows(filter_mask(evaluated, FilterSpec(max_products=0), *TEXT)) == [3]

@@ -72,8 +72,8 @@ async def test_100k_rows_open_sort_and_filter_virtually(monkeypatch):
         await pilot.pause()
         assert table.cursor == len(table.rows) - 1 - table.page_height
 
-        # Filter: single only, then a text match.
-        app.filters = FilterSpec(verdicts=frozenset({"single"}))
+        # Filter: by-symmetry only, then a text match.
+        app.filters = FilterSpec(verdicts=frozenset({"by-symmetry"}))
         await settle(pilot, app)
         assert len(table.rows) == 3 * N_ROWS // len(STRUCTURES)  # CC, Cc1ccccc1, C1CCCCC1
         app.filters = FilterSpec(text="QX-00001")
@@ -98,5 +98,5 @@ def test_fit_and_format_values():
     values = np.array([12.345, np.nan, None], dtype=object)
     assert format_values("pct", values, np.arange(3)) == ["12.3", "", ""]
     assert format_values("count", np.array([2, pd.NA], dtype=object), np.arange(2)) == ["2", ""]
-    assert format_values("verdict", np.array(["single", ""], dtype=object), np.arange(2)) == ["single", "rejected"]
+    assert format_values("verdict", np.array(["by-symmetry", ""], dtype=object), np.arange(2)) == ["by-symmetry", "rejected"]
     assert format_values("row", None, np.array([0, 41])) == ["1", "42"]

@@ -14,11 +14,14 @@ import pytest
 
 import engine
 from engine import Conditions
-from engine.nbs import empty_frame, nbs_majors
+from engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
+from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
 from engine.perception import Perception
 from engine.polyhalogenation import deactivation
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
+
+ALKENE_RULE = next(p for p in PATHWAYS if p.feature == "alkene")
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
 from library_gen import make_library  # noqa: E402
@@ -28,10 +31,14 @@ CONDITIONS = [
     Conditions(cl2_temp_c=60.0, br2_temp_c=80.0),
     Conditions(cl2_temp_c=250.0, br2_temp_c=-20.0, threshold_pct=60.0),
     Conditions(cl2_solvent="benzene", cl2_solvent_molar=4.0, br2_temp_c=150.0, nbs_temp_c=100.0, threshold_pct=0.0),
+    # SO2Cl2 at Cl2's temperature (its part read off Cl2's); then hot enough that alkenes substitute (engine.outcomes).
+    Conditions(cl2_temp_c=70.0, threshold_pct=60.0),
+    Conditions(cl2_temp_c=450.0, br2_temp_c=420.0, so2cl2_temp_c=380.0, threshold_pct=50.0),
 ]
 #: Text columns take whatever type pandas gives a column of Python strings.
 TEXT = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
-TEXT_COLUMNS = ("verdict", "cl2_major", "br2_major", "stereo", "site_types", "confidence", "nbs_major", "serves")
+TEXT_COLUMNS = ("verdict", "cl2_major", "br2_major", "stereo", "site_types", "confidence", "nbs_major", "serves",
+                "so2cl2_major", *(f"{r}_outcome" for r in OUTCOME_REAGENTS), *(f"{r}_reason" for r in OUTCOME_REAGENTS))
 
 
 def _poly_pct(h: list[int], pct: list[float], f: float) -> float:
@@ -68,19 +75,34 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     h = [int(x) for x in sites["h_count"]]
     product = [str(p) for p in sites["product"]]
     stereo = [str(p) for p in sites["stereo"]]
-    k = {r: conditions.per_h(r) for r in ("cl2", "br2")}
-    rank = {r: [BASES.index(b) if b in BASES else len(BASES) for b in conditions.bases(r)] for r in ("cl2", "br2")}
+    site_reagents = ("cl2", "br2", "so2cl2")
+    k = {r: conditions.per_h(r) for r in site_reagents}
+    rank = {r: [BASES.index(b) if b in BASES else len(BASES) for b in conditions.bases(r)]
+            for r in (*site_reagents, "nbs")}
     # NBS majors come from engine.nbs, which this re-weighing only passes through.
     nbs_major, nbs_pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
+    # NBS products per structure, with their summed shares and the bases of the sites giving them.
+    allylic = perception.allylic
+    nbs_row_pct = nbs_percent(allylic, conditions.per_h("nbs"), n) if len(allylic) else []
+    nbs_products: dict[int, dict[int, list]] = defaultdict(dict)
+    allylic_rows: dict[tuple[int, int], list[int]] = defaultdict(list)
+    for i in range(len(allylic)):
+        s_, pid = int(allylic["struct"].iloc[i]), int(allylic["product_id"].iloc[i])
+        allylic_rows[(s_, pid)].append(i)
+        entry = nbs_products[s_].setdefault(pid, [0.0, len(BASES)])
+        entry[0] += float(nbs_row_pct[i])
+        entry[1] = min(entry[1], rank["nbs"][int(allylic["site_code"].iloc[i])])
     out: dict[str, list] = {c: [] for c in SUMMARY_COLUMNS}
     for s in range(n):
         rows = rows_of.get(s, [])
         formed = [i for i in rows if code[i] < len(ABSTRACTABLE)]
         ok = structures["status"].iloc[s] == "ok"
+        flags = set(str(structures["flags"].iloc[s]).split(","))
         out["n_products"].append(len(formed))
         out["site_types"].append(",".join(sorted({SITE_CLASSES[code[i]] for i in formed})))
-        worst = len(BASES)
-        for r in ("cl2", "br2"):
+        worst = {}
+        for r in site_reagents:
+            worst[r] = len(BASES)
             w = [h[i] * k[r][code[i]] for i in rows]
             total = math.fsum(w)
             pct = [100.0 * (x / total) if total > 0 else 0.0 for x in w]
@@ -89,42 +111,70 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
                 major = next(i for i, p in zip(rows, pct) if p >= top - 1e-9)
                 out[f"{r}_major"].append(product[major].replace("Cl", "Br") if r == "br2" else product[major])
                 out[f"{r}_major_pct"].append(pct[rows.index(major)])
-                out[f"{r}_poly_pct"].append(_poly_pct([h[i] for i in rows], pct, deactivation(r)))
+                if r != "so2cl2":
+                    out[f"{r}_poly_pct"].append(_poly_pct([h[i] for i in rows], pct, deactivation(r)))
                 if r == "br2":
                     out["stereo"].append(stereo[major])
             else:
                 out[f"{r}_major"].append("")
                 out[f"{r}_major_pct"].append(math.nan)
-                out[f"{r}_poly_pct"].append(math.nan)
+                if r != "so2cl2":
+                    out[f"{r}_poly_pct"].append(math.nan)
                 if r == "br2":
                     out["stereo"].append("")
             for i, p in zip(rows, pct):
                 if p >= CONFIDENCE_MIN_PCT:
-                    worst = min(worst, rank[r][code[i]])
-        out["confidence"].append((*BASES, "")[worst])
-        br = out["br2_major_pct"][-1]
+                    worst[r] = min(worst[r], rank[r][code[i]])
+        products_nbs = nbs_products.get(s, {})
+        one_site = {r: len(formed) == 1 for r in site_reagents}
+        judged: dict[str, float] = {}
+        hot = [r for r in site_reagents if not pathway_applies(ALKENE_RULE, r, conditions)]
+        if ok and "alkene" in flags and formed and hot:
+            # A C=C substrate that substitutes: allylic radicals give both termini (the allylic table's products).
+            for r in hot:
+                w = {i: h[i] * k[r][code[i]] for i in formed}
+                total = math.fsum(w.values())
+                cands = [((product[i].replace("Cl", "Br") if r == "br2" else product[i]), 100.0 * w[i] / total)
+                         for i in formed if SITE_CLASSES[code[i]] not in NBS_SITES]
+                for pid in sorted(products_nbs):
+                    rows_p = allylic_rows[(s, pid)]
+                    share = math.fsum(float(allylic["h_count"].iloc[i]) * k[r][int(allylic["site_code"].iloc[i])]
+                                      * float(allylic["share"].iloc[i]) for i in rows_p)
+                    name = str(allylic["product"].iloc[rows_p[0]])
+                    cands.append((name if r == "br2" else name.replace("Br", "Cl"), 100.0 * share / total))
+                judged[r] = max((p for _, p in cands), default=0.0)  # the outcome's share; columns stay per site
+                one_site[r] = len(cands) == 1
+        worst["nbs"] = min([b for p, b in products_nbs.values() if p >= CONFIDENCE_MIN_PCT], default=len(BASES))
+        out["nbs_major"].append(nbs_major[s])
+        out["nbs_major_pct"].append(nbs_pct[s])
+        # Outcomes: the first rule that applies rules a reagent out; otherwise the threshold decides.
+        features = flags | ({"no_ch"} if not formed else set()) | ({"no_nbs_site"} if not products_nbs else set())
+        outcome, one = {}, {}
+        for r in OUTCOME_REAGENTS:
+            why = next((p.reason for p in PATHWAYS if p.feature in features and pathway_applies(p, r, conditions)), "")
+            share = judged.get(r, out[f"{r}_major_pct"][-1])
+            share = 0.0 if math.isnan(share) else share
+            outcome[r] = "" if not ok else "ruled-out" if why else "clean" if share >= conditions.threshold_pct \
+                else "mixture"
+            out[f"{r}_outcome"].append(outcome[r])
+            out[f"{r}_reason"].append(why if ok else "")
+            one[r] = len(products_nbs) == 1 if r == "nbs" else one_site[r]
+        serve = next((r for r in SERVES_ORDER if outcome[r] == "clean"), "")
+        out["serves"].append(serve)
         if not ok:
             verdict = ""
         elif not formed:
             verdict = "inert"
-        elif len(formed) == 1:
-            verdict = "single"
-        elif (0.0 if math.isnan(br) else br) >= conditions.threshold_pct:
-            verdict = "br-selective"
-        else:
+        elif serve:
+            verdict = "by-symmetry" if one[serve] else "selective"
+        elif any(outcome[r] == "mixture" for r in OUTCOME_REAGENTS):
             verdict = "mixture"
+        else:
+            verdict = "ruled-out"
         out["verdict"].append(verdict)
-        out["nbs_major"].append(nbs_major[s])
-        out["nbs_major_pct"].append(nbs_pct[s])
-        serve = ""
-        alkene = "alkene" in str(structures["flags"].iloc[s]).split(",")
-        if ok and formed:
-            for r in SERVES_ORDER:
-                p = out[f"{r}_major_pct"][-1]
-                if (r == "nbs" or not alkene) and (0.0 if math.isnan(p) else p) >= conditions.threshold_pct:
-                    serve = r
-                    break
-        out["serves"].append(serve)
+        counted = [r for r in ("cl2", "br2", "nbs") if outcome[r] in ("clean", "mixture")]
+        counted += ["so2cl2"] if serve == "so2cl2" else []
+        out["confidence"].append((*BASES, "")[min([worst[r] for r in counted], default=len(BASES))])
     return pd.DataFrame(out, index=structures.index)
 
 
@@ -172,7 +222,9 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
     for s in range(n):
         rejected = rng.random() < 0.05
         status.append("rejected" if rejected else "ok")
-        flags.append("" if rejected else str(rng.choice(["", "alkene", "bridgehead,alkene", "cage", "alkenes"])))
+        flags.append("" if rejected else str(rng.choice(
+            ["", "alkene", "bridgehead,alkene", "cage", "alkenes", "cyclopropane", "cyclopropylmethyl,cyclopropane",
+             "central_bond", "alkyne", "cyclopropane,alkene"])))
         if rejected:
             continue
         classes = rng.choice(len(SITE_CLASSES), size=rng.integers(1, 5))
@@ -180,7 +232,7 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
             c = int(rng.choice(classes))
             hh = int(rng.integers(1, 4))
             text = str(rng.choice(["CCl", "ClC", "C(Cl)C", "CC", "éCl→C", "lCl", "Cllc"])) + str(len(rows)) + "C"
-            rows.append((s, c, hh, text, str(rng.choice(["achiral", "racemate", "single", "", "diastereomers"]))))
+            rows.append((s, c, hh, text, str(rng.choice(["achiral", "racemate", "one-enantiomer", "", "diastereomers"]))))
     sites = pd.DataFrame(rows, columns=["struct", "site_code", "h_count", "product", "stereo"])
     sites = sites.astype({"struct": "int32", "site_code": "int8", "h_count": "int32"})
     if object_text:
@@ -193,7 +245,7 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
 
 @pytest.mark.parametrize("threaded", [False, True])
 @pytest.mark.parametrize("object_text", [False, True])
-@pytest.mark.parametrize("conditions", CONDITIONS[:3])
+@pytest.mark.parametrize("conditions", [*CONDITIONS[:3], *CONDITIONS[4:]])
 def test_synthetic_sites_match_reference(
     monkeypatch: pytest.MonkeyPatch, threaded: bool, object_text: bool, conditions: Conditions
 ) -> None:

@@ -45,7 +45,7 @@ from tui.messages import (
     ViewFailed,
 )
 from tui.search import SearchBar
-from tui.table import ROW_KEY, Column, LibraryTable
+from tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -66,7 +66,6 @@ TABLE_ACTIONS = frozenset({
 MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
     ("confidence", "Confidence", 12, "text"),
     ("flags", "Flags", 20, "text"),
-    ("serves", "Serves", 8, "text"),
     ("nbs_major", "NBS major", 18, "text"),
     ("nbs_major_pct", "NBS %", 7, "pct"),
     ("cl2_poly_pct", "Cl2 poly %", 11, "pct"),
@@ -135,7 +134,7 @@ class HalosiftApp(App[int]):
     show_input_columns: reactive[bool] = reactive(False, init=False)
     """Also show the input file's own columns (beyond ID and SMILES)."""
     show_more_columns: reactive[bool] = reactive(False, init=False)
-    """Also show confidence, flags, serves, the NBS major product and the polyhalide columns."""
+    """Also show confidence, flags, the NBS major product, the polyhalide columns and why reagents are ruled out."""
 
     def __init__(
         self,
@@ -432,15 +431,18 @@ class HalosiftApp(App[int]):
         else:
             cols += [
                 Column("verdict", "Verdict", 12, "verdict"),
+                SERVES_COLUMN,
                 Column("n_products", "Prods", 7, "count"),
                 Column("cl2_major", "Cl2 major", 18),
                 Column("cl2_major_pct", "Cl2 %", 7, "pct"),
                 Column("br2_major", "Br2 major", 18),
                 Column("br2_major_pct", "Br2 %", 7, "pct"),
                 Column("stereo", "Br2 stereo", 13),
+                *OUTCOME_COLUMNS,
             ]
             if self.show_more_columns:
                 cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
+                cols += REASON_COLUMNS
         if self.show_input_columns:
             for name in lib.input.columns:
                 if name not in (lib.id_column, lib.smiles_column):
@@ -585,7 +587,7 @@ class HalosiftApp(App[int]):
         self.show_input_columns = not self.show_input_columns
 
     def action_toggle_more_columns(self) -> None:
-        """Show or hide confidence, flags, serves, NBS and polyhalide columns."""
+        """Show or hide confidence, flags, NBS, polyhalide and ruled-out reason columns."""
         self.show_more_columns = not self.show_more_columns
 
     def action_filters(self) -> None:

@@ -193,7 +193,7 @@ class DetailScreen(Screen):
             head.append(verdict, style="bold")
             head.append(f" — {verdict_text(verdict, self.conditions.threshold_pct)}")
             head.append("\nServes: ", style="bold")
-            head.append(str(record.get("serves", "")) or "none reaches the threshold")
+            head.append(str(record.get("serves", "")) or "none (no reagent's outcome is clean)")
             head.append("  Confidence: ", style="bold")
             head.append(str(record.get("confidence", "")) or "—")
             head.append("  Flags: ", style="bold")

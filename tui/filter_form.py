@@ -14,8 +14,10 @@ from textual.widgets import Button, Input, Label, RadioSet, Static
 from tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
 from tui.toggles import ChoiceButton, TickBox
 
+from engine.outcomes import VERDICTS
+
 #: Verdict names in display order (the engine's own order).
-VERDICT_ORDER = ("single", "br-selective", "mixture", "inert")
+VERDICT_ORDER = VERDICTS
 
 
 class FilterForm(ModalScreen[FilterSpec | None]):
@@ -40,9 +42,11 @@ class FilterForm(ModalScreen[FilterSpec | None]):
         with VerticalScroll(id="filter-box"):
             yield Static("Filters for the library view (all must hold)", id="filter-title")
             yield Label("Verdict (none ticked: any verdict)")
-            with Horizontal(classes="filter-row"):
-                for verdict in VERDICT_ORDER:
-                    yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
+            # Three to a row, so five verdicts fit an 80-column terminal.
+            for start in range(0, len(VERDICT_ORDER), 3):
+                with Horizontal(classes="filter-row"):
+                    for verdict in VERDICT_ORDER[start : start + 3]:
+                        yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Br2 major product at least", classes="filter-label")
                 yield Input(_text(spec.min_br2_pct), id="min-br2", type="number", compact=True, placeholder="any")

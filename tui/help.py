@@ -15,21 +15,19 @@ from textual.widgets import Footer, Static
 
 from tui.filters import NO_NEW_STEREO, VIEW_DOCS
 
-#: What each verdict means ({threshold} is filled in with the current threshold).
+from engine.outcomes import OUTCOME_DOCS
+from engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
+
+#: What each verdict means ({threshold} is filled in with the current threshold); the engine words them.
 VERDICT_DOCS: dict[str, str] = {
-    "single": "only one constitutional monohalide can form from the abstractable C–H, "
-    "so even unselective chlorination gives one product",
-    "br-selective": "several products are possible, but bromination's major product "
-    "reaches the threshold ({threshold} % of the monobromides)",
-    "mixture": "several products, and not even bromination reaches the threshold",
-    "inert": "no abstractable C–H (only aryl, vinyl or alkynyl C–H): no monohalide forms",
+    **_ENGINE_VERDICT_DOCS,
     "rejected": "the engine could not model the row; the reason is given",
 }
 
-#: What each stereo outcome of a product means.
+#: What each stereo outcome of a product means (words of their own: none is a verdict word).
 STEREO_DOCS: dict[str, str] = {
     "achiral": "no new stereocentre",
-    "single": "one stereoisomer (existing stereo carried through)",
+    "one-enantiomer": "one chiral stereoisomer (existing stereo carried through)",
     "racemate": "a new stereocentre, formed as both enantiomers",
     "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
 }
@@ -43,7 +41,7 @@ CONFIDENCE_NOTE = (
 
 def sources() -> list[tuple[str, str]]:
     """The model's sources, in brief; the numbers quoted are read from engine.parameters."""
-    from engine.parameters import BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
+    from engine.parameters import ALKENE_SUBSTITUTION_T_C, BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
 
     ratios = " : ".join(f"{BR_RATIOS[k].value:g}" for k in ("primary", "secondary", "tertiary"))
     lo, hi = (t - KELVIN for t in CL_RANGE_K)
@@ -55,6 +53,9 @@ def sources() -> list[tuple[str, str]]:
         ("C–H bond enthalpies", "Blanksby & Ellison 2003 (Acc. Chem. Res.)"),
         ("Sites without data", "Bell–Evans–Polanyi estimates from the bond enthalpies (benzylic, allylic, "
          "propargylic toward Br·; methane and cyclopropyl C–H)"),
+        ("Other pathways", f"C=C adds Cl2/Br2 below {ALKENE_SUBSTITUTION_T_C.value:.0f} °C (propene + Cl2 gives allyl "
+         "chloride only hotter: Groll & Hearne 1939); Br· opens cyclopropane rings; halogens add across the central "
+         "bond of propellanes and bicyclo[1.1.0]butanes; cyclopropylmethyl radicals ring-open (engine/outcomes.py)"),
     ]
 
 
@@ -146,6 +147,11 @@ class HelpScreen(Screen):
         threshold = getattr(self.app.conditions, "threshold_pct", None)
         shown = "the threshold" if threshold is None else f"{threshold:g}"
         rows = [(v, VERDICT_DOCS[v].format(threshold=shown)) for v in VERDICT_DOCS]
+        rows.append(("Serves", "the reagent offered: first of cl2, br2, so2cl2, nbs whose outcome is clean; a "
+                     "mixture or ruled-out reagent is never offered"))
+        rows.append(("outcomes", "Cl2, Br2, SO2Cl2 and NBS columns: what each reagent does; the verdict and "
+                     "Serves are read off them only, and a reagent is offered only when it is clean"))
+        rows += [(f"  {k}", v.format(threshold=shown)) for k, v in OUTCOME_DOCS.items()]
         rows.append(("Br2 stereo", f"stereo outcome of bromination's major product; "
                      f"“no new stereocentre” filter keeps {NO_NEW_STEREO} only"))
         rows += [(f"  {k}", v) for k, v in STEREO_DOCS.items()]
@@ -167,8 +173,11 @@ class HelpScreen(Screen):
             ("confidence", CONFIDENCE_NOTE + "; shown in the site detail and with o"),
             ("flags", "special-site warnings (shown in the site detail and with o): "
              + "; ".join(f"{k} — {v.note.split(':')[0]}" for k, v in FLAG_NOTES.items())),
-            ("serves", "first of cl2, br2, nbs whose major product reaches the threshold; with C=C only nbs "
-             "(Cl2/Br2 add to C=C)"),
+            ("why", "per reagent, why its outcome is ruled-out: addition to C=C below the temperature where "
+             "allylic substitution wins, addition to C≡C, cyclopropane ring opening (Br2, NBS), addition across "
+             "a strained central bond, strained cage (not modelled), cyclopropylmethyl ring opening, no abstractable "
+             "(or, for NBS, allylic/benzylic) C–H"),
+            ("SO2Cl2 major / %", "major monochloride under SO2Cl2, weighed as Cl· at its own temperature"),
             ("NBS major / %", "major allylic/benzylic bromide under NBS (both allyl termini weighed)"),
             ("Cl2/Br2 poly %", "polyhalide, percent of halogenated product, at 1 : 1 substrate : halogen (estimate)"),
         ]

@@ -56,6 +56,26 @@ class Column:
         return self.kind in ("pct", "count", "row")
 
 
+#: Beside the verdict: the reagent offered.
+SERVES_COLUMN = Column("serves", "Serves", 8)
+#: After the majors: each reagent's outcome (engine.outcomes), the grounds of the verdict and of Serves.
+OUTCOME_COLUMNS: tuple[Column, ...] = (
+    Column("cl2_outcome", "Cl2 outcome", 13),
+    Column("br2_outcome", "Br2 outcome", 13),
+    Column("so2cl2_outcome", "SO2Cl2 outcome", 16),
+    Column("nbs_outcome", "NBS outcome", 13),
+)
+#: Why a reagent is ruled out, and the SO2Cl2 split: shown with the other extra columns (o).
+REASON_COLUMNS: tuple[Column, ...] = (
+    Column("cl2_reason", "Cl2 why", 24),
+    Column("br2_reason", "Br2 why", 24),
+    Column("so2cl2_reason", "SO2Cl2 why", 24),
+    Column("nbs_reason", "NBS why", 24),
+    Column("so2cl2_major", "SO2Cl2 major", 18),
+    Column("so2cl2_major_pct", "SO2Cl2 %", 9, "pct"),
+)
+
+
 def fit(text: str, width: int, right: bool = False) -> str:
     """Pad or cut ``text`` to exactly ``width`` cells (cut text ends in '…')."""
     if len(text) > width:
@@ -107,9 +127,10 @@ class LibraryTable(ScrollView, can_focus=True):
         "library-table--picked",
         "library-table--cursor",
         "library-table--marked",
-        "library-table--verdict-single",
-        "library-table--verdict-br-selective",
+        "library-table--verdict-by-symmetry",
+        "library-table--verdict-selective",
         "library-table--verdict-mixture",
+        "library-table--verdict-ruled-out",
         "library-table--verdict-inert",
         "library-table--verdict-rejected",
     }

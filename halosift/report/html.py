@@ -25,13 +25,11 @@ REJECTED_LISTED = 1000
 #: Highest product count with its own bar; larger counts share the last bar.
 PRODUCTS_BARS = 10
 
-#: What each verdict means, written out (the report never relies on colour).
-VERDICT_MEANING = {
-    "single": "only one monohalide can form",
-    "br-selective": "under Br2 the major monobromide reaches the threshold share",
-    "mixture": "several monohalides, none reaching the threshold under Br2",
-    "inert": "no C–H on an sp3 carbon: no monohalide by radical abstraction",
-}
+def verdict_meaning(threshold_pct: float) -> dict[str, str]:
+    """What each verdict means, written out (the report never relies on colour); engine.outcomes words them."""
+    from engine.outcomes import verdict_docs
+
+    return verdict_docs(threshold_pct)
 
 
 @dataclass(frozen=True)
@@ -153,11 +151,9 @@ def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> 
         _count_row("modelled", "ok", int(ok.sum()), "hydrocarbons the model covers"),
         _count_row("rejected", "rejected", int((~ok).sum()), "each with its reason (below)"),
     ]
+    meanings = verdict_meaning(conditions.threshold_pct)
     for v in VERDICTS:
-        meaning = VERDICT_MEANING[v]
-        if v == "br-selective":
-            meaning += f" ({conditions.threshold_pct:g} %)"
-        rows.append(_count_row(f"verdict: {v}", v, int(verdicts.get(v, 0)), meaning))
+        rows.append(_count_row(f"verdict: {v}", v, int(verdicts.get(v, 0)), meanings[v]))
     rows.append(_count_row("repeated structures", "duplicates", dup, "rows whose structure appeared on an earlier row"))
     counts_table = ('<table class="counts"><thead><tr><th>rows</th><th class="num">count</th><th>meaning</th></tr>'
                     "</thead><tbody>" + "".join(rows) + "</tbody></table>")
@@ -198,10 +194,11 @@ def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> 
 
 
 def _key(conditions: Conditions) -> str:
-    items = "".join(
-        f"<dt>{_e(v)}</dt><dd>{_e(VERDICT_MEANING[v])}"
-        f"{_e(f' ({conditions.threshold_pct:g} %)') if v == 'br-selective' else ''}.</dd>"
-        for v in VERDICT_MEANING
+    from engine.outcomes import outcome_docs
+
+    items = "".join(f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in verdict_meaning(conditions.threshold_pct).items())
+    outcome_items = "".join(
+        f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in outcome_docs(conditions.threshold_pct).items()
     )
     return f"""<section class="key"><h2>Reading the substrate entries</h2>
 <p>Each entry draws the substrate and marks every distinct abstractable C–H site (one representative carbon per
@@ -211,7 +208,11 @@ the monochloride; the monobromide is the same SMILES with Br in place of Cl. The
 shows its site class; the class is also named in the legend and the table. C–H bonds on sp2 and sp carbons
 (aryl, vinyl, alkynyl) are not abstracted and are not listed. Shares are percentages of the monohalides only;
 polyhalogenation is not modelled. A number after the stereo outcome counts the stereoisomers formed.</p>
-<dl>{items}</dl></section>"""
+<p>Verdicts, read off the outcomes of Cl2, Br2, SO2Cl2 and NBS (a reagent is offered only when its outcome is
+clean):</p>
+<dl>{items}</dl>
+<p>Outcome of each reagent, given in every entry:</p>
+<dl>{outcome_items}</dl></section>"""
 
 
 # ---------------------------------------------------------------------------- substrate sections
@@ -273,6 +274,14 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
             f'<span class="smiles">{_e(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
             f" {_e(result_row['stereo'])})</p>"
         )
+    outcomes = []
+    for r in ("cl2", "br2", "so2cl2", "nbs"):
+        outcome = result_row.get(f"{r}_outcome", "")
+        if isinstance(outcome, str) and outcome:
+            why = result_row.get(f"{r}_reason", "")
+            outcomes.append(f"{r}: {outcome}" + (f" ({why})" if isinstance(why, str) and why else ""))
+    if outcomes:
+        lines.append(f'<p class="meta">Outcomes: {_e("; ".join(outcomes))}</p>')
     extras = []
     for column, label in (
         ("serves", "Serves"), ("confidence", "Confidence"), ("flags", "Flags"), ("nbs_major", "Major under NBS"),

@@ -18,7 +18,7 @@ class Selection:
     rows: np.ndarray
     """0-based input rows, in input order (int64)."""
     description: str
-    """One line for the report header, e.g. 'verdict br-selective; 12 IDs from picks.txt'."""
+    """One line for the report header, e.g. 'verdict selective; 12 IDs from picks.txt'."""
     missing_ids: tuple[str, ...] = ()
     """IDs from the list that no row of the library carries."""
 

@@ -51,7 +51,8 @@ section.substrate h3 { margin-top: 0.2rem; }
   display: inline-block; border: 1.5px solid var(--ink); border-radius: 3px; padding: 0 0.4rem;
   font-weight: 600; font-size: 0.9rem; margin-left: 0.4rem;
 }
-.verdict-single { border-style: double; border-width: 3px; }
+.verdict-by-symmetry { border-style: double; border-width: 3px; }
+.verdict-ruled-out { border-style: dotted; }
 .verdict-mixture { border-style: dashed; }
 .verdict-inert { border-style: dotted; color: var(--muted); }
 .substrate-body { display: grid; grid-template-columns: minmax(0, 250px) minmax(0, 1fr); gap: 0.8rem; align-items: start; }

@@ -240,7 +240,7 @@ async def test_detail_shows_every_product_and_steps(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CCc1ccccc1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)  # the products are worked out in a worker
         screen = app.screen
         assert isinstance(screen, DetailScreen) and screen.row == row
         products = app.library.products(row, app.conditions)
@@ -512,7 +512,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CC1=CCCCC1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)
         screen = app.screen
         record = app.frame.iloc[row]
         head = plain(screen.query_one("#detail-head"))
@@ -531,7 +531,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "C1CCCCC1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)
         assert "No allylic or benzylic C–H" in plain(app.screen.query_one("#detail-nbs"))
 
 

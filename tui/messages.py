@@ -146,3 +146,23 @@ class PanelClosed(Message):
 
     name: str
     """Which panel: 'search' or 'conditions'."""
+
+
+@dataclass
+class DetailReady(Message):
+    """The site detail of one row was worked out (in a worker)."""
+
+    request: int
+    """Which request of the detail screen this answers; older answers are dropped."""
+    result: Any
+    """A :class:`tui.detail.DetailResult`."""
+
+
+@dataclass
+class DetailFailed(Message):
+    """Working out the site detail of one row failed (a bug, reported in one line)."""
+
+    request: int
+    """Which request failed."""
+    message: str
+    """One line to show."""

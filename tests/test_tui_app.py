@@ -14,7 +14,7 @@ import pytest
 
 import engine
 from tui.app import HalosiftApp, run
-from tui.conditions import ConditionsPanel
+from tui.conditions import ConditionsScreen
 from tui.detail import DetailScreen, bar
 from tui.export import ConfirmScreen, ExportScreen, check_export_path
 from tui.filter_form import FilterForm
@@ -123,8 +123,8 @@ async def test_whole_path(tmp_path):
         assert len(mixtures)
         first = int(mixtures[0])
         await pilot.press("t")
-        panel = app.query_one(ConditionsPanel)
-        assert panel.display
+        panel = app.screen
+        assert isinstance(panel, ConditionsScreen)
         br2 = panel.query_one("#cond-br2")
         br2.focus()
         br2.value = ""
@@ -139,6 +139,8 @@ async def test_whole_path(tmp_path):
         )
         assert "Br2 40 °C" in plain(app.query_one("#settings"))
         # The table shows the new numbers for that row.
+        await pilot.press("escape")
+        await pilot.pause()
         table.focus()
         position = int(np.flatnonzero(table.rows == first)[0])
         table.cursor = position
@@ -146,15 +148,17 @@ async def test_whole_path(tmp_path):
         assert f"{after.loc[first, 'br2_major_pct']:.1f}" in table_text(app)
         # An impossible temperature is refused, with a one-line reason, and not applied.
         await pilot.press("t")
+        panel = app.screen
+        br2 = panel.query_one("#cond-br2")
         br2.focus()
         br2.value = "-300"
         await pilot.press("enter")
         await settle(pilot, app)
         assert app.conditions.br2_temp_c == 40.0
         assert "absolute zero" in plain(panel.query_one("#cond-note"))
-        br2.value = "40"
         await pilot.press("escape")
-        assert not panel.display
+        await pilot.pause()
+        assert not isinstance(app.screen, ConditionsScreen)
 
         # --- mark two rows (Space marks and steps down)
         table.focus()
@@ -456,7 +460,7 @@ async def test_out_of_range_temperature_shows_the_engine_warning(tmp_path):
         await settle(pilot, app)
         assert not app.query_one("#warnings").display
         await pilot.press("t")
-        cl2 = app.query_one("#cond-cl2")
+        cl2 = app.screen.query_one("#cond-cl2")
         cl2.value = "400"
         await pilot.press("enter")
         await settle(pilot, app)
@@ -464,7 +468,7 @@ async def test_out_of_range_temperature_shows_the_engine_warning(tmp_path):
         assert expected and app.conditions.warnings() == expected
         assert app.query_one("#warnings").display
         assert plain(app.query_one("#warnings")) == "\n".join(f"! {w}" for w in expected)
-        assert expected[0] in plain(app.query_one(ConditionsPanel).query_one("#cond-note"))
+        assert expected[0] in plain(app.screen.query_one("#cond-note"))
 
 
 @async_test

@@ -26,7 +26,7 @@ from textual.reactive import reactive
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
 
-from tui.conditions import ConditionsPanel
+from tui.conditions import ConditionsScreen
 from tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
 from tui.messages import (
     ConditionsProposed,
@@ -196,12 +196,10 @@ class HalosiftApp(App[int]):
         yield LibraryTable(id="table")
         yield Static("", id="rowinfo")
         yield SearchBar(id="search")
-        yield ConditionsPanel(id="conditions")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
         self.query_one("#search").display = False
-        self.query_one("#conditions").display = False
         self.query_one("#warnings").display = False
         self._start_screening()
 
@@ -270,7 +268,6 @@ class HalosiftApp(App[int]):
         self.marked = np.zeros(len(message.frame), dtype=bool)
         self._orders = OrderCache()  # sort orders of an earlier load do not apply
         self.set_reactive(HalosiftApp.conditions, message.conditions)
-        self.query_one(ConditionsPanel).load(message.conditions)
         self.phase = "ready"
         self._request_view()
 
@@ -495,7 +492,10 @@ class HalosiftApp(App[int]):
     def watch_sort(self) -> None:
         self._request_view()
 
-    def watch_conditions(self) -> None:
+    def watch_conditions(self, conditions: Any) -> None:
+        for screen in self.screen_stack:
+            if isinstance(screen, ConditionsScreen):
+                screen.applied = conditions  # the panel shows what the table now uses
         self._request_view()
 
     def watch_show_input_columns(self) -> None:
@@ -612,11 +612,8 @@ class HalosiftApp(App[int]):
         bar.focus()
 
     def action_conditions(self) -> None:
-        """Open the conditions panel (temperatures and threshold, applied live)."""
-        panel = self.query_one(ConditionsPanel)
-        panel.load(self.conditions)
-        panel.display = True
-        panel.focus_first()
+        """Open the conditions panel (temperatures, Cl2 solvent, threshold; applied on Enter or leaving a field)."""
+        self.push_screen(ConditionsScreen(self.conditions))
 
     @on(SearchChanged)
     def _search_changed(self, message: SearchChanged) -> None:

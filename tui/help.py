@@ -66,7 +66,7 @@ def verdict_text(verdict: str, threshold_pct: float) -> str:
 def _bindings_table(app) -> Group:
     """Every key the app answers to, read from the classes' own binding lists."""
     from tui.app import HalosiftApp
-    from tui.conditions import ConditionsPanel
+    from tui.conditions import ConditionsScreen
     from tui.detail import DetailScreen
     from tui.export import ConfirmScreen, ExportScreen
     from tui.filter_form import FilterForm
@@ -82,7 +82,7 @@ def _bindings_table(app) -> Group:
          + [b for b in HalosiftApp.BINDINGS if b.action not in ("leave", "help", "cancel_screening", "rescreen")]),
         ("Site detail", list(DetailScreen.BINDINGS)),
         ("Find bar", list(SearchBar.BINDINGS)),
-        ("Conditions panel", list(ConditionsPanel.BINDINGS)),
+        ("Conditions panel", list(ConditionsScreen.BINDINGS)),
         ("Filter form", list(FilterForm.BINDINGS)),
         ("Export form", list(ExportScreen.BINDINGS)),
         ("Replace? dialog", list(ConfirmScreen.BINDINGS)),
@@ -91,7 +91,9 @@ def _bindings_table(app) -> Group:
     # What Enter and Tab do in text fields (handled by the fields, so in no binding list).
     field_keys = {
         "Find bar": [("⏎", "back to the table, keeping the text")],
-        "Conditions panel": [("⏎", "apply now (valid values also apply after a pause)"), ("tab", "next field")],
+        "Conditions panel": [("⏎", "apply (only a complete, valid set is applied)"),
+                             ("tab / shift+tab", "next / previous field; leaving a field applies it too"),
+                             ("← / →", "choose the Cl2 solvent (in the solvent field)")],
         "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field")],
         "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
                         ("tab", "next field")],

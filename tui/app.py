@@ -31,6 +31,7 @@ from tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
 from tui.messages import (
     ConditionsProposed,
     CursorMoved,
+    DetailMoved,
     DetailRequested,
     ExportFailed,
     ExportFinished,
@@ -174,6 +175,7 @@ class HalosiftApp(App[int]):
         self._site_choices: tuple[Any, list[str]] = (None, [])
         self._orders = OrderCache()
         self._counts = (0, 0)
+        self._to_top = False
 
     # ------------------------------------------------------------------ layout
 
@@ -401,7 +403,8 @@ class HalosiftApp(App[int]):
         self._counts = (message.screened, len(message.frame) - message.screened)
         table = self.query_one(LibraryTable)
         table.show(message.frame, message.rows, self._columns(message.frame),
-                   sort=(self.sort.column, self.sort.descending), marked=self.marked)
+                   sort=(self.sort.column, self.sort.descending), marked=self.marked, top=self._to_top)
+        self._to_top = False
         self._update_status()
         self.refresh_bindings()
 
@@ -490,6 +493,7 @@ class HalosiftApp(App[int]):
         self._request_view()
 
     def watch_sort(self) -> None:
+        self._to_top = True  # a new order starts at its first row
         self._request_view()
 
     def watch_conditions(self, conditions: Any) -> None:
@@ -543,6 +547,9 @@ class HalosiftApp(App[int]):
 
     def on_sort_requested(self, message: SortRequested) -> None:
         self.sort = SortSpec(message.column, message.descending)
+
+    def on_detail_moved(self, message: DetailMoved) -> None:
+        self.query_one(LibraryTable).go_to_row(message.row)
 
     def on_detail_requested(self, message: DetailRequested) -> None:
         from tui.detail import DetailScreen

@@ -20,7 +20,7 @@ from textual.widgets import Footer, Static
 from textual.worker import get_current_worker
 
 from tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
-from tui.messages import DetailFailed, DetailReady, MarkRequested
+from tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -273,10 +273,12 @@ class DetailScreen(Screen):
             self.working = False
             self._render_head()
             self._clear_body("No products: the row was not modelled.")
+            self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)
             return
         self.working = True
         self._render_head()
         self._clear_body(WORKING_NOTE)
+        self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)  # a new row starts at its top
         self._work_out(self._request, self.row, str(record["canonical_smiles"]))
 
     @work(thread=True, exclusive=True, group="detail", exit_on_error=False)
@@ -377,6 +379,7 @@ class DetailScreen(Screen):
         if 0 <= target < len(self.rows):
             self.position = target
             self.marked = bool(self._marks[self.row])
+            self.post_message(DetailMoved(self.row))  # so Esc returns to the row last shown
 
     def action_mark(self) -> None:
         """Mark or unmark the shown row (the app keeps the shortlist)."""

@@ -166,3 +166,11 @@ class DetailFailed(Message):
     """Which request failed."""
     message: str
     """One line to show."""
+
+
+@dataclass
+class DetailMoved(Message):
+    """The site detail now shows another row of the view (n/p); the table's cursor follows."""
+
+    row: int
+    """Row position in the evaluated frame now shown."""

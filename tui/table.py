@@ -160,8 +160,12 @@ class LibraryTable(ScrollView, can_focus=True):
         *,
         sort: tuple[Hashable | None, bool] = (None, False),
         marked: np.ndarray | None = None,
+        top: bool = False,
     ) -> None:
-        """Show ``rows`` of ``frame``; the cursor stays on the same frame row when it is still shown."""
+        """Show ``rows`` of ``frame``; the cursor stays on the same frame row when it is still shown.
+
+        ``top`` puts the cursor on the first row and scrolls there instead (after a new sort order).
+        """
         before = self.cursor_row
         picked_key = self._columns[self.picked].key if self._columns and self.picked < len(self._columns) else None
         first_show = self._frame is None
@@ -178,13 +182,22 @@ class LibraryTable(ScrollView, can_focus=True):
         width = _GUTTER + sum(c.width + _SEP for c in self._columns)
         self.virtual_size = Size(width, len(self._rows) + 1)
         position = 0
-        if before >= 0 and len(self._rows):
+        if top:
+            self.scroll_to(y=0, animate=False, force=True)
+        elif before >= 0 and len(self._rows):
             hits = np.flatnonzero(self._rows == before)
             position = int(hits[0]) if len(hits) else min(self.cursor, len(self._rows) - 1)
         self.cursor = max(0, position)
         self.refresh()
         if first_show:
             self.refresh_bindings()
+
+    def go_to_row(self, row: int) -> bool:
+        """Put the cursor on frame row ``row`` if it is shown; True if it is."""
+        hits = np.flatnonzero(self._rows == row)
+        if len(hits):
+            self.cursor = int(hits[0])
+        return bool(len(hits))
 
     def set_marked(self, marked: np.ndarray) -> None:
         """Redraw with a new shortlist mark array (one bool per frame row)."""

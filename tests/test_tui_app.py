@@ -187,7 +187,8 @@ async def test_whole_path(tmp_path):
         assert app.last_export == out_csv.resolve()
         written = pd.read_csv(out_csv, keep_default_na=False)
         assert len(written) == 2
-        assert written["input_row"].tolist() == [r + 1 for r in marked_rows]
+        # In the table's order (sorted by SMILES, largest first), as the export form says.
+        assert written["input_row"].tolist() == [int(r) + 1 for r in table.rows if app.marked[r]]
         for column in ("verdict", "br2_major", "br2_major_pct", "stereo", app.library.smiles_column):
             assert column in written.columns
         about = Path(str(out_csv) + ".about.txt").read_text(encoding="utf-8")

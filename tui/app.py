@@ -13,7 +13,7 @@ import sys
 import threading
 import time
 from collections.abc import Hashable
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
@@ -35,6 +35,7 @@ from tui.messages import (
     DetailRequested,
     ExportFailed,
     ExportFinished,
+    IdsMatched,
     MarkRequested,
     PanelClosed,
     ScreeningFinished,
@@ -56,11 +57,24 @@ if TYPE_CHECKING:
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
+#: Bulk mark steps that z can undo (each keeps one bool per row).
+UNDO_DEPTH = 20
+
+
+@dataclass(frozen=True)
+class MarksUndo:
+    """The shortlist as it was before one bulk mark step."""
+
+    what: str
+    """The step, in words ('unmark all 12 shown')."""
+    marked: np.ndarray
+    """Marks before the step, one per frame row."""
 
 
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
-    "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown",
+    "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown", "undo_marks",
+    "mark_from_file",
     "clear_filters", "toggle_input_columns", "toggle_more_columns",
 })
 #: Result columns the "more columns" key adds to the library table (label, width, kind).
@@ -118,6 +132,8 @@ class HalosiftApp(App[int]):
         Binding("e", "export", "Export"),
         Binding("a", "mark_shown", "Mark all shown", show=False),
         Binding("u", "unmark_shown", "Unmark all shown", show=False),
+        Binding("z", "undo_marks", "Undo mark/unmark all", show=False),
+        Binding("m", "mark_from_file", "Mark IDs listed in a file", show=False),
         Binding("x", "clear_filters", "Clear filters", show=False),
         Binding("c", "toggle_input_columns", "Input columns", show=False),
         Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
@@ -176,6 +192,7 @@ class HalosiftApp(App[int]):
         self._orders = OrderCache()
         self._counts = (0, 0)
         self._to_top = False
+        self._undo: list[MarksUndo] = []
 
     # ------------------------------------------------------------------ layout
 
@@ -268,6 +285,7 @@ class HalosiftApp(App[int]):
         self.frame = message.frame
         self.frame_conditions = message.conditions
         self.marked = np.zeros(len(message.frame), dtype=bool)
+        self._undo = []
         self._orders = OrderCache()  # sort orders of an earlier load do not apply
         self.set_reactive(HalosiftApp.conditions, message.conditions)
         self.phase = "ready"
@@ -366,9 +384,6 @@ class HalosiftApp(App[int]):
         text_columns: tuple[list[Hashable], list[Hashable]],
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
-        from engine import VERDICTS
-        from engine.stereo import OUTCOMES
-
         from tui.filters import ordered_rows, view_mask
 
         worker = get_current_worker()
@@ -378,21 +393,29 @@ class HalosiftApp(App[int]):
             if worker.is_cancelled:
                 return
             mask = view_mask(frame, view, spec, marked, *text_columns)
-            order = None
-            if sort.column == ROW_KEY:
-                order = np.arange(len(frame))[::-1] if sort.descending else None
-            elif sort.column is not None and sort.column in frame:
-                token = "input" if sort.column in library.input.columns else conditions
-                categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
-                ranks = {v: i for i, v in enumerate(categories)} if categories else None
-                order = self._orders.order(frame, token, sort.column, sort.descending, ranks)
-            rows = ordered_rows(mask, order)
+            rows = ordered_rows(mask, self._sort_order(library, conditions, frame, sort))
             screened = int((frame["status"] == "ok").sum())
         except Exception as exc:  # a bug: report it in one line
             self.post_message(ViewFailed(generation, f"{type(exc).__name__}: {one_line(exc)}"))
             return
         if not worker.is_cancelled:
             self.post_message(ViewComputed(generation, conditions, frame, rows, screened))
+
+    def _sort_order(
+        self, library: Library, conditions: Conditions, frame: pd.DataFrame, sort: SortSpec
+    ) -> np.ndarray | None:
+        """Every frame row in ``sort`` order, or None for input order (call off the interface thread)."""
+        from engine import VERDICTS
+        from engine.stereo import OUTCOMES
+
+        if sort.column == ROW_KEY:
+            return np.arange(len(frame))[::-1] if sort.descending else None
+        if sort.column is None or sort.column not in frame:
+            return None
+        token = "input" if sort.column in library.input.columns else conditions
+        categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
+        ranks = {v: i for i, v in enumerate(categories)} if categories else None
+        return self._orders.order(frame, token, sort.column, sort.descending, ranks)
 
     def on_view_computed(self, message: ViewComputed) -> None:
         if message.generation != self._generation:
@@ -572,15 +595,83 @@ class HalosiftApp(App[int]):
         """Cycle library → shortlist → rejected."""
         self.view = VIEWS[(VIEWS.index(self.view) + 1) % len(VIEWS)]
 
+    def set_marks(self, rows: np.ndarray, value: bool, what: str) -> int:
+        """Mark (or unmark) frame rows as one step that z can undo; returns how many marks changed."""
+        rows = np.asarray(rows, dtype=np.int64)
+        changed = int((self.marked[rows] != value).sum())
+        if changed:
+            self._undo.append(MarksUndo(what, self.marked.copy()))
+            del self._undo[:-UNDO_DEPTH]
+            self.marked[rows] = value
+            self._marks_changed()
+        return changed
+
     def action_mark_shown(self) -> None:
         """Mark every row the current view shows."""
-        self.marked[self.query_one(LibraryTable).rows] = True
-        self._marks_changed()
+        rows = self.query_one(LibraryTable).rows
+        changed = self.set_marks(rows, True, f"mark all {len(rows):,} shown")
+        self.notify(f"Marked {changed:,} more rows (all {len(rows):,} shown) · z undoes" if changed
+                    else "Every shown row was already marked", title="Marks")
 
     def action_unmark_shown(self) -> None:
         """Unmark every row the current view shows."""
-        self.marked[self.query_one(LibraryTable).rows] = False
+        rows = self.query_one(LibraryTable).rows
+        changed = self.set_marks(rows, False, f"unmark all {len(rows):,} shown")
+        self.notify(f"Unmarked {changed:,} rows · z undoes" if changed else "No shown row was marked", title="Marks")
+
+    def action_undo_marks(self) -> None:
+        """Undo the last mark-all, unmark-all or marks-from-file step."""
+        if not self._undo:
+            self.notify("Nothing to undo (z undoes a, u and marks from a file)", title="Marks")
+            return
+        step = self._undo.pop()
+        self.marked[:] = step.marked
         self._marks_changed()
+        self.notify(f"Undone: {step.what}; {int(self.marked.sum()):,} rows marked", title="Marks")
+
+    def action_mark_from_file(self) -> None:
+        """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
+        from tui.id_list import IdListScreen
+
+        if self.library is None or self.library.id_column is None:
+            self.notify("This library has no ID column, so there are no IDs to match", title="Marks",
+                        severity="warning")
+            return
+
+        def chosen(path: Path | None) -> None:
+            if path is not None:
+                self._match_ids(path, self.frame, self.library.id_column)
+
+        self.push_screen(IdListScreen(Path.cwd()), chosen)
+
+    @work(thread=True, exclusive=True, group="ids", exit_on_error=False)
+    def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
+        """Read an ID list and find its rows (pandas, off the interface thread)."""
+        from tui.id_list import match_ids, read_ids
+
+        try:
+            ids = read_ids(path, str(id_column))
+            match = match_ids(frame[id_column], ids)
+        except (OSError, ValueError) as exc:
+            self.post_message(IdsMatched(str(path), None, 0, (), one_line(exc)))
+            return
+        self.post_message(IdsMatched(str(path), match.rows, match.n_ids, match.missing, ""))
+
+    def on_ids_matched(self, message: IdsMatched) -> None:
+        name = Path(message.path).name
+        if message.rows is None:
+            self.notify(f"Cannot read {name}: {message.error}", title="Marks", severity="error", timeout=10)
+            return
+        changed = self.set_marks(message.rows, True, f"mark {len(message.rows):,} rows listed in {name}")
+        missing = ""
+        if message.missing:
+            few = ", ".join(message.missing[:3]) + (" …" if len(message.missing) > 3 else "")
+            missing = f"; {len(message.missing):,} not in this library ({few})"
+        self.notify(
+            f"{message.n_ids:,} IDs read from {name}: {len(message.rows):,} rows found, {changed:,} newly marked"
+            f"{missing}" + (" · z undoes" if changed else ""),
+            title="Marks", timeout=10,
+        )
 
     def action_clear_filters(self) -> None:
         """Drop every filter."""
@@ -647,34 +738,45 @@ class HalosiftApp(App[int]):
         table = self.query_one(LibraryTable)
         protected = [Path(self.source)] if isinstance(self.source, (str, os.PathLike)) else []
         self.push_screen(
-            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected),
+            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected, self._sort_text()),
             self._export_chosen,
         )
 
     def _export_chosen(self, choice: ExportChoice | None) -> None:
         if choice is None or self.frame is None:
             return
+        order = self._sort_text()
         if choice.what == "shortlist":
-            rows = np.flatnonzero(self.marked)
-            selection = f"shortlist: {len(rows):,} marked rows, input order"
+            marked = self.marked.copy()
+            rows = None  # put in the table's order by the export worker
+            selection = f"shortlist: {int(marked.sum()):,} marked rows; order: {order}"
         else:
+            marked = None
             rows = self.query_one(LibraryTable).rows.copy()
             filters = self.filters.describe() if self.view == "library" else "no filters"
-            selection = f"{self.view} view: {len(rows):,} rows; {filters}; order: {self._sort_text()}"
-        self._write_export(self.frame, rows, choice.path, choice.force, self.conditions, selection)
+            selection = f"{self.view} view: {len(rows):,} rows; {filters}; order: {order}"
+        self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
 
     @work(thread=True, exclusive=True, group="export", exit_on_error=False)
     def _write_export(
-        self, frame: pd.DataFrame, rows: np.ndarray, path: Path, force: bool, conditions: Conditions, selection: str
+        self, frame: pd.DataFrame, rows: np.ndarray | None, marked: np.ndarray | None, sort: SortSpec, path: Path,
+        force: bool, conditions: Conditions, selection: str,
     ) -> None:
-        """Write the chosen rows atomically, with conditions and the safety caution as metadata."""
+        """Write the chosen rows atomically, in the table's order, with conditions and the safety caution as metadata.
+
+        ``rows`` are the view's rows as shown; for the shortlist they are None and
+        the ``marked`` rows are put in ``sort`` order here, off the interface thread.
+        """
         from tui.export import export_frame, export_metadata, write_report_export
+        from tui.filters import ordered_rows
 
         import engine
         from engine.io import about_path, output_format, write_table
         from halosift.report import is_report_path
 
         try:
+            if rows is None:
+                rows = ordered_rows(marked, self._sort_order(self.library, conditions, frame, sort))
             protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
             if is_report_path(path):
                 written = write_report_export(

@@ -70,6 +70,7 @@ def _bindings_table(app) -> Group:
     from tui.detail import DetailScreen
     from tui.export import ConfirmScreen, ExportScreen
     from tui.filter_form import FilterForm
+    from tui.id_list import IdListScreen
     from tui.search import SearchBar
     from tui.table import LibraryTable
 
@@ -86,6 +87,7 @@ def _bindings_table(app) -> Group:
         ("Filter form", list(FilterForm.BINDINGS)),
         ("Export form", list(ExportScreen.BINDINGS)),
         ("Replace? dialog", list(ConfirmScreen.BINDINGS)),
+        ("Mark from a file", list(IdListScreen.BINDINGS)),
         ("Help", list(HelpScreen.BINDINGS)),
     )
     # What Enter and Tab do in text fields (handled by the fields, so in no binding list).
@@ -98,6 +100,7 @@ def _bindings_table(app) -> Group:
         "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
                         ("tab", "next field")],
         "Replace? dialog": [("⏎", "press the focused button (Keep)")],
+        "Mark from a file": [("⏎", "read the file and mark its rows (one ID a line, or a CSV/TSV with the ID column)")],
     }
     parts: list = []
     for title, bindings in groups:

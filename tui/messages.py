@@ -174,3 +174,19 @@ class DetailMoved(Message):
 
     row: int
     """Row position in the evaluated frame now shown."""
+
+
+@dataclass
+class IdsMatched(Message):
+    """An ID-list file was read and matched against the library (in a worker)."""
+
+    path: str
+    """The file read."""
+    rows: Any
+    """numpy array of frame rows whose ID is listed, or None when the file could not be read."""
+    n_ids: int
+    """Distinct IDs the file lists."""
+    missing: tuple[str, ...]
+    """Listed IDs not found in the library, in file order."""
+    error: str
+    """One line saying why the file could not be read ('' when it was)."""

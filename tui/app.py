@@ -23,6 +23,7 @@ from textual.app import App, ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.reactive import reactive
+from textual.timer import Timer
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
 
@@ -59,6 +60,8 @@ if TYPE_CHECKING:
 PROGRESS_INTERVAL = 0.1
 #: Bulk mark steps that z can undo (each keeps one bool per row).
 UNDO_DEPTH = 20
+#: Seconds after the last change before the session file is written (a burst of changes is one write).
+SESSION_SAVE_DELAY = 0.5
 
 
 @dataclass(frozen=True)
@@ -74,7 +77,7 @@ class MarksUndo:
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
     "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown", "undo_marks",
-    "mark_from_file",
+    "mark_from_file", "start_fresh",
     "clear_filters", "toggle_input_columns", "toggle_more_columns",
 })
 #: Result columns the "more columns" key adds to the library table (label, width, kind).
@@ -134,6 +137,7 @@ class HalosiftApp(App[int]):
         Binding("u", "unmark_shown", "Unmark all shown", show=False),
         Binding("z", "undo_marks", "Undo mark/unmark all", show=False),
         Binding("m", "mark_from_file", "Mark IDs listed in a file", show=False),
+        Binding("N", "start_fresh", "Start fresh (drop the saved session)", show=False, key_display="N"),
         Binding("x", "clear_filters", "Clear filters", show=False),
         Binding("c", "toggle_input_columns", "Input columns", show=False),
         Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
@@ -162,9 +166,17 @@ class HalosiftApp(App[int]):
         id_column: str | None = None,
         use_cache: bool = True,
         graphics: str | None = None,
+        fresh: bool = False,
+        sessions: bool = True,
     ) -> None:
         super().__init__()
         start_process_helpers()
+        self.fresh = fresh
+        """Ignore (and replace) the session saved for this library."""
+        self.sessions = sessions and isinstance(source, (str, os.PathLike))
+        """Save and restore marks, sort, filters, view and conditions per library file."""
+        self.session_key: str | None = None
+        """The library's key in the session folder, once screening has read it."""
         self.graphics = graphics
         """Inline-image mode for structure drawings ('sixel', 'tgp', 'unicode'), or None for text only."""
         self.source = source
@@ -193,6 +205,9 @@ class HalosiftApp(App[int]):
         self._counts = (0, 0)
         self._to_top = False
         self._undo: list[MarksUndo] = []
+        self._session_restored = False
+        self._session_timer: Timer | None = None
+        self._session_dirty = False
 
     # ------------------------------------------------------------------ layout
 
@@ -254,7 +269,15 @@ class HalosiftApp(App[int]):
                 progress=progress,
                 cancel=cancel,
             )
+            session, key, note = self._read_session(len(library.input))
             conditions = self.conditions or engine.Conditions()
+            if session is not None and session.conditions and self.conditions is None:
+                from tui.session import restore_conditions
+
+                try:
+                    conditions = restore_conditions(session.conditions)
+                except ValueError as exc:
+                    note = f"The saved conditions are not usable ({exc}); default conditions are used."
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -268,7 +291,29 @@ class HalosiftApp(App[int]):
         if cancel.is_set():
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
             return
-        self.post_message(ScreeningFinished(library, frame, conditions))
+        self.post_message(ScreeningFinished(library, frame, conditions, session, key, note))
+
+    def _read_session(self, n_rows: int) -> tuple[Any, str | None, str]:
+        """(session to restore or None, library key or None, one-line note) — file reads, so called in the worker."""
+        if not self.sessions or self._session_restored:
+            return None, self.session_key, ""
+        from tui import session as sessions
+
+        try:
+            key = sessions.library_key(self.source)
+        except OSError as exc:
+            return None, None, f"Sessions are off for this library: {one_line(exc)}"
+        if self.fresh:
+            try:
+                sessions.forget(key)
+            except OSError as exc:
+                return None, key, f"The saved session could not be removed: {one_line(exc)}"
+            return None, key, ""
+        saved, note = sessions.load(key)
+        if saved is not None and saved.n_rows != n_rows:
+            return None, key, (f"The saved session is for {saved.n_rows:,} rows, not {n_rows:,}, "
+                               "and is ignored; this one starts fresh.")
+        return saved, key, note
 
     def on_screening_progress(self, message: ScreeningProgress) -> None:
         if self.phase != "screening":
@@ -288,8 +333,105 @@ class HalosiftApp(App[int]):
         self._undo = []
         self._orders = OrderCache()  # sort orders of an earlier load do not apply
         self.set_reactive(HalosiftApp.conditions, message.conditions)
+        if message.session_key is not None:
+            self.session_key = message.session_key
+        if message.session is not None and not self._session_restored:
+            self._restore_session(message.session)
+        self._session_restored = True
+        if message.session_note:
+            self.notify(message.session_note, title="Session", severity="warning", timeout=10)
         self.phase = "ready"
         self._request_view()
+
+    def _restore_session(self, saved: Any) -> None:
+        """Take marks, sort, filters, view and column choices from a saved session (conditions came with the frame)."""
+        self.marked = saved.marked.copy()
+        self.set_reactive(HalosiftApp.sort, saved.sort)
+        self.set_reactive(HalosiftApp.filters, saved.filters)
+        self.set_reactive(HalosiftApp.view, saved.view)
+        self.set_reactive(HalosiftApp.show_input_columns, saved.show_input_columns)
+        self.set_reactive(HalosiftApp.show_more_columns, saved.show_more_columns)
+        self.query_one(SearchBar).value = saved.filters.text
+        self.notify(
+            f"Restored this library's last session: {int(self.marked.sum()):,} marked, view {saved.view}, "
+            f"{saved.filters.describe()}. N starts fresh.",
+            title="Session", timeout=6,
+        )
+
+    # ------------------------------------------------------------------ sessions
+
+    def current_session(self) -> Any:
+        """The state to save for this library (tui.session.Session)."""
+        from tui.session import Session, conditions_record
+
+        return Session(
+            n_rows=len(self.marked), marked=self.marked.copy(), sort=self.sort, filters=self.filters, view=self.view,
+            conditions=conditions_record(self.conditions), show_input_columns=self.show_input_columns,
+            show_more_columns=self.show_more_columns,
+        )
+
+    def _session_changed(self) -> None:
+        """Save the session shortly (changes in a burst are written once)."""
+        if self.session_key is None or self.library is None or self.conditions is None:
+            return
+        self._session_dirty = True
+        if self._session_timer is not None:
+            self._session_timer.stop()
+        self._session_timer = self.set_timer(SESSION_SAVE_DELAY, self._save_session_soon)
+
+    def _save_session_soon(self) -> None:
+        self._session_timer = None
+        if self._session_dirty and self.session_key is not None:
+            self._session_dirty = False
+            self._save_session(self.session_key, self.current_session())
+
+    @work(thread=True, exclusive=True, group="session", exit_on_error=False)
+    def _save_session(self, key: str, saved: Any) -> None:
+        """Write the session file (atomically) off the interface thread."""
+        from tui.session import save
+
+        try:
+            save(key, saved)
+        except OSError as exc:
+            self.call_from_thread(self.notify, f"Could not save the session: {one_line(exc)}", title="Session",
+                                  severity="warning")
+
+    def save_session_now(self) -> None:
+        """Write any unsaved change at once (on quitting)."""
+        if self._session_timer is not None:
+            self._session_timer.stop()
+            self._session_timer = None
+        if not (self._session_dirty and self.session_key is not None and self.library is not None):
+            return
+        from tui.session import save
+
+        self._session_dirty = False
+        try:
+            save(self.session_key, self.current_session())
+        except OSError:
+            pass  # quitting: nowhere left to say it; the previous session file is intact (atomic writes)
+
+    def action_start_fresh(self) -> None:
+        """Drop this library's session: no marks (z brings them back), input order, no filters, default conditions."""
+        from engine import Conditions
+
+        if self.marked.any():
+            self._undo.append(MarksUndo(f"start fresh (cleared {int(self.marked.sum()):,} marks)", self.marked.copy()))
+            del self._undo[:-UNDO_DEPTH]
+            self.marked[:] = False
+            self.query_one(LibraryTable).set_marked(self.marked)
+        self.query_one(SearchBar).value = ""
+        with self.batch_update():
+            self.set_reactive(HalosiftApp.sort, SortSpec())
+            self.set_reactive(HalosiftApp.filters, FilterSpec())
+            self.set_reactive(HalosiftApp.view, "library")
+            self.set_reactive(HalosiftApp.show_input_columns, False)
+            self.set_reactive(HalosiftApp.show_more_columns, False)
+            self.conditions = Conditions()  # re-weighs and requests the view
+        self._to_top = True
+        self._request_view()
+        self.notify("Started fresh: default conditions, input order, no filters, no marks (z brings the marks back)",
+                    title="Session", timeout=8)
 
     def on_screening_stopped(self, message: ScreeningStopped) -> None:
         self.phase = "stopped"
@@ -340,8 +482,9 @@ class HalosiftApp(App[int]):
         self._start_screening()
 
     async def action_quit(self) -> None:
-        """Quit, stopping any screening first."""
+        """Quit, stopping any screening first and saving the session."""
         self._cancel.set()
+        self.save_session_now()
         self.exit(0)
 
     async def action_leave(self) -> None:
@@ -362,6 +505,7 @@ class HalosiftApp(App[int]):
         if self.library is None or self.conditions is None:
             return
         self._generation += 1
+        self._session_changed()
         self._update_status()
         self.refresh_bindings()
         frame = self.frame if self.frame_conditions == self.conditions else None
@@ -562,6 +706,7 @@ class HalosiftApp(App[int]):
             self.screen.marked = bool(self.marked[self.screen.row])
 
     def _marks_changed(self) -> None:
+        self._session_changed()
         self.query_one(LibraryTable).set_marked(self.marked)
         if self.view == "shortlist":
             self._request_view()
@@ -814,7 +959,8 @@ class HalosiftApp(App[int]):
 
 
 def run(
-    path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True
+    path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True,
+    fresh: bool = False,
 ) -> int:
     """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
     if path is None:
@@ -841,6 +987,6 @@ def run(
 
     # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
     graphics = detect_graphics(enabled=images)
-    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics)
+    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh)
     result = app.run()
     return int(result or app.return_code or 0)

@@ -32,6 +32,12 @@ class ScreeningFinished(Message):
     """Library.evaluate(conditions), a pandas DataFrame."""
     conditions: Any
     """The engine.Conditions ``frame`` was evaluated under."""
+    session: Any = None
+    """The tui.session.Session saved for this library, to restore (None: start fresh)."""
+    session_key: str | None = None
+    """The library's session key (None: sessions are off, e.g. for an in-memory table)."""
+    session_note: str = ""
+    """One line about a saved session that could not be used ('' when there is none to say)."""
 
 
 @dataclass

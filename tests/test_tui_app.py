@@ -482,7 +482,7 @@ async def test_mouse_picks_rows_and_columns(tmp_path):
         await pilot.click(LibraryTable, offset=(12, 4))  # fourth data row, SMILES cell
         await pilot.pause()
         assert table.cursor == 3
-        x = 2 + table.columns[0].width + 1 + table.columns[1].width + 1 + 2  # inside the Verdict header
+        x = 2 + table.columns[0].width + 1 + 2  # inside the Verdict header (pinned beside the ID)
         await pilot.click(LibraryTable, offset=(x, 0))
         await pilot.pause()
         assert table.columns[table.picked].key == "verdict"

@@ -74,3 +74,20 @@ def test_detail_working_80x24(snap_compare, tmp_path, monkeypatch):
         assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=open_slow)
     finally:
         gate.set()
+
+
+def test_scrolled_right_with_filters_80x24(snap_compare, tmp_path):
+    """ID and verdict stay at the left, numbers are whole, the header keeps whole phrases."""
+
+    async def scrolled(pilot) -> None:
+        from tui.filters import FilterSpec
+
+        await settle(pilot)
+        pilot.app.filters = FilterSpec(min_br2_pct=50.0, max_products=4, site_types=frozenset({"tertiary", "primary"}))
+        await pilot.press("o")
+        await settle(pilot)
+        for _ in range(9):
+            await pilot.press("right")
+        await pilot.pause()
+
+    assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=scrolled)

@@ -205,6 +205,7 @@ class HalosiftApp(App[int]):
         self._counts = (0, 0)
         self._to_top = False
         self._undo: list[MarksUndo] = []
+        self._titles: dict[Hashable, str] = {key: label for key, label, _, _ in MORE_COLUMNS}
         self._session_restored = False
         self._session_timer: Timer | None = None
         self._session_dirty = False
@@ -625,33 +626,61 @@ class HalosiftApp(App[int]):
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
+        from tui.header import Phrase, fit_phrases
+
         ok, rejected = self._counts
         shown = len(self.query_one(LibraryTable).rows)
         total = len(self.frame)
-        updating = " │ updating…" if self.busy else ""
-        self.query_one("#counts", Static).update(
-            f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected) │ "
-            f"view {self.view}: {_count(shown)} shown │ {_count(int(self.marked.sum()))} marked{updating}"
-        )
+        marked = _count(int(self.marked.sum()))
+        counts = [
+            Phrase((f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected)",
+                    f"{_count(total)} rows ({_count(rejected)} rejected)", f"{_count(total)} rows"), keep=1),
+            Phrase((f"view {self.view}: {_count(shown)} shown", f"{self.view}: {_count(shown)} shown"), keep=3),
+            Phrase((f"{marked} marked",), keep=4),
+        ]
+        if self.busy:
+            counts.append(Phrase(("updating…",), keep=5))
+        width = max(20, self.size.width - 2)  # the lines' padding
+        self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
+        solvent = f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if cond.cl2_solvent != "none" else ""
+        short_solvent = f" ({cond.cl2_solvent})" if cond.cl2_solvent != "none" else ""
+        temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
-        filters = self.filters.describe() if self.view == "library" else "filters off here"
-        self.query_one("#settings", Static).update(
-            f"Cl2 {cond.cl2_temp_c:g} °C · Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} % │ "
-            f"sort {sort} │ {filters}"
-        )
+        settings = [
+            Phrase((f"Cl2 {cond.cl2_temp_c:g} °C{solvent} · {temps}", f"Cl2 {cond.cl2_temp_c:g} °C{short_solvent} · {temps}"),
+                   keep=4),
+            Phrase((f"sort {sort}", sort), keep=3),
+        ]
+        if self.view != "library":
+            settings.append(Phrase(("filters off here", ""), keep=1))
+        elif self.filters.active:
+            f = self.filters
+            n = sum((bool(f.verdicts), f.min_br2_pct is not None, f.max_products is not None, bool(f.site_types),
+                     f.no_new_stereo, bool(f.text)))
+            settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
+                                   keep=2))
+        else:
+            settings.append(Phrase(("no filters", ""), keep=1))
+        self.query_one("#settings", Static).update(fit_phrases(settings, width))
         warnings = cond.warnings()
         box = self.query_one("#warnings", Static)
         box.display = bool(warnings)
         box.update("\n".join(f"! {w}" for w in warnings))
 
+    def on_resize(self) -> None:
+        self._update_status()
+
     def _sort_text(self) -> str:
-        """The sort order in words, e.g. 'Br2 % ▼' or 'input order'."""
+        """The sort order in words, e.g. 'Br2 % ▼' or 'input order' (titles a chemist reads, never internal names)."""
+        from tui.header import column_title
+
         if self.sort.column is None:
             return "input order"
-        labels = {c.key: c.label for c in self.query_one(LibraryTable).columns}
-        label = labels.get(self.sort.column, str(self.sort.column))
-        return f"{label} {'▼' if self.sort.descending else '▲'}"
+        self._titles.update({c.key: c.label for c in self.query_one(LibraryTable).columns})
+        if self.sort.column == ROW_KEY:
+            self._titles.setdefault(ROW_KEY, "Row")
+        return f"{column_title(self.sort.column, self._titles)} {'▼' if self.sort.descending else '▲'}"
 
     def watch_view(self) -> None:
         self._request_view()

@@ -187,7 +187,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
                 yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, filtered as shown",
                                   start == "view", id="what-view", compact=True)
             yield Static(f"Rows are written in the table's order: {self.order}.", id="export-order")
-            yield Label("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
+            yield Static("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
             yield Input(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
             yield Static("", id="export-check")
             yield Static("Conditions, selection and the safety caution are stored with the data.", id="export-note")

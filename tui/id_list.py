@@ -98,7 +98,7 @@ class IdListScreen(ModalScreen[Path | None]):
     def compose(self) -> ComposeResult:
         with Vertical(id="ids-box"):
             yield Static("Mark the rows listed in a file", id="ids-title")
-            yield Label("File: one ID a line, or a .csv/.tsv with the library's ID column")
+            yield Static("File: one ID a line, or a .csv/.tsv with the library's ID column")
             yield Input(str(self.folder) + "/", id="ids-path", compact=True, select_on_focus=False)
             yield Static("", id="ids-check")
             yield Static("Listed rows are added to the shortlist; z undoes it. Enter reads · Esc cancels",

@@ -135,7 +135,7 @@ class HalosiftApp(App[int]):
         Binding("e", "export", "Export"),
         Binding("a", "mark_shown", "Mark all shown", show=False),
         Binding("u", "unmark_shown", "Unmark all shown", show=False),
-        Binding("z", "undo_marks", "Undo mark/unmark all", show=False),
+        Binding("z", "undo_marks", "Undo mark all, unmark all or marks from a file", show=False),
         Binding("m", "mark_from_file", "Mark IDs listed in a file", show=False),
         Binding("N", "start_fresh", "Start fresh (drop the saved session)", show=False, key_display="N"),
         Binding("x", "clear_filters", "Clear filters", show=False),

@@ -149,7 +149,7 @@ class ConditionsScreen(ModalScreen[None]):
     """
 
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("escape", "close", "Back to table"),
+        Binding("escape", "close", "Back (applies valid values)"),
     ]
 
     applied: reactive[Any] = reactive(None, init=False)

@@ -159,11 +159,22 @@ class HelpScreen(Screen):
     def _views(self) -> Table:
         rows = [(k, v) for k, v in VIEW_DOCS.items()]
         rows.append(("counts", "the top line always shows all rows, screened, rejected, shown and marked"))
+        rows.append(("marks", "a / u mark or unmark every shown row, m marks the rows an ID-list file names; "
+                     "z undoes the last of these (up to 20 steps)"))
+        rows.append(("sessions", "marks, sort, filters, view, columns and conditions are saved per library file "
+                     "(in the user's data folder; HALOSIFT_SESSION_DIR overrides it) and restored when the same, "
+                     "unchanged file is opened again; N or halosift browse --fresh starts fresh"))
+        rows.append(("exports", "rows are written in the table's order (its sort, and for the view its filters); "
+                     "the export form and the file's metadata say which"))
+        rows.append(("site detail", "the products are worked out in the background (the header says working…); "
+                     "Esc goes back at once, n / p move the table's cursor too"))
+        rows.append(("conditions", "t opens the panel; a value applies on Enter or on leaving its field, and only "
+                     "when every field is complete and valid; refused and pending values are named"))
         mode = getattr(self.app, "graphics", None)
         rows.append(("drawings", "the site detail draws the structure with each site's split where the terminal "
                      "shows inline images (Sixel or Kitty graphics; now: " + (mode or "off") + "); "
                      "halosift browse --no-images or HALOSIFT_IMAGES=off turns this off"))
-        return self._section("Views (v cycles)", rows)
+        return self._section("Views (v cycles them), marks and sessions", rows)
 
     def _columns(self) -> Table:
         from engine.special_sites import FLAG_NOTES

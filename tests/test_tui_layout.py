@@ -130,3 +130,22 @@ async def test_dialogs_use_the_width_they_have(tmp_path):
             await pilot.press("escape", "f")
             await pilot.pause()
             assert app.screen.query_one("#filter-box").outer_size.width == expected
+
+
+@async_test
+async def test_condition_warnings_are_whole_or_summed_up(tmp_path):
+    import engine
+
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        one = engine.Conditions(cl2_temp_c=400.0)
+        app.conditions = one
+        await settle(pilot)
+        box = app.query_one("#warnings")
+        assert box.display and text_of(box) == "\n".join(f"! {w}" for w in one.warnings())
+        assert box.size.height >= 2  # wrapped, not cut
+        many = engine.Conditions(cl2_temp_c=400.0, br2_temp_c=400.0, nbs_temp_c=400.0)
+        app.conditions = many
+        await settle(pilot)
+        assert text_of(box).startswith(f"! {len(many.warnings())} warnings about these conditions")

@@ -62,6 +62,8 @@ PROGRESS_INTERVAL = 0.1
 UNDO_DEPTH = 20
 #: Seconds after the last change before the session file is written (a burst of changes is one write).
 SESSION_SAVE_DELAY = 0.5
+#: Header lines the condition warnings may take before they are summed up in one.
+WARNING_LINES = 3
 
 
 @dataclass(frozen=True)
@@ -209,6 +211,9 @@ class HalosiftApp(App[int]):
         self._session_restored = False
         self._session_timer: Timer | None = None
         self._session_dirty = False
+        self._session_lock = threading.Lock()
+        self._session_seq = 0
+        self._session_written = 0
 
     # ------------------------------------------------------------------ layout
 
@@ -384,15 +389,20 @@ class HalosiftApp(App[int]):
         self._session_timer = None
         if self._session_dirty and self.session_key is not None:
             self._session_dirty = False
-            self._save_session(self.session_key, self.current_session())
+            self._session_seq += 1
+            self._save_session(self.session_key, self.current_session(), self._session_seq)
 
-    @work(thread=True, exclusive=True, group="session", exit_on_error=False)
-    def _save_session(self, key: str, saved: Any) -> None:
-        """Write the session file (atomically) off the interface thread."""
+    @work(thread=True, group="session", exit_on_error=False)
+    def _save_session(self, key: str, saved: Any, seq: int) -> None:
+        """Write the session file (atomically) off the interface thread; an older state never replaces a newer one."""
         from tui.session import save
 
         try:
-            save(key, saved)
+            with self._session_lock:
+                if seq <= self._session_written:
+                    return
+                save(key, saved)
+                self._session_written = seq
         except OSError as exc:
             self.call_from_thread(self.notify, f"Could not save the session: {one_line(exc)}", title="Session",
                                   severity="warning")
@@ -407,8 +417,11 @@ class HalosiftApp(App[int]):
         from tui.session import save
 
         self._session_dirty = False
+        self._session_seq += 1
         try:
-            save(self.session_key, self.current_session())
+            with self._session_lock:
+                save(self.session_key, self.current_session())
+                self._session_written = self._session_seq
         except OSError:
             pass  # quitting: nowhere left to say it; the previous session file is intact (atomic writes)
 
@@ -666,7 +679,12 @@ class HalosiftApp(App[int]):
         warnings = cond.warnings()
         box = self.query_one("#warnings", Static)
         box.display = bool(warnings)
-        box.update("\n".join(f"! {w}" for w in warnings))
+        lines = [f"! {w}" for w in warnings]
+        # Wrapped whole, never cut; more than fits in WARNING_LINES becomes a count pointing to the panel.
+        if sum(-(-len(line) // width) for line in lines) > WARNING_LINES:
+            lines = [f"! {len(warnings)} warnings about these conditions: the split is extrapolated "
+                     "(t lists them in full)"]
+        box.update("\n".join(lines))
 
     def on_resize(self) -> None:
         self._update_status()

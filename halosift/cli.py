@@ -144,6 +144,10 @@ def build_parser() -> argparse.ArgumentParser:
         "--no-images", action="store_true",
         help="never draw structures inline, even where the terminal can (also: HALOSIFT_IMAGES=off)",
     )
+    br.add_argument(
+        "--fresh", action="store_true",
+        help="start without this library's saved session (marks, sort, filters, view, conditions) and replace it",
+    )
     return parser
 
 
@@ -340,7 +344,8 @@ def _load(args: argparse.Namespace, *, quiet: bool):
 def _browse(args: argparse.Namespace) -> int:
     from tui.app import run
 
-    return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images)
+    return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images,
+               fresh=args.fresh)
 
 
 def _short(text: str, limit: int = 60) -> str:

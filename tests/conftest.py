@@ -7,3 +7,4 @@ import tempfile
 
 # Tests must never read or pollute the user's real cache.
 os.environ.setdefault("HALOSIFT_CACHE_DIR", tempfile.mkdtemp(prefix="halosift-test-cache-"))
+os.environ.setdefault("HALOSIFT_SESSION_DIR", tempfile.mkdtemp(prefix="halosift-test-sessions-"))

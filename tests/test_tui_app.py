@@ -14,7 +14,7 @@ import pytest
 
 import engine
 from tui.app import HalosiftApp, run
-from tui.conditions import ConditionsPanel
+from tui.conditions import ConditionsScreen
 from tui.detail import DetailScreen, bar
 from tui.export import ConfirmScreen, ExportScreen, check_export_path
 from tui.filter_form import FilterForm
@@ -123,8 +123,8 @@ async def test_whole_path(tmp_path):
         assert len(mixtures)
         first = int(mixtures[0])
         await pilot.press("t")
-        panel = app.query_one(ConditionsPanel)
-        assert panel.display
+        panel = app.screen
+        assert isinstance(panel, ConditionsScreen)
         br2 = panel.query_one("#cond-br2")
         br2.focus()
         br2.value = ""
@@ -139,6 +139,8 @@ async def test_whole_path(tmp_path):
         )
         assert "Br2 40 °C" in plain(app.query_one("#settings"))
         # The table shows the new numbers for that row.
+        await pilot.press("escape")
+        await pilot.pause()
         table.focus()
         position = int(np.flatnonzero(table.rows == first)[0])
         table.cursor = position
@@ -146,15 +148,17 @@ async def test_whole_path(tmp_path):
         assert f"{after.loc[first, 'br2_major_pct']:.1f}" in table_text(app)
         # An impossible temperature is refused, with a one-line reason, and not applied.
         await pilot.press("t")
+        panel = app.screen
+        br2 = panel.query_one("#cond-br2")
         br2.focus()
         br2.value = "-300"
         await pilot.press("enter")
         await settle(pilot, app)
         assert app.conditions.br2_temp_c == 40.0
         assert "absolute zero" in plain(panel.query_one("#cond-note"))
-        br2.value = "40"
         await pilot.press("escape")
-        assert not panel.display
+        await pilot.pause()
+        assert not isinstance(app.screen, ConditionsScreen)
 
         # --- mark two rows (Space marks and steps down)
         table.focus()
@@ -183,7 +187,8 @@ async def test_whole_path(tmp_path):
         assert app.last_export == out_csv.resolve()
         written = pd.read_csv(out_csv, keep_default_na=False)
         assert len(written) == 2
-        assert written["input_row"].tolist() == [r + 1 for r in marked_rows]
+        # In the table's order (sorted by SMILES, largest first), as the export form says.
+        assert written["input_row"].tolist() == [int(r) + 1 for r in table.rows if app.marked[r]]
         for column in ("verdict", "br2_major", "br2_major_pct", "stereo", app.library.smiles_column):
             assert column in written.columns
         about = Path(str(out_csv) + ".about.txt").read_text(encoding="utf-8")
@@ -240,7 +245,7 @@ async def test_detail_shows_every_product_and_steps(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CCc1ccccc1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)  # the products are worked out in a worker
         screen = app.screen
         assert isinstance(screen, DetailScreen) and screen.row == row
         products = app.library.products(row, app.conditions)
@@ -258,9 +263,10 @@ async def test_detail_shows_every_product_and_steps(tmp_path):
         await pilot.pause()
         assert app.marked[row] and screen.marked
         assert "on shortlist" in plain(screen.query_one("#detail-head"))
+        start = table.cursor
         await pilot.press("n")
         await pilot.pause()
-        assert screen.position == table.cursor + 1
+        assert screen.position == start + 1 == table.cursor  # the table's cursor follows the detail
         await pilot.press("escape")
         assert not isinstance(app.screen, DetailScreen)
 
@@ -456,7 +462,7 @@ async def test_out_of_range_temperature_shows_the_engine_warning(tmp_path):
         await settle(pilot, app)
         assert not app.query_one("#warnings").display
         await pilot.press("t")
-        cl2 = app.query_one("#cond-cl2")
+        cl2 = app.screen.query_one("#cond-cl2")
         cl2.value = "400"
         await pilot.press("enter")
         await settle(pilot, app)
@@ -464,7 +470,7 @@ async def test_out_of_range_temperature_shows_the_engine_warning(tmp_path):
         assert expected and app.conditions.warnings() == expected
         assert app.query_one("#warnings").display
         assert plain(app.query_one("#warnings")) == "\n".join(f"! {w}" for w in expected)
-        assert expected[0] in plain(app.query_one(ConditionsPanel).query_one("#cond-note"))
+        assert expected[0] in plain(app.screen.query_one("#cond-note"))
 
 
 @async_test
@@ -476,7 +482,7 @@ async def test_mouse_picks_rows_and_columns(tmp_path):
         await pilot.click(LibraryTable, offset=(12, 4))  # fourth data row, SMILES cell
         await pilot.pause()
         assert table.cursor == 3
-        x = 2 + table.columns[0].width + 1 + table.columns[1].width + 1 + 2  # inside the Verdict header
+        x = 2 + table.columns[0].width + 1 + 2  # inside the Verdict header (pinned beside the ID)
         await pilot.click(LibraryTable, offset=(x, 0))
         await pilot.pause()
         assert table.columns[table.picked].key == "verdict"
@@ -512,7 +518,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CC1=CCCCC1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)
         screen = app.screen
         record = app.frame.iloc[row]
         head = plain(screen.query_one("#detail-head"))
@@ -531,7 +537,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "C1CCCCC1")[0])
         table.cursor = int(np.flatnonzero(table.rows == row)[0])
         await pilot.press("enter")
-        await pilot.pause()
+        await settle(pilot, app)
         assert "No allylic or benzylic C–H" in plain(app.screen.query_one("#detail-nbs"))
 
 

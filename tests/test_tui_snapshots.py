@@ -29,7 +29,7 @@ async def open_detail_of_ethylbenzene(pilot) -> None:
     row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "CCc1ccccc1")[0])
     table.cursor = int(np.flatnonzero(table.rows == row)[0])
     await pilot.press("enter")
-    await pilot.pause()
+    await settle(pilot)  # the products are worked out in a worker
 
 
 async def mark_and_sort(pilot) -> None:

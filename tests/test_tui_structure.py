@@ -105,7 +105,10 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
                 await pilot.pause(0.05)
                 if isinstance(app.screen, DetailScreen):
                     break
-            await pilot.pause(0.2)
+            for _ in range(200):  # the drawing arrives with the worked-out detail
+                await pilot.pause(0.05)
+                if not app.screen.working:
+                    break
             box = app.screen.query_one("#detail-structure")
             return [type(w).__name__ for w in box.children]
 

@@ -36,9 +36,14 @@ def async_test(fn):
 
 async def settle(pilot, app=None, rounds: int = 1000) -> None:
     """Wait until screening, every worker and every table update has finished."""
+    from textual.worker import WorkerCancelled
+
     app = app or pilot.app
     for _ in range(rounds):
-        await app.workers.wait_for_complete()
+        try:
+            await app.workers.wait_for_complete()
+        except WorkerCancelled:  # a newer request replaced it (exclusive workers): wait for that one
+            pass
         await pilot.pause()
         if not app.busy and not any(w.is_running for w in app.workers):
             await pilot.pause()

@@ -13,7 +13,7 @@ import sys
 import threading
 import time
 from collections.abc import Hashable
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
@@ -23,17 +23,20 @@ from textual.app import App, ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.reactive import reactive
+from textual.timer import Timer
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
 
-from tui.conditions import ConditionsPanel
+from tui.conditions import ConditionsScreen
 from tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
 from tui.messages import (
     ConditionsProposed,
     CursorMoved,
+    DetailMoved,
     DetailRequested,
     ExportFailed,
     ExportFinished,
+    IdsMatched,
     MarkRequested,
     PanelClosed,
     ScreeningFinished,
@@ -55,11 +58,28 @@ if TYPE_CHECKING:
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
+#: Bulk mark steps that z can undo (each keeps one bool per row).
+UNDO_DEPTH = 20
+#: Seconds after the last change before the session file is written (a burst of changes is one write).
+SESSION_SAVE_DELAY = 0.5
+#: Header lines the condition warnings may take before they are summed up in one.
+WARNING_LINES = 3
+
+
+@dataclass(frozen=True)
+class MarksUndo:
+    """The shortlist as it was before one bulk mark step."""
+
+    what: str
+    """The step, in words ('unmark all 12 shown')."""
+    marked: np.ndarray
+    """Marks before the step, one per frame row."""
 
 
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
-    "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown",
+    "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown", "undo_marks",
+    "mark_from_file", "start_fresh",
     "clear_filters", "toggle_input_columns", "toggle_more_columns",
 })
 #: Result columns the "more columns" key adds to the library table (label, width, kind).
@@ -116,6 +136,9 @@ class HalosiftApp(App[int]):
         Binding("e", "export", "Export"),
         Binding("a", "mark_shown", "Mark all shown", show=False),
         Binding("u", "unmark_shown", "Unmark all shown", show=False),
+        Binding("z", "undo_marks", "Undo mark all, unmark all or marks from a file", show=False),
+        Binding("m", "mark_from_file", "Mark IDs listed in a file", show=False),
+        Binding("N", "start_fresh", "Start fresh (drop the saved session)", show=False, key_display="N"),
         Binding("x", "clear_filters", "Clear filters", show=False),
         Binding("c", "toggle_input_columns", "Input columns", show=False),
         Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
@@ -144,9 +167,17 @@ class HalosiftApp(App[int]):
         id_column: str | None = None,
         use_cache: bool = True,
         graphics: str | None = None,
+        fresh: bool = False,
+        sessions: bool = True,
     ) -> None:
         super().__init__()
         start_process_helpers()
+        self.fresh = fresh
+        """Ignore (and replace) the session saved for this library."""
+        self.sessions = sessions and isinstance(source, (str, os.PathLike))
+        """Save and restore marks, sort, filters, view and conditions per library file."""
+        self.session_key: str | None = None
+        """The library's key in the session folder, once screening has read it."""
         self.graphics = graphics
         """Inline-image mode for structure drawings ('sixel', 'tgp', 'unicode'), or None for text only."""
         self.source = source
@@ -173,6 +204,15 @@ class HalosiftApp(App[int]):
         self._site_choices: tuple[Any, list[str]] = (None, [])
         self._orders = OrderCache()
         self._counts = (0, 0)
+        self._to_top = False
+        self._undo: list[MarksUndo] = []
+        self._titles: dict[Hashable, str] = {key: label for key, label, _, _ in MORE_COLUMNS}
+        self._session_restored = False
+        self._session_timer: Timer | None = None
+        self._session_dirty = False
+        self._session_lock = threading.Lock()
+        self._session_seq = 0
+        self._session_written = 0
 
     # ------------------------------------------------------------------ layout
 
@@ -195,12 +235,10 @@ class HalosiftApp(App[int]):
         yield LibraryTable(id="table")
         yield Static("", id="rowinfo")
         yield SearchBar(id="search")
-        yield ConditionsPanel(id="conditions")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
         self.query_one("#search").display = False
-        self.query_one("#conditions").display = False
         self.query_one("#warnings").display = False
         self._start_screening()
 
@@ -236,7 +274,15 @@ class HalosiftApp(App[int]):
                 progress=progress,
                 cancel=cancel,
             )
+            session, key, note = self._read_session(len(library.input))
             conditions = self.conditions or engine.Conditions()
+            if session is not None and session.conditions and self.conditions is None:
+                from tui.session import restore_conditions
+
+                try:
+                    conditions = restore_conditions(session.conditions)
+                except ValueError as exc:
+                    note = f"The saved conditions are not usable ({exc}); default conditions are used."
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -250,7 +296,29 @@ class HalosiftApp(App[int]):
         if cancel.is_set():
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
             return
-        self.post_message(ScreeningFinished(library, frame, conditions))
+        self.post_message(ScreeningFinished(library, frame, conditions, session, key, note))
+
+    def _read_session(self, n_rows: int) -> tuple[Any, str | None, str]:
+        """(session to restore or None, library key or None, one-line note) — file reads, so called in the worker."""
+        if not self.sessions or self._session_restored:
+            return None, self.session_key, ""
+        from tui import session as sessions
+
+        try:
+            key = sessions.library_key(self.source)
+        except OSError as exc:
+            return None, None, f"Sessions are off for this library: {one_line(exc)}"
+        if self.fresh:
+            try:
+                sessions.forget(key)
+            except OSError as exc:
+                return None, key, f"The saved session could not be removed: {one_line(exc)}"
+            return None, key, ""
+        saved, note = sessions.load(key)
+        if saved is not None and saved.n_rows != n_rows:
+            return None, key, (f"The saved session is for {saved.n_rows:,} rows, not {n_rows:,}, "
+                               "and is ignored; this one starts fresh.")
+        return saved, key, note
 
     def on_screening_progress(self, message: ScreeningProgress) -> None:
         if self.phase != "screening":
@@ -267,11 +335,116 @@ class HalosiftApp(App[int]):
         self.frame = message.frame
         self.frame_conditions = message.conditions
         self.marked = np.zeros(len(message.frame), dtype=bool)
+        self._undo = []
         self._orders = OrderCache()  # sort orders of an earlier load do not apply
         self.set_reactive(HalosiftApp.conditions, message.conditions)
-        self.query_one(ConditionsPanel).load(message.conditions)
+        if message.session_key is not None:
+            self.session_key = message.session_key
+        if message.session is not None and not self._session_restored:
+            self._restore_session(message.session)
+        self._session_restored = True
+        if message.session_note:
+            self.notify(message.session_note, title="Session", severity="warning", timeout=10)
         self.phase = "ready"
         self._request_view()
+
+    def _restore_session(self, saved: Any) -> None:
+        """Take marks, sort, filters, view and column choices from a saved session (conditions came with the frame)."""
+        self.marked = saved.marked.copy()
+        self.set_reactive(HalosiftApp.sort, saved.sort)
+        self.set_reactive(HalosiftApp.filters, saved.filters)
+        self.set_reactive(HalosiftApp.view, saved.view)
+        self.set_reactive(HalosiftApp.show_input_columns, saved.show_input_columns)
+        self.set_reactive(HalosiftApp.show_more_columns, saved.show_more_columns)
+        self.query_one(SearchBar).value = saved.filters.text
+        self.notify(
+            f"Restored this library's last session: {int(self.marked.sum()):,} marked, view {saved.view}, "
+            f"{saved.filters.describe()}. N starts fresh.",
+            title="Session", timeout=6,
+        )
+
+    # ------------------------------------------------------------------ sessions
+
+    def current_session(self) -> Any:
+        """The state to save for this library (tui.session.Session)."""
+        from tui.session import Session, conditions_record
+
+        return Session(
+            n_rows=len(self.marked), marked=self.marked.copy(), sort=self.sort, filters=self.filters, view=self.view,
+            conditions=conditions_record(self.conditions), show_input_columns=self.show_input_columns,
+            show_more_columns=self.show_more_columns,
+        )
+
+    def _session_changed(self) -> None:
+        """Save the session shortly (changes in a burst are written once)."""
+        if self.session_key is None or self.library is None or self.conditions is None:
+            return
+        self._session_dirty = True
+        if self._session_timer is not None:
+            self._session_timer.stop()
+        self._session_timer = self.set_timer(SESSION_SAVE_DELAY, self._save_session_soon)
+
+    def _save_session_soon(self) -> None:
+        self._session_timer = None
+        if self._session_dirty and self.session_key is not None:
+            self._session_dirty = False
+            self._session_seq += 1
+            self._save_session(self.session_key, self.current_session(), self._session_seq)
+
+    @work(thread=True, group="session", exit_on_error=False)
+    def _save_session(self, key: str, saved: Any, seq: int) -> None:
+        """Write the session file (atomically) off the interface thread; an older state never replaces a newer one."""
+        from tui.session import save
+
+        try:
+            with self._session_lock:
+                if seq <= self._session_written:
+                    return
+                save(key, saved)
+                self._session_written = seq
+        except OSError as exc:
+            self.call_from_thread(self.notify, f"Could not save the session: {one_line(exc)}", title="Session",
+                                  severity="warning")
+
+    def save_session_now(self) -> None:
+        """Write any unsaved change at once (on quitting)."""
+        if self._session_timer is not None:
+            self._session_timer.stop()
+            self._session_timer = None
+        if not (self._session_dirty and self.session_key is not None and self.library is not None):
+            return
+        from tui.session import save
+
+        self._session_dirty = False
+        self._session_seq += 1
+        try:
+            with self._session_lock:
+                save(self.session_key, self.current_session())
+                self._session_written = self._session_seq
+        except OSError:
+            pass  # quitting: nowhere left to say it; the previous session file is intact (atomic writes)
+
+    def action_start_fresh(self) -> None:
+        """Drop this library's session: no marks (z brings them back), input order, no filters, default conditions."""
+        from engine import Conditions
+
+        if self.marked.any():
+            self._undo.append(MarksUndo(f"start fresh (cleared {int(self.marked.sum()):,} marks)", self.marked.copy()))
+            del self._undo[:-UNDO_DEPTH]
+            self.marked[:] = False
+            self.query_one(LibraryTable).set_marked(self.marked)
+        self.query_one(SearchBar).value = ""
+        with self.batch_update():
+            self.set_reactive(HalosiftApp.sort, SortSpec())
+            self.set_reactive(HalosiftApp.filters, FilterSpec())
+            self.set_reactive(HalosiftApp.view, "library")
+            self.set_reactive(HalosiftApp.show_input_columns, False)
+            self.set_reactive(HalosiftApp.show_more_columns, False)
+            self.conditions = Conditions()  # re-weighs and requests the view
+        self._to_top = True
+        self._request_view()
+        self.notify("Started fresh: default conditions, input order, no filters, no marks (z brings the marks back)",
+                    title="Session", timeout=8)
 
     def on_screening_stopped(self, message: ScreeningStopped) -> None:
         self.phase = "stopped"
@@ -322,8 +495,9 @@ class HalosiftApp(App[int]):
         self._start_screening()
 
     async def action_quit(self) -> None:
-        """Quit, stopping any screening first."""
+        """Quit, stopping any screening first and saving the session."""
         self._cancel.set()
+        self.save_session_now()
         self.exit(0)
 
     async def action_leave(self) -> None:
@@ -344,6 +518,7 @@ class HalosiftApp(App[int]):
         if self.library is None or self.conditions is None:
             return
         self._generation += 1
+        self._session_changed()
         self._update_status()
         self.refresh_bindings()
         frame = self.frame if self.frame_conditions == self.conditions else None
@@ -366,9 +541,6 @@ class HalosiftApp(App[int]):
         text_columns: tuple[list[Hashable], list[Hashable]],
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
-        from engine import VERDICTS
-        from engine.stereo import OUTCOMES
-
         from tui.filters import ordered_rows, view_mask
 
         worker = get_current_worker()
@@ -378,21 +550,29 @@ class HalosiftApp(App[int]):
             if worker.is_cancelled:
                 return
             mask = view_mask(frame, view, spec, marked, *text_columns)
-            order = None
-            if sort.column == ROW_KEY:
-                order = np.arange(len(frame))[::-1] if sort.descending else None
-            elif sort.column is not None and sort.column in frame:
-                token = "input" if sort.column in library.input.columns else conditions
-                categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
-                ranks = {v: i for i, v in enumerate(categories)} if categories else None
-                order = self._orders.order(frame, token, sort.column, sort.descending, ranks)
-            rows = ordered_rows(mask, order)
+            rows = ordered_rows(mask, self._sort_order(library, conditions, frame, sort))
             screened = int((frame["status"] == "ok").sum())
         except Exception as exc:  # a bug: report it in one line
             self.post_message(ViewFailed(generation, f"{type(exc).__name__}: {one_line(exc)}"))
             return
         if not worker.is_cancelled:
             self.post_message(ViewComputed(generation, conditions, frame, rows, screened))
+
+    def _sort_order(
+        self, library: Library, conditions: Conditions, frame: pd.DataFrame, sort: SortSpec
+    ) -> np.ndarray | None:
+        """Every frame row in ``sort`` order, or None for input order (call off the interface thread)."""
+        from engine import VERDICTS
+        from engine.stereo import OUTCOMES
+
+        if sort.column == ROW_KEY:
+            return np.arange(len(frame))[::-1] if sort.descending else None
+        if sort.column is None or sort.column not in frame:
+            return None
+        token = "input" if sort.column in library.input.columns else conditions
+        categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
+        ranks = {v: i for i, v in enumerate(categories)} if categories else None
+        return self._orders.order(frame, token, sort.column, sort.descending, ranks)
 
     def on_view_computed(self, message: ViewComputed) -> None:
         if message.generation != self._generation:
@@ -403,7 +583,8 @@ class HalosiftApp(App[int]):
         self._counts = (message.screened, len(message.frame) - message.screened)
         table = self.query_one(LibraryTable)
         table.show(message.frame, message.rows, self._columns(message.frame),
-                   sort=(self.sort.column, self.sort.descending), marked=self.marked)
+                   sort=(self.sort.column, self.sort.descending), marked=self.marked, top=self._to_top)
+        self._to_top = False
         self._update_status()
         self.refresh_bindings()
 
@@ -460,33 +641,66 @@ class HalosiftApp(App[int]):
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
+        from tui.header import Phrase, fit_phrases
+
         ok, rejected = self._counts
         shown = len(self.query_one(LibraryTable).rows)
         total = len(self.frame)
-        updating = " │ updating…" if self.busy else ""
-        self.query_one("#counts", Static).update(
-            f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected) │ "
-            f"view {self.view}: {_count(shown)} shown │ {_count(int(self.marked.sum()))} marked{updating}"
-        )
+        marked = _count(int(self.marked.sum()))
+        counts = [
+            Phrase((f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected)",
+                    f"{_count(total)} rows ({_count(rejected)} rejected)", f"{_count(total)} rows"), keep=1),
+            Phrase((f"view {self.view}: {_count(shown)} shown", f"{self.view}: {_count(shown)} shown"), keep=3),
+            Phrase((f"{marked} marked",), keep=4),
+        ]
+        if self.busy:
+            counts.append(Phrase(("updating…",), keep=5))
+        width = max(20, self.size.width - 2)  # the lines' padding
+        self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
+        solvent = f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if cond.cl2_solvent != "none" else ""
+        short_solvent = f" ({cond.cl2_solvent})" if cond.cl2_solvent != "none" else ""
+        temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
-        filters = self.filters.describe() if self.view == "library" else "filters off here"
-        self.query_one("#settings", Static).update(
-            f"Cl2 {cond.cl2_temp_c:g} °C · Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} % │ "
-            f"sort {sort} │ {filters}"
-        )
+        settings = [
+            Phrase((f"Cl2 {cond.cl2_temp_c:g} °C{solvent} · {temps}", f"Cl2 {cond.cl2_temp_c:g} °C{short_solvent} · {temps}"),
+                   keep=4),
+            Phrase((f"sort {sort}", sort), keep=3),
+        ]
+        if self.view != "library":
+            settings.append(Phrase(("filters off here", ""), keep=1))
+        elif self.filters.active:
+            f = self.filters
+            n = sum((bool(f.verdicts), f.min_br2_pct is not None, f.max_products is not None, bool(f.site_types),
+                     f.no_new_stereo, bool(f.text)))
+            settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
+                                   keep=2))
+        else:
+            settings.append(Phrase(("no filters", ""), keep=1))
+        self.query_one("#settings", Static).update(fit_phrases(settings, width))
         warnings = cond.warnings()
         box = self.query_one("#warnings", Static)
         box.display = bool(warnings)
-        box.update("\n".join(f"! {w}" for w in warnings))
+        lines = [f"! {w}" for w in warnings]
+        # Wrapped whole, never cut; more than fits in WARNING_LINES becomes a count pointing to the panel.
+        if sum(-(-len(line) // width) for line in lines) > WARNING_LINES:
+            lines = [f"! {len(warnings)} warnings about these conditions: the split is extrapolated "
+                     "(t lists them in full)"]
+        box.update("\n".join(lines))
+
+    def on_resize(self) -> None:
+        self._update_status()
 
     def _sort_text(self) -> str:
-        """The sort order in words, e.g. 'Br2 % ▼' or 'input order'."""
+        """The sort order in words, e.g. 'Br2 % ▼' or 'input order' (titles a chemist reads, never internal names)."""
+        from tui.header import column_title
+
         if self.sort.column is None:
             return "input order"
-        labels = {c.key: c.label for c in self.query_one(LibraryTable).columns}
-        label = labels.get(self.sort.column, str(self.sort.column))
-        return f"{label} {'▼' if self.sort.descending else '▲'}"
+        self._titles.update({c.key: c.label for c in self.query_one(LibraryTable).columns})
+        if self.sort.column == ROW_KEY:
+            self._titles.setdefault(ROW_KEY, "Row")
+        return f"{column_title(self.sort.column, self._titles)} {'▼' if self.sort.descending else '▲'}"
 
     def watch_view(self) -> None:
         self._request_view()
@@ -495,9 +709,13 @@ class HalosiftApp(App[int]):
         self._request_view()
 
     def watch_sort(self) -> None:
+        self._to_top = True  # a new order starts at its first row
         self._request_view()
 
-    def watch_conditions(self) -> None:
+    def watch_conditions(self, conditions: Any) -> None:
+        for screen in self.screen_stack:
+            if isinstance(screen, ConditionsScreen):
+                screen.applied = conditions  # the panel shows what the table now uses
         self._request_view()
 
     def watch_show_input_columns(self) -> None:
@@ -537,6 +755,7 @@ class HalosiftApp(App[int]):
             self.screen.marked = bool(self.marked[self.screen.row])
 
     def _marks_changed(self) -> None:
+        self._session_changed()
         self.query_one(LibraryTable).set_marked(self.marked)
         if self.view == "shortlist":
             self._request_view()
@@ -545,6 +764,9 @@ class HalosiftApp(App[int]):
 
     def on_sort_requested(self, message: SortRequested) -> None:
         self.sort = SortSpec(message.column, message.descending)
+
+    def on_detail_moved(self, message: DetailMoved) -> None:
+        self.query_one(LibraryTable).go_to_row(message.row)
 
     def on_detail_requested(self, message: DetailRequested) -> None:
         from tui.detail import DetailScreen
@@ -567,15 +789,83 @@ class HalosiftApp(App[int]):
         """Cycle library → shortlist → rejected."""
         self.view = VIEWS[(VIEWS.index(self.view) + 1) % len(VIEWS)]
 
+    def set_marks(self, rows: np.ndarray, value: bool, what: str) -> int:
+        """Mark (or unmark) frame rows as one step that z can undo; returns how many marks changed."""
+        rows = np.asarray(rows, dtype=np.int64)
+        changed = int((self.marked[rows] != value).sum())
+        if changed:
+            self._undo.append(MarksUndo(what, self.marked.copy()))
+            del self._undo[:-UNDO_DEPTH]
+            self.marked[rows] = value
+            self._marks_changed()
+        return changed
+
     def action_mark_shown(self) -> None:
         """Mark every row the current view shows."""
-        self.marked[self.query_one(LibraryTable).rows] = True
-        self._marks_changed()
+        rows = self.query_one(LibraryTable).rows
+        changed = self.set_marks(rows, True, f"mark all {len(rows):,} shown")
+        self.notify(f"Marked {changed:,} more rows (all {len(rows):,} shown) · z undoes" if changed
+                    else "Every shown row was already marked", title="Marks")
 
     def action_unmark_shown(self) -> None:
         """Unmark every row the current view shows."""
-        self.marked[self.query_one(LibraryTable).rows] = False
+        rows = self.query_one(LibraryTable).rows
+        changed = self.set_marks(rows, False, f"unmark all {len(rows):,} shown")
+        self.notify(f"Unmarked {changed:,} rows · z undoes" if changed else "No shown row was marked", title="Marks")
+
+    def action_undo_marks(self) -> None:
+        """Undo the last mark-all, unmark-all or marks-from-file step."""
+        if not self._undo:
+            self.notify("Nothing to undo (z undoes a, u and marks from a file)", title="Marks")
+            return
+        step = self._undo.pop()
+        self.marked[:] = step.marked
         self._marks_changed()
+        self.notify(f"Undone: {step.what}; {int(self.marked.sum()):,} rows marked", title="Marks")
+
+    def action_mark_from_file(self) -> None:
+        """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
+        from tui.id_list import IdListScreen
+
+        if self.library is None or self.library.id_column is None:
+            self.notify("This library has no ID column, so there are no IDs to match", title="Marks",
+                        severity="warning")
+            return
+
+        def chosen(path: Path | None) -> None:
+            if path is not None:
+                self._match_ids(path, self.frame, self.library.id_column)
+
+        self.push_screen(IdListScreen(Path.cwd()), chosen)
+
+    @work(thread=True, exclusive=True, group="ids", exit_on_error=False)
+    def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
+        """Read an ID list and find its rows (pandas, off the interface thread)."""
+        from tui.id_list import match_ids, read_ids
+
+        try:
+            ids = read_ids(path, str(id_column))
+            match = match_ids(frame[id_column], ids)
+        except (OSError, ValueError) as exc:
+            self.post_message(IdsMatched(str(path), None, 0, (), one_line(exc)))
+            return
+        self.post_message(IdsMatched(str(path), match.rows, match.n_ids, match.missing, ""))
+
+    def on_ids_matched(self, message: IdsMatched) -> None:
+        name = Path(message.path).name
+        if message.rows is None:
+            self.notify(f"Cannot read {name}: {message.error}", title="Marks", severity="error", timeout=10)
+            return
+        changed = self.set_marks(message.rows, True, f"mark {len(message.rows):,} rows listed in {name}")
+        missing = ""
+        if message.missing:
+            few = ", ".join(message.missing[:3]) + (" …" if len(message.missing) > 3 else "")
+            missing = f"; {len(message.missing):,} not in this library ({few})"
+        self.notify(
+            f"{message.n_ids:,} IDs read from {name}: {len(message.rows):,} rows found, {changed:,} newly marked"
+            f"{missing}" + (" · z undoes" if changed else ""),
+            title="Marks", timeout=10,
+        )
 
     def action_clear_filters(self) -> None:
         """Drop every filter."""
@@ -614,11 +904,8 @@ class HalosiftApp(App[int]):
         bar.focus()
 
     def action_conditions(self) -> None:
-        """Open the conditions panel (temperatures and threshold, applied live)."""
-        panel = self.query_one(ConditionsPanel)
-        panel.load(self.conditions)
-        panel.display = True
-        panel.focus_first()
+        """Open the conditions panel (temperatures, Cl2 solvent, threshold; applied on Enter or leaving a field)."""
+        self.push_screen(ConditionsScreen(self.conditions))
 
     @on(SearchChanged)
     def _search_changed(self, message: SearchChanged) -> None:
@@ -645,34 +932,45 @@ class HalosiftApp(App[int]):
         table = self.query_one(LibraryTable)
         protected = [Path(self.source)] if isinstance(self.source, (str, os.PathLike)) else []
         self.push_screen(
-            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected),
+            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected, self._sort_text()),
             self._export_chosen,
         )
 
     def _export_chosen(self, choice: ExportChoice | None) -> None:
         if choice is None or self.frame is None:
             return
+        order = self._sort_text()
         if choice.what == "shortlist":
-            rows = np.flatnonzero(self.marked)
-            selection = f"shortlist: {len(rows):,} marked rows, input order"
+            marked = self.marked.copy()
+            rows = None  # put in the table's order by the export worker
+            selection = f"shortlist: {int(marked.sum()):,} marked rows; order: {order}"
         else:
+            marked = None
             rows = self.query_one(LibraryTable).rows.copy()
             filters = self.filters.describe() if self.view == "library" else "no filters"
-            selection = f"{self.view} view: {len(rows):,} rows; {filters}; order: {self._sort_text()}"
-        self._write_export(self.frame, rows, choice.path, choice.force, self.conditions, selection)
+            selection = f"{self.view} view: {len(rows):,} rows; {filters}; order: {order}"
+        self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
 
     @work(thread=True, exclusive=True, group="export", exit_on_error=False)
     def _write_export(
-        self, frame: pd.DataFrame, rows: np.ndarray, path: Path, force: bool, conditions: Conditions, selection: str
+        self, frame: pd.DataFrame, rows: np.ndarray | None, marked: np.ndarray | None, sort: SortSpec, path: Path,
+        force: bool, conditions: Conditions, selection: str,
     ) -> None:
-        """Write the chosen rows atomically, with conditions and the safety caution as metadata."""
+        """Write the chosen rows atomically, in the table's order, with conditions and the safety caution as metadata.
+
+        ``rows`` are the view's rows as shown; for the shortlist they are None and
+        the ``marked`` rows are put in ``sort`` order here, off the interface thread.
+        """
         from tui.export import export_frame, export_metadata, write_report_export
+        from tui.filters import ordered_rows
 
         import engine
         from engine.io import about_path, output_format, write_table
         from halosift.report import is_report_path
 
         try:
+            if rows is None:
+                rows = ordered_rows(marked, self._sort_order(self.library, conditions, frame, sort))
             protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
             if is_report_path(path):
                 written = write_report_export(
@@ -710,7 +1008,8 @@ class HalosiftApp(App[int]):
 
 
 def run(
-    path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True
+    path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True,
+    fresh: bool = False,
 ) -> int:
     """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
     if path is None:
@@ -737,6 +1036,6 @@ def run(
 
     # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
     graphics = detect_graphics(enabled=images)
-    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics)
+    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh)
     result = app.run()
     return int(result or app.return_code or 0)

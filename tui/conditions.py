@@ -1,66 +1,136 @@
-"""The conditions panel: reagent temperatures and the selectivity threshold, applied live."""
+"""The conditions panel: temperatures, the Cl2 solvent and the selectivity threshold.
+
+A value is applied only when it is complete and the whole set passes the
+engine's own ``Conditions.validate``: on Enter, or on leaving the field (Tab,
+a click elsewhere in the panel, closing it). Until then the panel shows what
+is applied, what is pending and what is wrong, each in words. Fields are only
+written when the panel opens, never while the chemist types, so no key of a
+fast burst can be overwritten.
+"""
 
 from __future__ import annotations
 
+from dataclasses import dataclass, replace
 from typing import Any, ClassVar
 
+from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
-from textual.timer import Timer
-from textual.widgets import Input, Label, Static
+from textual.reactive import reactive
+from textual.screen import ModalScreen
+from textual.widgets import Footer, Input, Label, RadioSet, Static
 
-from tui.messages import ConditionsProposed, PanelClosed
-
-#: Seconds of quiet typing before a valid value is applied.
-SETTLE_SECONDS = 0.3
-#: Input id → engine.Conditions field.
-FIELDS: dict[str, str] = {
-    "cond-cl2": "cl2_temp_c", "cond-br2": "br2_temp_c", "cond-nbs": "nbs_temp_c", "cond-threshold": "threshold_pct",
-}
+from tui.messages import ConditionsProposed
+from tui.toggles import ChoiceButton
 
 
-def conditions_from_text(values: dict[str, str]) -> tuple[Any | None, str]:
-    """(engine.Conditions, '') from the panel's texts, or (None, one-line error)."""
-    from engine import Conditions
+@dataclass(frozen=True)
+class Field:
+    """One number field of the panel."""
 
-    kwargs: dict[str, float] = {}
-    labels = {
-        "cl2_temp_c": "Cl2 temperature", "br2_temp_c": "Br2 temperature", "nbs_temp_c": "NBS temperature",
-        "threshold_pct": "threshold",
-    }
-    for field, text in values.items():
+    input_id: str
+    """Id of its Input widget."""
+    name: str
+    """The engine.Conditions field it edits."""
+    label: str
+    """What the chemist reads beside it."""
+    unit: str
+    """Unit shown after values in the panel's notes."""
+
+
+#: The number fields, in focus order.
+FIELDS: tuple[Field, ...] = (
+    Field("cond-cl2", "cl2_temp_c", "Cl2 temperature", "°C"),
+    Field("cond-molar", "cl2_solvent_molar", "Cl2 solvent concentration", "M"),
+    Field("cond-br2", "br2_temp_c", "Br2 temperature", "°C"),
+    Field("cond-nbs", "nbs_temp_c", "NBS temperature", "°C"),
+    Field("cond-threshold", "threshold_pct", "threshold", "%"),
+)
+#: Solvents of the Cl2 chlorination offered (engine.solvent.SOLVENTS), with what the chemist reads.
+SOLVENT_LABELS: dict[str, str] = {"none": "none", "benzene": "benzene", "cs2": "CS2"}
+
+
+@dataclass(frozen=True)
+class Proposal:
+    """What the panel's fields say, read against the applied conditions."""
+
+    conditions: Any | None
+    """The engine.Conditions the fields describe, or None while any field is incomplete or invalid."""
+    errors: dict[str, str]
+    """Field name → one-line reason it cannot be applied (empty when every field is valid)."""
+    pending: tuple[str, ...]
+    """Field names whose text differs from the applied value."""
+
+
+def _text(value: float) -> str:
+    return f"{value:g}"
+
+
+def short_description(conditions: Any) -> str:
+    """The conditions the panel edits, in one short line (fits 80 columns)."""
+    solvent = (f" in {conditions.cl2_solvent_molar:g} M {SOLVENT_LABELS.get(conditions.cl2_solvent, conditions.cl2_solvent)}"
+               if conditions.cl2_solvent != "none" else "")
+    return (f"Cl2 {_text(conditions.cl2_temp_c)} °C{solvent} · Br2 {_text(conditions.br2_temp_c)} °C · "
+            f"NBS {_text(conditions.nbs_temp_c)} °C · threshold {_text(conditions.threshold_pct)} %")
+
+
+def read_fields(texts: dict[str, str], solvent: str, applied: Any) -> Proposal:
+    """Parse the fields (field name → text) and check them with the engine, field by field and as a set."""
+    errors: dict[str, str] = {}
+    values: dict[str, Any] = {"cl2_solvent": solvent}
+    labels = {f.name: f.label for f in FIELDS}
+    for name, text in texts.items():
         text = text.strip()
         if not text:
-            return None, f"{labels[field]} is empty"
+            errors[name] = f"{labels[name]} is empty"
+            continue
         try:
-            kwargs[field] = float(text)
+            values[name] = float(text)
         except ValueError:
-            return None, f"{labels[field]}: “{text}” is not a number"
-    conditions = Conditions(**kwargs)
+            errors[name] = f"{labels[name]}: “{text}” is not a number"
+    if solvent == "none":  # no solvent: the concentration field is disabled and means 0
+        errors.pop("cl2_solvent_molar", None)
+        values["cl2_solvent_molar"] = 0.0
+    # Each parsed field alone against the applied set, so a reason lands on the field that causes it.
+    for name, value in values.items():
+        if name in errors or name == "cl2_solvent":
+            continue
+        one = {name: value}
+        if name == "cl2_solvent_molar":
+            one["cl2_solvent"] = solvent
+        try:
+            replace(applied, **one).validate()
+        except ValueError as exc:
+            errors[name] = str(exc)
+    pending = tuple(
+        name for name, value in values.items()
+        if name not in errors and getattr(applied, name) != value
+    )
+    if errors:
+        return Proposal(None, errors, pending)
+    conditions = replace(applied, **values)
     try:
         conditions.validate()
-    except ValueError as exc:
-        return None, str(exc)
-    return conditions, ""
+    except ValueError as exc:  # only the combination is wrong (e.g. solvent and concentration)
+        return Proposal(None, {"cl2_solvent": str(exc)}, pending)
+    return Proposal(conditions, {}, pending)
 
 
 class ConditionsPanel(Vertical):
-    """Docked under the table; every valid change re-weighs the library (no re-perception)."""
-
-    BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("escape", "close", "Back to table"),
-    ]
-
-    def __init__(self, *, id: str | None = None) -> None:
-        super().__init__(id=id)
-        self._timer: Timer | None = None
-        self._applied: Any = None
+    """The fields and the notes (the view; ConditionsScreen holds the logic)."""
 
     def compose(self) -> ComposeResult:
-        with Horizontal(id="cond-fields"):
+        with Horizontal(classes="cond-row"):
             yield Label("Cl2 °C", classes="cond-label")
             yield Input(id="cond-cl2", type="number", compact=True, classes="cond-input")
+            yield Label("solvent", classes="cond-label")
+            with RadioSet(id="cond-solvent", compact=True):
+                for key, label in SOLVENT_LABELS.items():
+                    yield ChoiceButton(label, id=f"cond-solvent-{key}", compact=True)
+            yield Label("mol/L", classes="cond-label")
+            yield Input(id="cond-molar", type="number", compact=True, classes="cond-input")
+        with Horizontal(classes="cond-row"):
             yield Label("Br2 °C", classes="cond-label")
             yield Input(id="cond-br2", type="number", compact=True, classes="cond-input")
             yield Label("NBS °C", classes="cond-label")
@@ -69,57 +139,119 @@ class ConditionsPanel(Vertical):
             yield Input(id="cond-threshold", type="number", compact=True, classes="cond-input")
         yield Static("", id="cond-note")
 
-    def load(self, conditions: Any) -> None:
-        """Show ``conditions`` (an engine.Conditions) in the fields."""
-        if conditions is None:
-            return
-        self._applied = conditions
-        with self.prevent(Input.Changed):
-            for input_id, field in FIELDS.items():
-                self.query_one(f"#{input_id}", Input).value = f"{getattr(conditions, field):g}"
-        self._show(conditions, "")
 
-    def focus_first(self) -> None:
-        """Put the cursor in the first field."""
+class ConditionsScreen(ModalScreen[None]):
+    """The conditions panel, docked at the bottom over the table; focus stays in it until it closes.
+
+    It is a modal screen so that Tab cycles through its own fields only and no
+    key reaches the table while it is open; the table, the header and the
+    counts stay visible above it and update as values are applied.
+    """
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "close", "Back (applies valid values)"),
+    ]
+
+    applied: reactive[Any] = reactive(None, init=False)
+    """The engine.Conditions the table uses now (set by the app when they change)."""
+
+    def __init__(self, applied: Any) -> None:
+        super().__init__()
+        self.set_reactive(ConditionsScreen.applied, applied)
+        self.proposal: Proposal = Proposal(applied, {}, ())
+        """The fields as last read."""
+        self._sent: Any = applied
+
+    def compose(self) -> ComposeResult:
+        yield ConditionsPanel(id="conditions")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.load(self.applied)
         self.query_one("#cond-cl2", Input).focus()
 
-    def _values(self) -> dict[str, str]:
-        return {field: self.query_one(f"#{input_id}", Input).value for input_id, field in FIELDS.items()}
+    # ------------------------------------------------------------------ fields
 
-    def _show(self, conditions: Any | None, error: str) -> None:
-        note = self.query_one("#cond-note", Static)
-        if error:
-            note.update(f"✗ {error} (not applied)")
-            return
-        warnings = conditions.warnings()
-        lines = [f"! {w}" for w in warnings] or ["✓ within the range of the rate data"]
-        note.update("\n".join(lines) + "\nTab: next field · Enter: apply now · Esc: back to table")
+    def load(self, conditions: Any) -> None:
+        """Write ``conditions`` into the fields (only on opening: never while the chemist types)."""
+        with self.prevent(Input.Changed, RadioSet.Changed):
+            for f in FIELDS:
+                self.query_one(f"#{f.input_id}", Input).value = _text(getattr(conditions, f.name))
+            self.query_one(f"#cond-solvent-{conditions.cl2_solvent}", ChoiceButton).value = True
+        self._read()
 
-    def _propose(self) -> None:
-        if self._timer is not None:
-            self._timer.stop()
-            self._timer = None
-        conditions, error = conditions_from_text(self._values())
-        self._show(conditions, error)
-        if conditions is not None and conditions != self._applied:
-            self._applied = conditions
-            self.post_message(ConditionsProposed(conditions))
+    def _solvent(self) -> str:
+        pressed = self.query_one("#cond-solvent", RadioSet).pressed_button
+        if pressed is None or pressed.id is None:
+            return self.applied.cl2_solvent
+        return pressed.id.removeprefix("cond-solvent-")
 
-    def on_input_changed(self, event: Input.Changed) -> None:
+    def _read(self) -> Proposal:
+        """Read the fields, mark each as pending or invalid, and redraw the note."""
+        texts = {f.name: self.query_one(f"#{f.input_id}", Input).value for f in FIELDS}
+        solvent = self._solvent()
+        self.proposal = read_fields(texts, solvent, self.applied)
+        molar = self.query_one("#cond-molar", Input)
+        molar.disabled = solvent == "none"
+        for f in FIELDS:
+            box = self.query_one(f"#{f.input_id}", Input)
+            box.set_class(f.name in self.proposal.errors, "-refused")
+            box.set_class(f.name in self.proposal.pending, "-pending")
+        self._show()
+        return self.proposal
+
+    def _apply(self) -> None:
+        """Apply the fields if the whole set is complete and valid; otherwise leave the applied set alone."""
+        proposal = self._read()
+        if proposal.conditions is not None and proposal.conditions != self.applied and proposal.conditions != self._sent:
+            self._sent = proposal.conditions
+            self.post_message(ConditionsProposed(proposal.conditions))
+
+    def _show(self) -> None:
+        applied, proposal = self.applied, self.proposal
+        labels = {f.name: f for f in FIELDS}
+        lines = [f"Applied: {short_description(applied)}"]
+        if proposal.errors:
+            reasons = "; ".join(proposal.errors.values())
+            lines.append(f"✗ Not applied: {reasons}; the table keeps the applied values")
+        elif proposal.pending:
+            parts = []
+            for name in proposal.pending:
+                value = getattr(proposal.conditions, name)
+                parts.append(f"{labels[name].label} {_text(value)} {labels[name].unit}"
+                             if name in labels else f"{name} {value}")
+            lines.append("… Pending: " + ", ".join(parts) + " (Enter or leaving the field applies it)")
+        if proposal.conditions is not None:
+            warnings = proposal.conditions.warnings()
+            lines += [f"! {w}" for w in warnings] or ["✓ within the range of the rate data"]
+        lines.append("Tab/Shift+Tab: next/previous field · Enter: apply · Esc: apply if valid, close")
+        self.query_one("#cond-note", Static).update("\n".join(lines))
+
+    # ------------------------------------------------------------------ events
+
+    def watch_applied(self) -> None:
+        self._read()
+
+    @on(Input.Changed)
+    def _changed(self, event: Input.Changed) -> None:
         event.stop()
-        conditions, error = conditions_from_text(self._values())
-        self._show(conditions, error)
-        if self._timer is not None:
-            self._timer.stop()
-        if conditions is not None:
-            self._timer = self.set_timer(SETTLE_SECONDS, self._propose)
+        self._read()  # shows pending/invalid at once; nothing is applied while typing
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
         event.stop()
-        self._propose()
+        self._apply()
+
+    @on(Input.Blurred)
+    def _left(self, event: Input.Blurred) -> None:
+        self._apply()
+
+    @on(RadioSet.Changed)
+    def _solvent_changed(self, event: RadioSet.Changed) -> None:
+        event.stop()
+        self._apply()
 
     def action_close(self) -> None:
-        """Apply what is valid, hide the panel and go back to the table."""
-        self._propose()
-        self.display = False
-        self.post_message(PanelClosed("conditions"))
+        """Apply what is complete and valid, then close; invalid entries are dropped (the note said so)."""
+        self._apply()
+        self.dismiss()  # the table gets its focus back

@@ -2,21 +2,25 @@
 
 from __future__ import annotations
 
+import threading
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
+from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical, VerticalScroll
 from textual.reactive import reactive
 from textual.screen import Screen
 from textual.widgets import Footer, Static
+from textual.worker import get_current_worker
 
 from tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
-from tui.messages import MarkRequested
+from tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -113,8 +117,46 @@ def bars_text(products: pd.DataFrame, conditions: Any, width: int) -> Text:
     return text
 
 
+@dataclass(frozen=True)
+class DetailResult:
+    """Everything the site detail shows below its header, worked out for one row under one set of conditions."""
+
+    row: int
+    """Frame row position it belongs to."""
+    conditions: Any
+    """engine.Conditions it was worked out under."""
+    products: pd.DataFrame
+    """Library.products(row, conditions)."""
+    nbs: pd.DataFrame
+    """Library.nbs_products(row, conditions)."""
+    picture: object | str
+    """The structure drawing (a PIL image) or the note shown instead (tui.structure_view.structure_picture)."""
+
+
+def work_out_detail(library: Any, row: int, canonical_smiles: str, conditions: Any, graphics: str | None) -> DetailResult:
+    """The products, NBS products and drawing of one row (slow: may perceive the structure again with RDKit)."""
+    from tui.structure_view import structure_picture
+
+    products = library.products(row, conditions)
+    nbs = library.nbs_products(row, conditions)
+    picture = structure_picture(graphics, canonical_smiles, products) if not products.empty else ""
+    return DetailResult(row, conditions, products, nbs, picture)
+
+
+#: Seconds between checks of whether the chemist has left the row being worked out.
+POLL_SECONDS = 0.05
+#: What the body says while a row's detail is being worked out.
+WORKING_NOTE = "Working out every product of this row… (Esc: back to the table · n/p: other rows)"
+
+
 class DetailScreen(Screen):
-    """Full-screen detail of one row of the current view; n/p step through the view."""
+    """Full-screen detail of one row of the current view; n/p step through the view.
+
+    The products are worked out in a worker (Library.products can perceive the
+    structure again with RDKit, which takes long for large ring systems); the
+    header shows at once, the body says it is working, and an answer for a row
+    the chemist has already left is dropped.
+    """
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "close", "Back"),
@@ -127,6 +169,8 @@ class DetailScreen(Screen):
     """Position of the shown row within the view's rows."""
     marked: reactive[bool] = reactive(False)
     """Whether the shown row is on the shortlist (set by the app)."""
+    working: reactive[bool] = reactive(False, init=False)
+    """True while the shown row's products are being worked out."""
 
     def __init__(
         self, library: Any, frame: pd.DataFrame, rows: np.ndarray, position: int, conditions: Any, marks: np.ndarray
@@ -140,7 +184,10 @@ class DetailScreen(Screen):
         """Frame row positions of the view, in display order."""
         self.conditions = conditions
         """engine.Conditions the frame was evaluated under."""
+        self.result: DetailResult | None = None
+        """The shown row's worked-out detail, once it has arrived."""
         self._marks = marks
+        self._request = 0
         self.set_reactive(DetailScreen.position, position)
         self.set_reactive(DetailScreen.marked, bool(marks[self.row]))
 
@@ -161,16 +208,21 @@ class DetailScreen(Screen):
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
-        self._render_row()
+        self._show_row()
         self.query_one("#detail-body").focus()
 
     def on_resize(self) -> None:
-        self._render_row()
+        self._render_head()
+        if self.result is not None:
+            self._render_body(self.result, draw=False)
 
     def watch_position(self) -> None:
-        self._render_row()
+        self._show_row()
 
     def watch_marked(self) -> None:
+        self._render_head()
+
+    def watch_working(self) -> None:
         self._render_head()
 
     def _render_head(self) -> None:
@@ -181,6 +233,8 @@ class DetailScreen(Screen):
         head.append(ident, style="bold")
         head.append(f"  · row {self.row + 1} · {self.position + 1} of {len(self.rows):,} in view")
         head.append("  · ✓ on shortlist" if self.marked else "  · not marked")
+        if self.working:
+            head.append("  · working…", style="bold")
         head.append(f"\nSMILES {record[lib.smiles_column]}")
         if record["status"] != "ok":
             head.append("\nRejected: ", style="bold")
@@ -203,41 +257,98 @@ class DetailScreen(Screen):
             head.append(f"\n! {warning}")
         self.query_one("#detail-head", Static).update(head)
 
-    def _show_structure(self, canonical_smiles: str, products: pd.DataFrame) -> None:
-        """The labelled drawing where the terminal shows images, else a one-line note."""
-        from tui.structure_view import structure_widget
-
-        box = self.query_one("#detail-structure", Vertical)
-        box.remove_children()
-        box.mount(structure_widget(getattr(self.app, "graphics", None), canonical_smiles, products))
-
-    def _render_row(self) -> None:
-        if not self.is_mounted:
-            return
-        self._render_head()
-        record = self.frame.iloc[self.row]
-        products_box = self.query_one("#detail-products", Static)
-        bars_box = self.query_one("#detail-bars", Static)
-        notes_box = self.query_one("#detail-notes", Static)
-        nbs_box = self.query_one("#detail-nbs", Static)
-        poly_box = self.query_one("#detail-poly", Static)
-        for box in (bars_box, notes_box, nbs_box, poly_box):
-            box.update("")
+    def _clear_body(self, message: str) -> None:
+        for box_id in ("#detail-bars", "#detail-notes", "#detail-nbs", "#detail-poly"):
+            self.query_one(box_id, Static).update("")
         self.query_one("#detail-structure", Vertical).remove_children()
+        self.query_one("#detail-products", Static).update(message)
+
+    def _show_row(self) -> None:
+        """Show the header now and start working out the body; any earlier request is dropped."""
+        self._request += 1
+        self.result = None
+        record = self.frame.iloc[self.row]
         if record["status"] != "ok":
-            products_box.update("No products: the row was not modelled.")
+            self.workers.cancel_group(self, "detail")
+            self.working = False
+            self._render_head()
+            self._clear_body("No products: the row was not modelled.")
+            self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)
             return
-        products = self.library.products(self.row, self.conditions)
+        self.working = True
+        self._render_head()
+        self._clear_body(WORKING_NOTE)
+        self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)  # a new row starts at its top
+        self._work_out(self._request, self.row, str(record["canonical_smiles"]))
+
+    @work(thread=True, exclusive=True, group="detail", exit_on_error=False)
+    def _work_out(self, request: int, row: int, canonical_smiles: str) -> None:
+        """Work out one row's detail in a daemon thread and post it, unless the chemist has moved on.
+
+        The computation itself runs in a daemon thread this worker waits on, so
+        cancelling the worker (Esc, n/p, quitting) returns at once: RDKit cannot
+        be interrupted, and an abandoned computation must not hold up leaving
+        the screen or the app.
+        """
+        worker = get_current_worker()
+        outcome: dict[str, Any] = {}
+        done = threading.Event()
+        graphics = getattr(self.app, "graphics", None)
+
+        def compute() -> None:
+            try:
+                outcome["result"] = work_out_detail(self.library, row, canonical_smiles, self.conditions, graphics)
+            except Exception as exc:  # an engine bug: reported in one line on the screen
+                outcome["error"] = f"{type(exc).__name__}: {' '.join(str(exc).split())}"
+            finally:
+                done.set()
+
+        threading.Thread(target=compute, name="halosift-detail", daemon=True).start()
+        while not done.wait(POLL_SECONDS):
+            if worker.is_cancelled:
+                return
+        if worker.is_cancelled:
+            return
+        if "error" in outcome:
+            self.post_message(DetailFailed(request, outcome["error"]))
+        else:
+            self.post_message(DetailReady(request, outcome["result"]))
+
+    def on_detail_ready(self, message: DetailReady) -> None:
+        if message.request != self._request or message.result.row != self.row:
+            return  # the chemist has moved to another row since
+        self.result = message.result
+        self.working = False
+        self._render_body(message.result, draw=True)
+
+    def on_detail_failed(self, message: DetailFailed) -> None:
+        if message.request != self._request:
+            return
+        self.working = False
+        self._clear_body(f"Could not work out this row's products: {message.message}")
+
+    def _render_body(self, result: DetailResult, *, draw: bool) -> None:
+        """Fill the body from a worked-out detail (pure formatting; ``draw`` remounts the drawing)."""
+        record = self.frame.iloc[result.row]
+        products = result.products
+        products_box = self.query_one("#detail-products", Static)
         if products.empty:
-            products_box.update("No C–H bonds: no monohalide can form.")
+            self._clear_body("No C–H bonds: no monohalide can form.")
             return
         width = max(40, self.size.width - 6)  # padding and scroll bar of the body
         products_box.update(Group(Text("Products", style="bold"), products_table(products)))
-        self._show_structure(str(record["canonical_smiles"]), products)
-        bars_box.update(Group(Text("\nShare of the monohalides", style="bold"), bars_text(products, self.conditions, width)))
-        nbs_box.update(nbs_text(self.library.nbs_products(self.row, self.conditions), self.conditions, width))
-        if (products["cl2_pct"] > 0).any():
-            poly_box.update(poly_text(products))
+        if draw:
+            from tui.structure_view import picture_widget
+
+            box = self.query_one("#detail-structure", Vertical)
+            box.remove_children()
+            box.mount(picture_widget(getattr(self.app, "graphics", None), result.picture))
+        self.query_one("#detail-bars", Static).update(
+            Group(Text("\nShare of the monohalides", style="bold"), bars_text(products, self.conditions, width))
+        )
+        self.query_one("#detail-nbs", Static).update(nbs_text(result.nbs, self.conditions, width))
+        poly_box = self.query_one("#detail-poly", Static)
+        poly_box.update(poly_text(products) if (products["cl2_pct"] > 0).any() else "")
         stereo = sorted(s for s in set(products["stereo"]) if s)
         notes = Text()
         notes.append(
@@ -255,10 +366,11 @@ class DetailScreen(Screen):
         for flag in flag_notes(str(record.get("flags", ""))):
             notes.append(f"flag {flag.flag}: ", style="bold")
             notes.append(f"{flag.note}\n")
-        notes_box.update(notes)
+        self.query_one("#detail-notes", Static).update(notes)
 
     def action_close(self) -> None:
-        """Back to the table."""
+        """Back to the table (a detail still being worked out is abandoned)."""
+        self.workers.cancel_group(self, "detail")
         self.dismiss()
 
     def action_step(self, delta: int) -> None:
@@ -267,6 +379,7 @@ class DetailScreen(Screen):
         if 0 <= target < len(self.rows):
             self.position = target
             self.marked = bool(self._marks[self.row])
+            self.post_message(DetailMoved(self.row))  # so Esc returns to the row last shown
 
     def action_mark(self) -> None:
         """Mark or unmark the shown row (the app keeps the shortlist)."""

@@ -159,8 +159,13 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         Binding("escape", "cancel", "Cancel"),
     ]
 
-    def __init__(self, n_marked: int, n_view: int, view: str, folder: Path, protected: Sequence[Path] = ()) -> None:
+    def __init__(
+        self, n_marked: int, n_view: int, view: str, folder: Path, protected: Sequence[Path] = (),
+        order: str = "input order",
+    ) -> None:
         super().__init__()
+        self.order = order
+        """The table's row order in words; both choices are written in it."""
         self.protected = list(protected)
         """Files that must not be written over (the input library)."""
         self.n_marked = n_marked
@@ -179,9 +184,10 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             with RadioSet(id="export-what", compact=True):
                 yield ChoiceButton(f"shortlist: {self.n_marked:,} marked rows", start == "shortlist",
                                   id="what-shortlist", compact=True)
-                yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, as shown", start == "view",
-                                  id="what-view", compact=True)
-            yield Label("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
+                yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, filtered as shown",
+                                  start == "view", id="what-view", compact=True)
+            yield Static(f"Rows are written in the table's order: {self.order}.", id="export-order")
+            yield Static("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
             yield Input(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
             yield Static("", id="export-check")
             yield Static("Conditions, selection and the safety caution are stored with the data.", id="export-note")

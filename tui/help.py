@@ -67,10 +67,11 @@ def verdict_text(verdict: str, threshold_pct: float) -> str:
 def _bindings_table(app) -> Group:
     """Every key the app answers to, read from the classes' own binding lists."""
     from tui.app import HalosiftApp
-    from tui.conditions import ConditionsPanel
+    from tui.conditions import ConditionsScreen
     from tui.detail import DetailScreen
     from tui.export import ConfirmScreen, ExportScreen
     from tui.filter_form import FilterForm
+    from tui.id_list import IdListScreen
     from tui.search import SearchBar
     from tui.table import LibraryTable
 
@@ -83,20 +84,24 @@ def _bindings_table(app) -> Group:
          + [b for b in HalosiftApp.BINDINGS if b.action not in ("leave", "help", "cancel_screening", "rescreen")]),
         ("Site detail", list(DetailScreen.BINDINGS)),
         ("Find bar", list(SearchBar.BINDINGS)),
-        ("Conditions panel", list(ConditionsPanel.BINDINGS)),
+        ("Conditions panel", list(ConditionsScreen.BINDINGS)),
         ("Filter form", list(FilterForm.BINDINGS)),
         ("Export form", list(ExportScreen.BINDINGS)),
         ("Replace? dialog", list(ConfirmScreen.BINDINGS)),
+        ("Mark from a file", list(IdListScreen.BINDINGS)),
         ("Help", list(HelpScreen.BINDINGS)),
     )
     # What Enter and Tab do in text fields (handled by the fields, so in no binding list).
     field_keys = {
         "Find bar": [("⏎", "back to the table, keeping the text")],
-        "Conditions panel": [("⏎", "apply now (valid values also apply after a pause)"), ("tab", "next field")],
+        "Conditions panel": [("⏎", "apply (only a complete, valid set is applied)"),
+                             ("tab / shift+tab", "next / previous field; leaving a field applies it too"),
+                             ("← / →", "choose the Cl2 solvent (in the solvent field)")],
         "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field")],
         "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
                         ("tab", "next field")],
         "Replace? dialog": [("⏎", "press the focused button (Keep)")],
+        "Mark from a file": [("⏎", "read the file and mark its rows (one ID a line, or a CSV/TSV with the ID column)")],
     }
     parts: list = []
     for title, bindings in groups:
@@ -160,11 +165,22 @@ class HelpScreen(Screen):
     def _views(self) -> Table:
         rows = [(k, v) for k, v in VIEW_DOCS.items()]
         rows.append(("counts", "the top line always shows all rows, screened, rejected, shown and marked"))
+        rows.append(("marks", "a / u mark or unmark every shown row, m marks the rows an ID-list file names; "
+                     "z undoes the last of these (up to 20 steps)"))
+        rows.append(("sessions", "marks, sort, filters, view, columns and conditions are saved per library file "
+                     "(in the user's data folder; HALOSIFT_SESSION_DIR overrides it) and restored when the same, "
+                     "unchanged file is opened again; N or halosift browse --fresh starts fresh"))
+        rows.append(("exports", "rows are written in the table's order (its sort, and for the view its filters); "
+                     "the export form and the file's metadata say which"))
+        rows.append(("site detail", "the products are worked out in the background (the header says working…); "
+                     "Esc goes back at once, n / p move the table's cursor too"))
+        rows.append(("conditions", "t opens the panel; a value applies on Enter or on leaving its field, and only "
+                     "when every field is complete and valid; refused and pending values are named"))
         mode = getattr(self.app, "graphics", None)
         rows.append(("drawings", "the site detail draws the structure with each site's split where the terminal "
                      "shows inline images (Sixel or Kitty graphics; now: " + (mode or "off") + "); "
                      "halosift browse --no-images or HALOSIFT_IMAGES=off turns this off"))
-        return self._section("Views (v cycles)", rows)
+        return self._section("Views (v cycles them), marks and sessions", rows)
 
     def _columns(self) -> Table:
         from engine.special_sites import FLAG_NOTES

@@ -32,6 +32,12 @@ class ScreeningFinished(Message):
     """Library.evaluate(conditions), a pandas DataFrame."""
     conditions: Any
     """The engine.Conditions ``frame`` was evaluated under."""
+    session: Any = None
+    """The tui.session.Session saved for this library, to restore (None: start fresh)."""
+    session_key: str | None = None
+    """The library's session key (None: sessions are off, e.g. for an in-memory table)."""
+    session_note: str = ""
+    """One line about a saved session that could not be used ('' when there is none to say)."""
 
 
 @dataclass
@@ -146,3 +152,47 @@ class PanelClosed(Message):
 
     name: str
     """Which panel: 'search' or 'conditions'."""
+
+
+@dataclass
+class DetailReady(Message):
+    """The site detail of one row was worked out (in a worker)."""
+
+    request: int
+    """Which request of the detail screen this answers; older answers are dropped."""
+    result: Any
+    """A :class:`tui.detail.DetailResult`."""
+
+
+@dataclass
+class DetailFailed(Message):
+    """Working out the site detail of one row failed (a bug, reported in one line)."""
+
+    request: int
+    """Which request failed."""
+    message: str
+    """One line to show."""
+
+
+@dataclass
+class DetailMoved(Message):
+    """The site detail now shows another row of the view (n/p); the table's cursor follows."""
+
+    row: int
+    """Row position in the evaluated frame now shown."""
+
+
+@dataclass
+class IdsMatched(Message):
+    """An ID-list file was read and matched against the library (in a worker)."""
+
+    path: str
+    """The file read."""
+    rows: Any
+    """numpy array of frame rows whose ID is listed, or None when the file could not be read."""
+    n_ids: int
+    """Distinct IDs the file lists."""
+    missing: tuple[str, ...]
+    """Listed IDs not found in the library, in file order."""
+    error: str
+    """One line saying why the file could not be read ('' when it was)."""

@@ -66,26 +66,43 @@ def marks_for(products: pd.DataFrame):
     ]
 
 
-def structure_widget(graphics: str | None, canonical_smiles: str, products: pd.DataFrame) -> Widget:
-    """An image widget of the labelled drawing, or the text note when images are off or unavailable."""
+def structure_picture(graphics: str | None, canonical_smiles: str, products: pd.DataFrame) -> object | str:
+    """The labelled drawing as a PIL image, or the note to show instead (safe to call off the interface thread)."""
     if graphics is None or not canonical_smiles:
-        return Static(NO_IMAGES_NOTE, classes="structure-note")
+        return NO_IMAGES_NOTE
     try:
         from PIL import Image as PILImage
 
         from halosift.report.drawing import structure_png
-        from textual_image import widget as image_widgets
 
         from engine import quiet_rdkit
 
         with quiet_rdkit():
             png = structure_png(canonical_smiles, marks_for(products))
         picture = PILImage.open(BytesIO(png))
+        picture.load()  # decode now, in the caller's thread
+        return picture
+    except Exception as exc:  # noqa: BLE001 - a drawing failure must never take the detail view down
+        return f"Structure drawing unavailable: {type(exc).__name__}"
+
+
+def picture_widget(graphics: str | None, picture: object | str) -> Widget:
+    """The widget for a :func:`structure_picture` result (cheap: the drawing is already made)."""
+    if isinstance(picture, str) or graphics is None:
+        return Static(picture if isinstance(picture, str) else NO_IMAGES_NOTE, classes="structure-note")
+    try:
+        from textual_image import widget as image_widgets
+
         widget_class = {
             "sixel": image_widgets.SixelImage,
             "tgp": image_widgets.TGPImage,
             "unicode": image_widgets.UnicodeImage,
         }[graphics]
         return widget_class(picture, classes="structure-image")
-    except Exception as exc:  # noqa: BLE001 - a drawing failure must never take the detail view down
+    except Exception as exc:  # noqa: BLE001 - as above
         return Static(f"Structure drawing unavailable: {type(exc).__name__}", classes="structure-note")
+
+
+def structure_widget(graphics: str | None, canonical_smiles: str, products: pd.DataFrame) -> Widget:
+    """An image widget of the labelled drawing, or the text note when images are off or unavailable."""
+    return picture_widget(graphics, structure_picture(graphics, canonical_smiles, products))

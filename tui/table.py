@@ -55,6 +55,11 @@ class Column:
         """Numbers are right-aligned."""
         return self.kind in ("pct", "count", "row")
 
+    @property
+    def number(self) -> bool:
+        """A number: shown whole or not at all, never cut."""
+        return self.kind in ("pct", "count", "row")
+
 
 #: Beside the verdict: the reagent offered.
 SERVES_COLUMN = Column("serves", "Serves", 8)
@@ -81,6 +86,15 @@ def fit(text: str, width: int, right: bool = False) -> str:
     if len(text) > width:
         return text[: max(0, width - 1)] + "…" if width > 0 else ""
     return text.rjust(width) if right else text.ljust(width)
+
+
+def cut(text: str, width: int, right: bool, number: bool) -> str:
+    """A cell partly scrolled out of view: ``width`` cells of it; a number is blanked, text ends in '…'."""
+    if width <= 0:
+        return ""
+    if number:
+        return " " * width
+    return fit(text.strip(), width, right)
 
 
 def format_values(kind: str, values: np.ndarray | None, rows: np.ndarray) -> list[str]:
@@ -145,6 +159,8 @@ class LibraryTable(ScrollView, can_focus=True):
         self._frame: pd.DataFrame | None = None
         self._rows: np.ndarray = np.zeros(0, dtype=np.int64)
         self._columns: list[Column] = []
+        self._pinned: list[int] = []
+        self._scrolling: list[int] = []
         self._marked: np.ndarray = np.zeros(0, dtype=bool)
         self._sort: tuple[Hashable | None, bool] = (None, False)
         self._version = 0
@@ -181,14 +197,19 @@ class LibraryTable(ScrollView, can_focus=True):
         *,
         sort: tuple[Hashable | None, bool] = (None, False),
         marked: np.ndarray | None = None,
+        top: bool = False,
     ) -> None:
-        """Show ``rows`` of ``frame``; the cursor stays on the same frame row when it is still shown."""
+        """Show ``rows`` of ``frame``; the cursor stays on the same frame row when it is still shown.
+
+        ``top`` puts the cursor on the first row and scrolls there instead (after a new sort order).
+        """
         before = self.cursor_row
         picked_key = self._columns[self.picked].key if self._columns and self.picked < len(self._columns) else None
         first_show = self._frame is None
         self._frame = frame
         self._rows = np.asarray(rows, dtype=np.int64)
         self._columns = list(columns)
+        self._layout()
         self._sort = sort
         if marked is not None:
             self._marked = marked
@@ -199,13 +220,22 @@ class LibraryTable(ScrollView, can_focus=True):
         width = _GUTTER + sum(c.width + _SEP for c in self._columns)
         self.virtual_size = Size(width, len(self._rows) + 1)
         position = 0
-        if before >= 0 and len(self._rows):
+        if top:
+            self.scroll_to(y=0, animate=False, force=True)
+        elif before >= 0 and len(self._rows):
             hits = np.flatnonzero(self._rows == before)
             position = int(hits[0]) if len(hits) else min(self.cursor, len(self._rows) - 1)
         self.cursor = max(0, position)
         self.refresh()
         if first_show:
             self.refresh_bindings()
+
+    def go_to_row(self, row: int) -> bool:
+        """Put the cursor on frame row ``row`` if it is shown; True if it is."""
+        hits = np.flatnonzero(self._rows == row)
+        if len(hits):
+            self.cursor = int(hits[0])
+        return bool(len(hits))
 
     def set_marked(self, marked: np.ndarray) -> None:
         """Redraw with a new shortlist mark array (one bool per frame row)."""
@@ -214,20 +244,31 @@ class LibraryTable(ScrollView, can_focus=True):
 
     # ------------------------------------------------------------------ geometry
 
+    def _layout(self) -> None:
+        """Split the columns into the pinned key columns (the first, and the verdict) and the scrolling rest."""
+        self._pinned = [i for i, c in enumerate(self._columns) if i == 0 or c.kind == "verdict"]
+        self._scrolling = [i for i in range(len(self._columns)) if i not in self._pinned]
+
+    @property
+    def display_order(self) -> list[int]:
+        """Column indices left to right as drawn: pinned key columns first."""
+        return self._pinned + self._scrolling
+
     @property
     def page_height(self) -> int:
         """Data rows that fit on screen below the header."""
         return max(1, self.scrollable_content_region.height - 1)
 
     def _fixed_width(self) -> int:
-        first = self._columns[0].width + _SEP if self._columns else 0
-        return _GUTTER + first
+        return _GUTTER + sum(self._columns[i].width + _SEP for i in self._pinned)
 
     def _column_span(self, index: int) -> tuple[int, int]:
-        """(start, end) of a scrollable column in scrollable-part cells."""
+        """(start, end) of a scrolling column in scrolling-part cells."""
         x = 0
-        for c in self._columns[1:index]:
-            x += c.width + _SEP
+        for i in self._scrolling:
+            if i == index:
+                break
+            x += self._columns[i].width + _SEP
         return x, x + self._columns[index].width
 
     def watch_cursor(self, cursor: int) -> None:
@@ -240,7 +281,7 @@ class LibraryTable(ScrollView, can_focus=True):
         self.post_message(CursorMoved(self.cursor_row))
 
     def watch_picked(self, picked: int) -> None:
-        if picked >= 1 and self._columns:
+        if picked in self._scrolling:
             start, end = self._column_span(picked)
             visible = max(1, self.scrollable_content_region.width - self._fixed_width())
             left = int(self.scroll_offset.x)
@@ -249,14 +290,12 @@ class LibraryTable(ScrollView, can_focus=True):
             elif end > left + visible:
                 # Scroll by whole columns, so no column is shown cut at the left edge.
                 target = start
-                for i in range(1, picked + 1):
+                for i in self._scrolling[: self._scrolling.index(picked) + 1]:
                     first, _ = self._column_span(i)
                     if end - first <= visible:
                         target = first
                         break
                 self.scroll_to(x=target, animate=False, force=True)
-        elif picked == 0:
-            self.scroll_to(x=0, animate=False, force=True)
         self.refresh()
 
     def on_resize(self, event: events.Resize) -> None:
@@ -292,9 +331,11 @@ class LibraryTable(ScrollView, can_focus=True):
             self.cursor = len(self._rows) - 1
 
     def action_pick(self, delta: int) -> None:
-        """Choose the column the sort key acts on."""
+        """Choose the column the sort key acts on (left to right as drawn)."""
         if self._columns:
-            self.picked = min(max(0, self.picked + delta), len(self._columns) - 1)
+            order = self.display_order
+            at = order.index(self.picked) if self.picked in order else 0
+            self.picked = order[min(max(0, at + delta), len(order) - 1)]
 
     def action_sort(self) -> None:
         """Sort by the picked column; again on the same column reverses."""
@@ -337,9 +378,14 @@ class LibraryTable(ScrollView, can_focus=True):
             return None
         fixed = self._fixed_width()
         if x < fixed:
-            return 0
+            left = _GUTTER
+            for i in self._pinned:
+                if x < left + self._columns[i].width + _SEP:
+                    return i
+                left += self._columns[i].width + _SEP
+            return None
         x = x - fixed + int(self.scroll_offset.x)
-        for i in range(1, len(self._columns)):
+        for i in self._scrolling:
             start, end = self._column_span(i)
             if start <= x < end + _SEP:
                 return i
@@ -383,21 +429,45 @@ class LibraryTable(ScrollView, can_focus=True):
             label = col.label
             if col.key == column:
                 label = f"{label} {'▼' if descending else '▲'}"
-            cells.append(fit(label, col.width, col.right))
+            cells.append(label)
         return cells
 
     def _line(self, cells: list[str], styles: list[Style], gutter: str, base: Style) -> Strip:
+        """One line: gutter, pinned key columns, then the scrolling columns in view.
+
+        Cells come unfitted. A scrolling column only partly in view is cut by
+        :func:`cut` (text ends in '…', a number is left out), so no number is
+        ever shown with digits missing.
+        """
         width = self.size.width
         fixed: list[Segment] = [Segment(gutter, base)]
-        scroll: list[Segment] = []
-        for i, (text, style) in enumerate(zip(cells, styles)):
-            target = fixed if i == 0 else scroll
-            target.append(Segment(text, style))
-            target.append(Segment(" " * _SEP, base))
+        for i in self._pinned:
+            col = self._columns[i]
+            fixed.append(Segment(fit(cells[i], col.width, col.right), styles[i]))
+            fixed.append(Segment(" " * _SEP, base))
         fixed_strip = Strip(fixed)
         visible = max(0, width - fixed_strip.cell_length)
-        x = int(self.scroll_offset.x)
-        scroll_strip = Strip(scroll).crop_extend(x, x + visible, base)
+        left = int(self.scroll_offset.x)
+        right = left + visible
+        scroll: list[Segment] = []
+        x = 0
+        for i in self._scrolling:
+            col = self._columns[i]
+            start, end, stop = x, x + col.width, x + col.width + _SEP
+            x = stop
+            if stop <= left:
+                continue
+            if start >= right:
+                break
+            shown_from, shown_to = max(start, left), min(end, right)
+            if shown_from == start and shown_to == end:
+                scroll.append(Segment(fit(cells[i], col.width, col.right), styles[i]))
+            elif shown_to > shown_from:
+                scroll.append(Segment(cut(cells[i], shown_to - shown_from, col.right, col.number), styles[i]))
+            gap = min(stop, right) - max(end, left)
+            if gap > 0:
+                scroll.append(Segment(" " * gap, base))
+        scroll_strip = Strip(scroll).adjust_cell_length(visible, base)
         return Strip.join([fixed_strip, scroll_strip]).adjust_cell_length(width, base).simplify()
 
     def render_lines(self, crop: Region) -> list[Strip]:
@@ -437,6 +507,5 @@ class LibraryTable(ScrollView, can_focus=True):
         for col, text in zip(self._columns, cells):
             style = line + verdict_style if col.kind == "verdict" and not at_cursor else line
             styles.append(style)
-        fitted = [fit(text, col.width, col.right) for col, text in zip(self._columns, cells)]
         gutter = (POINTER if at_cursor else " ") + (MARK if marked else " ")
-        return self._line(fitted, styles, gutter, line)
+        return self._line(cells, styles, gutter, line)

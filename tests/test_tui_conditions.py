@@ -1,0 +1,182 @@
+"""The conditions panel applies only complete, valid values, keeps every key of a fast burst and keeps focus."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+import engine
+from tui.app import HalosiftApp
+from tui.conditions import ConditionsScreen, read_fields
+from tui.table import LibraryTable
+from tui_helpers import QX_ROWS, async_test, settle
+
+SIZE = (100, 30)
+
+
+def write_library(folder: Path) -> Path:
+    path = folder / "qx_library.csv"
+    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path
+
+
+def text_of(widget) -> str:
+    from test_tui_app import plain
+
+    return plain(widget)
+
+
+async def open_panel(pilot) -> ConditionsScreen:
+    await settle(pilot)
+    await pilot.press("t")
+    await pilot.pause()
+    screen = pilot.app.screen
+    assert isinstance(screen, ConditionsScreen)
+    return screen
+
+
+async def focus_field(pilot, screen: ConditionsScreen, input_id: str) -> None:
+    """Tab to a field, as the chemist would."""
+    for _ in range(12):
+        if pilot.app.focused is not None and pilot.app.focused.id == input_id:
+            return
+        await pilot.press("tab")
+    raise AssertionError(f"Tab never reached {input_id}")
+
+
+@async_test
+async def test_fast_burst_loses_no_key_and_applies_on_enter(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        await focus_field(pilot, screen, "cond-br2")
+        assert screen.query_one("#cond-br2").value == "125"
+        # One burst, no pause between keys.
+        await pilot.press("end", "backspace", "backspace", "backspace", "7", "0", "enter")
+        await settle(pilot)
+        assert screen.query_one("#cond-br2").value == "70"
+        assert app.conditions.br2_temp_c == 70.0
+        assert app.frame.attrs["conditions"] == app.conditions
+        assert "Br2 70 °C" in text_of(app.query_one("#settings"))
+        # Again, ending with Tab instead of Enter: leaving the field applies it.
+        await focus_field(pilot, screen, "cond-br2")
+        await pilot.press("end", "backspace", "backspace", "6", "5", "tab")
+        await settle(pilot)
+        assert app.conditions.br2_temp_c == 65.0
+
+
+@async_test
+async def test_values_apply_only_when_complete_and_valid(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        before = app.conditions
+        threshold = screen.query_one("#cond-threshold")
+        await focus_field(pilot, screen, "cond-threshold")
+        # Typed but not submitted: pending, not applied.
+        await pilot.press("end", "backspace", "backspace", "8", "0")
+        await settle(pilot)
+        assert app.conditions == before
+        note = text_of(screen.query_one("#cond-note"))
+        assert "Pending: threshold 80 %" in note and f"threshold {before.threshold_pct:g} %" in note
+        assert threshold.has_class("-pending")
+        # Cleared and 101 typed: refused, the header and the table keep the applied threshold.
+        await pilot.press("end", "backspace", "backspace", "1", "0", "1", "enter")
+        await settle(pilot)
+        assert app.conditions == before
+        note = text_of(screen.query_one("#cond-note"))
+        assert "✗ Not applied" in note and "not a percentage" in note
+        assert threshold.has_class("-refused")
+        assert f"threshold {before.threshold_pct:g} %" in text_of(app.query_one("#settings"))
+        assert app.frame.attrs["conditions"] == before
+        # An impossible Cl2 temperature is refused too, even when leaving the field, and nothing of it applies.
+        await focus_field(pilot, screen, "cond-cl2")
+        await pilot.press("end", "backspace", "backspace", "minus", "3", "0", "0", "tab")
+        await settle(pilot)
+        assert app.conditions == before
+        assert "absolute zero" in text_of(screen.query_one("#cond-note"))
+        # Esc closes; the refused values are dropped and reopening shows the applied ones.
+        await pilot.press("escape")
+        await pilot.pause()
+        assert not isinstance(app.screen, ConditionsScreen)
+        screen = await open_panel(pilot)
+        assert screen.query_one("#cond-cl2").value == f"{before.cl2_temp_c:g}"
+        assert screen.query_one("#cond-threshold").value == f"{before.threshold_pct:g}"
+
+
+@async_test
+async def test_focus_stays_in_the_panel_until_it_closes(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        seen = []
+        for _ in range(10):
+            await pilot.press("tab")
+            focused = app.focused
+            assert focused is not None and focused.screen is screen, "Tab left the panel"
+            seen.append(focused.id)
+        assert {"cond-cl2", "cond-br2", "cond-nbs", "cond-threshold", "cond-solvent"} <= set(seen)
+        # Shift+Tab from the first field wraps to the last.
+        await focus_field(pilot, screen, "cond-cl2")
+        await pilot.press("shift+tab")
+        assert app.focused.id == "cond-threshold"
+        # A letter typed while the panel is open never reaches the table (no sort).
+        await pilot.press("s")
+        await settle(pilot)
+        assert app.sort.column is None
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(app.focused, LibraryTable)
+
+
+@async_test
+async def test_cl2_solvent_and_concentration(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        molar = screen.query_one("#cond-molar")
+        assert molar.disabled  # no solvent: no concentration to give
+        await focus_field(pilot, screen, "cond-solvent")
+        await pilot.press("right", "enter")  # benzene
+        await settle(pilot)
+        assert app.conditions.cl2_solvent == "benzene" and app.conditions.cl2_solvent_molar == 0.0
+        assert not molar.disabled
+        await focus_field(pilot, screen, "cond-molar")
+        await pilot.press("end", "backspace", "4", "enter")
+        await settle(pilot)
+        assert app.conditions.cl2_solvent_molar == 4.0
+        expected = engine.Conditions(cl2_solvent="benzene", cl2_solvent_molar=4.0)
+        assert app.conditions == expected
+        # Beyond the pure solvent: refused with the engine's reason.
+        await pilot.press("end", "backspace", "9", "9", "enter")
+        await settle(pilot)
+        assert app.conditions.cl2_solvent_molar == 4.0
+        assert "outside" in text_of(screen.query_one("#cond-note"))
+
+
+@pytest.mark.parametrize(
+    ("texts", "field", "reason"),
+    [
+        ({"threshold_pct": ""}, "threshold_pct", "is empty"),
+        ({"threshold_pct": "1o"}, "threshold_pct", "is not a number"),
+        ({"threshold_pct": "nan"}, "threshold_pct", "not a percentage"),
+        ({"br2_temp_c": "inf"}, "br2_temp_c", "beyond any model"),
+        ({"nbs_temp_c": "-273.15"}, "nbs_temp_c", "absolute zero"),
+    ],
+)
+def test_read_fields_names_the_field_at_fault(texts, field, reason):
+    applied = engine.Conditions()
+    base = {"cl2_temp_c": "25", "cl2_solvent_molar": "0", "br2_temp_c": "125", "nbs_temp_c": "77", "threshold_pct": "90"}
+    proposal = read_fields({**base, **texts}, "none", applied)
+    assert proposal.conditions is None
+    assert list(proposal.errors) == [field] and reason in proposal.errors[field]
+
+
+def test_read_fields_gives_the_engine_conditions():
+    applied = engine.Conditions()
+    texts = {"cl2_temp_c": "40", "cl2_solvent_molar": "8", "br2_temp_c": "125", "nbs_temp_c": "77", "threshold_pct": "90"}
+    proposal = read_fields(texts, "cs2", applied)
+    assert proposal.conditions == engine.Conditions(cl2_temp_c=40.0, cl2_solvent="cs2", cl2_solvent_molar=8.0)
+    assert set(proposal.pending) == {"cl2_temp_c", "cl2_solvent", "cl2_solvent_molar"}

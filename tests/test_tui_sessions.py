@@ -1,0 +1,147 @@
+"""Sessions: marks, sort, filters, view and conditions come back when a library is opened again."""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import engine
+from tui import session as sessions
+from tui.app import HalosiftApp
+from tui.filters import FilterSpec, SortSpec
+from tui_helpers import QX_ROWS, async_test, settle
+
+SIZE = (120, 40)
+
+
+@pytest.fixture()
+def session_dir(tmp_path, monkeypatch) -> Path:
+    folder = tmp_path / "sessions"
+    monkeypatch.setenv(sessions.SESSION_ENV, str(folder))
+    return folder
+
+
+def write_library(folder: Path) -> Path:
+    path = folder / "qx_library.csv"
+    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path
+
+
+async def change_everything(pilot) -> None:
+    """Mark two rows, sort by Br2 % (largest first), filter to br-selective, warm the bromination, show more columns."""
+    app = pilot.app
+    await settle(pilot)
+    await pilot.press("space", "space")
+    app.sort = SortSpec("br2_major_pct", True)
+    app.filters = FilterSpec(verdicts=frozenset({"br-selective"}))
+    app.conditions = engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
+    await pilot.press("o")
+    await settle(pilot)
+
+
+@async_test
+async def test_state_is_restored_on_reopening(tmp_path, session_dir):
+    path = write_library(tmp_path)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await change_everything(pilot)
+        marked = app.marked.copy()
+        await pilot.press("q")
+    files = list(session_dir.glob("*.json"))
+    assert len(files) == 1 and not list(session_dir.glob("*.tmp"))
+
+    again = HalosiftApp(str(path))
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert (again.marked == marked).all() and again.marked.sum() == 2
+        assert again.sort == SortSpec("br2_major_pct", True)
+        assert again.filters == FilterSpec(verdicts=frozenset({"br-selective"}))
+        assert again.conditions == engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
+        assert again.frame.attrs["conditions"] == again.conditions
+        assert again.show_more_columns
+        assert set(again.frame.iloc[again.query_one("#table").rows]["verdict"]) == {"br-selective"}
+        # N starts fresh (marks can be brought back with z).
+        await pilot.press("N")
+        await settle(pilot)
+        assert not again.marked.any() and again.sort == SortSpec() and again.filters == FilterSpec()
+        assert again.conditions == engine.Conditions() and not again.show_more_columns
+        await pilot.press("z")
+        assert (again.marked == marked).all()
+
+
+@async_test
+async def test_fresh_flag_ignores_and_replaces_the_saved_session(tmp_path, session_dir):
+    path = write_library(tmp_path)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await change_everything(pilot)
+        await pilot.press("q")
+    fresh = HalosiftApp(str(path), fresh=True)
+    async with fresh.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert not fresh.marked.any() and fresh.sort == SortSpec() and fresh.conditions == engine.Conditions()
+        await pilot.press("q")
+    later = HalosiftApp(str(path))
+    async with later.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert not later.marked.any() and later.filters == FilterSpec()
+
+
+@async_test
+async def test_a_damaged_session_is_ignored_with_a_note(tmp_path, session_dir):
+    path = write_library(tmp_path)
+    session_dir.mkdir(parents=True)
+    sessions.path_for(sessions.library_key(path)).write_text('{"version": 1, "n_rows": 14, "marked": "!!"', encoding="utf-8")
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert app.phase == "ready" and not app.marked.any()
+        notes = [n.message for n in app._notifications]
+        assert any("saved session is damaged" in n and "ignored" in n for n in notes), notes
+        assert all("\n" not in n for n in notes)
+
+
+@async_test
+async def test_an_edited_library_does_not_get_the_old_marks(tmp_path, session_dir):
+    path = write_library(tmp_path)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await change_everything(pilot)
+        await pilot.press("q")
+    rows = list(reversed(QX_ROWS))  # same rows, new order: marks by position would now be wrong
+    pd.DataFrame(rows, columns=["id", "smiles"]).to_csv(path, index=False)
+    os.utime(path, ns=(1, 1))
+    again = HalosiftApp(str(path))
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        assert not again.marked.any() and again.sort == SortSpec()
+
+
+def test_encode_decode_round_trip_and_damage():
+    marked = np.zeros(21, dtype=bool)
+    marked[[0, 7, 20]] = True
+    saved = sessions.Session(21, marked, SortSpec("\x00row", True),
+                             FilterSpec(verdicts=frozenset({"single"}), min_br2_pct=50.0, max_products=3, text="QX"),
+                             "shortlist", {"br2_temp_c": 60.0}, True, False)
+    back = sessions.decode(sessions.encode(saved))
+    assert (back.marked == marked).all() and back.sort == saved.sort and back.filters == saved.filters
+    assert back.view == "shortlist" and back.conditions == {"br2_temp_c": 60.0} and back.show_input_columns
+    for text in ("", "[]", '{"version": 99}', sessions.encode(saved).replace('"n_rows": 21', '"n_rows": 40')):
+        with pytest.raises(ValueError):
+            sessions.decode(text)
+    with pytest.raises(ValueError, match="absolute zero"):
+        sessions.restore_conditions({"br2_temp_c": -400.0})
+    with pytest.raises(ValueError, match="unknown condition"):
+        sessions.restore_conditions({"oven": 1})
+
+
+def test_save_is_atomic_and_leaves_no_temp_file(tmp_path):
+    saved = sessions.Session(3, np.array([True, False, True]))
+    path = sessions.save("abc", saved, tmp_path)
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["abc.json"]
+    assert (sessions.load("abc", tmp_path)[0].marked == saved.marked).all()
+    assert path == sessions.path_for("abc", tmp_path)

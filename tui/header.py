@@ -1,0 +1,54 @@
+"""Header lines that fit their width by shortening whole phrases, never by cutting one in the middle."""
+
+from __future__ import annotations
+
+from collections.abc import Hashable, Sequence
+from dataclasses import dataclass
+
+#: Between the phrases of a header line.
+SEPARATOR = " │ "
+
+
+@dataclass(frozen=True)
+class Phrase:
+    """One phrase of a header line, in forms from longest to shortest."""
+
+    forms: tuple[str, ...]
+    """Longest first; an empty last form means the phrase may be left out."""
+    keep: int
+    """Higher keeps its longer forms longer (the lowest is shortened first)."""
+
+
+def fit_phrases(phrases: Sequence[Phrase], width: int, separator: str = SEPARATOR) -> str:
+    """The phrases joined in order, each in the longest form that lets the whole line fit ``width``.
+
+    The phrase with the lowest ``keep`` is shortened first, one form at a time;
+    if even the shortest forms do not fit, the shortest line is returned (the
+    widget then ends it in '…').
+    """
+    chosen = [0] * len(phrases)
+
+    def line() -> str:
+        return separator.join(f for p, i in zip(phrases, chosen) if (f := p.forms[i]))
+
+    text = line()
+    while len(text) > width:
+        candidates = [k for k, p in enumerate(phrases) if chosen[k] < len(p.forms) - 1]
+        if not candidates:
+            break
+        k = min(candidates, key=lambda k: (phrases[k].keep, k))
+        chosen[k] += 1
+        text = line()
+    return text
+
+
+def column_title(key: Hashable, known: dict[Hashable, str]) -> str:
+    """The title a chemist reads for a frame column: its table label, else a readable form of its name."""
+    if key in known:
+        return known[key]
+    name = str(key)
+    for reagent in ("cl2", "br2", "nbs", "so2cl2"):
+        if name.startswith(reagent + "_"):
+            name = reagent.capitalize() + " " + name[len(reagent) + 1:]
+    name = name.replace("_pct", " %").replace("_", " ")
+    return name[:1].upper() + name[1:]

@@ -335,16 +335,27 @@ def _cumulated(atom: Chem.Atom) -> bool:
     return sum(b.GetBondType() == Chem.BondType.DOUBLE for b in atom.GetBonds()) > 1
 
 
-def _counted(n_open: int, chiral: bool, specified: bool, skeleton_forms: int = 1) -> StereoOutcome:
+def fixes_handedness(elements: list) -> bool:
+    """True when the input fixes a tetrahedral configuration, so products are not formed with their mirror images.
+
+    Only a fixed tetrahedral centre does: reflection leaves a double bond's E/Z
+    geometry as it is, so an input whose only set stereo is E/Z is its own
+    mirror image and gives every chiral product as a racemate.
+    """
+    return any(e.type == _TETRAHEDRAL and e.specified != _UNSPECIFIED for e in elements)
+
+
+def _counted(n_open: int, chiral: bool, handed: bool, skeleton_forms: int = 1) -> StereoOutcome:
     """Outcome for independent elements: skeleton forms × 2^k isomers, no enumeration.
 
     ``chiral``: the product has any tetrahedral centre (with independence, that
-    makes every isomer chiral). ``skeleton_forms`` is 2 when a bridged skeleton
-    occurs as both mirror forms, else 1.
+    makes every isomer chiral). ``handed``: :func:`fixes_handedness` of the
+    product's elements. ``skeleton_forms`` is 2 when a bridged skeleton occurs
+    as both mirror forms, else 1.
     """
     n = skeleton_forms * 2**n_open
-    if specified or not chiral:
-        # Nothing is mirrored: fixed input stereo stays fixed, and E/Z isomers are achiral.
+    if handed or not chiral:
+        # Nothing is mirrored: a fixed input centre stays fixed, and E/Z isomers are achiral.
         if n == 1:
             return StereoOutcome("single" if chiral else "achiral", 1, 1)
         return StereoOutcome("diastereomers", n, n)
@@ -582,12 +593,12 @@ def stereo_outcome(
             isomers.setdefault(canonical(product), product)
             continue
         geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and e.centeredOn in skeleton.geometric]
-        specified = len(open_elements) < len(elements)
+        handed = fixes_handedness(elements)
         single = not isomers and len(products) == 1
         if single and not geometric and _independent(product, elements, symmetries):
             # The common case, without enumeration.
             chiral = any(e.type == _TETRAHEDRAL for e in elements)
-            return _counted(len(open_elements), chiral, specified)
+            return _counted(len(open_elements), chiral, handed)
         variants = [product]
         if geometric:
             tags = skeleton.tags(geometric)
@@ -596,14 +607,14 @@ def stereo_outcome(
             elif tags:
                 open_elements = [e for e in open_elements if e.type != _TETRAHEDRAL or e.centeredOn not in tags]
                 variants = [_with_tags(product, tags)]
-                if not specified:
-                    # Nothing in the input fixes the skeleton's handedness: both forms occur.
+                if not handed:
+                    # Nothing in the input fixes the skeleton's handedness (set E/Z cannot): both forms occur.
                     variants.append(_with_tags(product, {i: _invert(t) for i, t in tags.items()}))
                 if single and len(open_elements) + len(tags) == len([e for e in elements if e.specified == _UNSPECIFIED]) \
                         and _independent(product, elements):
                     # Every centre, bridgeheads included, is untouched by symmetry: count, don't enumerate.
                     chiral = any(e.type == _TETRAHEDRAL for e in elements)
-                    return _counted(len(open_elements), chiral, specified, skeleton_forms=len(variants))
+                    return _counted(len(open_elements), chiral, handed, skeleton_forms=len(variants))
         if len(open_elements) > MAX_OPEN_ELEMENTS:
             approximate = True
             open_elements = open_elements[:MAX_OPEN_ELEMENTS]

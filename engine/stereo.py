@@ -17,6 +17,9 @@ from rdkit.Chem import rdDistGeom
 #: At most this many open stereo elements are enumerated (2**8 = 256 combinations);
 #: beyond, the count is marked approximate.
 MAX_OPEN_ELEMENTS = 8
+#: Largest ring of a closed polyhedral cage whose every atom the skeleton pins (common practice:
+#: faces of three to six atoms cannot flip one corner through the cage).
+MAX_CAGE_RING = 6
 #: Embedding attempts when reading a ring skeleton's geometry (bounded: a cage
 #: that will not embed quickly is reported as approximate instead).
 EMBED_ATTEMPTS = 5
@@ -104,14 +107,29 @@ def geometry_atoms(mol: Chem.Mol) -> frozenset[int]:
     bicyclo[2.2.2]octane, adamantane) couple their bridgehead configurations;
     fusion to a three- or four-membered ring forbids most trans fusions.
     Ordinary fused rings (decalin, hydrindane) exist both cis and trans.
+    A closed polyhedral cage (every atom of the ring system in three ring
+    bonds, no ring larger than :data:`MAX_CAGE_RING`: cubane, prismane,
+    dodecahedrane) is rigid as a whole, though its small faces only share
+    edges: every one of its atoms is pinned.
     """
-    rings = [set(r) for r in mol.GetRingInfo().AtomRings()]
+    ring_info = mol.GetRingInfo()
+    rings = [set(r) for r in ring_info.AtomRings()]
     out: set[int] = set()
     for i, a in enumerate(rings):
         for b in rings[i + 1 :]:
             shared = a & b
             if len(shared) >= 3 or (len(shared) == 2 and min(len(a), len(b)) <= 4):
                 out |= shared
+    for system in _ring_systems(mol):
+        members = [r for r in rings if r <= system]
+        if max(len(r) for r in members) > MAX_CAGE_RING:
+            continue
+        ring_bonds = [
+            sum(ring_info.NumBondRings(b.GetIdx()) > 0 and b.GetOtherAtomIdx(i) in system for b in mol.GetAtomWithIdx(i).GetBonds())
+            for i in system
+        ]
+        if min(ring_bonds) >= 3:
+            out |= system
     return frozenset(out)
 
 
@@ -140,11 +158,16 @@ def _ring_coordinates(fragment_smiles: str) -> tuple[tuple[float, float, float],
     if mol is None:
         return None
     mol_h = Chem.AddHs(mol)
-    params = rdDistGeom.ETKDGv3()
-    params.randomSeed = 0xC0FFEE
-    params.maxIterations = EMBED_ATTEMPTS
-    params.useRandomCoords = True  # far more reliable for cages (cubanes fail without it)
-    if rdDistGeom.EmbedMolecule(mol_h, params) < 0:
+    # Random starting coordinates are far more reliable for cubanes; eigenvector
+    # starts for dodecahedranes, which random starts do not embed within a few tries.
+    for random_start, attempts in ((True, EMBED_ATTEMPTS), (False, 4 * EMBED_ATTEMPTS)):
+        params = rdDistGeom.ETKDGv3()
+        params.randomSeed = 0xC0FFEE
+        params.maxIterations = attempts
+        params.useRandomCoords = random_start
+        if rdDistGeom.EmbedMolecule(mol_h, params) >= 0:
+            break
+    else:
         return None
     conf = mol_h.GetConformer()
     return tuple(tuple(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms()))
@@ -516,8 +539,6 @@ def _orbit_outcome(
     atoms) of each element, all open.
     """
     k = len(elements)
-    if k > MAX_OPEN_ELEMENTS:
-        return None
     signed = _signed_actions(product, elements, symmetries)
     if signed is None:
         return None
@@ -530,12 +551,16 @@ def _orbit_outcome(
     if tags is None:
         return None  # cannot embed: enumeration marks the count approximate
     if not tags:
+        if k > MAX_OPEN_ELEMENTS:
+            return None
         fixed = sum(w * _fixed_count(a, none) for a, w in zip(actions, weights))
         mirrored = sum(w * _fixed_count(a, tetra) for a, w in zip(actions, weights))
         n, n_pairs = fixed // order, (fixed + mirrored) // (2 * order)
     else:
         pinned = {pos: int(tags[elements[pos][1]] == _CCW) for pos in geometric if elements[pos][1] in tags}
         free = [pos for pos in range(k) if pos not in pinned]
+        if 2 ** (len(free) + 1) * len(actions) > MAX_ORBIT_WORK:
+            return None  # checked before the walk: a cage pins its atoms, not a long open side chain
         base = sum(bit << pos for pos, bit in pinned.items())
         inverted = sum((1 - bit) << pos for pos, bit in pinned.items())
         feasible = set()
@@ -543,8 +568,6 @@ def _orbit_outcome(
             spread = sum(((choice >> j) & 1) << pos for j, pos in enumerate(free))
             feasible.add(base | spread)
             feasible.add(inverted | spread)
-        if len(feasible) * len(actions) > MAX_ORBIT_WORK:
-            return None
         mirror_mask = sum(bit << pos for pos, bit in enumerate(tetra))
         n = n_pairs = 0
         for config in feasible:

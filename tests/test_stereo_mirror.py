@@ -131,3 +131,70 @@ def test_products_of_ez_alkenes_pair_mirror_images_like_rdkit(smiles: str) -> No
         if n_iso > 1 and n_classes == 1:
             assert p.stereo == "racemate", (smiles, p.smiles, p.stereo)
         assert (p.n_stereoisomers, p.n_diastereomers) == (n_iso, n_classes), (smiles, p.smiles)
+
+
+DODECAHEDRANE = "C12C3C4C5C1C6C7C2C8C3C9C4C1C5C6C2C7C8C9C12"
+METHYL_DODECAHEDRANE = "CC12C3C4C5C1C6C7C2C8C3C9C4C1C5C6C2C7C8C9C12"
+TWISTANE = "C1CC2CC3CCC2CC13"  # tricyclo[4.4.0.0^3,8]decane
+
+# Cages and spiranes, where the skeleton (not the count of centres) decides and RDKit's
+# enumerator counts geometrically impossible isomers, so it is no reference here. Sources:
+# the point groups (Eliel & Wilen 1994, ch. 11 for cage and bicycle symmetry, ch. 14 for
+# spiranes) with a counting argument from them, marked as such.
+CAGE_CASES = [
+    # Dodecahedrane is Ih: a monohalide keeps a C3 axis and three mirror planes (C3v), one achiral isomer.
+    (DODECAHEDRANE, "ClC12C3C4C5C1C6C7C2C8C3C9C4C1C5C6C2C7C8C9C12", "achiral", 1, 1),
+    # Methyldodecahedrane (C3v): a neighbour of C1 lies on a mirror plane (achiral); the six carbons
+    # two bonds from C1 lie on none, so each of those chlorides is chiral: one racemate (counting).
+    (METHYL_DODECAHEDRANE, "CC12C3C4C5C6C7C8C5C3C3C8C5C7C7C6C4C1C7C5C32Cl", "achiral", 1, 1),
+    (METHYL_DODECAHEDRANE, "CC12C3C4C5C6C7C8C5C3C3C8C5C7C7C6C4C1C7C5(Cl)C32", "racemate", 2, 1),
+    (METHYL_DODECAHEDRANE, "CC12C3C4C5C6C7C(C8C9C%10C(C3C3C4C6C(Cl)(C3%10)C79)C81)C52", "achiral", 1, 1),  # antipode
+    ("C12C3C4C1C5C2C3C45", "ClC12C3C4C1C5C2C3C45", "achiral", 1, 1),  # cubane Oh → C3v chlorocubane
+    ("C12C3C1C1C2C31", "ClC12C3C1C1C2C31", "achiral", 1, 1),  # prismane D3h → Cs
+    ("C1C2CC3CC1CC(C2)C3", "ClC12CC3CC(CC(C3)C1)C2", "achiral", 1, 1),  # 1-adamantyl: C3v
+    ("C1C2CC3CC1CC(C2)C3", "ClC1C2CC3CC(C2)CC1C3", "achiral", 1, 1),  # 2-adamantyl: C2v
+    ("C1CC2CCC1CC2", "ClC1CC2CCC1CC2", "racemate", 2, 1),  # 2-chlorobicyclo[2.2.2]octane: C1, one pair
+    ("C1CC2CCC1CC2", "ClC12CCC(CC1)CC2", "achiral", 1, 1),  # 1-chloro: C3v
+    ("C1CC2CCC1C2", "ClC1CC2CCC1C2", "diastereomers", 4, 2),  # 2-norbornyl: exo and endo, each a racemate
+    # 2-methylnorbornane (exo/endo open) at C3: methyl and Cl each exo or endo, each a racemate (counting).
+    ("CC1CC2CCC1C2", "CC1C(Cl)C2CCC1C2", "diastereomers", 8, 4),
+    # 2-methylnorbornane at C7, syn or anti to the methyl side: 2 × 2 × enantiomers (counting).
+    ("CC1CC2CCC1C2", "CC1CC2CCC1C2Cl", "diastereomers", 8, 4),
+    # Twistane is D2 and chiral. C2 sits on a C2 axis (its Hs homotopic): one racemate; C4 on none
+    # (its Hs diastereotopic): two racemic diastereomers; the bridgehead: one racemate (counting).
+    (TWISTANE, "ClC1C2CCC3CC2CCC31", "racemate", 2, 1),
+    (TWISTANE, "ClC1CC2CC3CCC2CC13", "diastereomers", 4, 2),
+    (TWISTANE, "ClC12CCC3CC1CCC3C2", "racemate", 2, 1),
+    # Spiro[3.3]heptane: a 2-chloride keeps the plane of the unsubstituted ring (achiral); with a
+    # 6-methyl the rings' substituents lie crossed and the spirane is axially chiral (Eliel & Wilen ch. 14).
+    ("C1CC2(C1)CCC2", "ClC1CC2(C1)CCC2", "achiral", 1, 1),
+    ("CC1CC2(C1)CCC2", "CC1CC2(C1)CC(Cl)C2", "racemate", 2, 1),
+    ("C1CCC2(CC1)CCCCC2", "ClC1CCC2(CCCCC2)CC1", "achiral", 1, 1),  # 3-chlorospiro[5.5]undecane: Cs
+]
+
+
+@pytest.mark.parametrize(("substrate", "chloride", "outcome", "n_iso", "n_classes"), CAGE_CASES)
+def test_skeleton_decides_cage_and_spirane_counts(
+    substrate: str, chloride: str, outcome: str, n_iso: int, n_classes: int
+) -> None:
+    p = product(substrate, chloride)
+    assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (outcome, n_iso, n_classes, False)
+
+
+@pytest.mark.parametrize("substrate", [DODECAHEDRANE, "C12C3C4C1C5C2C3C45", "C12C3C1C1C2C31"])
+def test_closed_polyhedral_cage_pins_every_atom(substrate: str) -> None:
+    # Counting argument: a rigid closed cage allows one configuration and its mirror image,
+    # so every cage atom's configuration is fixed by the skeleton.
+    from engine.stereo import geometry_atoms
+
+    mol = Chem.MolFromSmiles(substrate)
+    assert geometry_atoms(mol) == frozenset(range(mol.GetNumAtoms()))
+
+
+@pytest.mark.parametrize("substrate", ["C1CCC2CCCCC2C1", "C1CC2CCC3CCCC4CCC(C1)C2C34"])
+def test_open_fused_rings_are_not_pinned(substrate: str) -> None:
+    # Decalin and perhydropyrene exist with cis and trans ring fusions (Eliel & Wilen ch. 11):
+    # the cage rule must not pin their fusion atoms.
+    from engine.stereo import geometry_atoms
+
+    assert geometry_atoms(Chem.MolFromSmiles(substrate)) == frozenset()

@@ -53,9 +53,9 @@ SITE_SCHEMA = pa.schema(
         pa.field("atom", pa.int32(), metadata={"doc": "a representative carbon, index in canonical-SMILES atom order"}),
         pa.field("bde", pa.float64(), metadata={"doc": "C–H bond dissociation enthalpy, kcal/mol"}),
         pa.field("stereo", pa.string(), metadata={"doc": "achiral / single / racemate / diastereomers; empty for C–H never abstracted and for products not detailed"}),
-        pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed"}),
-        pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
-        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked (large cage or >256 isomers)"}),
+        pa.field("n_stereoisomers", pa.int64(), metadata={"doc": "stereoisomers of this product formed; exact unless stereo_approx; never above engine.stereo.COUNT_CAP (2**53)"}),
+        pa.field("n_diastereomers", pa.int64(), metadata={"doc": "of those, distinct up to mirror image; same cap"}),
+        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "counts not exact: a cage that would not embed (an upper bound), or a count above 2**53 stored as 2**53 (at least that many)"}),
     ]
 )
 
@@ -165,7 +165,7 @@ def _site_frame(rows: list[tuple]) -> pd.DataFrame:
     df["bde"] = _BDE_BY_CODE[df["site_code"].to_numpy()] if len(df) else pd.Series(dtype="float64")
     df = df.astype(
         {"struct": "int32", "h_count": "int32", "n_carbons": "int32", "atom": "int32",
-         "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool"}
+         "n_stereoisomers": "int64", "n_diastereomers": "int64", "stereo_approx": "bool"}
     )
     return df[SITE_SCHEMA.names]
 

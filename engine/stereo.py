@@ -33,6 +33,11 @@ _TRANS = Chem.BondStereo.STEREOTRANS
 
 OUTCOMES = ("achiral", "single", "racemate", "diastereomers")
 
+#: Largest stereoisomer count stored as such: 2**53, exact alike in int64 columns, float64
+#: and JSON numbers. A larger count (53 or more stereo elements) is stored as this cap with
+#: ``approximate`` set: read it as "at least this many", never as a wrapped number.
+COUNT_CAP = 2**53
+
 
 @dataclass(frozen=True)
 class StereoOutcome:
@@ -44,12 +49,13 @@ class StereoOutcome:
     'racemate' (a pair of enantiomers formed 1:1);
     'diastereomers' (two or more stereoisomers that are not mirror images)."""
     n_stereoisomers: int
-    """Number of stereoisomers formed (enantiomers counted separately)."""
+    """Number of stereoisomers formed (enantiomers counted separately); at most :data:`COUNT_CAP`."""
     n_diastereomers: int
-    """Number of stereoisomers up to mirror image (1 for a racemate)."""
+    """Number of stereoisomers up to mirror image (1 for a racemate); at most :data:`COUNT_CAP`."""
     approximate: bool = False
-    """True when the count is not fully checked: more than :data:`MAX_OPEN_ELEMENTS`
-    open elements, or a bridged ring system that could not be embedded in 3D."""
+    """True when the counts are not exact: a bridged ring system that could not be
+    embedded in 3D (every combination counted, so an upper bound), or a count above
+    :data:`COUNT_CAP` (stored as the cap: at least that many)."""
 
 
 def potential_stereo(mol: Chem.Mol) -> list:
@@ -551,8 +557,7 @@ def _orbit_outcome(
     if tags is None:
         return None  # cannot embed: enumeration marks the count approximate
     if not tags:
-        if k > MAX_OPEN_ELEMENTS:
-            return None
+        # Burnside's sum costs (distinct actions × elements), whatever k: exact for any chain length.
         fixed = sum(w * _fixed_count(a, none) for a, w in zip(actions, weights))
         mirrored = sum(w * _fixed_count(a, tetra) for a, w in zip(actions, weights))
         n, n_pairs = fixed // order, (fixed + mirrored) // (2 * order)
@@ -583,8 +588,23 @@ def _orbit_outcome(
     return StereoOutcome("racemate" if n_pairs == 1 else "diastereomers", n, n_pairs)
 
 
+def capped(outcome: StereoOutcome) -> StereoOutcome:
+    """``outcome`` with counts above :data:`COUNT_CAP` stored as the cap and marked approximate."""
+    if outcome.n_stereoisomers <= COUNT_CAP and outcome.n_diastereomers <= COUNT_CAP:
+        return outcome
+    return StereoOutcome(outcome.outcome, min(outcome.n_stereoisomers, COUNT_CAP),
+                         min(outcome.n_diastereomers, COUNT_CAP), True)
+
+
 def stereo_outcome(
     products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
+) -> StereoOutcome:
+    """Stereoisomers formed when H is replaced at one or more equivalent carbons (counts capped: :func:`capped`)."""
+    return capped(_outcome(products, skeleton, symmetries))
+
+
+def _outcome(
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None
 ) -> StereoOutcome:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 

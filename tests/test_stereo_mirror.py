@@ -198,3 +198,52 @@ def test_open_fused_rings_are_not_pinned(substrate: str) -> None:
     from engine.stereo import geometry_atoms
 
     assert geometry_atoms(Chem.MolFromSmiles(substrate)) == frozenset()
+
+
+def _chain(n_centres: int) -> str:
+    """CH3CH2–[CH(CH3)]n–CH2CH2CH3: n stereocentres no symmetry relates (the ends differ)."""
+    return "CC" + "C(C)" * n_centres + "CCC"
+
+
+@pytest.mark.parametrize("k", [31, 45])
+def test_long_chain_counts_are_exact_not_wrapped(k: int) -> None:
+    # Counting argument: k centres no symmetry can touch give 2^k stereoisomers in 2^(k-1)
+    # mirror pairs. Chlorine on the far methyl adds no centre. 2^31 wrapped an int32 to
+    # −2147483648, and 2^45 to 0.
+    p = product(_chain(k), "CC" + "C(C)" * k + "CCCCl")
+    assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (
+        "diastereomers", 2**k, 2 ** (k - 1), False,
+    )
+
+
+def test_symmetric_chain_count_is_exact_with_its_meso_forms() -> None:
+    # CH3CH2–[CH(CH3)]22–CHCl–[CH(CH3)]22–CH2CH3: 45 centres, the middle one pseudo-asymmetric.
+    # Counting argument (end-for-end symmetry, Burnside): for an odd number k = 2m + 1 of
+    # centres there are 2^(k-1) stereoisomers, 2^m of them meso, so (2^(k-1) + 2^m)/2 classes.
+    m = 22
+    p = product("CC" + "C(C)" * m + "C" + "C(C)" * m + "CC", "CC" + "C(C)" * m + "C(Cl)" + "C(C)" * m + "CC")
+    assert (p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (2**44, (2**44 + 2**m) // 2, False)
+
+
+def test_count_beyond_the_cap_is_capped_and_marked() -> None:
+    # 60 centres: 2^60 stereoisomers, more than the columns carry exactly; stored as the
+    # documented cap with the approximate flag ("at least"), never a wrapped number.
+    from engine.stereo import COUNT_CAP
+
+    p = product(_chain(60), "CC" + "C(C)" * 60 + "CCCCl")
+    assert (p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (COUNT_CAP, COUNT_CAP, True)
+
+
+def test_count_columns_are_int64_and_never_negative() -> None:
+    import pyarrow as pa
+
+    from engine.perception import SITE_SCHEMA
+
+    perception = engine.perceive([_chain(k) for k in (31, 45, 60)])
+    sites = perception.sites
+    for column in ("n_stereoisomers", "n_diastereomers"):
+        assert str(sites[column].dtype) == "int64"
+        assert (sites[column] >= 0).all()
+        assert SITE_SCHEMA.field(column).type == pa.int64()
+    assert sites["n_stereoisomers"].max() > 2**45
+    pa.Table.from_pandas(sites, schema=SITE_SCHEMA, preserve_index=False)  # the Arrow schema carries them

@@ -14,9 +14,15 @@ from functools import lru_cache
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
 
-#: At most this many open stereo elements are enumerated (2**8 = 256 combinations);
-#: beyond, the count is marked approximate.
-MAX_OPEN_ELEMENTS = 8
+#: Stereo work allowed per structure, in atom-isomers: building, canonicalising and
+#: mirroring one stereoisomer of an n-atom product costs n (or 2n when its mirror image
+#: needs its own canonical SMILES). About 4-6 µs each here (RDKit 2026.09, one core),
+#: so the default keeps any structure's enumeration under about a second.
+#: Perception shares it equally among a structure's products (:func:`work_share`), the
+#: same share in a screen, in ``explain``, the report and the app's detail, so every mode
+#: gives a product the same answer. A product whose enumeration would cost more is
+#: :data:`NOT_COUNTED`; counting by orbits (most stereo-free inputs) builds no isomer and is not limited.
+STEREO_WORK_BUDGET = 150_000
 #: Largest ring of a closed polyhedral cage whose every atom the skeleton pins (common practice:
 #: faces of three to six atoms cannot flip one corner through the cage).
 MAX_CAGE_RING = 6
@@ -31,7 +37,10 @@ _UNSPECIFIED = Chem.StereoSpecified.Unspecified
 _CIS = Chem.BondStereo.STEREOCIS
 _TRANS = Chem.BondStereo.STEREOTRANS
 
-OUTCOMES = ("achiral", "single", "racemate", "diastereomers")
+#: Outcome of a product whose stereoisomers were not enumerated within its share of
+#: :data:`STEREO_WORK_BUDGET` (too many open stereo elements); its counts are an upper bound.
+NOT_COUNTED = "not counted"
+OUTCOMES = ("achiral", "single", "racemate", "diastereomers", NOT_COUNTED)
 
 #: Largest stereoisomer count stored as such: 2**53, exact alike in int64 columns, float64
 #: and JSON numbers. A larger count (53 or more stereo elements) is stored as this cap with
@@ -47,15 +56,18 @@ class StereoOutcome:
     """'achiral' (one stereoisomer, superimposable on its mirror image);
     'single' (one chiral stereoisomer, its configuration fixed by the input);
     'racemate' (a pair of enantiomers formed 1:1);
-    'diastereomers' (two or more stereoisomers that are not mirror images)."""
+    'diastereomers' (two or more stereoisomers that are not mirror images);
+    :data:`NOT_COUNTED` (too many open stereo elements to enumerate within the budget)."""
     n_stereoisomers: int
-    """Number of stereoisomers formed (enantiomers counted separately); at most :data:`COUNT_CAP`."""
+    """Number of stereoisomers formed (enantiomers counted separately); at most :data:`COUNT_CAP`.
+    For :data:`NOT_COUNTED`, an upper bound: 2^(open elements), summed over the products."""
     n_diastereomers: int
-    """Number of stereoisomers up to mirror image (1 for a racemate); at most :data:`COUNT_CAP`."""
+    """Number of stereoisomers up to mirror image (1 for a racemate); at most :data:`COUNT_CAP`.
+    For :data:`NOT_COUNTED`, the same upper bound as ``n_stereoisomers``."""
     approximate: bool = False
-    """True when the counts are not exact: a bridged ring system that could not be
-    embedded in 3D (every combination counted, so an upper bound), or a count above
-    :data:`COUNT_CAP` (stored as the cap: at least that many)."""
+    """True when the counts are not exact: :data:`NOT_COUNTED` (an upper bound), a
+    bridged ring system that could not be embedded in 3D (every combination counted,
+    so an upper bound), or a count above :data:`COUNT_CAP` (stored as the cap)."""
 
 
 def potential_stereo(mol: Chem.Mol) -> list:
@@ -239,9 +251,11 @@ class Skeleton:
     with input stereo the whole substrate is, so the given configuration holds.
     """
 
-    def __init__(self, substrate: Chem.Mol, specified: bool) -> None:
+    def __init__(self, substrate: Chem.Mol, specified: bool, work_limit: int = STEREO_WORK_BUDGET) -> None:
         self._substrate = substrate
         self._specified = specified
+        self.work_limit = work_limit
+        """Stereo work (atom-isomers, :data:`STEREO_WORK_BUDGET`) each product of this substrate may use."""
         self.geometric = geometry_atoms(substrate)
         """Atoms of bridged or small fused ring systems (the same in every product)."""
         self._position: dict[int, Vec] | None = None
@@ -596,10 +610,28 @@ def capped(outcome: StereoOutcome) -> StereoOutcome:
                          min(outcome.n_diastereomers, COUNT_CAP), True)
 
 
+def work_share(n_products: int) -> int:
+    """Each product's share of :data:`STEREO_WORK_BUDGET` when a structure has ``n_products`` with stereo worked out."""
+    return STEREO_WORK_BUDGET // max(1, n_products)
+
+
+def _not_counted(products: list[Chem.Mol], elements: dict[int, list]) -> StereoOutcome:
+    """The honest fallback: no count, but the bound every configuration of every product gives."""
+    bound = 0
+    for i, product in enumerate(products):
+        found = elements[i] if i in elements else potential_stereo(product)
+        bound += 2 ** sum(e.specified == _UNSPECIFIED for e in found)
+    return StereoOutcome(NOT_COUNTED, bound, bound, True)
+
+
 def stereo_outcome(
     products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
 ) -> StereoOutcome:
-    """Stereoisomers formed when H is replaced at one or more equivalent carbons (counts capped: :func:`capped`)."""
+    """Stereoisomers formed when H is replaced at one or more equivalent carbons (counts capped: :func:`capped`).
+
+    Enumeration stops before it starts when it would cost more than
+    ``skeleton.work_limit``: the product is then :data:`NOT_COUNTED`.
+    """
     return capped(_outcome(products, skeleton, symmetries))
 
 
@@ -622,8 +654,10 @@ def _outcome(
     isomers: dict[str, Chem.Mol] = {}
     mirrors: dict[str, str] = {}
     approximate = False
-    for product in products:
-        elements = potential_stereo(product)
+    spent = 0  # predicted atom-isomers of the enumerations begun so far
+    seen: dict[int, list] = {}
+    for index, product in enumerate(products):
+        elements = seen[index] = potential_stereo(product)
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
         if not elements and not isomers and len(products) == 1:
             return _ACHIRAL  # no stereo element at all: the common primary/achiral case
@@ -658,14 +692,15 @@ def _outcome(
                     # Every centre, bridgeheads included, is untouched by symmetry: count, don't enumerate.
                     chiral = any(e.type == _TETRAHEDRAL for e in elements)
                     return _counted(len(open_elements), chiral, handed, skeleton_forms=len(variants))
-        if len(open_elements) > MAX_OPEN_ELEMENTS:
-            approximate = True
-            open_elements = open_elements[:MAX_OPEN_ELEMENTS]
         tetrahedral = [e.type == _TETRAHEDRAL for e in open_elements]
         # With nothing specified, the mirror image of an enumerated isomer is the
         # one with every tetrahedral choice flipped (and the other skeleton form),
         # so mirror images come free instead of costing a canonicalisation each.
         free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
+        # Priced before any isomer is built, so a product over its share costs nothing.
+        spent += len(variants) * 2 ** len(open_elements) * product.GetNumAtoms() * (1 if free_mirrors else 2)
+        if spent > skeleton.work_limit:
+            return _not_counted(products, seen)
         by_key: dict[tuple, str] = {}
         for v, variant in enumerate(variants):
             for picks, iso in _assignments(variant, open_elements):

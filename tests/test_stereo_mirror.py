@@ -247,3 +247,52 @@ def test_count_columns_are_int64_and_never_negative() -> None:
         assert SITE_SCHEMA.field(column).type == pa.int64()
     assert sites["n_stereoisomers"].max() > 2**45
     pa.Table.from_pandas(sites, schema=SITE_SCHEMA, preserve_index=False)  # the Arrow schema carries them
+
+
+# One set centre and 45 open ones on an end-for-end symmetric skeleton: no symmetry-free shortcut
+# applies, so this took minutes of enumeration before each product had a share of a budget.
+BUDGET_SUBSTRATE = "CC[C@H](C)" + "C(C)" * 44 + "C(C)CC"
+BUDGET_CHLORIDE = "ClCCC(C)" + "C(C)" * 44 + "C(C)CC"  # Cl on a terminal methyl: no new centre
+
+
+def test_too_many_open_elements_gives_the_fallback_with_its_bound() -> None:
+    # Counting argument for the bound: the two terminal methyls are one site group; each
+    # chloride keeps the set centre and leaves 45 elements open, 2^45 configurations each,
+    # so at most 2 × 2^45 stereoisomers form. Not counted, and said so.
+    from engine.stereo import NOT_COUNTED
+
+    p = product(BUDGET_SUBSTRATE, BUDGET_CHLORIDE)
+    assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (
+        NOT_COUNTED, 2**46, 2**46, True,
+    )
+
+
+def test_budget_is_the_same_in_screen_explain_and_detail() -> None:
+    # The share depends only on the structure, so a screen (stereo for possible Br2 majors),
+    # explain, and the detail the app and the report ask the library for agree row by row.
+    import pandas as pd
+
+    from engine.stereo import NOT_COUNTED
+
+    lean = engine.perceive([BUDGET_SUBSTRATE], detail=False).sites
+    full = engine.perceive([BUDGET_SUBSTRATE], detail=True).sites
+    shown = lean["stereo"] != ""
+    assert shown.any() and (lean.loc[shown, "stereo"] == NOT_COUNTED).all()
+    columns = ["stereo", "n_stereoisomers", "n_diastereomers", "stereo_approx"]
+    pd.testing.assert_frame_equal(lean.loc[shown, columns], full.loc[shown, columns])
+    library = engine.load_library(pd.DataFrame({"smiles": [BUDGET_SUBSTRATE]}), use_cache=False)
+    detail = library.products(0)
+    explained = engine.explain(BUDGET_SUBSTRATE).products
+    assert sorted(detail["stereo"]) == sorted(p.stereo for p in explained)
+    assert set(detail["stereo"]) == {NOT_COUNTED}
+
+
+def test_within_the_budget_the_same_kind_of_input_is_still_counted() -> None:
+    # The fallback is for size, not for kind: one set centre and five open ones on the same
+    # symmetric skeleton are enumerated, and the counts agree with RDKit's enumeration pooled
+    # over both terminal methyls (acyclic: canonical SMILES are a trustworthy reference).
+    substrate = "CC[C@H](C)" + "C(C)" * 4 + "C(C)CC"
+    chloride = "ClCCC(C)" + "C(C)" * 4 + "C(C)CC"
+    p = product(substrate, chloride)
+    reference = rdkit_reference(substrate)[Chem.CanonSmiles(chloride)]
+    assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == ("diastereomers", *reference, False)

@@ -16,13 +16,14 @@ from rdkit.Chem import rdDistGeom
 
 #: Stereo work allowed per structure, in atom-isomers: building, canonicalising and
 #: mirroring one stereoisomer of an n-atom product costs n (or 2n when its mirror image
-#: needs its own canonical SMILES). About 4-6 µs each here (RDKit 2026.09, one core),
-#: so the default keeps any structure's enumeration under about a second.
+#: needs its own canonical SMILES). About 5 µs each here (RDKit 2026.09, one core),
+#: so the default keeps any structure's enumeration near half a second, under a second
+#: on a busy machine (benchmarks/bench_stereo_budget.py).
 #: Perception shares it equally among a structure's products (:func:`work_share`), the
 #: same share in a screen, in ``explain``, the report and the app's detail, so every mode
 #: gives a product the same answer. A product whose enumeration would cost more is
 #: :data:`NOT_COUNTED`; counting by orbits (most stereo-free inputs) builds no isomer and is not limited.
-STEREO_WORK_BUDGET = 150_000
+STEREO_WORK_BUDGET = 100_000
 #: Largest ring of a closed polyhedral cage whose every atom the skeleton pins (common practice:
 #: faces of three to six atoms cannot flip one corner through the cage).
 MAX_CAGE_RING = 6
@@ -651,32 +652,34 @@ def _outcome(
     not (an axially chiral spirane, a bridge carbon on a mirror plane), and
     much cheaper.
     """
-    isomers: dict[str, Chem.Mol] = {}
-    mirrors: dict[str, str] = {}
     approximate = False
-    spent = 0  # predicted atom-isomers of the enumerations begun so far
+    plans: list[_Plan] = []
     seen: dict[int, list] = {}
+    single = len(products) == 1
     for index, product in enumerate(products):
         elements = seen[index] = potential_stereo(product)
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
-        if not elements and not isomers and len(products) == 1:
+        if not elements and single:
             return _ACHIRAL  # no stereo element at all: the common primary/achiral case
-        if len(products) == 1 and symmetries is not None and len(open_elements) == len(elements):
+        if single and symmetries is not None and len(open_elements) == len(elements):
             info = [(e.type, e.centeredOn, _controlling(e)) for e in elements]
             counted = _orbit_outcome(product, info, symmetries, skeleton)
             if counted is not None:
                 return counted
         if not open_elements:
-            isomers.setdefault(canonical(product), product)
+            plans.append(_Plan([product], [], False))
             continue
         geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and e.centeredOn in skeleton.geometric]
         handed = fixes_handedness(elements)
-        single = not isomers and len(products) == 1
         if single and not geometric and _independent(product, elements, symmetries):
             # The common case, without enumeration.
             chiral = any(e.type == _TETRAHEDRAL for e in elements)
             return _counted(len(open_elements), chiral, handed)
         variants = [product]
+        # With nothing specified, the mirror image of an enumerated isomer is the
+        # one with every tetrahedral choice flipped (and the other skeleton form),
+        # so mirror images come free instead of costing a canonicalisation each.
+        free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
         if geometric:
             tags = skeleton.tags(geometric)
             if tags is None:
@@ -692,26 +695,44 @@ def _outcome(
                     # Every centre, bridgeheads included, is untouched by symmetry: count, don't enumerate.
                     chiral = any(e.type == _TETRAHEDRAL for e in elements)
                     return _counted(len(open_elements), chiral, handed, skeleton_forms=len(variants))
-        tetrahedral = [e.type == _TETRAHEDRAL for e in open_elements]
-        # With nothing specified, the mirror image of an enumerated isomer is the
-        # one with every tetrahedral choice flipped (and the other skeleton form),
-        # so mirror images come free instead of costing a canonicalisation each.
-        free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
-        # Priced before any isomer is built, so a product over its share costs nothing.
-        spent += len(variants) * 2 ** len(open_elements) * product.GetNumAtoms() * (1 if free_mirrors else 2)
-        if spent > skeleton.work_limit:
-            return _not_counted(products, seen)
+                # One skeleton form only: the flipped choices are not its mirror image.
+                free_mirrors = free_mirrors and len(variants) == 2
+        plans.append(_Plan(variants, open_elements, free_mirrors))
+    # Every product is priced before any isomer is built: over the share, nothing is spent.
+    cost = sum(len(plan.variants) * 2 ** len(plan.open_elements) * plan.variants[0].GetNumAtoms()
+               * (1 if plan.free_mirrors else 2) for plan in plans)
+    if cost > skeleton.work_limit:
+        return _not_counted(products, seen)
+    isomers: dict[str, Chem.Mol] = {}
+    mirrors: dict[str, str] = {}
+    for plan in plans:
+        if not plan.open_elements:
+            isomers.setdefault(canonical(plan.variants[0]), plan.variants[0])
+            continue
+        tetrahedral = [e.type == _TETRAHEDRAL for e in plan.open_elements]
         by_key: dict[tuple, str] = {}
-        for v, variant in enumerate(variants):
-            for picks, iso in _assignments(variant, open_elements):
+        for v, variant in enumerate(plan.variants):
+            for picks, iso in _assignments(variant, plan.open_elements):
                 smi = canonical(iso)
                 isomers.setdefault(smi, iso)
                 by_key[(v, picks)] = smi
-        if free_mirrors and (len(variants) == 2 or not geometric or tags is None):
+        if plan.free_mirrors:
             for (v, picks), smi in by_key.items():
                 flipped = tuple(1 - p if t else p for p, t in zip(picks, tetrahedral))
-                mirrors[smi] = by_key[(len(variants) - 1 - v, flipped)]
+                mirrors[smi] = by_key[(len(plan.variants) - 1 - v, flipped)]
     return _classify(isomers, mirrors, approximate)
+
+
+@dataclass(frozen=True)
+class _Plan:
+    """How one product's stereoisomers are to be enumerated (worked out, and priced, before any is built)."""
+
+    variants: list[Chem.Mol]
+    """The product, or its two skeleton forms (one when the input fixes the handedness)."""
+    open_elements: list
+    """Stereo elements left to enumerate (those a skeleton pins are already set)."""
+    free_mirrors: bool
+    """Mirror images follow from the choices (nothing specified), with no canonical SMILES of their own."""
 
 
 def _with_tags(product: Chem.Mol, tags: dict[int, Chem.ChiralType]) -> Chem.Mol:

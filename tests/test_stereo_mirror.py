@@ -170,6 +170,11 @@ CAGE_CASES = [
     ("C1CC2(C1)CCC2", "ClC1CC2(C1)CCC2", "achiral", 1, 1),
     ("CC1CC2(C1)CCC2", "CC1CC2(C1)CC(Cl)C2", "racemate", 2, 1),
     ("C1CCC2(CC1)CCCCC2", "ClC1CCC2(CCCCC2)CC1", "achiral", 1, 1),  # 3-chlorospiro[5.5]undecane: Cs
+    # Alkylidenecycloalkanes substituted at the far ring carbon are axially chiral, like the
+    # spiranes (Eliel & Wilen ch. 14; canonical SMILES see no stereocentre here).
+    ("CC=C1CCCCC1", "CC=C1CCC(Cl)CC1", "racemate", 2, 1),
+    ("CC=C1CCC1", "CC=C1CC(Cl)C1", "racemate", 2, 1),
+    ("C=C1CCCCC1", "C=C1CCC(Cl)CC1", "achiral", 1, 1),  # methylene: the two ends of C=C alike, a mirror plane
 ]
 
 

@@ -706,9 +706,6 @@ def _outcome(
     isomers: dict[str, Chem.Mol] = {}
     mirrors: dict[str, str] = {}
     for plan in plans:
-        if not plan.open_elements:
-            isomers.setdefault(canonical(plan.variants[0]), plan.variants[0])
-            continue
         tetrahedral = [e.type == _TETRAHEDRAL for e in plan.open_elements]
         by_key: dict[tuple, str] = {}
         for v, variant in enumerate(plan.variants):

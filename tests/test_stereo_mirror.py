@@ -160,6 +160,15 @@ CAGE_CASES = [
     ("CC1CC2CCC1C2", "CC1C(Cl)C2CCC1C2", "diastereomers", 8, 4),
     # 2-methylnorbornane at C7, syn or anti to the methyl side: 2 × 2 × enantiomers (counting).
     ("CC1CC2CCC1C2", "CC1CC2CCC1C2Cl", "diastereomers", 8, 4),
+    # (R)-2-methylbicyclo[2.2.2]octane at C2: the planar radical leaves nothing chiral behind,
+    # so Cl adds to either face: one racemate. At a bridgehead C2 keeps its configuration: one
+    # single stereoisomer (counting).
+    ("C[C@H]1CC2CCC1CC2", "CC1(Cl)CC2CCC1CC2", "racemate", 2, 1),
+    ("C[C@H]1CC2CCC1CC2", "CC1CC2CCC1(Cl)CC2", "single", 1, 1),
+    # 2-((E)-propenyl)norbornane at C7: propenyl exo or endo × Cl syn or anti, each a racemate;
+    # the set E is its own mirror image, so it halves nothing (counting). Left open, E/Z doubles it.
+    ("C/C=C/C1CC2CCC1C2", "CC=CC1CC2CCC1C2Cl", "diastereomers", 8, 4),
+    ("CC=CC1CC2CCC1C2", "CC=CC1CC2CCC1C2Cl", "diastereomers", 16, 8),
     # Twistane is D2 and chiral. C2 sits on a C2 axis (its Hs homotopic): one racemate; C4 on none
     # (its Hs diastereotopic): two racemic diastereomers; the bridgehead: one racemate (counting).
     (TWISTANE, "ClC1C2CCC3CC2CCC31", "racemate", 2, 1),

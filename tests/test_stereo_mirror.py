@@ -20,7 +20,7 @@ from rdkit.Chem.EnumerateStereoisomers import EnumerateStereoisomers, StereoEnum
 import engine
 
 
-def product(substrate: str, chloride: str):
+def product(substrate: str, chloride: str) -> engine.ProductRecord:
     """The explain() product of ``substrate`` with the constitution of ``chloride``."""
     want = Chem.CanonSmiles(chloride, useChiral=0)
     products = engine.explain(substrate).products
@@ -37,6 +37,7 @@ def _mirror_smiles(smiles: str) -> str:
 
 
 def _canonical(mol: Chem.Mol) -> str:
+    """Canonical isomeric SMILES after fresh stereo perception (tags on non-centres dropped)."""
     m = Chem.Mol(mol)
     Chem.AssignStereochemistry(m, cleanIt=True, force=True)
     return Chem.MolToSmiles(m)

@@ -611,6 +611,28 @@ def capped(outcome: StereoOutcome) -> StereoOutcome:
                          min(outcome.n_diastereomers, COUNT_CAP), True)
 
 
+def _number(n: int) -> str:
+    """A count as text: a large power of two as 2^k (bounds are sums of them), else in digits."""
+    if n >= 2**16 and n & (n - 1) == 0:
+        return f"2^{n.bit_length() - 1}"
+    return str(n)
+
+
+def count_text(outcome: str, n: int, approximate: bool | None = None) -> str:
+    """The count shown after a stereo outcome: '' for one stereoisomer, else '(n)', or the bound it is.
+
+    ``approximate``: the row's ``stereo_approx`` (None where a table does not carry
+    it: :data:`NOT_COUNTED` and a count at :data:`COUNT_CAP` still say what they are).
+    """
+    if outcome == NOT_COUNTED:
+        return f"(bound beyond {_number(COUNT_CAP)})" if n >= COUNT_CAP else f"(at most {_number(n)})"
+    if n >= COUNT_CAP:
+        return f"(at least {_number(COUNT_CAP)})"
+    if approximate:
+        return f"(at most {_number(n)})"  # a cage that would not embed: every combination counted
+    return "" if n <= 1 else f"({_number(n)})"
+
+
 def work_share(n_products: int) -> int:
     """Each product's share of :data:`STEREO_WORK_BUDGET` when a structure has ``n_products`` with stereo worked out."""
     return STEREO_WORK_BUDGET // max(1, n_products)

@@ -311,3 +311,22 @@ def test_within_the_budget_the_same_kind_of_input_is_still_counted() -> None:
     p = product(substrate, chloride)
     reference = rdkit_reference(substrate)[Chem.CanonSmiles(chloride)]
     assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == ("diastereomers", *reference, False)
+
+
+def test_shown_counts_say_when_they_are_bounds() -> None:
+    # What explain and the report print after a stereo outcome: a count, or the bound it is.
+    from engine.stereo import COUNT_CAP, NOT_COUNTED, count_text
+
+    assert count_text("racemate", 2) == "(2)"
+    assert count_text("achiral", 1) == ""
+    assert count_text(NOT_COUNTED, 2**46, True) == "(at most 2^46)"
+    assert count_text(NOT_COUNTED, 3 * 2**45, True) == f"(at most {3 * 2**45})"
+    assert count_text("diastereomers", COUNT_CAP, True) == "(at least 2^53)"
+    assert count_text("diastereomers", 128, True) == "(at most 128)"  # a cage that would not embed
+
+
+def test_explain_text_shows_the_fallback_bound() -> None:
+    from halosift.formatting import explanation_table
+
+    assert "not counted (at most 2^46)" in explanation_table(engine.explain(BUDGET_SUBSTRATE), ["cl2", "br2"], [])
+    assert "racemate (2)" in explanation_table(engine.explain("C/C=C/CC"), ["cl2", "br2"], [])

@@ -139,9 +139,10 @@ def geometry_atoms(mol: Chem.Mol) -> frozenset[int]:
             shared = a & b
             if len(shared) >= 3 or (len(shared) == 2 and min(len(a), len(b)) <= 4):
                 out |= shared
-    for system in _ring_systems(mol):
+    for system in _ring_systems(mol) if len(rings) >= 3 else ():  # a cage has three rings at least (tetrahedrane)
         members = [r for r in rings if r <= system]
-        if max(len(r) for r in members) > MAX_CAGE_RING:
+        # Three ring bonds at every atom need at least |system|/2 + 1 rings: most systems stop here.
+        if 2 * (len(members) - 1) < len(system) or max(len(r) for r in members) > MAX_CAGE_RING:
             continue
         ring_bonds = [
             sum(ring_info.NumBondRings(b.GetIdx()) > 0 and b.GetOtherAtomIdx(i) in system for b in mol.GetAtomWithIdx(i).GetBonds())

@@ -55,9 +55,9 @@ ALLYLIC_SCHEMA = pa.schema(
         pa.field("alkene_subst", pa.int32(), metadata={"doc": "carbon substituents on the product's C=C (-1: none)"}),
         pa.field("share", pa.float64(), metadata={"doc": "fraction of this group's radical that gives this product"}),
         pa.field("stereo", pa.string(), metadata={"doc": "achiral / one-enantiomer / racemate / diastereomers"}),
-        pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed (E/Z counted)"}),
-        pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
-        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked"}),
+        pa.field("n_stereoisomers", pa.int64(), metadata={"doc": "stereoisomers of this product formed (E/Z counted); capped as in the site table"}),
+        pa.field("n_diastereomers", pa.int64(), metadata={"doc": "of those, distinct up to mirror image"}),
+        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "counts not exact (see the site table's stereo_approx)"}),
         pa.field("ez_open", pa.bool_(), metadata={"doc": "the product has a C=C formed as both E and Z"}),
     ]
 )
@@ -75,7 +75,7 @@ def frame_from_rows(rows: list[tuple]) -> pd.DataFrame:
         {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8",
          "radical_code": "int8", "h_count": "int32",
          "terminus": object, "alkene_subst": "int32", "share": "float64", "stereo": object,
-         "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool", "ez_open": "bool"}
+         "n_stereoisomers": "int64", "n_diastereomers": "int64", "stereo_approx": "bool", "ez_open": "bool"}
     )
 
 

@@ -21,7 +21,7 @@ from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
 from engine.special_sites import small_bridgeheads, structure_flags
-from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome
+from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome, work_share
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
 
@@ -52,10 +52,10 @@ SITE_SCHEMA = pa.schema(
         pa.field("n_carbons", pa.int32(), metadata={"doc": "equivalent carbons in the group"}),
         pa.field("atom", pa.int32(), metadata={"doc": "a representative carbon, index in canonical-SMILES atom order"}),
         pa.field("bde", pa.float64(), metadata={"doc": "C–H bond dissociation enthalpy, kcal/mol"}),
-        pa.field("stereo", pa.string(), metadata={"doc": "achiral / one-enantiomer / racemate / diastereomers; empty for C–H never abstracted and for products not detailed"}),
-        pa.field("n_stereoisomers", pa.int32(), metadata={"doc": "stereoisomers of this product formed"}),
-        pa.field("n_diastereomers", pa.int32(), metadata={"doc": "of those, distinct up to mirror image"}),
-        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "stereo count not fully checked (large cage or >256 isomers)"}),
+        pa.field("stereo", pa.string(), metadata={"doc": "achiral / one-enantiomer / racemate / diastereomers / not counted (engine.stereo.NOT_COUNTED: over the stereo budget, see stereo_approx); empty for C–H never abstracted and for products not detailed"}),
+        pa.field("n_stereoisomers", pa.int64(), metadata={"doc": "stereoisomers of this product formed; exact unless stereo_approx; never above engine.stereo.COUNT_CAP (2**53)"}),
+        pa.field("n_diastereomers", pa.int64(), metadata={"doc": "of those, distinct up to mirror image; same cap"}),
+        pa.field("stereo_approx", pa.bool_(), metadata={"doc": "counts not exact: stereo 'not counted' (too many open stereo elements for the per-structure budget engine.stereo.STEREO_WORK_BUDGET; both counts hold the upper bound 2^open elements, summed over the group's products), a cage that would not embed (an upper bound), or a count above 2**53 stored as 2**53 (at least that many)"}),
     ]
 )
 
@@ -87,10 +87,15 @@ def _perceive_one(smiles: object, max_heavy: int, detail: bool) -> tuple[tuple, 
     order = list(mol.GetPropsAsDict(True, True)["_smilesAtomOutputOrder"])
     position = {atom: pos for pos, atom in enumerate(order)}
     specified = has_specified_stereo(canonical)
-    skeleton = Skeleton(mol, specified)
     rows = []
     bridgeheads = small_bridgeheads(mol)
     groups = site_groups(mol, specified, bridgeheads)
+    # One stereo budget per structure, shared by every product that may need stereo (NBS
+    # gives up to two per allylic/benzylic group), counted alike in a screen and in detail.
+    stereo_products = sum(g.site in _ABSTRACTABLE for g in groups) + 2 * sum(
+        g.site.startswith(("allylic", "benzylic")) for g in groups
+    )
+    skeleton = Skeleton(mol, specified, work_share(stereo_products))
     # A screen names only majors: Cl2 contenders need their SMILES, Br2 contenders also their stereo.
     named, stereo_wanted = (None, None) if detail else contenders([(SITE_CODE[g.site], g.h_count) for g in groups])
     outcomes: list[StereoOutcome] = []
@@ -165,7 +170,7 @@ def _site_frame(rows: list[tuple]) -> pd.DataFrame:
     df["bde"] = _BDE_BY_CODE[df["site_code"].to_numpy()] if len(df) else pd.Series(dtype="float64")
     df = df.astype(
         {"struct": "int32", "h_count": "int32", "n_carbons": "int32", "atom": "int32",
-         "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool"}
+         "n_stereoisomers": "int64", "n_diastereomers": "int64", "stereo_approx": "bool"}
     )
     return df[SITE_SCHEMA.names]
 

@@ -14,9 +14,19 @@ from functools import lru_cache
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
 
-#: At most this many open stereo elements are enumerated (2**8 = 256 combinations);
-#: beyond, the count is marked approximate.
-MAX_OPEN_ELEMENTS = 8
+#: Stereo work allowed per structure, in atom-isomers: building, canonicalising and
+#: mirroring one stereoisomer of an n-atom product costs n (or 2n when its mirror image
+#: needs its own canonical SMILES). About 5 µs each here (RDKit 2026.09, one core),
+#: so the default keeps any structure's enumeration near half a second, under a second
+#: on a busy machine (benchmarks/bench_stereo_budget.py).
+#: Perception shares it equally among a structure's products (:func:`work_share`), the
+#: same share in a screen, in ``explain``, the report and the app's detail, so every mode
+#: gives a product the same answer. A product whose enumeration would cost more is
+#: :data:`NOT_COUNTED`; counting by orbits (most stereo-free inputs) builds no isomer and is not limited.
+STEREO_WORK_BUDGET = 100_000
+#: Largest ring of a closed polyhedral cage whose every atom the skeleton pins (common practice:
+#: faces of three to six atoms cannot flip one corner through the cage).
+MAX_CAGE_RING = 6
 #: Embedding attempts when reading a ring skeleton's geometry (bounded: a cage
 #: that will not embed quickly is reported as approximate instead).
 EMBED_ATTEMPTS = 5
@@ -28,7 +38,15 @@ _UNSPECIFIED = Chem.StereoSpecified.Unspecified
 _CIS = Chem.BondStereo.STEREOCIS
 _TRANS = Chem.BondStereo.STEREOTRANS
 
-OUTCOMES = ("achiral", "one-enantiomer", "racemate", "diastereomers")
+#: Outcome of a product whose stereoisomers were not enumerated within its share of
+#: :data:`STEREO_WORK_BUDGET` (too many open stereo elements); its counts are an upper bound.
+NOT_COUNTED = "not counted"
+OUTCOMES = ("achiral", "one-enantiomer", "racemate", "diastereomers", NOT_COUNTED)
+
+#: Largest stereoisomer count stored as such: 2**53, exact alike in int64 columns, float64
+#: and JSON numbers. A larger count (53 or more stereo elements) is stored as this cap with
+#: ``approximate`` set: read it as "at least this many", never as a wrapped number.
+COUNT_CAP = 2**53
 
 
 @dataclass(frozen=True)
@@ -39,14 +57,18 @@ class StereoOutcome:
     """'achiral' (one stereoisomer, superimposable on its mirror image);
     'one-enantiomer' (one chiral stereoisomer, its configuration fixed by the input);
     'racemate' (a pair of enantiomers formed 1:1);
-    'diastereomers' (two or more stereoisomers that are not mirror images)."""
+    'diastereomers' (two or more stereoisomers that are not mirror images);
+    :data:`NOT_COUNTED` (too many open stereo elements to enumerate within the budget)."""
     n_stereoisomers: int
-    """Number of stereoisomers formed (enantiomers counted separately)."""
+    """Number of stereoisomers formed (enantiomers counted separately); at most :data:`COUNT_CAP`.
+    For :data:`NOT_COUNTED`, an upper bound: 2^(open elements), summed over the products."""
     n_diastereomers: int
-    """Number of stereoisomers up to mirror image (1 for a racemate)."""
+    """Number of stereoisomers up to mirror image (1 for a racemate); at most :data:`COUNT_CAP`.
+    For :data:`NOT_COUNTED`, the same upper bound as ``n_stereoisomers``."""
     approximate: bool = False
-    """True when the count is not fully checked: more than :data:`MAX_OPEN_ELEMENTS`
-    open elements, or a bridged ring system that could not be embedded in 3D."""
+    """True when the counts are not exact: :data:`NOT_COUNTED` (an upper bound), a
+    bridged ring system that could not be embedded in 3D (every combination counted,
+    so an upper bound), or a count above :data:`COUNT_CAP` (stored as the cap)."""
 
 
 def potential_stereo(mol: Chem.Mol) -> list:
@@ -104,14 +126,30 @@ def geometry_atoms(mol: Chem.Mol) -> frozenset[int]:
     bicyclo[2.2.2]octane, adamantane) couple their bridgehead configurations;
     fusion to a three- or four-membered ring forbids most trans fusions.
     Ordinary fused rings (decalin, hydrindane) exist both cis and trans.
+    A closed polyhedral cage (every atom of the ring system in three ring
+    bonds, no ring larger than :data:`MAX_CAGE_RING`: cubane, prismane,
+    dodecahedrane) is rigid as a whole, though its small faces only share
+    edges: every one of its atoms is pinned.
     """
-    rings = [set(r) for r in mol.GetRingInfo().AtomRings()]
+    ring_info = mol.GetRingInfo()
+    rings = [set(r) for r in ring_info.AtomRings()]
     out: set[int] = set()
     for i, a in enumerate(rings):
         for b in rings[i + 1 :]:
             shared = a & b
             if len(shared) >= 3 or (len(shared) == 2 and min(len(a), len(b)) <= 4):
                 out |= shared
+    for system in _ring_systems(mol) if len(rings) >= 3 else ():  # a cage has three rings at least (tetrahedrane)
+        members = [r for r in rings if r <= system]
+        # Three ring bonds at every atom need at least |system|/2 + 1 rings: most systems stop here.
+        if 2 * (len(members) - 1) < len(system) or max(len(r) for r in members) > MAX_CAGE_RING:
+            continue
+        ring_bonds = [
+            sum(ring_info.NumBondRings(b.GetIdx()) > 0 and b.GetOtherAtomIdx(i) in system for b in mol.GetAtomWithIdx(i).GetBonds())
+            for i in system
+        ]
+        if min(ring_bonds) >= 3:
+            out |= system
     return frozenset(out)
 
 
@@ -140,11 +178,16 @@ def _ring_coordinates(fragment_smiles: str) -> tuple[tuple[float, float, float],
     if mol is None:
         return None
     mol_h = Chem.AddHs(mol)
-    params = rdDistGeom.ETKDGv3()
-    params.randomSeed = 0xC0FFEE
-    params.maxIterations = EMBED_ATTEMPTS
-    params.useRandomCoords = True  # far more reliable for cages (cubanes fail without it)
-    if rdDistGeom.EmbedMolecule(mol_h, params) < 0:
+    # Random starting coordinates are far more reliable for cubanes; eigenvector
+    # starts for dodecahedranes, which random starts do not embed within a few tries.
+    for random_start, attempts in ((True, EMBED_ATTEMPTS), (False, 4 * EMBED_ATTEMPTS)):
+        params = rdDistGeom.ETKDGv3()
+        params.randomSeed = 0xC0FFEE
+        params.maxIterations = attempts
+        params.useRandomCoords = random_start
+        if rdDistGeom.EmbedMolecule(mol_h, params) >= 0:
+            break
+    else:
         return None
     conf = mol_h.GetConformer()
     return tuple(tuple(conf.GetAtomPosition(i)) for i in range(mol.GetNumAtoms()))
@@ -210,9 +253,11 @@ class Skeleton:
     with input stereo the whole substrate is, so the given configuration holds.
     """
 
-    def __init__(self, substrate: Chem.Mol, specified: bool) -> None:
+    def __init__(self, substrate: Chem.Mol, specified: bool, work_limit: int = STEREO_WORK_BUDGET) -> None:
         self._substrate = substrate
         self._specified = specified
+        self.work_limit = work_limit
+        """Stereo work (atom-isomers, :data:`STEREO_WORK_BUDGET`) each product of this substrate may use."""
         self.geometric = geometry_atoms(substrate)
         """Atoms of bridged or small fused ring systems (the same in every product)."""
         self._position: dict[int, Vec] | None = None
@@ -335,16 +380,27 @@ def _cumulated(atom: Chem.Atom) -> bool:
     return sum(b.GetBondType() == Chem.BondType.DOUBLE for b in atom.GetBonds()) > 1
 
 
-def _counted(n_open: int, chiral: bool, specified: bool, skeleton_forms: int = 1) -> StereoOutcome:
+def fixes_handedness(elements: list) -> bool:
+    """True when the input fixes a tetrahedral configuration, so products are not formed with their mirror images.
+
+    Only a fixed tetrahedral centre does: reflection leaves a double bond's E/Z
+    geometry as it is, so an input whose only set stereo is E/Z is its own
+    mirror image and gives every chiral product as a racemate.
+    """
+    return any(e.type == _TETRAHEDRAL and e.specified != _UNSPECIFIED for e in elements)
+
+
+def _counted(n_open: int, chiral: bool, handed: bool, skeleton_forms: int = 1) -> StereoOutcome:
     """Outcome for independent elements: skeleton forms × 2^k isomers, no enumeration.
 
     ``chiral``: the product has any tetrahedral centre (with independence, that
-    makes every isomer chiral). ``skeleton_forms`` is 2 when a bridged skeleton
-    occurs as both mirror forms, else 1.
+    makes every isomer chiral). ``handed``: :func:`fixes_handedness` of the
+    product's elements. ``skeleton_forms`` is 2 when a bridged skeleton occurs
+    as both mirror forms, else 1.
     """
     n = skeleton_forms * 2**n_open
-    if specified or not chiral:
-        # Nothing is mirrored: fixed input stereo stays fixed, and E/Z isomers are achiral.
+    if handed or not chiral:
+        # Nothing is mirrored: a fixed input centre stays fixed, and E/Z isomers are achiral.
         if n == 1:
             return StereoOutcome("one-enantiomer" if chiral else "achiral", 1, 1)
         return StereoOutcome("diastereomers", n, n)
@@ -505,8 +561,6 @@ def _orbit_outcome(
     atoms) of each element, all open.
     """
     k = len(elements)
-    if k > MAX_OPEN_ELEMENTS:
-        return None
     signed = _signed_actions(product, elements, symmetries)
     if signed is None:
         return None
@@ -519,12 +573,15 @@ def _orbit_outcome(
     if tags is None:
         return None  # cannot embed: enumeration marks the count approximate
     if not tags:
+        # Burnside's sum costs (distinct actions × elements), whatever k: exact for any chain length.
         fixed = sum(w * _fixed_count(a, none) for a, w in zip(actions, weights))
         mirrored = sum(w * _fixed_count(a, tetra) for a, w in zip(actions, weights))
         n, n_pairs = fixed // order, (fixed + mirrored) // (2 * order)
     else:
         pinned = {pos: int(tags[elements[pos][1]] == _CCW) for pos in geometric if elements[pos][1] in tags}
         free = [pos for pos in range(k) if pos not in pinned]
+        if 2 ** (len(free) + 1) * len(actions) > MAX_ORBIT_WORK:
+            return None  # checked before the walk: a cage pins its atoms, not a long open side chain
         base = sum(bit << pos for pos, bit in pinned.items())
         inverted = sum((1 - bit) << pos for pos, bit in pinned.items())
         feasible = set()
@@ -532,8 +589,6 @@ def _orbit_outcome(
             spread = sum(((choice >> j) & 1) << pos for j, pos in enumerate(free))
             feasible.add(base | spread)
             feasible.add(inverted | spread)
-        if len(feasible) * len(actions) > MAX_ORBIT_WORK:
-            return None
         mirror_mask = sum(bit << pos for pos, bit in enumerate(tetra))
         n = n_pairs = 0
         for config in feasible:
@@ -549,8 +604,63 @@ def _orbit_outcome(
     return StereoOutcome("racemate" if n_pairs == 1 else "diastereomers", n, n_pairs)
 
 
+def capped(outcome: StereoOutcome) -> StereoOutcome:
+    """``outcome`` with counts above :data:`COUNT_CAP` stored as the cap and marked approximate."""
+    if outcome.n_stereoisomers <= COUNT_CAP and outcome.n_diastereomers <= COUNT_CAP:
+        return outcome
+    return StereoOutcome(outcome.outcome, min(outcome.n_stereoisomers, COUNT_CAP),
+                         min(outcome.n_diastereomers, COUNT_CAP), True)
+
+
+def _number(n: int) -> str:
+    """A count as text: a large power of two as 2^k (bounds are sums of them), else in digits."""
+    if n >= 2**16 and n & (n - 1) == 0:
+        return f"2^{n.bit_length() - 1}"
+    return str(n)
+
+
+def count_text(outcome: str, n: int, approximate: bool | None = None) -> str:
+    """The count shown after a stereo outcome: '' for one stereoisomer, else '(n)', or the bound it is.
+
+    ``approximate``: the row's ``stereo_approx`` (None where a table does not carry
+    it: :data:`NOT_COUNTED` and a count at :data:`COUNT_CAP` still say what they are).
+    """
+    if outcome == NOT_COUNTED:
+        return f"(bound beyond {_number(COUNT_CAP)})" if n >= COUNT_CAP else f"(at most {_number(n)})"
+    if n >= COUNT_CAP:
+        return f"(at least {_number(COUNT_CAP)})"
+    if approximate:
+        return f"(at most {_number(n)})"  # a cage that would not embed: every combination counted
+    return "" if n <= 1 else f"({_number(n)})"
+
+
+def work_share(n_products: int) -> int:
+    """Each product's share of :data:`STEREO_WORK_BUDGET` when a structure has ``n_products`` with stereo worked out."""
+    return STEREO_WORK_BUDGET // max(1, n_products)
+
+
+def _not_counted(products: list[Chem.Mol], elements: dict[int, list]) -> StereoOutcome:
+    """The honest fallback: no count, but the bound every configuration of every product gives."""
+    bound = 0
+    for i, product in enumerate(products):
+        found = elements[i] if i in elements else potential_stereo(product)
+        bound += 2 ** sum(e.specified == _UNSPECIFIED for e in found)
+    return StereoOutcome(NOT_COUNTED, bound, bound, True)
+
+
 def stereo_outcome(
     products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
+) -> StereoOutcome:
+    """Stereoisomers formed when H is replaced at one or more equivalent carbons (counts capped: :func:`capped`).
+
+    Enumeration stops before it starts when it would cost more than
+    ``skeleton.work_limit``: the product is then :data:`NOT_COUNTED`.
+    """
+    return capped(_outcome(products, skeleton, symmetries))
+
+
+def _outcome(
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None
 ) -> StereoOutcome:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 
@@ -565,30 +675,34 @@ def stereo_outcome(
     not (an axially chiral spirane, a bridge carbon on a mirror plane), and
     much cheaper.
     """
-    isomers: dict[str, Chem.Mol] = {}
-    mirrors: dict[str, str] = {}
     approximate = False
-    for product in products:
-        elements = potential_stereo(product)
+    plans: list[_Plan] = []
+    seen: dict[int, list] = {}
+    single = len(products) == 1
+    for index, product in enumerate(products):
+        elements = seen[index] = potential_stereo(product)
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
-        if not elements and not isomers and len(products) == 1:
+        if not elements and single:
             return _ACHIRAL  # no stereo element at all: the common primary/achiral case
-        if len(products) == 1 and symmetries is not None and len(open_elements) == len(elements):
+        if single and symmetries is not None and len(open_elements) == len(elements):
             info = [(e.type, e.centeredOn, _controlling(e)) for e in elements]
             counted = _orbit_outcome(product, info, symmetries, skeleton)
             if counted is not None:
                 return counted
         if not open_elements:
-            isomers.setdefault(canonical(product), product)
+            plans.append(_Plan([product], [], False))
             continue
         geometric = [e.centeredOn for e in open_elements if e.type == _TETRAHEDRAL and e.centeredOn in skeleton.geometric]
-        specified = len(open_elements) < len(elements)
-        single = not isomers and len(products) == 1
+        handed = fixes_handedness(elements)
         if single and not geometric and _independent(product, elements, symmetries):
             # The common case, without enumeration.
             chiral = any(e.type == _TETRAHEDRAL for e in elements)
-            return _counted(len(open_elements), chiral, specified)
+            return _counted(len(open_elements), chiral, handed)
         variants = [product]
+        # With nothing specified, the mirror image of an enumerated isomer is the
+        # one with every tetrahedral choice flipped (and the other skeleton form),
+        # so mirror images come free instead of costing a canonicalisation each.
+        free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
         if geometric:
             tags = skeleton.tags(geometric)
             if tags is None:
@@ -596,33 +710,49 @@ def stereo_outcome(
             elif tags:
                 open_elements = [e for e in open_elements if e.type != _TETRAHEDRAL or e.centeredOn not in tags]
                 variants = [_with_tags(product, tags)]
-                if not specified:
-                    # Nothing in the input fixes the skeleton's handedness: both forms occur.
+                if not handed:
+                    # Nothing in the input fixes the skeleton's handedness (set E/Z cannot): both forms occur.
                     variants.append(_with_tags(product, {i: _invert(t) for i, t in tags.items()}))
                 if single and len(open_elements) + len(tags) == len([e for e in elements if e.specified == _UNSPECIFIED]) \
                         and _independent(product, elements):
                     # Every centre, bridgeheads included, is untouched by symmetry: count, don't enumerate.
                     chiral = any(e.type == _TETRAHEDRAL for e in elements)
-                    return _counted(len(open_elements), chiral, specified, skeleton_forms=len(variants))
-        if len(open_elements) > MAX_OPEN_ELEMENTS:
-            approximate = True
-            open_elements = open_elements[:MAX_OPEN_ELEMENTS]
-        tetrahedral = [e.type == _TETRAHEDRAL for e in open_elements]
-        # With nothing specified, the mirror image of an enumerated isomer is the
-        # one with every tetrahedral choice flipped (and the other skeleton form),
-        # so mirror images come free instead of costing a canonicalisation each.
-        free_mirrors = not any(e.specified != _UNSPECIFIED for e in elements)
+                    return _counted(len(open_elements), chiral, handed, skeleton_forms=len(variants))
+                # One skeleton form only: the flipped choices are not its mirror image.
+                free_mirrors = free_mirrors and len(variants) == 2
+        plans.append(_Plan(variants, open_elements, free_mirrors))
+    # Every product is priced before any isomer is built: over the share, nothing is spent.
+    cost = sum(len(plan.variants) * 2 ** len(plan.open_elements) * plan.variants[0].GetNumAtoms()
+               * (1 if plan.free_mirrors else 2) for plan in plans)
+    if cost > skeleton.work_limit:
+        return _not_counted(products, seen)
+    isomers: dict[str, Chem.Mol] = {}
+    mirrors: dict[str, str] = {}
+    for plan in plans:
+        tetrahedral = [e.type == _TETRAHEDRAL for e in plan.open_elements]
         by_key: dict[tuple, str] = {}
-        for v, variant in enumerate(variants):
-            for picks, iso in _assignments(variant, open_elements):
+        for v, variant in enumerate(plan.variants):
+            for picks, iso in _assignments(variant, plan.open_elements):
                 smi = canonical(iso)
                 isomers.setdefault(smi, iso)
                 by_key[(v, picks)] = smi
-        if free_mirrors and (len(variants) == 2 or not geometric or tags is None):
+        if plan.free_mirrors:
             for (v, picks), smi in by_key.items():
                 flipped = tuple(1 - p if t else p for p, t in zip(picks, tetrahedral))
-                mirrors[smi] = by_key[(len(variants) - 1 - v, flipped)]
+                mirrors[smi] = by_key[(len(plan.variants) - 1 - v, flipped)]
     return _classify(isomers, mirrors, approximate)
+
+
+@dataclass(frozen=True)
+class _Plan:
+    """How one product's stereoisomers are to be enumerated (worked out, and priced, before any is built)."""
+
+    variants: list[Chem.Mol]
+    """The product, or its two skeleton forms (one when the input fixes the handedness)."""
+    open_elements: list
+    """Stereo elements left to enumerate (those a skeleton pins are already set)."""
+    free_mirrors: bool
+    """Mirror images follow from the choices (nothing specified), with no canonical SMILES of their own."""
 
 
 def _with_tags(product: Chem.Mol, tags: dict[int, Chem.ChiralType]) -> Chem.Mol:

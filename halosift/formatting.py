@@ -9,6 +9,7 @@ from engine.reagents import EXPLAIN_REAGENTS, NBS
 from engine.explain import REAGENT_NOTES, Explanation
 from engine.polyhalogenation import PolyPlan
 from engine.safety import CAUTION
+from engine.stereo import count_text
 
 
 def _table(headers: Sequence[str], rows: Sequence[Sequence[str]], right: set[int]) -> list[str]:
@@ -40,7 +41,7 @@ def explanation_table(
                *(f"basis {r}" for r in reagents)]
     rows = []
     for p in result.products:
-        stereo = p.stereo if p.n_stereoisomers == 1 else f"{p.stereo} ({p.n_stereoisomers})"
+        stereo = " ".join(filter(None, [p.stereo, count_text(p.stereo, p.n_stereoisomers, p.stereo_approximate)]))
         # A norbornane 2-halide: its exo/endo split, per reagent shown (a rate-model property).
         splits = [f"{p.exo_endo(r).removeprefix('exo:endo ')} {r}" for r in reagents if p.exo_endo(r)]
         if splits:
@@ -124,7 +125,7 @@ def _nbs_lines(result: Explanation) -> list[str]:
         return out + ["  no allylic or benzylic C–H: NBS gives no substitution product"]
     rows = []
     for p in result.nbs:
-        stereo = p.stereo if p.n_stereoisomers == 1 else f"{p.stereo} ({p.n_stereoisomers})"
+        stereo = " ".join(filter(None, [p.stereo, count_text(p.stereo, p.n_stereoisomers, p.stereo_approximate)]))
         if p.e_and_z:
             stereo += ", E+Z"
         rows.append([p.smiles, p.terminus, p.site, str(p.alkene_substituents) if p.alkene_substituents >= 0 else "-",

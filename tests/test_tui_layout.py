@@ -74,7 +74,7 @@ async def test_header_lines_keep_whole_phrases_at_80_columns(tmp_path):
     app = HalosiftApp(str(write_library(tmp_path)))
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
-        app.filters = FilterSpec(verdicts=frozenset({"br-selective", "single"}), min_br2_pct=50.0, max_products=3,
+        app.filters = FilterSpec(verdicts=frozenset({"selective", "by-symmetry"}), min_br2_pct=50.0, max_products=3,
                                  site_types=frozenset({"benzylic-secondary", "tertiary"}), text="QX-00")
         app.sort = SortSpec("br2_major_pct", True)
         await settle(pilot)

@@ -32,12 +32,12 @@ def write_library(folder: Path) -> Path:
 
 
 async def change_everything(pilot) -> None:
-    """Mark two rows, sort by Br2 % (largest first), filter to br-selective, warm the bromination, show more columns."""
+    """Mark two rows, sort by Br2 % (largest first), filter to selective, warm the bromination, show more columns."""
     app = pilot.app
     await settle(pilot)
     await pilot.press("space", "space")
     app.sort = SortSpec("br2_major_pct", True)
-    app.filters = FilterSpec(verdicts=frozenset({"br-selective"}))
+    app.filters = FilterSpec(verdicts=frozenset({"selective"}))
     app.conditions = engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
     await pilot.press("o")
     await settle(pilot)
@@ -59,11 +59,11 @@ async def test_state_is_restored_on_reopening(tmp_path, session_dir):
         await settle(pilot)
         assert (again.marked == marked).all() and again.marked.sum() == 2
         assert again.sort == SortSpec("br2_major_pct", True)
-        assert again.filters == FilterSpec(verdicts=frozenset({"br-selective"}))
+        assert again.filters == FilterSpec(verdicts=frozenset({"selective"}))
         assert again.conditions == engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
         assert again.frame.attrs["conditions"] == again.conditions
         assert again.show_more_columns
-        assert set(again.frame.iloc[again.query_one("#table").rows]["verdict"]) == {"br-selective"}
+        assert set(again.frame.iloc[again.query_one("#table").rows]["verdict"]) == {"selective"}
         # N starts fresh (marks can be brought back with z).
         await pilot.press("N")
         await settle(pilot)
@@ -125,7 +125,7 @@ def test_encode_decode_round_trip_and_damage():
     marked = np.zeros(21, dtype=bool)
     marked[[0, 7, 20]] = True
     saved = sessions.Session(21, marked, SortSpec("\x00row", True),
-                             FilterSpec(verdicts=frozenset({"single"}), min_br2_pct=50.0, max_products=3, text="QX"),
+                             FilterSpec(verdicts=frozenset({"by-symmetry"}), min_br2_pct=50.0, max_products=3, text="QX"),
                              "shortlist", {"br2_temp_c": 60.0}, True, False)
     back = sessions.decode(sessions.encode(saved))
     assert (back.marked == marked).all() and back.sort == saved.sort and back.filters == saved.filters

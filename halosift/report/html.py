@@ -221,11 +221,11 @@ clean):</p>
 def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
     if products.empty:
         return "<p>No abstractable C–H: no monohalide forms by radical abstraction.</p>"
+    from engine.stereo import count_text
+
     body = []
     for letter, p in zip(letters, products.itertuples(index=False)):
-        stereo = str(p.stereo)
-        if int(p.n_stereoisomers) > 1:
-            stereo += f" ({int(p.n_stereoisomers)})"
+        stereo = " ".join(filter(None, [str(p.stereo), count_text(str(p.stereo), int(p.n_stereoisomers))]))
         body.append(
             f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{_e(p.product)}</td><td>{_e(p.site)}</td>"
             f'<td class="num">{int(p.h_count)}</td><td>{_e(stereo)}</td>'

@@ -46,7 +46,7 @@ class ProductRecord:
     relative_rate: dict[str, float]
     """Per reagent: rate per H relative to a primary C–H at the same temperature."""
     stereo: str
-    """achiral / one-enantiomer / racemate / diastereomers."""
+    """achiral / one-enantiomer / racemate / diastereomers / not counted (over the stereo budget; counts are then a bound)."""
     n_stereoisomers: int
     """Stereoisomers of this product formed."""
     n_diastereomers: int

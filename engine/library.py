@@ -44,7 +44,8 @@ RESULT_DOCS: dict[str, str] = {
     "br2_major_pct": "its share of the monobromides, percent",
     "stereo": (
         "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "
-        "configuration fixed by the input) / racemate / diastereomers"
+        "configuration fixed by the input) / racemate / diastereomers / not counted (too many open stereo "
+        "elements for the per-structure budget; the count shown is an upper bound)"
     ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (

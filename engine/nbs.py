@@ -54,7 +54,7 @@ ALLYLIC_SCHEMA = pa.schema(
         pa.field("terminus", pa.string(), metadata={"doc": "radical carbon / allylic shift (comma-joined when both)"}),
         pa.field("alkene_subst", pa.int32(), metadata={"doc": "carbon substituents on the product's C=C (-1: none)"}),
         pa.field("share", pa.float64(), metadata={"doc": "fraction of this group's radical that gives this product"}),
-        pa.field("stereo", pa.string(), metadata={"doc": "achiral / one-enantiomer / racemate / diastereomers"}),
+        pa.field("stereo", pa.string(), metadata={"doc": "achiral / one-enantiomer / racemate / diastereomers / not counted (see the site table)"}),
         pa.field("n_stereoisomers", pa.int64(), metadata={"doc": "stereoisomers of this product formed (E/Z counted); capped as in the site table"}),
         pa.field("n_diastereomers", pa.int64(), metadata={"doc": "of those, distinct up to mirror image"}),
         pa.field("stereo_approx", pa.bool_(), metadata={"doc": "counts not exact (see the site table's stereo_approx)"}),

@@ -30,6 +30,7 @@ STEREO_DOCS: dict[str, str] = {
     "one-enantiomer": "one chiral stereoisomer (existing stereo carried through)",
     "racemate": "a new stereocentre, formed as both enantiomers",
     "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
+    "not counted": "too many open stereo elements to count within the per-structure budget; the number is an upper bound",
 }
 
 #: What the confidence column means (also quoted by the detail screen).

@@ -152,7 +152,9 @@ class Library:
         rows = np.arange(len(codes))
         first = np.full(len(uniques), len(codes), dtype=np.int64)
         np.minimum.at(first, codes[valid], rows[valid])
-        first_of_row = np.where(valid, first[np.maximum(codes, 0)], -1)
+        # Indexed only where valid: with no ok row there are no uniques to look up at all.
+        first_of_row = np.full(len(codes), -1, dtype=np.int64)
+        first_of_row[valid] = first[codes[valid]]
         dup = pd.array(first_of_row + 1, dtype="Int64")
         dup[~valid | (first_of_row == rows)] = pd.NA
         return dup

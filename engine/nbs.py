@@ -22,6 +22,7 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine import parameters as P
+from engine.frames import cast_checked
 from engine.shares import percent_of_structure
 from engine.site_classes import SITE_CODE
 from engine.sites import substitute
@@ -65,7 +66,8 @@ def empty_frame() -> pd.DataFrame:
 def frame_from_rows(rows: list[tuple]) -> pd.DataFrame:
     """Rows (in :data:`ALLYLIC_SCHEMA` order, ``site_code`` included) as a typed frame."""
     df = pd.DataFrame(rows, columns=ALLYLIC_SCHEMA.names)
-    return df.astype(
+    return cast_checked(
+        df,
         {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8", "h_count": "int32",
          "terminus": object, "alkene_subst": "int32", "share": "float64", "stereo": object,
          "n_stereoisomers": "int32", "n_diastereomers": "int32", "stereo_approx": "bool", "ez_open": "bool"}

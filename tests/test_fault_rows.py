@@ -161,3 +161,93 @@ async def test_all_rejected_library_in_the_app(kind: str, tmp_path: Path) -> Non
         await settle(pilot, app)
         assert app.view == "rejected"
         assert len(app.query_one(LibraryTable).rows) == n_rows
+
+
+# ----------------------------------------------------------------- one row cannot fail its batch
+
+def _comb_library(folder: Path) -> tuple[Path, int]:
+    """2,001 rows: small alkanes, with the comb in the middle; returns the path and the comb's row."""
+    rows = [(f"WS-{i:04d}", "C" * (1 + i % 9) + "C(C)C" * (i % 3)) for i in range(2000)]
+    rows.insert(1000, ("WS-COMB", COMB))
+    path = folder / "wrenfield_comb.csv"
+    pd.DataFrame(rows, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path, 1000
+
+
+def _comb_isolated(result: pd.DataFrame, comb_row: int) -> None:
+    assert len(result) == 2001
+    comb = result.iloc[comb_row]
+    assert comb["id"] == "WS-COMB"
+    # Either a result or a rejection with its reason: never the whole batch's failure.
+    assert comb["status"] == "ok" or (comb["status"] == "rejected" and comb["reason"] and "\n" not in comb["reason"])
+    others = result.drop(index=result.index[comb_row])
+    assert (others["status"] == "ok").all()
+    assert others["verdict"].isin(engine.VERDICTS).all()
+
+
+def test_comb_row_inside_a_batch_through_screen(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    source, comb_row = _comb_library(tmp_path)
+    out = tmp_path / "result.parquet"
+    code = main(["screen", str(source), "-o", str(out), "--no-cache", "--workers", "1", "--quiet"])
+    assert code == 0, capsys.readouterr().err
+    _comb_isolated(pd.read_parquet(out), comb_row)
+
+
+def test_comb_row_inside_a_batch_through_the_api(tmp_path: Path) -> None:
+    source, comb_row = _comb_library(tmp_path)
+    _comb_isolated(engine.screen(source, use_cache=False, workers=1), comb_row)
+
+
+def test_comb_row_in_a_worker_batch() -> None:
+    """The worker processes' unit of work turns the comb into typed record batches too."""
+    from engine.parallel import perceive_batch
+
+    batch = pa.record_batch([pa.array(["CCC", COMB, "CC(C)C"], type=pa.string())], names=["smiles"])
+    for detail in (False, True):
+        structures, sites, _ = perceive_batch(batch, detail=detail)
+        status = structures.column("status").to_pylist()
+        assert len(status) == 3 and status[0] == status[2] == "ok"
+        assert set(sites.column("struct").to_pylist()) >= {0, 2}
+
+
+def _sabotaged(real: Callable, how: str) -> Callable:
+    """``_perceive_one`` that misbehaves for ethane only, in the way ``how`` names."""
+
+    def one(smiles: object, max_heavy: int, detail: bool):
+        srow, rows, nbs = real(smiles, max_heavy, detail)
+        if smiles != "CC":
+            return srow, rows, nbs
+        if how == "raises":
+            raise RuntimeError("an unforeseen corner\nwith a second line")
+        if how == "count-beyond-int64":
+            return srow, [(*r[:6], 10**30, *r[7:]) for r in rows], nbs
+        if how == "count-beyond-int32":
+            return srow, [(*r[:6], 2**40, *r[7:]) for r in rows], nbs
+        if how == "product-not-text":
+            return srow, [(12345, *r[1:]) for r in rows], nbs
+        if how == "bad-structure-row":
+            return (*srow[:4], 2**40, *srow[5:]), rows, nbs
+        raise AssertionError(how)
+
+    return one
+
+
+@pytest.mark.parametrize(
+    "how", ["raises", "count-beyond-int64", "count-beyond-int32", "product-not-text", "bad-structure-row"]
+)
+def test_any_misbehaving_row_is_rejected_alone(how: str, monkeypatch: pytest.MonkeyPatch) -> None:
+    import engine.perception as perception
+
+    monkeypatch.setattr(perception, "_perceive_one", _sabotaged(perception._perceive_one, how))
+    smiles = ["CCC", "CC(C)C", "CC", "C1CCCCC1", "CCO", "CC", "Cc1ccccc1"] * 3
+    frame = pd.DataFrame({"id": [f"WS-{i:03d}" for i in range(len(smiles))], "smiles": smiles})
+    result = engine.screen(frame, use_cache=False, workers=1)
+    assert len(result) == len(smiles)
+    ethane = result["smiles"] == "CC"
+    assert (result.loc[ethane, "status"] == "rejected").all()
+    reasons = result.loc[ethane, "reason"]
+    assert reasons.str.len().gt(0).all() and not reasons.str.contains("\n").any()
+    ok = ~ethane & (result["smiles"] != "CCO")
+    assert (result.loc[ok, "status"] == "ok").all()
+    structures = perception.perceive(smiles, detail=False).structures
+    assert set(structures.loc[structures.index[[s == "CC" for s in smiles]], "reason_code"]) == {"internal"}

@@ -251,3 +251,94 @@ def test_any_misbehaving_row_is_rejected_alone(how: str, monkeypatch: pytest.Mon
     assert (result.loc[ok, "status"] == "ok").all()
     structures = perception.perceive(smiles, detail=False).structures
     assert set(structures.loc[structures.index[[s == "CC" for s in smiles]], "reason_code"]) == {"internal"}
+
+
+# ----------------------------------------------------------------- a result screened again
+
+def _supplier_library(folder: Path) -> Path:
+    """An invented list with a supplier's own 'status' column, a rejected row and a duplicate."""
+    path = folder / "wrenfield.csv"
+    pd.DataFrame(
+        {
+            "id": ["WS-0101", "WS-0102", "WS-0103", "WS-0104", "WS-0105"],
+            "smiles": ["CC(C)C", "CCO", "CCC(C)CC", "C(C)(C)C", "C1CCCCC1"],
+            "status": ["in stock", "sold out", "in stock", "in stock", "backorder"],
+            "pack_g": [5, 10, 25, 5, 100],
+        }
+    ).to_csv(path, index=False)
+    return path
+
+
+def _read(path: Path) -> pd.DataFrame:
+    if path.suffix == ".parquet":
+        return pd.read_parquet(path)
+    if path.suffix == ".sdf":
+        return engine.load_library(path, use_cache=False, workers=1).evaluate()
+    return pd.read_csv(path, sep="\t" if path.suffix == ".tsv" else ",")
+
+
+@pytest.mark.parametrize("suffix", [".parquet", ".csv", ".tsv", ".sdf"])
+def test_a_result_screened_again_and_again_keeps_its_columns(
+    suffix: str, tmp_path: Path, capsys: pytest.CaptureFixture
+) -> None:
+    source = _supplier_library(tmp_path)
+    outputs = [tmp_path / f"round{i}{suffix}" for i in range(1, 4)]
+    for before, after in zip([source, *outputs], outputs):
+        code = main(["screen", str(before), "-o", str(after), "--no-cache", "--workers", "1", "--quiet"])
+        assert code == 0, capsys.readouterr().err
+    rounds = [_read(p) for p in outputs]
+    first = rounds[0]
+    assert list(first.columns[:4]) == ["id", "smiles", "input_status", "pack_g"]
+    assert list(first.columns[4:]) == list(engine.RESULT_COLUMNS)
+    assert first["input_status"].tolist()[:2] == ["in stock", "sold out"]
+    for later in rounds[1:]:
+        assert sorted(later.columns) == sorted(first.columns)
+        assert len(set(later.columns)) == len(later.columns)
+        pd.testing.assert_frame_equal(later[first.columns], first, check_dtype=suffix != ".sdf")
+    assert first.loc[1, "status"] == "rejected" and "oxygen" in first.loc[1, "reason"]
+
+
+def test_rescreening_a_result_frame_through_the_api_replaces_its_results() -> None:
+    frame = pd.DataFrame({"id": ["WS-1", "WS-2"], "smiles": ["CCC", "CC"]})
+    first = engine.screen(frame, use_cache=False, workers=1)
+    library = engine.load_library(first, use_cache=False, workers=1)
+    assert set(library.replaced) == set(engine.RESULT_COLUMNS) - {"smiles"}
+    again = library.evaluate()
+    assert list(again.columns) == list(first.columns)
+    pd.testing.assert_frame_equal(again, first)
+
+
+def test_input_columns_named_like_results_stay_distinct() -> None:
+    # Not an earlier result (no reason/duplicate_of columns): both are the supplier's own.
+    frame = pd.DataFrame({"smiles": ["CCC"], "status": ["in stock"], "input_status": ["checked"]})
+    result = engine.screen(frame, use_cache=False, workers=1)
+    assert len(set(result.columns)) == len(result.columns)
+    assert result["input_status"].tolist() == ["checked"]
+    assert result["input_status_2"].tolist() == ["in stock"]
+    assert result["status"].tolist() == ["ok"]
+
+
+def test_parquet_with_repeated_column_names_is_one_line(tmp_path: Path) -> None:
+    path = tmp_path / "twice.parquet"
+    pq.write_table(pa.Table.from_arrays([pa.array(["CC"]), pa.array(["CCC"])], names=["smiles", "smiles"]), path)
+    proc = subprocess.run(
+        [sys.executable, "-m", "halosift", "screen", str(path), "-o", str(tmp_path / "out.csv"), "--no-cache"],
+        capture_output=True, text=True, timeout=120, cwd=REPO,
+    )
+    assert proc.returncode == 2
+    assert proc.stderr.strip().count("\n") == 0 and "repeated column names: smiles" in proc.stderr
+
+
+@async_test
+async def test_the_app_shows_a_suppliers_status_column_under_its_result_name(tmp_path: Path) -> None:
+    from tui.app import HalosiftApp
+    from tui.table import LibraryTable
+
+    app = HalosiftApp(str(_supplier_library(tmp_path)), use_cache=False)
+    async with app.run_test(size=(160, 40)) as pilot:
+        await settle(pilot, app)
+        await pilot.press("c")
+        await settle(pilot, app)
+        keys = [c.key for c in app.query_one(LibraryTable).columns]
+        assert "input_status" in keys and "status" not in keys
+        assert app.frame["input_status"].tolist()[1] == "sold out"

@@ -383,7 +383,7 @@ class HalosiftApp(App[int]):
             if sort.column == ROW_KEY:
                 order = np.arange(len(frame))[::-1] if sort.descending else None
             elif sort.column is not None and sort.column in frame:
-                token = "input" if sort.column in library.input.columns else conditions
+                token = "input" if sort.column in library.result_names().values() else conditions
                 categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
                 ranks = {v: i for i, v in enumerate(categories)} if categories else None
                 order = self._orders.order(frame, token, sort.column, sort.descending, ranks)
@@ -442,9 +442,10 @@ class HalosiftApp(App[int]):
             if self.show_more_columns:
                 cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
         if self.show_input_columns:
-            for name in lib.input.columns:
+            # By their names in the frame: an input "status" is shown as input_status, not as the result's.
+            for name, key in lib.result_names().items():
                 if name not in (lib.id_column, lib.smiles_column):
-                    cols.append(Column(name, str(name), self._text_width(frame, name, str(name), 24)))
+                    cols.append(Column(key, str(key), self._text_width(frame, key, str(key), 24)))
         cols.append(Column(ROW_KEY, "Row", max(5, len(str(len(frame))) + 2), "row"))
         return cols
 

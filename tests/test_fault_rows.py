@@ -342,3 +342,114 @@ async def test_the_app_shows_a_suppliers_status_column_under_its_result_name(tmp
         keys = [c.key for c in app.query_one(LibraryTable).columns]
         assert "input_status" in keys and "status" not in keys
         assert app.frame["input_status"].tolist()[1] == "sold out"
+
+
+# ----------------------------------------------------------------- two runs making the same new file
+
+def _result_frame(tag: str) -> pd.DataFrame:
+    frame = pd.DataFrame({"id": [f"WS-{tag}-1", f"WS-{tag}-2"], "smiles": ["CCC", "CC(C)C"]})
+    return engine.screen(frame, use_cache=False, workers=1)
+
+
+WRITERS = {".csv": "write_delimited", ".tsv.gz": "write_delimited", ".parquet": "write_parquet", ".sdf": "write_sdf"}
+
+
+@pytest.mark.parametrize("links", [True, False], ids=["hard-links", "no-hard-links"])
+@pytest.mark.parametrize("suffix", list(WRITERS))
+def test_two_writers_of_one_new_file_one_is_refused(
+    suffix: str, links: bool, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    import engine.io.writers as writers
+
+    if not links:  # a file system without hard links (some network and FAT mounts)
+
+        def no_link(*args, **kwargs):
+            raise PermissionError(1, "Operation not permitted")
+
+        monkeypatch.setattr(os, "link", no_link)
+
+    target = tmp_path / f"shortlist{suffix}"
+    real = getattr(writers, WRITERS[suffix])
+    both_past_the_check = threading.Barrier(2, timeout=30)
+
+    def held(*args, **kwargs):
+        both_past_the_check.wait()  # each run has checked that the file is absent, and is now writing it
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(writers, WRITERS[suffix], held)
+    outcomes: dict[str, object] = {}
+
+    def run(tag: str) -> None:
+        try:
+            outcomes[tag] = writers.write_table(_result_frame(tag), target, metadata={"run": tag})
+        except engine.LibraryError as exc:
+            outcomes[tag] = exc
+
+    threads = [threading.Thread(target=run, args=(tag,)) for tag in ("A", "B")]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join(60)
+    refused = [tag for tag, v in outcomes.items() if isinstance(v, engine.LibraryError)]
+    assert len(outcomes) == 2 and len(refused) == 1, outcomes
+    message = str(outcomes[refused[0]])
+    assert message == f"{target} exists; use --force to replace it"
+    winner = "B" if refused == ["A"] else "A"
+    if suffix != ".sdf":
+        written = pd.read_parquet(target) if suffix == ".parquet" else pd.read_csv(target, sep=None, engine="python")
+        assert written["id"].tolist() == [f"WS-{winner}-1", f"WS-{winner}-2"]
+    if suffix in (".csv", ".tsv.gz"):
+        assert engine.io.about_path(target).read_text(encoding="utf-8") == f"run: {winner}\n"
+    assert not [p for p in tmp_path.iterdir() if p.name.endswith(".halosift-tmp")]
+
+
+def _another_writer_meanwhile(monkeypatch: pytest.MonkeyPatch, target: Path) -> None:
+    """Make the target appear (another run finishing first) while this run writes its file."""
+    import engine.io.writers as writers
+
+    real = writers.write_parquet
+
+    def racing(frame, temp, meta):
+        target.write_text("the other run's file\n", encoding="utf-8")
+        return real(frame, temp, meta)
+
+    monkeypatch.setattr(writers, "write_parquet", racing)
+
+
+def test_screen_refuses_an_output_made_meanwhile(tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+                                                 capsys: pytest.CaptureFixture) -> None:
+    source = _supplier_library(tmp_path)
+    target = tmp_path / "result.parquet"
+    _another_writer_meanwhile(monkeypatch, target)
+    code = main(["screen", str(source), "-o", str(target), "--no-cache", "--workers", "1"])
+    err = capsys.readouterr().err
+    assert code == 2
+    assert err.strip().splitlines()[-1] == f"halosift: {target} exists; use --force to replace it"
+    assert "wrote" not in err
+    assert target.read_text(encoding="utf-8") == "the other run's file\n"
+
+
+def test_screen_with_force_replaces_an_output_made_meanwhile(tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+                                                             capsys: pytest.CaptureFixture) -> None:
+    source = _supplier_library(tmp_path)
+    target = tmp_path / "result.parquet"
+    _another_writer_meanwhile(monkeypatch, target)
+    assert main(["screen", str(source), "-o", str(target), "--no-cache", "--workers", "1", "--force"]) == 0
+    assert len(pd.read_parquet(target)) == 5
+
+
+def test_report_refuses_an_output_made_meanwhile(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    from halosift.report import write_report
+
+    target = tmp_path / "report.html"
+    real = Path.write_text
+
+    def racing(self: Path, text: str, *args, **kwargs):
+        if self.name.endswith(".halosift-tmp"):
+            real(target, "the other run's report\n")
+        return real(self, text, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "write_text", racing)
+    with pytest.raises(engine.LibraryError, match="exists; use --force"):
+        write_report("<!doctype html><p>mine</p>", target)
+    assert target.read_text() == "the other run's report\n"

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pandas as pd
 
-from .atomic import atomic_path
+from .atomic import atomic_path, exists_error
 from .delimited import write_delimited
 from .errors import LibraryError
 from .formats import OUTPUT_FORMATS, split_format
@@ -45,6 +45,18 @@ def _about_text(metadata: Mapping[str, str]) -> str:
     return "".join(out)
 
 
+def _remove_if_same(path: Path, made: os.stat_result | None) -> None:
+    """Remove ``path`` if it is still the file this run created (``made``: its stat), else leave it."""
+    if made is None:
+        return
+    try:
+        now = path.stat()
+        if (now.st_dev, now.st_ino) == (made.st_dev, made.st_ino):
+            path.unlink()
+    except OSError:
+        pass
+
+
 def guard_output(
     path: str | os.PathLike[str],
     *,
@@ -63,7 +75,7 @@ def guard_output(
     if path.is_dir():
         raise LibraryError(f"cannot write {path}: it is a directory")
     if (path.exists() or path.is_symlink()) and not force:
-        raise LibraryError(f"{path} exists; use --force to replace it")
+        raise exists_error(path)
     if not path.parent.is_dir():
         raise LibraryError(f"cannot write {path}: folder {path.parent} does not exist")
     return path
@@ -99,18 +111,28 @@ def write_table(
     path = check_output(path, force=force, protect=protect)
     fmt, gzipped = split_format(path, OUTPUT_FORMATS)
     meta = {str(k): str(v) for k, v in metadata.items()}
+    # Without force the file is created only if still absent when it is finished: of two runs
+    # making the same new file, the second is refused rather than silently replacing the first.
+    exclusive = not force
     try:
         if fmt == "parquet":
-            with atomic_path(path) as temp:
+            with atomic_path(path, exclusive=exclusive) as temp:
                 write_parquet(frame, temp, meta)
         elif fmt == "sdf":
-            with atomic_path(path) as temp:
+            with atomic_path(path, exclusive=exclusive) as temp:
                 write_sdf(frame, temp, gzipped, smiles_column, meta)
         else:
-            # The data file is replaced first (inner block exits first), then its sidecar.
-            with atomic_path(about_path(path)) as about_temp, atomic_path(path) as temp:
-                write_delimited(frame, temp, fmt, gzipped)
-                about_temp.write_text(_about_text(meta), encoding="utf-8")
+            # The data file is placed first (inner block exits first), then its sidecar.
+            made: os.stat_result | None = None
+            try:
+                with atomic_path(about_path(path), exclusive=exclusive) as about_temp:
+                    with atomic_path(path, exclusive=exclusive) as temp:
+                        write_delimited(frame, temp, fmt, gzipped)
+                        about_temp.write_text(_about_text(meta), encoding="utf-8")
+                    made = path.stat() if exclusive else None
+            except LibraryError:
+                _remove_if_same(path, made)  # a sidecar that appeared meanwhile: take back the data file made
+                raise
     except OSError as exc:
         raise LibraryError(f"could not write {path}: {exc.strerror or exc}") from None
     return path

@@ -7,6 +7,7 @@ concerns screening, the app.
 
 from __future__ import annotations
 
+import csv
 import gzip
 import os
 import subprocess
@@ -399,7 +400,7 @@ def test_two_writers_of_one_new_file_one_is_refused(
         written = pd.read_parquet(target) if suffix == ".parquet" else pd.read_csv(target, sep=None, engine="python")
         assert written["id"].tolist() == [f"WS-{winner}-1", f"WS-{winner}-2"]
     if suffix in (".csv", ".tsv.gz"):
-        assert engine.io.about_path(target).read_text(encoding="utf-8") == f"run: {winner}\n"
+        assert engine.io.about_path(target).read_text(encoding="utf-8").startswith(f"run: {winner}\n")
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".halosift-tmp")]
 
 
@@ -453,3 +454,60 @@ def test_report_refuses_an_output_made_meanwhile(tmp_path: Path, monkeypatch: py
     with pytest.raises(engine.LibraryError, match="exists; use --force"):
         write_report("<!doctype html><p>mine</p>", target)
     assert target.read_text() == "the other run's report\n"
+
+
+# ----------------------------------------------------------------- spreadsheet formulas in text outputs
+
+FORMULA_IDS = ['=HYPERLINK("http://example.invalid","WS-1")', "+WS-2", "-WS-3", "@WS-4", "\tWS-5", "\r=WS-6", "WS-7"]
+
+
+def _formula_library(folder: Path) -> Path:
+    path = folder / "wrenfield_formulas.csv"
+    columns = {
+        "id": FORMULA_IDS,
+        "smiles": ["CCC", "CC(C)C", "C1CCCCC1", "CCCC", "CC", "CCC(C)C", "CCO"],
+        "price_eur": ["-3.5", "12.0", "-0.25", "4.0", "0.001", "-7.0", "2.0"],  # a numeric column: stays numbers
+        "note": ["-3.5", "+4", "=1+1", "-", "ok", "@home", "-2e3"],  # text, with numbers among it
+        "=total": [str(i) for i in range(1, 8)],
+    }
+    with open(path, "w", encoding="utf-8", newline="") as handle:
+        # CRLF line ends, so the csv writer quotes the cell holding a bare CR.
+        writer = csv.writer(handle, lineterminator="\r\n")
+        writer.writerow(columns)
+        writer.writerows(zip(*columns.values()))
+    return path
+
+
+def _defused(value: str) -> str:
+    return "'" + value
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".tsv", ".csv.gz"])
+def test_text_outputs_defuse_formula_cells(suffix: str, tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    source = _formula_library(tmp_path)
+    out = tmp_path / f"result{suffix}"
+    assert main(["screen", str(source), "-o", str(out), "--no-cache", "--workers", "1", "--quiet"]) == 0
+    written = pd.read_csv(out, sep="\t" if ".tsv" in suffix else ",", dtype=str, keep_default_na=False)
+    assert list(written.columns[:5]) == ["id", "smiles", "price_eur", "note", "'=total"]
+    assert written["id"].tolist() == [_defused(v) for v in FORMULA_IDS[:6]] + ["WS-7"]
+    assert written["price_eur"].tolist() == ["-3.5", "12.0", "-0.25", "4.0", "0.001", "-7.0", "2.0"]
+    assert written["note"].tolist() == ["-3.5", "+4", "'=1+1", "'-", "ok", "'@home", "-2e3"]
+    assert written["smiles"].tolist()[:3] == ["CCC", "CC(C)C", "C1CCCCC1"]
+    assert "formula" in engine.io.about_path(out).read_text(encoding="utf-8")
+    # The bare CR in one ID is quoted, so the result reads back with its seven rows.
+    again = engine.load_library(out, use_cache=False, workers=1)
+    assert len(again) == 7 and (again.read_errors == "").all()
+
+
+@pytest.mark.parametrize("suffix", [".parquet", ".sdf"])
+def test_parquet_and_sdf_keep_raw_values(suffix: str, tmp_path: Path) -> None:
+    source = _formula_library(tmp_path)
+    out = tmp_path / f"result{suffix}"
+    assert main(["screen", str(source), "-o", str(out), "--no-cache", "--workers", "1", "--quiet"]) == 0
+    if suffix == ".parquet":
+        written = pd.read_parquet(out)
+        assert written["id"].tolist() == FORMULA_IDS and "=total" in written.columns
+    else:
+        text = out.read_text(encoding="utf-8")
+        assert ">  <note>\n=1+1\n" in text and ">  <id>\n@WS-4\n" in text
+        assert "'=" not in text and "'@" not in text

@@ -9,7 +9,7 @@ from pathlib import Path
 import pandas as pd
 
 from .atomic import atomic_path, exists_error
-from .delimited import write_delimited
+from .delimited import FORMULA_RULE, write_delimited
 from .errors import LibraryError
 from .formats import OUTPUT_FORMATS, split_format
 from .parquet import write_parquet
@@ -102,8 +102,9 @@ def write_table(
 ) -> Path:
     """Write frame to path atomically, in the format its extension names; return the path.
 
-    csv/tsv (optionally .gz): header row then data, plus metadata in the sidecar
-    <path>.about.txt. parquet: dtypes kept, metadata in the schema metadata. sdf
+    csv/tsv (optionally .gz): header row then data, text that a spreadsheet would run as a
+    formula prefixed with ' (delimited.FORMULA_RULE, stated in the sidecar too), plus
+    metadata in the sidecar <path>.about.txt. parquet: dtypes kept, metadata in the schema metadata. sdf
     (optionally .gz): one record per row, the molecule from smiles_column, metadata
     as halosift_<key> properties on every record. Refuses to replace a path in
     protect, or an existing file unless force. Problems raise LibraryError.
@@ -122,6 +123,8 @@ def write_table(
             with atomic_path(path, exclusive=exclusive) as temp:
                 write_sdf(frame, temp, gzipped, smiles_column, meta)
         else:
+            # The sidecar says which cells were defused (see delimited.FORMULA_RULE).
+            meta = {**meta, "formula_cells": FORMULA_RULE}
             # The data file is placed first (inner block exits first), then its sidecar.
             made: os.stat_result | None = None
             try:

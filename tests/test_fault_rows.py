@@ -511,3 +511,86 @@ def test_parquet_and_sdf_keep_raw_values(suffix: str, tmp_path: Path) -> None:
         text = out.read_text(encoding="utf-8")
         assert ">  <note>\n=1+1\n" in text and ">  <id>\n@WS-4\n" in text
         assert "'=" not in text and "'@" not in text
+
+
+# ----------------------------------------------------------------- inputs that are not regular files
+
+@pytest.fixture
+def fifo(tmp_path: Path):
+    """A named pipe called like a library; nothing writes to it, so reading it would wait for ever.
+
+    A watchdog opens its write end after a few seconds and closes it again, so a reader
+    stuck on it gets end-of-file: a test of a broken guard fails instead of hanging.
+    """
+    if not hasattr(os, "mkfifo"):
+        pytest.skip("no named pipes on this system")
+    path = tmp_path / "wrenfield_pipe.csv"
+    os.mkfifo(path)
+    done = threading.Event()
+
+    def watchdog() -> None:
+        if done.wait(5):
+            return
+        while not done.is_set():
+            try:
+                os.close(os.open(path, os.O_WRONLY | os.O_NONBLOCK))
+            except OSError:  # no reader yet
+                pass
+            done.wait(0.05)
+
+    thread = threading.Thread(target=watchdog, daemon=True)
+    thread.start()
+    yield path
+    done.set()
+    thread.join(5)
+
+
+def _halosift(*args: str, timeout: float = 30) -> subprocess.CompletedProcess:
+    return subprocess.run([sys.executable, "-m", "halosift", *args], capture_output=True, text=True,
+                          timeout=timeout, cwd=REPO)
+
+
+@pytest.mark.parametrize("command", ["screen", "report", "browse"])
+def test_a_named_pipe_as_input_is_one_line(command: str, fifo: Path, tmp_path: Path) -> None:
+    args = [command, str(fifo)]
+    if command != "browse":
+        args += ["-o", str(tmp_path / ("out.html" if command == "report" else "out.csv")), "--no-cache"]
+    proc = _halosift(*args)
+    assert proc.returncode == 2
+    assert proc.stderr == f"halosift: {fifo} is a named pipe (FIFO), not a regular file; save the library to a file first\n"
+
+
+def test_a_named_pipe_as_id_list_is_one_line(fifo: Path, tmp_path: Path) -> None:
+    source = _supplier_library(tmp_path)
+    proc = _halosift("report", str(source), "-o", str(tmp_path / "r.html"), "--ids", str(fifo), "--no-cache")
+    assert proc.returncode == 2
+    assert proc.stderr.strip() == f"halosift: ID list {fifo} is a named pipe (FIFO), not a regular file"
+
+
+def test_a_device_as_input_is_one_line(tmp_path: Path) -> None:
+    if not Path("/dev/zero").exists():
+        pytest.skip("no /dev/zero")
+    link = tmp_path / "endless.csv"  # a name with a library's extension, pointing at a device that never ends
+    link.symlink_to("/dev/zero")
+    proc = _halosift("screen", str(link), "-o", str(tmp_path / "out.csv"), "--no-cache")
+    assert proc.returncode == 2
+    assert proc.stderr.strip().endswith("is a device, not a regular file; save the library to a file first")
+
+
+def test_a_named_pipe_through_the_api(fifo: Path) -> None:
+    with pytest.raises(engine.LibraryError, match=r"named pipe \(FIFO\), not a regular file"):
+        engine.screen(fifo, use_cache=False, workers=1)
+
+
+@async_test
+async def test_a_named_pipe_in_the_app(fifo: Path) -> None:
+    from tui.app import HalosiftApp
+
+    app = HalosiftApp(str(fifo), use_cache=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot, app)
+        assert app.phase == "stopped"
+        content = app.query_one("#counts").content
+        message = getattr(content, "plain", content)
+        assert message == f"Cannot open {fifo.name}: {fifo} is a named pipe (FIFO), not a regular file; " \
+            "save the library to a file first"

@@ -68,6 +68,8 @@ RESULT_DOCS: dict[str, str] = {
 }
 
 
+#: The column type pandas infers for text results (``str`` from pandas 3 on, else object).
+_TEXT_DTYPE = pd.Series(["text"]).dtype
 #: Columns every screen writes: an input holding all of them is an earlier screen's result.
 RESULT_MARKERS: tuple[str, ...] = ("status", "reason", "duplicate_of")
 
@@ -185,6 +187,8 @@ class Library:
         added["canonical_smiles"] = np.where(status == "ok", canonical, "")
         added["duplicate_of"] = self._duplicates(added["canonical_smiles"], status)
         result = pd.DataFrame(added, index=self.input.index)
+        if not len(result):  # nothing to infer text from: give the columns the type rows would give them
+            result = result.astype({c: _TEXT_DTYPE for c in result.columns if result[c].dtype == object})
         inputs = self.input.set_axis(output_names(list(self.input.columns)), axis=1)
         out = pd.concat([inputs, result[list(RESULT_COLUMNS)]], axis=1)
         out.attrs["conditions"] = conditions

@@ -144,6 +144,10 @@ def test_all_rejected_and_empty_frames_through_the_api(frame: pd.DataFrame) -> N
     result = engine.screen(frame, use_cache=False, workers=1)
     _all_rejected(result, len(frame))
     assert list(result.columns) == ["smiles", *engine.RESULT_COLUMNS]
+    # The result columns have the types a screen with ok rows gives them, so tables can be joined.
+    usual = engine.screen(pd.DataFrame({"smiles": ["CCC", "CC"]}), use_cache=False, workers=1)
+    columns = list(engine.RESULT_COLUMNS)
+    pd.testing.assert_series_equal(result[columns].dtypes, usual[columns].dtypes)
 
 
 @pytest.mark.parametrize("kind", ["csv-heteroatoms", "csv-latin1", "parquet-all-null", "sdf-no-m-end"])

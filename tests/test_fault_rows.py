@@ -598,3 +598,20 @@ async def test_a_named_pipe_in_the_app(fifo: Path) -> None:
         message = getattr(content, "plain", content)
         assert message == f"Cannot open {fifo.name}: {fifo} is a named pipe (FIFO), not a regular file; " \
             "save the library to a file first"
+
+
+@async_test
+async def test_the_app_shows_an_input_smiles_column_named_like_a_result(tmp_path: Path) -> None:
+    from tui.app import HalosiftApp
+    from tui.table import LibraryTable
+
+    frame = pd.DataFrame({"id": ["WS-0201", "WS-0202"], "canonical_smiles": ["CCO", "CC(C)C"]})
+    app = HalosiftApp(frame, use_cache=False)
+    async with app.run_test(size=(160, 40)) as pilot:
+        await settle(pilot, app)
+        await pilot.press("v", "v")  # the rejected rows, whose result canonical_smiles is empty
+        await settle(pilot, app)
+        table = app.query_one(LibraryTable)
+        smiles = next(c for c in table.columns if c.label == "SMILES")
+        assert smiles.key == "input_canonical_smiles"
+        assert app.frame.iloc[table.rows][smiles.key].tolist() == ["CCO"]

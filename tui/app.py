@@ -338,7 +338,9 @@ class HalosiftApp(App[int]):
         lib = self.library
         if lib is None:
             return [], []
-        return ([lib.id_column] if lib.id_column is not None else []), [lib.smiles_column, "canonical_smiles"]
+        names = lib.result_names()  # an input "canonical_smiles" is input_canonical_smiles in the frame
+        ids = [names[lib.id_column]] if lib.id_column is not None else []
+        return ids, [names[lib.smiles_column], "canonical_smiles"]
 
     def _request_view(self) -> None:
         """Recompute (in a worker) the rows to show; the newest request wins."""
@@ -424,9 +426,11 @@ class HalosiftApp(App[int]):
         lib = self.library
         assert lib is not None
         cols: list[Column] = []
+        names = lib.result_names()  # the input's own ID and SMILES, even when named like a result column
         if lib.id_column is not None:
-            cols.append(Column(lib.id_column, "ID", self._text_width(frame, lib.id_column, "ID", 18)))
-        cols.append(Column(lib.smiles_column, "SMILES", 20))
+            ident = names[lib.id_column]
+            cols.append(Column(ident, "ID", self._text_width(frame, ident, "ID", 18)))
+        cols.append(Column(names[lib.smiles_column], "SMILES", 20))
         if self.view == "rejected":
             cols.append(Column("reason", "Reason", 56))
         else:

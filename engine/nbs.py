@@ -22,8 +22,7 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine import parameters as P
-from engine.frames import cast_checked
-from engine.shares import percent_of_structure
+from engine.shares import cast_checked, percent_of_structure
 from engine.site_classes import SITE_CODE
 from engine.sites import substitute
 from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome

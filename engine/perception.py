@@ -15,10 +15,10 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine.contenders import contenders
-from engine.frames import cast_checked
 from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.shares import cast_checked
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
 from engine.special_sites import small_bridgeheads, structure_flags

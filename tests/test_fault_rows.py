@@ -615,3 +615,14 @@ async def test_the_app_shows_an_input_smiles_column_named_like_a_result(tmp_path
         smiles = next(c for c in table.columns if c.label == "SMILES")
         assert smiles.key == "input_canonical_smiles"
         assert app.frame.iloc[table.rows][smiles.key].tolist() == ["CCO"]
+
+
+@pytest.mark.parametrize("force", [False, True])
+def test_a_named_pipe_as_output_is_never_replaced(force: bool, fifo: Path, tmp_path: Path) -> None:
+    target = fifo.with_name("result_pipe.csv")
+    os.mkfifo(target)
+    source = _supplier_library(tmp_path)
+    proc = _halosift("screen", str(source), "-o", str(target), "--no-cache", *(["--force"] if force else []))
+    assert proc.returncode == 2
+    assert proc.stderr == f"halosift: cannot write {target}: it is a named pipe (FIFO), not a regular file\n"
+    assert target.is_fifo()

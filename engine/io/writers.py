@@ -13,6 +13,7 @@ from .delimited import FORMULA_RULE, write_delimited
 from .errors import LibraryError
 from .formats import OUTPUT_FORMATS, split_format
 from .parquet import write_parquet
+from .readers import not_regular
 from .sdf import write_sdf
 
 ABOUT_SUFFIX = ".about.txt"
@@ -74,6 +75,13 @@ def guard_output(
                 raise LibraryError(f"refusing to write over the input file {guarded}")
     if path.is_dir():
         raise LibraryError(f"cannot write {path}: it is a directory")
+    try:
+        kind = not_regular(path.stat().st_mode)
+    except OSError:  # absent (or unreachable): nothing there to be replaced
+        kind = None
+    if kind is not None:
+        # Not even with force: replacing a pipe or device node would swap it for a plain file.
+        raise LibraryError(f"cannot write {path}: it is {kind}, not a regular file")
     if (path.exists() or path.is_symlink()) and not force:
         raise exists_error(path)
     if not path.parent.is_dir():

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import threading
-from collections.abc import Callable
+from collections.abc import Callable, Hashable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -104,9 +104,49 @@ RESULT_DOCS: dict[str, str] = {
 }
 
 
+#: The column type pandas infers for text results (``str`` from pandas 3 on, else object).
+_TEXT_DTYPE = pd.Series(["text"]).dtype
+#: Columns every screen writes: an input holding all of them is an earlier screen's result.
+RESULT_MARKERS: tuple[str, ...] = ("status", "reason", "duplicate_of")
+
+
 def output_name(column: str) -> str:
     """Name of an input column in results: prefixed with ``input_`` when it clashes with a result column."""
     return f"input_{column}" if column in RESULT_COLUMNS else column
+
+
+def output_names(columns: Sequence[Hashable]) -> list[Hashable]:
+    """Names of input columns in results, all distinct: :func:`output_name`, numbered when that is taken too.
+
+    An input already holding ``input_status`` and ``status`` gives ``input_status`` and ``input_status_2``.
+    """
+    taken = set(RESULT_COLUMNS) | {c for c in columns if c not in RESULT_COLUMNS}
+    names: list[Hashable] = []
+    for column in columns:
+        if column not in RESULT_COLUMNS:
+            names.append(column)
+            continue
+        name, n = output_name(str(column)), 1
+        while name in taken:
+            n += 1
+            name = f"{output_name(str(column))}_{n}"
+        taken.add(name)
+        names.append(name)
+    return names
+
+
+def earlier_results(columns: Sequence[Hashable], keep: Sequence[Hashable] = ()) -> list[Hashable]:
+    """Input columns that hold an earlier screen's results, to be replaced by this screen's.
+
+    Only when the input holds every one of :data:`RESULT_MARKERS` (as every screen's output
+    does): then each column named like a result column, except those in ``keep`` (the SMILES
+    and ID columns, which stay as input). Otherwise none: a supplier's own ``status`` column
+    is kept, as ``input_status``. Columns an earlier version wrote and this one does not
+    know stay as input columns.
+    """
+    if not set(RESULT_MARKERS) <= set(columns):
+        return []
+    return [c for c in columns if c in RESULT_COLUMNS and c not in keep]
 
 
 @dataclass(frozen=True)
@@ -114,7 +154,8 @@ class Library:
     """An input table and the perception of its structures."""
 
     input: pd.DataFrame
-    """The input columns, one row per input row, in input order."""
+    """The input columns, one row per input row, in input order (an earlier screen's result columns
+    left out: see :func:`earlier_results`)."""
     smiles_column: str
     """Name of the input column holding SMILES."""
     id_column: str | None
@@ -127,6 +168,8 @@ class Library:
     """Per input row, '' or why the row could not be read (object array)."""
     source: Path | None = None
     """The file read, when the library came from a file."""
+    replaced: tuple[Hashable, ...] = ()
+    """Columns of the input that held an earlier screen's results, replaced by this screen's."""
     _summaries: dict = field(default_factory=dict, repr=False, compare=False)
     """Memo of per-structure summaries by conditions (small: the app revisits few)."""
     _parts: dict = field(default_factory=dict, repr=False, compare=False)
@@ -136,6 +179,10 @@ class Library:
 
     def __len__(self) -> int:
         return len(self.input)
+
+    def result_names(self) -> dict[Hashable, Hashable]:
+        """Each input column's name in :meth:`evaluate`'s frame (see :func:`output_names`)."""
+        return dict(zip(self.input.columns, output_names(list(self.input.columns))))
 
     def _summary(self, conditions: Conditions) -> pd.DataFrame:
         # A screen's perception names only the products that can win under valid conditions.
@@ -176,7 +223,10 @@ class Library:
         added["canonical_smiles"] = np.where(status == "ok", canonical, "")
         added["duplicate_of"] = self._duplicates(added["canonical_smiles"], status)
         result = pd.DataFrame(added, index=self.input.index)
-        out = pd.concat([self.input.rename(columns=output_name), result[list(RESULT_COLUMNS)]], axis=1)
+        if not len(result):  # nothing to infer text from: give the columns the type rows would give them
+            result = result.astype({c: _TEXT_DTYPE for c in result.columns if result[c].dtype == object})
+        inputs = self.input.set_axis(output_names(list(self.input.columns)), axis=1)
+        out = pd.concat([inputs, result[list(RESULT_COLUMNS)]], axis=1)
         out.attrs["conditions"] = conditions
         return out
 
@@ -188,7 +238,9 @@ class Library:
         rows = np.arange(len(codes))
         first = np.full(len(uniques), len(codes), dtype=np.int64)
         np.minimum.at(first, codes[valid], rows[valid])
-        first_of_row = np.where(valid, first[np.maximum(codes, 0)], -1)
+        # Indexed only where valid: with no ok row there are no uniques to look up at all.
+        first_of_row = np.full(len(codes), -1, dtype=np.int64)
+        first_of_row[valid] = first[codes[valid]]
         dup = pd.array(first_of_row + 1, dtype="Int64")
         dup[~valid | (first_of_row == rows)] = pd.NA
         return dup
@@ -325,6 +377,11 @@ def load_library(
         errors.extend(batch.row_errors)
     frame = pd.concat(frames, ignore_index=True) if frames else pd.DataFrame(columns=list(src.columns))
     frame = src.settle_types(frame)  # text formats: numeric columns become numbers, judged on the whole file
+    # A screen's result screened again: its old result columns give way to the new ones, so the
+    # column set stays the same however often a result is re-screened.
+    replaced = earlier_results(list(frame.columns), keep=[c for c in (src.smiles_column, src.id_column) if c is not None])
+    if replaced:
+        frame = frame.drop(columns=replaced)
     # Perceive each distinct string once; unreadable rows map to an empty string (rejected as empty).
     texts = pd.Series([s if s is not None else "" for s in smiles], dtype=object)
     codes, uniques = pd.factorize(texts)
@@ -347,6 +404,7 @@ def load_library(
         perception=perception,
         read_errors=np.array(errors, dtype=object),
         source=path,
+        replaced=tuple(replaced),
     )
 
 

@@ -26,7 +26,7 @@ import pyarrow as pa
 from rdkit import Chem
 
 from engine import parameters as P
-from engine.shares import percent_of_structure
+from engine.shares import cast_checked, percent_of_structure
 from engine.site_classes import SITE_CODE
 from engine.sites import substitute
 from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
@@ -71,7 +71,8 @@ def empty_frame() -> pd.DataFrame:
 def frame_from_rows(rows: list[tuple]) -> pd.DataFrame:
     """Rows (in :data:`ALLYLIC_SCHEMA` order, ``site_code`` included) as a typed frame."""
     df = pd.DataFrame(rows, columns=ALLYLIC_SCHEMA.names)
-    return df.astype(
+    return cast_checked(
+        df,
         {"struct": "int32", "product": object, "product_id": "int32", "site": object, "site_code": "int8",
          "radical_code": "int8", "h_count": "int32",
          "terminus": object, "alkene_subst": "int32", "share": "float64", "stereo": object,

@@ -18,6 +18,7 @@ from engine.contenders import contenders
 from engine.molecules import parse_hydrocarbon, quiet_rdkit
 from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from engine.shares import cast_checked
 from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
 from engine.sites import has_specified_stereo, site_groups, substitute
 from engine.special_sites import small_bridgeheads, structure_flags
@@ -144,22 +145,64 @@ def perceive(
     stereo.
     :meth:`engine.library.Library.products` fills in one structure on demand.
     """
-    struct_rows: list[tuple] = []
-    site_rows: list[tuple] = []
-    nbs_rows: list[tuple] = []
+    outcomes: list[_Outcome] = []
     with quiet_rdkit():
-        for i, smi in enumerate(smiles):
+        for smi in smiles:
             try:
-                srow, rows, nbs = _perceive_one(smi, max_heavy_atoms, detail)
+                outcomes.append(_perceive_one(smi, max_heavy_atoms, detail))
             except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
-                srow, rows, nbs = ("rejected", "internal", f"perception failed: {type(exc).__name__}", "", 0, 0, ""), [], []
-            struct_rows.append(srow)
-            site_rows.extend((i, *r) for r in rows)
-            nbs_rows.extend((i, *r) for r in nbs)
-    structures = pd.DataFrame(struct_rows, columns=STRUCTURE_SCHEMA.names)
-    structures = structures.astype({"abstractable_h": "int32", "n_heavy": "int32"})
-    sites = _site_frame(site_rows)
-    return Perception(structures, sites, frame_from_rows(nbs_rows))
+                outcomes.append(_internal("perception failed", exc))
+    try:
+        return _tables(outcomes)
+    except Exception:
+        # Some row's values do not fit the typed tables (say a count beyond int32): that row
+        # alone is rejected, so no single structure can fail the batch it came in.
+        for i, exc in _unfit(outcomes, 0, len(outcomes)):
+            outcomes[i] = _internal("its results do not fit the result tables", exc)
+        return _tables(outcomes)
+
+
+#: What :func:`_perceive_one` gives per structure: its structures row, site rows and NBS rows.
+_Outcome = tuple[tuple, list[tuple], list[tuple]]
+
+
+def _internal(what: str, exc: BaseException) -> _Outcome:
+    """A structure rejected with code ``internal`` and a one-line reason naming the exception."""
+    detail = " ".join(str(exc).split())
+    detail = f"{type(exc).__name__}: {detail}" if detail else type(exc).__name__
+    if len(detail) > 100:
+        detail = detail[:99] + "…"
+    return ("rejected", "internal", f"{what} ({detail})", "", 0, 0, ""), [], []
+
+
+def _tables(outcomes: Sequence[_Outcome]) -> Perception:
+    """The typed tables of per-structure outcomes (``struct`` numbered by position).
+
+    Raises when a value does not fit its column, in pandas or in the Arrow schema the
+    worker processes and the cache use.
+    """
+    structures = pd.DataFrame([o[0] for o in outcomes], columns=STRUCTURE_SCHEMA.names)
+    structures = cast_checked(structures, {"abstractable_h": "int32", "n_heavy": "int32"})
+    sites = _site_frame([(i, *r) for i, o in enumerate(outcomes) for r in o[1]])
+    allylic = frame_from_rows([(i, *r) for i, o in enumerate(outcomes) for r in o[2]])
+    for frame, schema in ((structures, STRUCTURE_SCHEMA), (sites, SITE_SCHEMA), (allylic, ALLYLIC_SCHEMA)):
+        pa.Table.from_pandas(frame, schema=schema, preserve_index=False)
+    return Perception(structures, sites, allylic)
+
+
+def _unfit(outcomes: Sequence[_Outcome], lo: int, hi: int) -> list[tuple[int, BaseException]]:
+    """Positions in lo..hi whose outcome alone cannot be made into tables, with the error (by halving)."""
+    try:
+        _tables(outcomes[lo:hi])
+        return []
+    except Exception as exc:
+        if hi - lo == 1:
+            return [(lo, exc)]
+        mid = (lo + hi) // 2
+        found = _unfit(outcomes, lo, mid) + _unfit(outcomes, mid, hi)
+        if not found:
+            raise  # only a mix of rows fails, which no single rejection can cure
+        return found
 
 
 def _site_frame(rows: list[tuple]) -> pd.DataFrame:
@@ -168,7 +211,8 @@ def _site_frame(rows: list[tuple]) -> pd.DataFrame:
     df = pd.DataFrame(rows, columns=cols)
     df["site_code"] = df["site"].map(SITE_CODE).astype("int8")
     df["bde"] = _BDE_BY_CODE[df["site_code"].to_numpy()] if len(df) else pd.Series(dtype="float64")
-    df = df.astype(
+    df = cast_checked(
+        df,
         {"struct": "int32", "h_count": "int32", "n_carbons": "int32", "atom": "int32",
          "n_stereoisomers": "int64", "n_diastereomers": "int64", "stereo_approx": "bool"}
     )

@@ -13,8 +13,9 @@ import pandas as pd
 class ProgressLine:
     """Rows done, rows/s and time left, redrawn in place on a terminal."""
 
-    def __init__(self, *, enabled: bool = True, stream: TextIO = sys.stderr, min_interval: float = 0.2) -> None:
-        self.stream = stream
+    def __init__(self, *, enabled: bool = True, stream: TextIO | None = None, min_interval: float = 0.2) -> None:
+        # The stderr of the moment (default None), not the one at import: a caller may have redirected it since.
+        self.stream = stream = sys.stderr if stream is None else stream
         self.min_interval = min_interval
         self.start = time.monotonic()
         self._last = 0.0

@@ -14,6 +14,7 @@ from rdkit import Chem
 
 import engine.io.writers as writers
 from engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
+from engine.io.delimited import FORMULA_RULE
 
 META = {"tool": "halosift", "caution": "Invented caution line one.\nInvented caution line two."}
 
@@ -73,6 +74,7 @@ def test_csv_is_plain_with_sidecar(tmp_path: Path) -> None:
     about = (tmp_path / "short.csv.about.txt").read_text(encoding="utf-8")
     assert about == (
         "tool: halosift\ncaution: Invented caution line one.\n  Invented caution line two.\n"
+        f"formula_cells: {FORMULA_RULE}\n"
     )
     assert about_path(out) == tmp_path / "short.csv.about.txt"
 

@@ -511,7 +511,9 @@ class HalosiftApp(App[int]):
         lib = self.library
         if lib is None:
             return [], []
-        return ([lib.id_column] if lib.id_column is not None else []), [lib.smiles_column, "canonical_smiles"]
+        names = lib.result_names()  # an input "canonical_smiles" is input_canonical_smiles in the frame
+        ids = [names[lib.id_column]] if lib.id_column is not None else []
+        return ids, [names[lib.smiles_column], "canonical_smiles"]
 
     def _request_view(self) -> None:
         """Recompute (in a worker) the rows to show; the newest request wins."""
@@ -569,7 +571,7 @@ class HalosiftApp(App[int]):
             return np.arange(len(frame))[::-1] if sort.descending else None
         if sort.column is None or sort.column not in frame:
             return None
-        token = "input" if sort.column in library.input.columns else conditions
+        token = "input" if sort.column in library.result_names().values() else conditions
         categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
         ranks = {v: i for i, v in enumerate(categories)} if categories else None
         return self._orders.order(frame, token, sort.column, sort.descending, ranks)
@@ -604,9 +606,11 @@ class HalosiftApp(App[int]):
         lib = self.library
         assert lib is not None
         cols: list[Column] = []
+        names = lib.result_names()  # the input's own ID and SMILES, even when named like a result column
         if lib.id_column is not None:
-            cols.append(Column(lib.id_column, "ID", self._text_width(frame, lib.id_column, "ID", 18)))
-        cols.append(Column(lib.smiles_column, "SMILES", 20))
+            ident = names[lib.id_column]
+            cols.append(Column(ident, "ID", self._text_width(frame, ident, "ID", 18)))
+        cols.append(Column(names[lib.smiles_column], "SMILES", 20))
         if self.view == "rejected":
             cols.append(Column("reason", "Reason", 56))
         else:
@@ -625,9 +629,10 @@ class HalosiftApp(App[int]):
                 cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
                 cols += REASON_COLUMNS
         if self.show_input_columns:
-            for name in lib.input.columns:
+            # By their names in the frame: an input "status" is shown as input_status, not as the result's.
+            for name, key in lib.result_names().items():
                 if name not in (lib.id_column, lib.smiles_column):
-                    cols.append(Column(name, str(name), self._text_width(frame, name, str(name), 24)))
+                    cols.append(Column(key, str(key), self._text_width(frame, key, str(key), 24)))
         cols.append(Column(ROW_KEY, "Row", max(5, len(str(len(frame))) + 2), "row"))
         return cols
 

@@ -228,19 +228,20 @@ class DetailScreen(Screen):
     def _render_head(self) -> None:
         record = self.frame.iloc[self.row]
         lib = self.library
-        ident = str(record[lib.id_column]) if lib.id_column is not None else f"row {self.row + 1}"
+        names = lib.result_names()  # the input's own ID and SMILES, even when named like a result column
+        ident = str(record[names[lib.id_column]]) if lib.id_column is not None else f"row {self.row + 1}"
         head = Text()
         head.append(ident, style="bold")
         head.append(f"  · row {self.row + 1} · {self.position + 1} of {len(self.rows):,} in view")
         head.append("  · ✓ on shortlist" if self.marked else "  · not marked")
         if self.working:
             head.append("  · working…", style="bold")
-        head.append(f"\nSMILES {record[lib.smiles_column]}")
+        head.append(f"\nSMILES {record[names[lib.smiles_column]]}")
         if record["status"] != "ok":
             head.append("\nRejected: ", style="bold")
             head.append(str(record["reason"]))
         else:
-            if record["canonical_smiles"] != record[lib.smiles_column]:
+            if record["canonical_smiles"] != record[names[lib.smiles_column]]:
                 head.append(f"  (canonical {record['canonical_smiles']})")
             verdict = record["verdict"]
             head.append("\nVerdict: ", style="bold")

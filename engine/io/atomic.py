@@ -50,23 +50,57 @@ def _flush_to_disk(temp: Path) -> None:
         os.close(fd)
 
 
+def exists_error(path: Path) -> LibraryError:
+    """The one-line refusal to replace an existing file without --force."""
+    return LibraryError(f"{path} exists; use --force to replace it")
+
+
+def _create_exclusively(temp: Path, path: Path) -> None:
+    """Give the finished temp file the name ``path`` only if no file has that name yet.
+
+    A hard link is made or refused in one step, so of two writers creating the same new
+    file exactly one succeeds; the other gets :func:`exists_error`. Where the file system
+    has no hard links, an O_EXCL placeholder claims the name, and the temp file then
+    replaces it.
+    """
+    try:
+        os.link(temp, path)
+    except FileExistsError:
+        raise exists_error(path) from None
+    except OSError:
+        try:
+            os.close(os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
+        except FileExistsError:
+            raise exists_error(path) from None
+        os.replace(temp, path)
+        return
+    temp.unlink()
+
+
 @contextmanager
-def atomic_path(path: str | os.PathLike[str]) -> Iterator[Path]:
+def atomic_path(path: str | os.PathLike[str], *, exclusive: bool = False) -> Iterator[Path]:
     """Yield a temporary path in path's folder; on success it replaces path, on failure it is removed.
 
-    The target keeps its permission bits when it already exists. Creation and
-    replacement problems raise LibraryError; exceptions from the block propagate
-    after the temporary file is deleted.
+    ``exclusive``: create path only if it does not exist yet, even when another process
+    makes it meanwhile (LibraryError "exists"); otherwise replace it atomically. The
+    target keeps its permission bits when it already exists. Creation and replacement
+    problems raise LibraryError; exceptions from the block propagate after the
+    temporary file is deleted.
     """
     path = Path(path)
     temp = _create_temp(path)
     try:
         yield temp
-        if path.exists():
+        if not exclusive and path.exists():
             os.chmod(temp, stat.S_IMODE(path.stat().st_mode))
         _flush_to_disk(temp)
         try:
-            os.replace(temp, path)
+            if exclusive:
+                _create_exclusively(temp, path)
+            else:
+                os.replace(temp, path)
+        except LibraryError:
+            raise
         except IsADirectoryError:
             raise LibraryError(f"cannot write {path}: it is a directory") from None
         except OSError as exc:

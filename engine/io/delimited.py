@@ -3,12 +3,14 @@
 from __future__ import annotations
 
 import csv
+import re
 from collections.abc import Iterator
 from pathlib import Path
 from typing import TextIO
 
 import pandas as pd
 import pyarrow as pa
+from pandas.api.types import is_object_dtype, is_string_dtype
 
 from .columns import choose, unique_names
 from .errors import LibraryError
@@ -252,7 +254,80 @@ def _batch(start: int, rows: list[list[str]], errors: list[str], names: list[str
     return RawBatch(start_row=start, frame=frame, smiles=smiles, row_errors=errors)
 
 
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+"""A text cell beginning with one of these would be run as a formula by a spreadsheet."""
+
+FORMULA_RULE = (
+    "text cells (and column names) beginning with =, +, -, @, a tab or a carriage return are written with a "
+    "leading ' so that spreadsheets show them as text rather than run them as formulas; plain numbers such as "
+    "-3.5 are written unchanged; Parquet and SDF outputs keep the raw values"
+)
+"""The rule, as the .about.txt sidecar of a CSV/TSV output states it."""
+
+# A plain decimal number: a spreadsheet reads it as a number, never as a formula.
+_PLAIN_NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
+_FORMULA_START = "^[" + re.escape("".join(FORMULA_STARTS)) + "]"
+
+
+def _defused_text(value: object) -> object:
+    """One cell under :data:`FORMULA_RULE` (anything but text is left alone)."""
+    if isinstance(value, str) and value.startswith(FORMULA_STARTS) and not re.fullmatch(_PLAIN_NUMBER, value):
+        return "'" + value
+    return value
+
+
+def defuse_formulas(frame: pd.DataFrame) -> pd.DataFrame:
+    """``frame`` with text cells and column names that a spreadsheet would run as formulas prefixed with '.
+
+    Only text columns are looked at, and only cells that start with one of
+    :data:`FORMULA_STARTS` and are not plain numbers change; numeric columns are
+    written as numbers. The frame is copied only when something changes.
+    """
+    out = frame
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if not (is_object_dtype(column.dtype) or is_string_dtype(column.dtype)):
+            continue
+        try:
+            risky = column.str.contains(_FORMULA_START, regex=True, na=False)
+        except AttributeError:  # an object column without text (.str refuses it): cell by cell
+            risky = column.map(lambda v: _defused_text(v) is not v).astype(bool)
+        if not risky.any():
+            continue
+        if out is frame:
+            out = frame.copy()
+        fixed = column[risky].map(_defused_text)
+        out.iloc[:, position] = column.astype(object).where(~risky, fixed)
+    names = [_defused_text(c) for c in frame.columns]
+    if names != list(frame.columns):
+        out = out.set_axis(names, axis=1) if out is not frame else frame.set_axis(names, axis=1)
+    return out
+
+
 def write_delimited(frame: pd.DataFrame, target: Path, fmt: str, gzipped: bool) -> None:
-    """Write frame as a plain CSV/TSV (header row, then data; UTF-8; "" for missing)."""
+    """Write frame as a plain CSV/TSV (header row, then data; UTF-8; "" for missing), formulas defused.
+
+    See :data:`FORMULA_RULE`: a supplier's ID such as ``=HYPERLINK(...)`` must not run when
+    a chemist opens the result in a spreadsheet.
+    """
+    frame = defuse_formulas(frame)
+    # The csv writer quotes a field only for the characters of its line end, and a bare CR
+    # left unquoted would split the row when read back: when a cell holds one, lines end in CRLF.
+    ending = "\r\n" if _holds_cr(frame) else "\n"
     with open_output_text(target, gzipped) as out:
-        frame.to_csv(out, sep="\t" if fmt == "tsv" else ",", index=False, lineterminator="\n")
+        frame.to_csv(out, sep="\t" if fmt == "tsv" else ",", index=False, lineterminator=ending)
+
+
+def _holds_cr(frame: pd.DataFrame) -> bool:
+    """True when a text cell or a column name contains a carriage return."""
+    if any("\r" in str(c) for c in frame.columns):
+        return True
+    for position in range(frame.shape[1]):
+        column = frame.iloc[:, position]
+        if is_object_dtype(column.dtype) or is_string_dtype(column.dtype):
+            try:
+                if column.str.contains("\r", regex=False, na=False).any():
+                    return True
+            except AttributeError:  # no text in this object column
+                continue
+    return False

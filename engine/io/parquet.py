@@ -54,6 +54,10 @@ def open_parquet(path: Path, smiles_column: str | None, id_column: str | None) -
         except pa.ArrowException as exc:
             raise LibraryError(f"{path} is not a readable Parquet file ({_reason(exc)})") from None
     columns = _data_columns(schema)
+    repeated = sorted({c for c in columns if columns.count(c) > 1})
+    if repeated:
+        # Arrow can store two columns of one name, but neither can be picked out by it.
+        raise LibraryError(f"{path} has repeated column names: {', '.join(repeated)}")
     smiles, ident = choose(columns, str(path), smiles_column, id_column)
     kind = schema.field(smiles).type
     if not _is_text(kind):

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import os
+import stat
 from collections.abc import Iterator
 from pathlib import Path
 
@@ -19,15 +20,38 @@ from .smi import open_smi
 from .source import LibrarySource, RawBatch, structure_cells
 
 
+def not_regular(mode: int) -> str | None:
+    """What a file of this st_mode is when it is not a regular file ("a named pipe (FIFO)" ...), else None.
+
+    A library or ID list is read twice over (checked, then streamed) and must end: a pipe
+    would block until something writes to it, and a device may never end.
+    """
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISDIR(mode):
+        return "a directory"
+    if stat.S_ISFIFO(mode):
+        return "a named pipe (FIFO)"
+    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
+        return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
+    return "not a regular file"
+
+
 def _check_readable(path: Path) -> None:
     """Raise LibraryError unless path is an existing, readable regular file."""
     try:
-        if not path.exists():
-            raise LibraryError(f"no such file: {path}")
-        if path.is_dir():
+        # stat first: opening a named pipe would wait, silently, for a writer.
+        kind = not_regular(path.stat().st_mode)
+        if kind == "a directory":
             raise LibraryError(f"{path} is a directory")
+        if kind is not None:
+            raise LibraryError(f"{path} is {kind}, not a regular file; save the library to a file first")
         with open(path, "rb"):
             pass
+    except FileNotFoundError:
+        raise LibraryError(f"no such file: {path}") from None
     except PermissionError:
         raise LibraryError(f"permission denied: {path}") from None
     except OSError as exc:

@@ -29,6 +29,12 @@ UNREADABLE = "unreadable molblock"
 METADATA_PREFIX = "halosift_"
 """Prefix of the properties that carry write_table() metadata on every record."""
 
+RESULT_MARK = METADATA_PREFIX + "halosift_version"
+"""Property that marks a screen's SDF result (write_table() with halosift's provenance)."""
+
+RESULT_STRUCTURE_COLUMN = "canonical_smiles"
+"""In a screen's SDF result, the column the molblock is read back into: the one it was written from."""
+
 MAX_RECORD_LINES = 100_000
 """A record longer than this without a $$$$ line is cut off there (bounds memory on garbage input)."""
 
@@ -118,8 +124,8 @@ class _Columns:
     or with an earlier column is renamed with an "sdf_" prefix (and a number if needed).
     """
 
-    def __init__(self) -> None:
-        self.names: list[str] = [STRUCTURE_COLUMN, TITLE_COLUMN]
+    def __init__(self, generated: tuple[str, ...] = (STRUCTURE_COLUMN, TITLE_COLUMN)) -> None:
+        self.names: list[str] = list(generated)
         self._lower = {n.lower() for n in self.names}
         self._of: dict[str, str] = {}
 
@@ -147,7 +153,6 @@ def open_sdf(
 ) -> LibrarySource:
     """Check an SD file (first record readable as SDF text) and return its source."""
     encoding = probe_encoding(path, gzipped)
-    columns = _Columns()
     with read_errors(path), open_text(path, gzipped, encoding, newline=None) as text:
         first = next(_records(MarkedLines(text)), None)
     if first is None:
@@ -156,13 +161,16 @@ def open_sdf(
     _, _, props, has_end = _split(record)
     if not has_end and not ended:
         raise LibraryError(f"{path} does not look like an SD file (no 'M  END' or '$$$$' line found)")
+    result = RESULT_MARK in props
+    columns = _Columns(_generated(result))
     for prop in props:
-        columns.column(prop)
+        if not (result and prop.startswith(METADATA_PREFIX)):
+            columns.column(prop)
     names = tuple(columns.names)
     smiles, ident = choose(list(names), str(path), smiles_column, id_column)
 
     def read(batch_rows: int) -> Iterator[RawBatch]:
-        return _batches(path, gzipped, encoding, smiles, batch_rows)
+        return _batches(path, gzipped, encoding, smiles, batch_rows, result)
 
     return LibrarySource(
         path=path,
@@ -175,9 +183,23 @@ def open_sdf(
     )
 
 
-def _batches(path: Path, gzipped: bool, encoding: str, smiles_column: str, batch_rows: int) -> Iterator[RawBatch]:
-    """Stream RawBatches; each frame has every column seen so far."""
-    columns = _Columns()
+def _generated(result: bool) -> tuple[str, ...]:
+    """Columns made from the record itself rather than its properties.
+
+    A screen's SDF result is read back as the table it was written from: its properties
+    are that table's columns, the molblock its canonical SMILES, and the title (derived
+    from the ID column) and the earlier run's provenance are left out, so re-screening
+    it gives the same columns every time.
+    """
+    return (RESULT_STRUCTURE_COLUMN,) if result else (STRUCTURE_COLUMN, TITLE_COLUMN)
+
+
+def _batches(
+    path: Path, gzipped: bool, encoding: str, smiles_column: str, batch_rows: int, result: bool = False
+) -> Iterator[RawBatch]:
+    """Stream RawBatches; each frame has every column seen so far (``result``: a screen's SDF result)."""
+    columns = _Columns(_generated(result))
+    structure_column = RESULT_STRUCTURE_COLUMN if result else STRUCTURE_COLUMN
     start = 0
     rows: list[dict[str, str]] = []
     smiles: list[str | None] = []
@@ -186,11 +208,14 @@ def _batches(path: Path, gzipped: bool, encoding: str, smiles_column: str, batch
         for record, read_error, _ in _records(MarkedLines(text)):
             block, title, props, _ = _split(record)
             structure, structure_error = _structure(block)
-            row = {STRUCTURE_COLUMN: structure or "", TITLE_COLUMN: title}
+            row = {structure_column: structure or ""}
+            if not result:
+                row[TITLE_COLUMN] = title
             for prop, value in props.items():
-                row[columns.column(prop)] = value
+                if not (result and prop.startswith(METADATA_PREFIX)):
+                    row[columns.column(prop)] = value
             reasons = "; ".join(r for r in (read_error, structure_error) if r)
-            if smiles_column != STRUCTURE_COLUMN:
+            if smiles_column != structure_column:
                 structure = row.get(smiles_column, "").strip() or None
             rows.append(row)
             smiles.append(None if reasons else structure)

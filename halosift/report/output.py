@@ -35,7 +35,7 @@ def write_report(
 
     path = check_report_output(path, force=force, protect=protect)
     try:
-        with atomic_path(path) as temp:
+        with atomic_path(path, exclusive=not force) as temp:  # without force: created only if still absent
             temp.write_text(html, encoding="utf-8")
     except OSError as exc:
         raise LibraryError(f"could not write {path}: {exc.strerror or exc}") from None

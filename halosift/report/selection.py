@@ -30,8 +30,13 @@ def read_ids(path: str | os.PathLike[str]) -> list[str]:
     """
     from engine.io import LibraryError
 
+    from engine.io.readers import not_regular
+
     path = Path(path)
     try:
+        kind = not_regular(path.stat().st_mode)  # before opening: a named pipe would wait for a writer
+        if kind is not None and kind != "a directory":
+            raise LibraryError(f"ID list {path} is {kind}, not a regular file")
         text = path.read_text(encoding="utf-8-sig")
     except FileNotFoundError:
         raise LibraryError(f"no such ID list: {path}") from None

@@ -226,8 +226,8 @@ def _sabotaged(real: Callable, how: str) -> Callable:
             raise RuntimeError("an unforeseen corner\nwith a second line")
         if how == "count-beyond-int64":
             return srow, [(*r[:6], 10**30, *r[7:]) for r in rows], nbs
-        if how == "count-beyond-int32":
-            return srow, [(*r[:6], 2**40, *r[7:]) for r in rows], nbs
+        if how == "count-beyond-int32":  # the H count column is int32
+            return srow, [(*r[:2], 2**40, *r[3:]) for r in rows], nbs
         if how == "product-not-text":
             return srow, [(12345, *r[1:]) for r in rows], nbs
         if how == "bad-structure-row":

@@ -13,7 +13,7 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 
 import pyarrow as pa
 
-from engine.cores import usable_cores
+from engine.cores import capped_workers, usable_cores
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.nbs import frame_from_rows
 from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
@@ -31,6 +31,12 @@ MIN_PARALLEL = 6_000
 
 class Cancelled(Exception):
     """Raised when a caller's cancel event was set during perception."""
+
+
+def worker_pool(processes: int) -> ProcessPoolExecutor:
+    """A pool of ``processes`` worker processes."""
+    # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
+    return ProcessPoolExecutor(max_workers=processes, mp_context=multiprocessing.get_context("spawn"))
 
 
 def perceive_batch(
@@ -98,7 +104,7 @@ def perceive_parallel(
     interactive app the calling process must stay free for the interface.
     """
     total = len(smiles)
-    workers = default_workers() if workers is None else max(1, workers)
+    workers = capped_workers(workers)
     chunks = [list(smiles[start:stop]) for start, stop in chunk_bounds(total, workers)]
     parts: list[Perception | None] = [None] * len(chunks)
     done = 0
@@ -114,10 +120,8 @@ def perceive_parallel(
                 progress(done, total)
         return concat([p for p in parts if p is not None])
 
-    # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
-    ctx = multiprocessing.get_context("spawn")
     processes = workers - 1 if caller_helps else workers
-    with ProcessPoolExecutor(max_workers=processes, mp_context=ctx) as pool:
+    with worker_pool(processes) as pool:
         pending: dict[Future, int] = {}
         next_chunk = 0  # chunks from next_chunk on are not handed out yet
 

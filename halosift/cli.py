@@ -303,7 +303,18 @@ def _run_conditions(args: argparse.Namespace):
     """Conditions for both screen reagents, with the run options checked (ValueError: one line)."""
     if args.workers is not None and args.workers < 1:
         raise ValueError("--workers must be at least 1")
-    return _conditions(args, ("cl2", "br2"))
+    cond = _conditions(args, ("cl2", "br2"))
+    _note_worker_cap(args.workers)
+    return cond
+
+
+def _note_worker_cap(requested: int | None) -> None:
+    """One line on stderr when --workers asks for more processes than there are usable cores."""
+    from engine.cores import capped_workers
+
+    if requested is not None and capped_workers(requested) < requested:
+        print(f"halosift: note: --workers {requested} capped at {capped_workers(requested)}, "
+              "the cores this process may use", file=sys.stderr)
 
 
 def _load(args: argparse.Namespace, *, quiet: bool):

@@ -6,10 +6,16 @@ and send back Arrow record batches (cheap to pickle, typed).
 
 from __future__ import annotations
 
+import ctypes
 import multiprocessing
+import os
+import signal
+import sys
 import threading
-from collections.abc import Callable, Sequence
+import time
+from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from contextlib import contextmanager
 
 import pyarrow as pa
 
@@ -27,16 +33,83 @@ MIN_CHUNK = 100
 TASKS_PER_WORKER = 4
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
+#: Seconds between a worker's checks that the process that started it is still alive.
+PARENT_CHECK_S = 0.5
+#: Seconds to wait for terminated workers before killing them outright.
+STOP_GRACE_S = 2.0
 
 
 class Cancelled(Exception):
     """Raised when a caller's cancel event was set during perception."""
 
 
-def worker_pool(processes: int) -> ProcessPoolExecutor:
-    """A pool of ``processes`` worker processes."""
+def _die_with_parent(parent: int) -> None:
+    """Worker initializer: end this process when ``parent`` ends, however it ends.
+
+    Linux delivers SIGKILL on the parent's death (PR_SET_PDEATHSIG), which also
+    reaches a worker blocked writing a large result into a pipe nobody reads.
+    A daemon thread watching the parent id covers other systems and the race of
+    a parent dying before prctl ran. SIGINT is ignored: a Ctrl-C reaches the
+    whole process group, and the parent, which owns the run, stops the workers.
+    """
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if sys.platform.startswith("linux"):
+        try:
+            pr_set_pdeathsig = 1
+            ctypes.CDLL(None, use_errno=True).prctl(pr_set_pdeathsig, int(signal.SIGKILL), 0, 0, 0)
+        except (OSError, AttributeError):
+            pass  # the watchdog below still ends the worker
+    if os.getppid() != parent:
+        os._exit(1)
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(PARENT_CHECK_S)
+        os._exit(1)  # no clean-up: the run this worker served is gone
+
+    threading.Thread(target=watch, name="halosift-parent-watch", daemon=True).start()
+
+
+@contextmanager
+def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
+    """A process pool whose workers die with this process and are stopped, not awaited, on any exception.
+
+    A normal exit waits for the workers as usual. On an exception (a signal
+    turned into KeyboardInterrupt, a cancel, an error) the workers are
+    terminated at once, so the caller can exit without waiting for queued tasks.
+    """
     # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
-    return ProcessPoolExecutor(max_workers=processes, mp_context=multiprocessing.get_context("spawn"))
+    ctx = multiprocessing.get_context("spawn")
+    pool = ProcessPoolExecutor(
+        max_workers=processes, mp_context=ctx, initializer=_die_with_parent, initargs=(os.getpid(),)
+    )
+    try:
+        yield pool
+    except BaseException:
+        _stop(pool)
+        raise
+    pool.shutdown(wait=True)
+
+
+def _stop(pool: ProcessPoolExecutor) -> None:
+    """Terminate the pool's workers, kill those still alive after :data:`STOP_GRACE_S`, and shut it down."""
+    # The executor offers no way to stop running tasks; its process table is the only handle on them.
+    processes = list((getattr(pool, "_processes", None) or {}).values())
+    for proc in processes:
+        try:
+            proc.terminate()
+        except (OSError, ValueError):
+            pass
+    deadline = time.monotonic() + STOP_GRACE_S
+    for proc in processes:
+        try:
+            proc.join(max(0.0, deadline - time.monotonic()))
+            if proc.is_alive():
+                proc.kill()
+                proc.join(STOP_GRACE_S)
+        except (OSError, ValueError, AssertionError):
+            pass
+    pool.shutdown(wait=False, cancel_futures=True)
 
 
 def perceive_batch(
@@ -143,8 +216,7 @@ def perceive_parallel(
             submit()
         while pending or next_chunk < len(chunks):
             if cancel is not None and cancel.is_set():
-                pool.shutdown(wait=False, cancel_futures=True)
-                raise Cancelled()
+                raise Cancelled()  # worker_pool stops the workers
             timeout = 0.2
             if caller_helps and next_chunk < len(chunks):
                 # The caller takes the next task in line too, so the short ones stay for last.

@@ -4,9 +4,13 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
+import signal
 import sys
+import threading
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
 from dataclasses import asdict
-from collections.abc import Sequence
 
 from halosift.formatting import explanation_table
 
@@ -348,6 +352,52 @@ def _fail(message: str) -> int:
     return EXIT_USAGE
 
 
+class _Stopped(KeyboardInterrupt):
+    """SIGTERM or SIGHUP, raised in the main thread so clean-up runs exactly as for Ctrl-C."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+#: Signals a batch run treats as Ctrl-C: a kill, a closed terminal or dropped SSH session, Ctrl-C itself.
+_STOP_SIGNALS = tuple(getattr(signal, name) for name in ("SIGINT", "SIGTERM", "SIGHUP") if hasattr(signal, name))
+
+
+@contextmanager
+def _stop_on_signals() -> Iterator[None]:
+    """Turn the stop signals into KeyboardInterrupt for the duration, so temp files go and workers stop.
+
+    A signal already ignored (nohup, a script's background job) stays ignored.
+    A second signal during clean-up ends the process at once, the usual escape
+    from a clean-up that hangs.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield  # only the main thread may set handlers; a caller's thread keeps its own
+        return
+    seen: list[int] = []
+
+    def handler(signum: int, frame: object) -> None:
+        if seen:
+            signal.signal(signum, signal.SIG_DFL)
+            os.kill(os.getpid(), signum)
+            return
+        seen.append(signum)
+        raise KeyboardInterrupt() if signum == signal.SIGINT else _Stopped(signum)
+
+    previous = {}
+    for signum in _STOP_SIGNALS:
+        current = signal.getsignal(signum)
+        if current is not signal.SIG_IGN:
+            previous[signum] = current
+            signal.signal(signum, handler)
+    try:
+        yield
+    finally:
+        for signum, old in previous.items():
+            signal.signal(signum, old if old is not None else signal.SIG_DFL)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the console script."""
     parser = build_parser()
@@ -355,9 +405,15 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         # No command: the app on the bundled sample catalogue.
         args = parser.parse_args(["browse"])
-    handlers = {"explain": _explain, "screen": _screen, "report": _report, "browse": _browse}
+    handlers = {"explain": _explain, "screen": _screen, "report": _report}
     try:
-        return handlers[args.command](args)
+        if args.command == "browse":
+            return _browse(args)  # the app owns its keys and the terminal
+        with _stop_on_signals():
+            return handlers[args.command](args)
+    except _Stopped as exc:
+        print(f"halosift: stopped by {signal.Signals(exc.signum).name}", file=sys.stderr)
+        return 128 + exc.signum
     except KeyboardInterrupt:
         print("halosift: interrupted", file=sys.stderr)
         return 130

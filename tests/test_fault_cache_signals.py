@@ -52,6 +52,189 @@ def big_library(tmp_path_factory: pytest.TempPathFactory) -> Path:
     return path
 
 
+# ---------------------------------------------------------------- processes
+
+
+def _stat(pid: int) -> tuple[str, int, int] | None:
+    """(state, parent pid, session id) of a live process from /proc, or None once it is gone or a zombie."""
+    try:
+        text = Path(f"/proc/{pid}/stat").read_text()
+    except OSError:
+        return None
+    fields = text[text.rindex(")") + 2:].split()
+    if fields[0] in ("Z", "X"):
+        return None  # dead, waiting to be reaped
+    return fields[0], int(fields[1]), int(fields[3])
+
+
+def _session(sid: int) -> list[int]:
+    """Live processes of session ``sid`` (a screen started as its own session leader, and all it started)."""
+    pids = []
+    for entry in Path("/proc").iterdir():
+        if entry.name.isdigit():
+            st = _stat(int(entry.name))
+            if st is not None and st[2] == sid:
+                pids.append(int(entry.name))
+    return pids
+
+
+def _wait_for(condition, timeout: float = WAIT_S, step: float = 0.1) -> bool:
+    """Poll ``condition`` until it is true or ``timeout`` seconds have passed."""
+    deadline = time.monotonic() + timeout
+    while time.monotonic() < deadline:
+        if condition():
+            return True
+        time.sleep(step)
+    return bool(condition())
+
+
+def _kill_all(pids: list[int]) -> None:
+    """Clean up after a failed check: SIGKILL the given processes (all started by this test)."""
+    for pid in pids:
+        try:
+            os.kill(pid, signal.SIGKILL)
+        except OSError:
+            pass
+
+
+needs_proc = pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="needs /proc to see child processes")
+needs_two_cores = pytest.mark.skipif(usable_cores() < 2, reason="worker processes start only with 2+ usable cores")
+
+
+def _env(cache: Path) -> dict[str, str]:
+    return {**os.environ, "HALOSIFT_CACHE_DIR": str(cache), "PYTHONPATH": str(ROOT)}
+
+
+@needs_proc
+@needs_two_cores
+@pytest.mark.parametrize("signum", [signal.SIGTERM, signal.SIGHUP, signal.SIGKILL], ids=lambda s: s.name)
+def test_signalled_screen_leaves_no_process_and_no_temp_file(
+    tmp_path: Path, big_library: Path, signum: signal.Signals
+) -> None:
+    out = tmp_path / "out" / "screened.csv"
+    out.parent.mkdir()
+    out.write_text("old result\n")
+    cache = tmp_path / "cache"
+    # stderr to a file, not a pipe: a left-over worker holding a pipe open must not stall the test.
+    err_file = (tmp_path / "stderr.txt").open("w")
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "halosift", "screen", str(big_library), "-o", str(out), "--force", "--quiet",
+         "--workers", "2"],
+        cwd=ROOT, env=_env(cache), stdout=subprocess.DEVNULL, stderr=err_file,
+        start_new_session=True,  # its own session: everything it starts can be found by session id
+    )
+    err_file.close()
+    seen: list[int] = []
+    try:
+        # Wait until a worker process runs, then give it a moment to be busy perceiving.
+        assert _wait_for(lambda: len(_session(proc.pid)) >= 2), "no worker process started"
+        time.sleep(1.0)
+        seen = _session(proc.pid)
+        assert proc.poll() is None, "the screen finished before it could be signalled"
+        os.kill(proc.pid, signum)
+        proc.wait(timeout=WAIT_S)
+        assert _wait_for(lambda: not _session(proc.pid), timeout=20), f"left behind: {_session(proc.pid)}"
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait(timeout=WAIT_S)
+        _kill_all(_session(proc.pid) + seen)
+    err = (tmp_path / "stderr.txt").read_text()
+    if signum == signal.SIGKILL:
+        assert proc.returncode == -signal.SIGKILL
+    else:
+        assert proc.returncode == 128 + signum
+        assert "Traceback" not in err
+        assert err.strip().splitlines()[-1] == f"halosift: stopped by {signum.name}"
+    assert out.read_text() == "old result\n"
+    assert sorted(p.name for p in out.parent.iterdir()) == ["screened.csv"]
+    assert not [p for p in cache.rglob("*") if p.is_file() and p.name.startswith(".")]
+
+
+_STUCK_WORKER = """
+import os, sys, time
+from engine.parallel import worker_pool
+
+def big(n):
+    return b"x" * n
+
+if __name__ == "__main__":
+    with worker_pool(1) as pool:
+        print(pool.submit(os.getpid).result(), flush=True)
+        pool.submit(big, 200_000_000)  # far more than a pipe holds
+        time.sleep(0.5)
+        os.kill(os.getpid(), 9)  # the parent dies; nobody reads the result
+"""
+
+
+@needs_proc
+def test_worker_blocked_on_a_result_dies_with_its_parent(tmp_path: Path) -> None:
+    script = tmp_path / "stuck_worker.py"
+    script.write_text(_STUCK_WORKER)
+    pid_file = tmp_path / "worker.pid"
+    with pid_file.open("w") as sink:
+        proc = subprocess.Popen([sys.executable, str(script)], cwd=ROOT, env=_env(tmp_path / "cache"),
+                                stdout=sink, stderr=subprocess.DEVNULL, start_new_session=True)
+    worker = 0
+    try:
+        proc.wait(timeout=WAIT_S)
+        worker = int(pid_file.read_text())
+        assert proc.returncode == -signal.SIGKILL
+        assert _wait_for(lambda: _stat(worker) is None, timeout=20), "the worker outlived its parent"
+        assert _wait_for(lambda: not _session(proc.pid), timeout=20), f"left behind: {_session(proc.pid)}"
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+            proc.wait(timeout=WAIT_S)
+        _kill_all(_session(proc.pid) + ([worker] if worker else []))
+
+
+_SIGNAL_IN_WRITE = """
+import os, signal, sys, time
+from pathlib import Path
+from engine.io.atomic import atomic_path
+from halosift.cli import _stop_on_signals
+
+out = Path(sys.argv[1])
+try:
+    with _stop_on_signals():
+        with atomic_path(out) as temp:
+            temp.write_text("half a new result")
+            os.kill(os.getpid(), int(sys.argv[2]))
+            time.sleep(30)
+except KeyboardInterrupt:
+    sys.exit(3)
+"""
+
+
+@pytest.mark.parametrize("signum", [signal.SIGTERM, signal.SIGHUP, signal.SIGINT], ids=lambda s: s.name)
+def test_signal_during_a_write_removes_the_temp_file(tmp_path: Path, signum: signal.Signals) -> None:
+    script = tmp_path / "write.py"
+    script.write_text(_SIGNAL_IN_WRITE)
+    folder = tmp_path / "out"
+    folder.mkdir()
+    (folder / "result.csv").write_text("old result\n")
+    done = subprocess.run([sys.executable, str(script), str(folder / "result.csv"), str(int(signum))],
+                          cwd=ROOT, env=_env(tmp_path / "cache"), capture_output=True, text=True, timeout=WAIT_S)
+    assert done.returncode == 3, done.stderr
+    assert sorted(p.name for p in folder.iterdir()) == ["result.csv"]
+    assert (folder / "result.csv").read_text() == "old result\n"
+
+
+def test_ignored_hangup_stays_ignored() -> None:
+    """nohup's SIG_IGN is respected: a batch run started under nohup must survive the hang-up."""
+    from halosift.cli import _stop_on_signals
+
+    old = signal.signal(signal.SIGHUP, signal.SIG_IGN)
+    try:
+        with _stop_on_signals():
+            assert signal.getsignal(signal.SIGHUP) is signal.SIG_IGN
+            assert signal.getsignal(signal.SIGTERM) not in (signal.SIG_DFL, signal.SIG_IGN)
+        assert signal.getsignal(signal.SIGTERM) is not None
+    finally:
+        signal.signal(signal.SIGHUP, old)
+
+
 # ---------------------------------------------------------------- worker count
 
 

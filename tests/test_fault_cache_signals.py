@@ -235,6 +235,26 @@ def test_ignored_hangup_stays_ignored() -> None:
         signal.signal(signal.SIGHUP, old)
 
 
+def test_next_write_removes_temp_files_of_killed_runs(tmp_path: Path) -> None:
+    """A SIGKILL leaves a temp file no handler can remove; the next write into the folder does, once it is old."""
+    src = tmp_path / "few.csv"
+    pd.DataFrame({"smiles": ["CCC", "CC(C)C"]}).to_csv(src, index=False)
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    old = out_dir / ".screened.csv.0badf00d.halosift-tmp"
+    live = out_dir / ".other.parquet.1234abcd.halosift-tmp"  # a concurrent write still in progress
+    mine = out_dir / ".notes.txt.tmp"  # not ours: never touched
+    for path in (old, live, mine):
+        path.write_text("partial")
+    hour_ago = time.time() - 3600
+    os.utime(old, (hour_ago, hour_ago))
+    os.utime(mine, (hour_ago, hour_ago))
+    assert main(["screen", str(src), "-o", str(out_dir / "screened.csv"), "--no-cache", "--quiet"]) == 0
+    left = {p.name for p in out_dir.iterdir()}
+    assert old.name not in left
+    assert {live.name, mine.name, "screened.csv"} <= left
+
+
 # ---------------------------------------------------------------- worker count
 
 

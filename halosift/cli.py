@@ -8,9 +8,11 @@ import os
 import signal
 import sys
 import threading
+import warnings
 from collections.abc import Iterator, Sequence
 from contextlib import contextmanager
 from dataclasses import asdict
+from typing import TextIO
 
 from halosift.formatting import explanation_table
 
@@ -398,6 +400,25 @@ def _stop_on_signals() -> Iterator[None]:
             signal.signal(signum, old if old is not None else signal.SIG_DFL)
 
 
+@contextmanager
+def _cache_notes() -> Iterator[None]:
+    """Show the cache's warnings as one ``halosift: note:`` line each, not Python's two-line warning."""
+    with warnings.catch_warnings():
+        python_show = warnings.showwarning
+
+        def show(message: Warning | str, category: type[Warning], filename: str, lineno: int,
+                 file: TextIO | None = None, line: str | None = None) -> None:
+            from engine.cache import CacheWarning
+
+            if issubclass(category, CacheWarning):
+                print(f"halosift: note: {message}", file=sys.stderr)
+            else:
+                python_show(message, category, filename, lineno, file, line)
+
+        warnings.showwarning = show
+        yield
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the console script."""
     parser = build_parser()
@@ -409,7 +430,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         if args.command == "browse":
             return _browse(args)  # the app owns its keys and the terminal
-        with _stop_on_signals():
+        with _stop_on_signals(), _cache_notes():
             return handlers[args.command](args)
     except _Stopped as exc:
         print(f"halosift: stopped by {signal.Signals(exc.signum).name}", file=sys.stderr)

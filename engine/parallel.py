@@ -49,10 +49,18 @@ def _die_with_parent(parent: int) -> None:
     Linux delivers SIGKILL on the parent's death (PR_SET_PDEATHSIG), which also
     reaches a worker blocked writing a large result into a pipe nobody reads.
     A daemon thread watching the parent id covers other systems and the race of
-    a parent dying before prctl ran. SIGINT is ignored: a Ctrl-C reaches the
-    whole process group, and the parent, which owns the run, stops the workers.
+    a parent dying before prctl ran. SIGINT is blocked, not merely ignored: a
+    Ctrl-C reaches the whole process group, and the parent, which owns the run,
+    stops the workers; RDKit installs its own SIGINT handler while embedding,
+    and a Ctrl-C caught there would cancel the embedding and change an answer.
+    SIGTERM and SIGHUP are unblocked (a parent may have blocked them) so that
+    terminating a worker works.
     """
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if hasattr(signal, "pthread_sigmask"):
+        signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT})  # before the watch thread: it inherits the mask
+        signal.pthread_sigmask(signal.SIG_UNBLOCK, {getattr(signal, n) for n in ("SIGTERM", "SIGHUP")
+                                                    if hasattr(signal, n)})
     if sys.platform.startswith("linux"):
         try:
             pr_set_pdeathsig = 1
@@ -70,6 +78,25 @@ def _die_with_parent(parent: int) -> None:
     threading.Thread(target=watch, name="halosift-parent-watch", daemon=True).start()
 
 
+class _Pool(ProcessPoolExecutor):
+    """A process pool whose workers start with SIGINT blocked."""
+
+    def submit(self, fn: Callable[..., object], /, *args: object, **kwargs: object) -> Future:
+        """As ProcessPoolExecutor.submit; workers are started in here, and inherit this thread's signal mask.
+
+        Blocking SIGINT in the initializer would be too late: numpy and Arrow
+        start threads while the worker imports, and a thread that accepts
+        SIGINT lets RDKit's embedding handler catch it.
+        """
+        if not hasattr(signal, "pthread_sigmask"):
+            return super().submit(fn, *args, **kwargs)
+        old = signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT})
+        try:
+            return super().submit(fn, *args, **kwargs)
+        finally:
+            signal.pthread_sigmask(signal.SIG_SETMASK, old)
+
+
 @contextmanager
 def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
     """A process pool whose workers die with this process and are stopped, not awaited, on any exception.
@@ -80,9 +107,7 @@ def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
     """
     # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
     ctx = multiprocessing.get_context("spawn")
-    pool = ProcessPoolExecutor(
-        max_workers=processes, mp_context=ctx, initializer=_die_with_parent, initargs=(os.getpid(),)
-    )
+    pool = _Pool(max_workers=processes, mp_context=ctx, initializer=_die_with_parent, initargs=(os.getpid(),))
     try:
         yield pool
     except BaseException:

@@ -14,8 +14,6 @@ from contextlib import contextmanager
 from dataclasses import asdict
 from typing import TextIO
 
-from halosift.formatting import explanation_table
-
 EXIT_OK = 0
 EXIT_USAGE = 2
 
@@ -171,6 +169,7 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
 
 def _explain(args: argparse.Namespace) -> int:
     from engine import CAUTION, explain
+    from halosift.formatting import explanation_table
 
     from engine.reagents import UnsupportedReagent, check_reagent
 
@@ -370,6 +369,12 @@ _STOP_SIGNALS = tuple(getattr(signal, name) for name in ("SIGINT", "SIGTERM", "S
 def _stop_on_signals() -> Iterator[None]:
     """Turn the stop signals into KeyboardInterrupt for the duration, so temp files go and workers stop.
 
+    Where the system allows, the signals are blocked in every thread and taken
+    by one watcher thread (sigtimedwait), which then wakes the main thread with
+    SIGUSR1 to raise there: RDKit swaps in its own SIGINT handler while it
+    embeds a molecule, and a signal landing there would be swallowed and
+    cancel the embedding, which changes the stereo answer. The wake-up
+    interrupts a blocking call (a sleep, a read from a pipe) as a signal would.
     A signal already ignored (nohup, a script's background job) stays ignored.
     A second signal during clean-up ends the process at once, the usual escape
     from a clean-up that hangs.
@@ -381,9 +386,7 @@ def _stop_on_signals() -> Iterator[None]:
 
     def handler(signum: int, frame: object) -> None:
         if seen:
-            signal.signal(signum, signal.SIG_DFL)
-            os.kill(os.getpid(), signum)
-            return
+            os._exit(128 + signum)
         seen.append(signum)
         raise KeyboardInterrupt() if signum == signal.SIGINT else _Stopped(signum)
 
@@ -393,9 +396,48 @@ def _stop_on_signals() -> Iterator[None]:
         if current is not signal.SIG_IGN:
             previous[signum] = current
             signal.signal(signum, handler)
+    watched = set(previous)
+    wake = getattr(signal, "SIGUSR1", None)
+    can_watch = all(hasattr(signal, f) for f in ("pthread_sigmask", "sigtimedwait", "pthread_kill"))
+    if not (watched and can_watch and wake is not None and signal.getsignal(wake) is signal.SIG_DFL):
+        try:
+            yield
+        finally:
+            for signum, old in previous.items():
+                signal.signal(signum, old if old is not None else signal.SIG_DFL)
+        return
+
+    caught: list[int] = []
+    main_thread = threading.main_thread().ident
+    assert main_thread is not None
+
+    def woken(signum: int, frame: object) -> None:
+        if caught:
+            handler(caught[0], frame)
+
+    signal.signal(wake, woken)
+    old_mask = signal.pthread_sigmask(signal.SIG_BLOCK, watched)  # threads started from now on inherit it
+    stop = threading.Event()
+
+    def watch() -> None:
+        while not stop.is_set():
+            info = signal.sigtimedwait(watched, 0.2)
+            if info is None:
+                continue
+            if caught:
+                os._exit(128 + info.si_signo)  # second signal: no more clean-up
+            caught.append(info.si_signo)
+            signal.pthread_kill(main_thread, wake)
+
+    watcher = threading.Thread(target=watch, name="halosift-signals", daemon=True)
+    watcher.start()
     try:
         yield
     finally:
+        stop.set()
+        watcher.join(2.0)
+        signal.pthread_sigmask(signal.SIG_SETMASK, old_mask)  # a signal still pending arrives now
+        signal.signal(wake, signal.SIG_DFL)
         for signum, old in previous.items():
             signal.signal(signum, old if old is not None else signal.SIG_DFL)
 

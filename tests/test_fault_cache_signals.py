@@ -424,7 +424,8 @@ def _env(cache: Path) -> dict[str, str]:
 
 @needs_proc
 @needs_two_cores
-@pytest.mark.parametrize("signum", [signal.SIGTERM, signal.SIGHUP, signal.SIGKILL], ids=lambda s: s.name)
+@pytest.mark.parametrize("signum", [signal.SIGINT, signal.SIGTERM, signal.SIGHUP, signal.SIGKILL],
+                         ids=lambda s: s.name)
 def test_signalled_screen_leaves_no_process_and_no_temp_file(
     tmp_path: Path, big_library: Path, signum: signal.Signals
 ) -> None:
@@ -459,6 +460,9 @@ def test_signalled_screen_leaves_no_process_and_no_temp_file(
     err = (tmp_path / "stderr.txt").read_text()
     if signum == signal.SIGKILL:
         assert proc.returncode == -signal.SIGKILL
+    elif signum == signal.SIGINT:
+        assert proc.returncode == 130
+        assert err.strip().splitlines()[-1] == "halosift: interrupted"
     else:
         assert proc.returncode == 128 + signum
         assert "Traceback" not in err
@@ -509,16 +513,17 @@ def test_worker_blocked_on_a_result_dies_with_its_parent(tmp_path: Path) -> None
 _SIGNAL_IN_WRITE = """
 import os, signal, sys, time
 from pathlib import Path
-from engine.io.atomic import atomic_path
 from halosift.cli import _stop_on_signals
 
 out = Path(sys.argv[1])
 try:
-    with _stop_on_signals():
+    with _stop_on_signals():  # entered before numpy and Arrow start threads, as halosift's main() does
+        from engine.io.atomic import atomic_path
+
         with atomic_path(out) as temp:
             temp.write_text("half a new result")
             os.kill(os.getpid(), int(sys.argv[2]))
-            time.sleep(30)
+            time.sleep(30)  # the signal must cut this short, as it would a blocking read
 except KeyboardInterrupt:
     sys.exit(3)
 """
@@ -531,11 +536,85 @@ def test_signal_during_a_write_removes_the_temp_file(tmp_path: Path, signum: sig
     folder = tmp_path / "out"
     folder.mkdir()
     (folder / "result.csv").write_text("old result\n")
+    started = time.monotonic()
     done = subprocess.run([sys.executable, str(script), str(folder / "result.csv"), str(int(signum))],
                           cwd=ROOT, env=_env(tmp_path / "cache"), capture_output=True, text=True, timeout=WAIT_S)
     assert done.returncode == 3, done.stderr
+    assert time.monotonic() - started < 20, "the signal waited for the sleep to end"
     assert sorted(p.name for p in folder.iterdir()) == ["result.csv"]
     assert (folder / "result.csv").read_text() == "old result\n"
+
+
+#: A cage whose embedding takes tens of milliseconds: a signal sent at random lands inside RDKit.
+_EMBED = """
+from rdkit import Chem
+from rdkit.Chem import rdDistGeom
+
+def embed_for(seconds):
+    import time
+    mol = Chem.AddHs(Chem.MolFromSmiles("C1CC2CCC3CCC4CCC5CCC6CCC1C1C2C3C4C5C61"))
+    params = rdDistGeom.ETKDGv3()
+    params.randomSeed = 1
+    params.useRandomCoords = True
+    params.maxIterations = 200
+    out, end = [], time.monotonic() + seconds
+    while time.monotonic() < end:
+        out.append(rdDistGeom.EmbedMolecule(mol, params))
+    return out
+"""
+
+_CTRL_C_IN_RDKIT = """
+import os, signal, sys, threading
+from halosift.cli import _stop_on_signals
+
+try:
+    with _stop_on_signals():  # entered before numpy and Arrow start threads, as halosift's main() does
+        exec(sys.argv[1])
+        threading.Timer(0.5, os.kill, (os.getpid(), signal.SIGINT)).start()
+        embed_for(20)
+except KeyboardInterrupt:
+    sys.exit(3)
+sys.exit(0)
+"""
+
+
+def test_ctrl_c_during_an_rdkit_embedding_is_not_lost(tmp_path: Path) -> None:
+    """RDKit catches SIGINT itself while embedding; a batch run must still stop on Ctrl-C."""
+    script = tmp_path / "ctrl_c.py"
+    script.write_text(_CTRL_C_IN_RDKIT)
+    started = time.monotonic()
+    done = subprocess.run([sys.executable, str(script), _EMBED + "\nimport numpy, pyarrow, engine\n"], cwd=ROOT,
+                          env=_env(tmp_path / "cache"), capture_output=True, text=True, timeout=WAIT_S)
+    assert done.returncode == 3, done.stderr[-2000:]
+    assert time.monotonic() - started < 15
+
+
+_CTRL_C_IN_WORKER = _EMBED + """
+import os, signal, sys, time
+from engine.parallel import worker_pool
+
+if __name__ == "__main__":
+    with worker_pool(1) as pool:
+        worker = pool.submit(os.getpid).result()
+        job = pool.submit(embed_for, 3.0)
+        time.sleep(0.5)
+        for _ in range(8):  # a terminal's Ctrl-C reaches every process of the group
+            os.kill(worker, signal.SIGINT)
+            time.sleep(0.2)
+        results = job.result(timeout=60)
+    print(len(results), sum(r < 0 for r in results))
+"""
+
+
+def test_ctrl_c_reaching_a_worker_cancels_no_embedding(tmp_path: Path) -> None:
+    """A worker never lets RDKit see SIGINT: a cancelled embedding would change the stereo answer."""
+    script = tmp_path / "worker_ctrl_c.py"
+    script.write_text(_CTRL_C_IN_WORKER)
+    done = subprocess.run([sys.executable, str(script)], cwd=ROOT, env=_env(tmp_path / "cache"),
+                          capture_output=True, text=True, timeout=WAIT_S)
+    assert done.returncode == 0, done.stderr[-2000:]
+    embedded, cancelled = map(int, done.stdout.split())
+    assert embedded > 0 and cancelled == 0
 
 
 def test_ignored_hangup_stays_ignored() -> None:

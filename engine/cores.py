@@ -11,3 +11,13 @@ def usable_cores() -> int:
         return max(1, len(os.sched_getaffinity(0)))
     except AttributeError:  # not Linux
         return max(1, os.cpu_count() or 1)
+
+
+def capped_workers(requested: int | None) -> int:
+    """Worker count to run: ``requested`` (None: all usable cores), at least 1 and at most :func:`usable_cores`.
+
+    More CPU-bound workers than cores only add start-up time and memory (each
+    holds its own interpreter and RDKit), never speed.
+    """
+    cores = usable_cores()
+    return cores if requested is None else max(1, min(requested, cores))

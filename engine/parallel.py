@@ -6,14 +6,20 @@ and send back Arrow record batches (cheap to pickle, typed).
 
 from __future__ import annotations
 
+import ctypes
 import multiprocessing
+import os
+import signal
+import sys
 import threading
-from collections.abc import Callable, Sequence
+import time
+from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wait
+from contextlib import contextmanager
 
 import pyarrow as pa
 
-from engine.cores import usable_cores
+from engine.cores import capped_workers, usable_cores
 from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from engine.nbs import frame_from_rows
 from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
@@ -27,10 +33,108 @@ MIN_CHUNK = 100
 TASKS_PER_WORKER = 4
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
+#: Seconds between a worker's checks that the process that started it is still alive.
+PARENT_CHECK_S = 0.5
+#: Seconds to wait for terminated workers before killing them outright.
+STOP_GRACE_S = 2.0
 
 
 class Cancelled(Exception):
     """Raised when a caller's cancel event was set during perception."""
+
+
+def _die_with_parent(parent: int) -> None:
+    """Worker initializer: end this process when ``parent`` ends, however it ends.
+
+    Linux delivers SIGKILL on the parent's death (PR_SET_PDEATHSIG), which also
+    reaches a worker blocked writing a large result into a pipe nobody reads.
+    A daemon thread watching the parent id covers other systems and the race of
+    a parent dying before prctl ran. SIGINT is blocked, not merely ignored: a
+    Ctrl-C reaches the whole process group, and the parent, which owns the run,
+    stops the workers; RDKit installs its own SIGINT handler while embedding,
+    and a Ctrl-C caught there would cancel the embedding and change an answer.
+    SIGTERM and SIGHUP are unblocked (a parent may have blocked them) so that
+    terminating a worker works.
+    """
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    if hasattr(signal, "pthread_sigmask"):
+        signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT})  # before the watch thread: it inherits the mask
+        signal.pthread_sigmask(signal.SIG_UNBLOCK, {getattr(signal, n) for n in ("SIGTERM", "SIGHUP")
+                                                    if hasattr(signal, n)})
+    if sys.platform.startswith("linux"):
+        try:
+            pr_set_pdeathsig = 1
+            ctypes.CDLL(None, use_errno=True).prctl(pr_set_pdeathsig, int(signal.SIGKILL), 0, 0, 0)
+        except (OSError, AttributeError):
+            pass  # the watchdog below still ends the worker
+    if os.getppid() != parent:
+        os._exit(1)
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(PARENT_CHECK_S)
+        os._exit(1)  # no clean-up: the run this worker served is gone
+
+    threading.Thread(target=watch, name="halosift-parent-watch", daemon=True).start()
+
+
+class _Pool(ProcessPoolExecutor):
+    """A process pool whose workers start with SIGINT blocked."""
+
+    def submit(self, fn: Callable[..., object], /, *args: object, **kwargs: object) -> Future:
+        """As ProcessPoolExecutor.submit; workers are started in here, and inherit this thread's signal mask.
+
+        Blocking SIGINT in the initializer would be too late: numpy and Arrow
+        start threads while the worker imports, and a thread that accepts
+        SIGINT lets RDKit's embedding handler catch it.
+        """
+        if not hasattr(signal, "pthread_sigmask"):
+            return super().submit(fn, *args, **kwargs)
+        old = signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT})
+        try:
+            return super().submit(fn, *args, **kwargs)
+        finally:
+            signal.pthread_sigmask(signal.SIG_SETMASK, old)
+
+
+@contextmanager
+def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
+    """A process pool whose workers die with this process and are stopped, not awaited, on any exception.
+
+    A normal exit waits for the workers as usual. On an exception (a signal
+    turned into KeyboardInterrupt, a cancel, an error) the workers are
+    terminated at once, so the caller can exit without waiting for queued tasks.
+    """
+    # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
+    ctx = multiprocessing.get_context("spawn")
+    pool = _Pool(max_workers=processes, mp_context=ctx, initializer=_die_with_parent, initargs=(os.getpid(),))
+    try:
+        yield pool
+    except BaseException:
+        _stop(pool)
+        raise
+    pool.shutdown(wait=True)
+
+
+def _stop(pool: ProcessPoolExecutor) -> None:
+    """Terminate the pool's workers, kill those still alive after :data:`STOP_GRACE_S`, and shut it down."""
+    # The executor offers no way to stop running tasks; its process table is the only handle on them.
+    processes = list((getattr(pool, "_processes", None) or {}).values())
+    for proc in processes:
+        try:
+            proc.terminate()
+        except (OSError, ValueError):
+            pass
+    deadline = time.monotonic() + STOP_GRACE_S
+    for proc in processes:
+        try:
+            proc.join(max(0.0, deadline - time.monotonic()))
+            if proc.is_alive():
+                proc.kill()
+                proc.join(STOP_GRACE_S)
+        except (OSError, ValueError, AssertionError):
+            pass
+    pool.shutdown(wait=False, cancel_futures=True)
 
 
 def perceive_batch(
@@ -98,7 +202,7 @@ def perceive_parallel(
     interactive app the calling process must stay free for the interface.
     """
     total = len(smiles)
-    workers = default_workers() if workers is None else max(1, workers)
+    workers = capped_workers(workers)
     chunks = [list(smiles[start:stop]) for start, stop in chunk_bounds(total, workers)]
     parts: list[Perception | None] = [None] * len(chunks)
     done = 0
@@ -114,10 +218,8 @@ def perceive_parallel(
                 progress(done, total)
         return concat([p for p in parts if p is not None])
 
-    # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
-    ctx = multiprocessing.get_context("spawn")
     processes = workers - 1 if caller_helps else workers
-    with ProcessPoolExecutor(max_workers=processes, mp_context=ctx) as pool:
+    with worker_pool(processes) as pool:
         pending: dict[Future, int] = {}
         next_chunk = 0  # chunks from next_chunk on are not handed out yet
 
@@ -139,8 +241,7 @@ def perceive_parallel(
             submit()
         while pending or next_chunk < len(chunks):
             if cancel is not None and cancel.is_set():
-                pool.shutdown(wait=False, cancel_futures=True)
-                raise Cancelled()
+                raise Cancelled()  # worker_pool stops the workers
             timeout = 0.2
             if caller_helps and next_chunk < len(chunks):
                 # The caller takes the next task in line too, so the short ones stay for last.

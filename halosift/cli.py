@@ -4,12 +4,15 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
+import signal
 import sys
+import threading
+import warnings
+from collections.abc import Iterator, Sequence
+from contextlib import contextmanager
 from dataclasses import asdict
-from collections.abc import Sequence
-
-from engine.outcomes import VERDICTS
-from halosift.formatting import explanation_table
+from typing import TextIO
 
 EXIT_OK = 0
 EXIT_USAGE = 2
@@ -130,8 +133,10 @@ def build_parser() -> argparse.ArgumentParser:
     _add_condition_options(rp, "both reagents")
     _add_phase_option(rp)
     _add_library_options(rp)
-    rp.add_argument("--only", action="append", choices=list(VERDICTS),
-                    help="report only rows with this verdict (repeatable; default: every row)")
+    # Checked in _report, not by choices=: naming the verdicts here would import the engine for --help.
+    rp.add_argument("--only", action="append", metavar="VERDICT",
+                    help="report only rows with this verdict: by-symmetry, selective, mixture, ruled-out or inert "
+                    "(repeatable; default: every row)")
     rp.add_argument("--ids", metavar="FILE", help="report only the rows whose ID is listed in FILE (one per line)")
     rp.add_argument("--max-pages", type=int, default=200, metavar="N",
                     help="at most N substrate entries (default 200); the report says how many were left out")
@@ -184,6 +189,7 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
 
 def _explain(args: argparse.Namespace) -> int:
     from engine import CAUTION, explain
+    from halosift.formatting import explanation_table
 
     from engine.reagents import UnsupportedReagent, check_reagent
 
@@ -282,8 +288,12 @@ def _report(args: argparse.Namespace) -> int:
     from pathlib import Path
 
     from engine import Cancelled, LibraryError
+    from engine.outcomes import VERDICTS
     from halosift.report import check_report_output, read_ids, render_report, select_rows, write_report
 
+    unknown = [v for v in args.only or () if v not in VERDICTS]
+    if unknown:
+        return _fail(f"--only takes a verdict ({', '.join(VERDICTS)}), not {unknown[0]!r}")
     try:
         cond = _run_conditions(args)
         if args.max_pages < 0:
@@ -323,7 +333,18 @@ def _run_conditions(args: argparse.Namespace):
     """Conditions for both screen reagents, with the run options checked (ValueError: one line)."""
     if args.workers is not None and args.workers < 1:
         raise ValueError("--workers must be at least 1")
-    return _conditions(args, ("cl2", "br2"))
+    cond = _conditions(args, ("cl2", "br2"))
+    _note_worker_cap(args.workers)
+    return cond
+
+
+def _note_worker_cap(requested: int | None) -> None:
+    """One line on stderr when --workers asks for more processes than there are usable cores."""
+    from engine.cores import capped_workers
+
+    if requested is not None and capped_workers(requested) < requested:
+        print(f"halosift: note: --workers {requested} capped at {capped_workers(requested)}, "
+              "the cores this process may use", file=sys.stderr)
 
 
 def _load(args: argparse.Namespace, *, quiet: bool):
@@ -358,6 +379,114 @@ def _fail(message: str) -> int:
     return EXIT_USAGE
 
 
+class _Stopped(KeyboardInterrupt):
+    """SIGTERM or SIGHUP, raised in the main thread so clean-up runs exactly as for Ctrl-C."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+#: Signals a batch run treats as Ctrl-C: a kill, a closed terminal or dropped SSH session, Ctrl-C itself.
+_STOP_SIGNALS = tuple(getattr(signal, name) for name in ("SIGINT", "SIGTERM", "SIGHUP") if hasattr(signal, name))
+
+
+@contextmanager
+def _stop_on_signals() -> Iterator[None]:
+    """Turn the stop signals into KeyboardInterrupt for the duration, so temp files go and workers stop.
+
+    Where the system allows, the signals are blocked in every thread and taken
+    by one watcher thread (sigtimedwait), which then wakes the main thread with
+    SIGUSR1 to raise there: RDKit swaps in its own SIGINT handler while it
+    embeds a molecule, and a signal landing there would be swallowed and
+    cancel the embedding, which changes the stereo answer. The wake-up
+    interrupts a blocking call (a sleep, a read from a pipe) as a signal would.
+    A signal already ignored (nohup, a script's background job) stays ignored.
+    A second signal during clean-up ends the process at once, the usual escape
+    from a clean-up that hangs.
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield  # only the main thread may set handlers; a caller's thread keeps its own
+        return
+    seen: list[int] = []
+
+    def handler(signum: int, frame: object) -> None:
+        if seen:
+            os._exit(128 + signum)
+        seen.append(signum)
+        raise KeyboardInterrupt() if signum == signal.SIGINT else _Stopped(signum)
+
+    previous = {}
+    for signum in _STOP_SIGNALS:
+        current = signal.getsignal(signum)
+        if current is not signal.SIG_IGN:
+            previous[signum] = current
+            signal.signal(signum, handler)
+    watched = set(previous)
+    wake = getattr(signal, "SIGUSR1", None)
+    can_watch = all(hasattr(signal, f) for f in ("pthread_sigmask", "sigtimedwait", "pthread_kill"))
+    if not (watched and can_watch and wake is not None and signal.getsignal(wake) is signal.SIG_DFL):
+        try:
+            yield
+        finally:
+            for signum, old in previous.items():
+                signal.signal(signum, old if old is not None else signal.SIG_DFL)
+        return
+
+    caught: list[int] = []
+    main_thread = threading.main_thread().ident
+    assert main_thread is not None
+
+    def woken(signum: int, frame: object) -> None:
+        if caught:
+            handler(caught[0], frame)
+
+    signal.signal(wake, woken)
+    old_mask = signal.pthread_sigmask(signal.SIG_BLOCK, watched)  # threads started from now on inherit it
+    stop = threading.Event()
+
+    def watch() -> None:
+        while not stop.is_set():
+            info = signal.sigtimedwait(watched, 0.2)
+            if info is None:
+                continue
+            if caught:
+                os._exit(128 + info.si_signo)  # second signal: no more clean-up
+            caught.append(info.si_signo)
+            signal.pthread_kill(main_thread, wake)
+
+    watcher = threading.Thread(target=watch, name="halosift-signals", daemon=True)
+    watcher.start()
+    try:
+        yield
+    finally:
+        stop.set()
+        watcher.join(2.0)
+        signal.pthread_sigmask(signal.SIG_SETMASK, old_mask)  # a signal still pending arrives now
+        signal.signal(wake, signal.SIG_DFL)
+        for signum, old in previous.items():
+            signal.signal(signum, old if old is not None else signal.SIG_DFL)
+
+
+@contextmanager
+def _cache_notes() -> Iterator[None]:
+    """Show the cache's warnings as one ``halosift: note:`` line each, not Python's two-line warning."""
+    with warnings.catch_warnings():
+        python_show = warnings.showwarning
+
+        def show(message: Warning | str, category: type[Warning], filename: str, lineno: int,
+                 file: TextIO | None = None, line: str | None = None) -> None:
+            from engine.cache import CacheWarning
+
+            if issubclass(category, CacheWarning):
+                print(f"halosift: note: {message}", file=sys.stderr)
+            else:
+                python_show(message, category, filename, lineno, file, line)
+
+        warnings.showwarning = show
+        yield
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the console script."""
     parser = build_parser()
@@ -365,9 +494,15 @@ def main(argv: Sequence[str] | None = None) -> int:
     if args.command is None:
         # No command: the app on the bundled sample catalogue.
         args = parser.parse_args(["browse"])
-    handlers = {"explain": _explain, "screen": _screen, "report": _report, "browse": _browse}
+    handlers = {"explain": _explain, "screen": _screen, "report": _report}
     try:
-        return handlers[args.command](args)
+        if args.command == "browse":
+            return _browse(args)  # the app owns its keys and the terminal
+        with _stop_on_signals(), _cache_notes():
+            return handlers[args.command](args)
+    except _Stopped as exc:
+        print(f"halosift: stopped by {signal.Signals(exc.signum).name}", file=sys.stderr)
+        return 128 + exc.signum
     except KeyboardInterrupt:
         print("halosift: interrupted", file=sys.stderr)
         return 130

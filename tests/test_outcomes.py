@@ -291,3 +291,13 @@ def test_no_reagent_offered_against_its_outcome(smiles: list[str]) -> None:
         if served:
             pct = getattr(row, f"{served}_major_pct") if served != "nbs" else row.nbs_major_pct
             assert not math.isnan(pct) and pct >= Conditions().threshold_pct, smi
+
+
+def test_report_only_option_names_every_verdict_and_refuses_others(capsys: pytest.CaptureFixture) -> None:
+    from halosift.cli import build_parser
+
+    report = next(a for a in build_parser()._actions if a.dest == "command").choices["report"]
+    only = next(a for a in report._actions if a.dest == "only")
+    assert all(v in only.help for v in VERDICTS)
+    assert main(["report", "sample_libraries/catalogue.csv", "-o", "never.html", "--only", "single"]) == 2
+    assert "--only takes a verdict" in capsys.readouterr().err

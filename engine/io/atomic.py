@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import os
+import re
 import secrets
 import stat
+import time
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -13,6 +15,34 @@ from .errors import LibraryError
 
 TEMP_SUFFIX = ".halosift-tmp"
 """Ending of the temporary files atomic_path() creates (hidden: their names start with a dot)."""
+STALE_TEMP_S = 15 * 60
+"""A temporary file untouched this long was left by a killed run; a write in progress is far younger."""
+_TEMP_NAME = re.compile(r"\..+\.[0-9a-f]{8}" + re.escape(TEMP_SUFFIX))
+
+
+def remove_stale_temps(folder: Path, max_age_s: float = STALE_TEMP_S) -> int:
+    """Delete temporary files of atomic_path() in ``folder`` older than ``max_age_s``; returns how many.
+
+    A killed run (SIGKILL, power loss) cannot remove its own temporary file,
+    so the next write into the folder does. Younger files may belong to a
+    write in progress and are left alone; any error just leaves a file.
+    """
+    removed = 0
+    cutoff = time.time() - max_age_s
+    try:
+        entries = list(os.scandir(folder))
+    except OSError:
+        return 0
+    for entry in entries:
+        if not _TEMP_NAME.fullmatch(entry.name):
+            continue
+        try:
+            if entry.is_file(follow_symlinks=False) and entry.stat(follow_symlinks=False).st_mtime < cutoff:
+                os.unlink(entry.path)
+                removed += 1
+        except OSError:
+            pass
+    return removed
 
 
 def _create_temp(path: Path) -> Path:
@@ -26,6 +56,7 @@ def _create_temp(path: Path) -> Path:
         raise LibraryError(f"cannot write {path}: folder {folder} does not exist")
     if not folder.is_dir():
         raise LibraryError(f"cannot write {path}: {folder} is not a folder")
+    remove_stale_temps(folder)
     for _ in range(100):
         temp = folder / f".{path.name}.{secrets.token_hex(4)}{TEMP_SUFFIX}"
         try:

@@ -231,7 +231,7 @@ def test_existing_output_needs_force(tmp_path: Path) -> None:
         (["-o", "r.csv"], "should end in .html"),
         (["-o", "r.html", "--max-pages", "-1"], "--max-pages must be 0 or more"),
         (["-o", "r.html", "--ids", "no_such_list.txt"], "no such ID list"),
-        (["-o", "r.html", "--only", "wobbly"], "invalid choice"),
+        (["-o", "r.html", "--only", "wobbly"], "--only takes a verdict"),
     ],
 )
 def test_bad_options_are_one_line(tmp_path: Path, extra: list[str], expected: str) -> None:

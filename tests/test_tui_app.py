@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import io
 import os
 import threading
 from pathlib import Path
@@ -20,7 +19,7 @@ from tui.export import ConfirmScreen, ExportScreen, check_export_path
 from tui.filter_form import FilterForm
 from tui.help import HelpScreen
 from tui.table import ROW_KEY, LibraryTable
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import QX_ROWS, async_test, plain, settle
 
 SIZE = (120, 40)
 
@@ -51,20 +50,6 @@ def shown(app: HalosiftApp) -> pd.DataFrame:
     """The rows the table shows, in display order."""
     table = app.query_one(LibraryTable)
     return app.frame.iloc[table.rows]
-
-
-def plain(widget) -> str:
-    """What a Static shows, as plain text."""
-    from rich.console import Console
-
-    content = widget.content
-    if isinstance(content, str):
-        return content
-    if hasattr(content, "plain"):
-        return content.plain
-    console = Console(width=max(widget.size.width, 40), record=True, file=io.StringIO(), color_system=None)
-    console.print(content)
-    return console.export_text()
 
 
 def table_text(app: HalosiftApp) -> str:

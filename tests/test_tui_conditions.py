@@ -2,30 +2,18 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 
-import pandas as pd
 import pytest
 
 import engine
 from tui.app import HalosiftApp
 from tui.conditions import ConditionsScreen, read_fields
 from tui.table import LibraryTable
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (100, 30)
 
 
-def write_library(folder: Path) -> Path:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return path
-
-
-def text_of(widget) -> str:
-    from test_tui_app import plain
-
-    return plain(widget)
 
 
 async def open_panel(pilot) -> ConditionsScreen:
@@ -59,7 +47,7 @@ async def test_fast_burst_loses_no_key_and_applies_on_enter(tmp_path):
         assert screen.query_one("#cond-br2").value == "70"
         assert app.conditions.br2_temp_c == 70.0
         assert app.frame.attrs["conditions"] == app.conditions
-        assert "Br2 70 °C" in text_of(app.query_one("#settings"))
+        assert "Br2 70 °C" in plain(app.query_one("#settings"))
         # Again, ending with Tab instead of Enter: leaving the field applies it.
         await focus_field(pilot, screen, "cond-br2")
         await pilot.press("end", "backspace", "backspace", "6", "5", "tab")
@@ -79,24 +67,24 @@ async def test_values_apply_only_when_complete_and_valid(tmp_path):
         await pilot.press("end", "backspace", "backspace", "8", "0")
         await settle(pilot)
         assert app.conditions == before
-        note = text_of(screen.query_one("#cond-note"))
+        note = plain(screen.query_one("#cond-note"))
         assert "Pending: threshold 80 %" in note and f"threshold {before.threshold_pct:g} %" in note
         assert threshold.has_class("-pending")
         # Cleared and 101 typed: refused, the header and the table keep the applied threshold.
         await pilot.press("end", "backspace", "backspace", "1", "0", "1", "enter")
         await settle(pilot)
         assert app.conditions == before
-        note = text_of(screen.query_one("#cond-note"))
+        note = plain(screen.query_one("#cond-note"))
         assert "✗ Not applied" in note and "not a percentage" in note
         assert threshold.has_class("-refused")
-        assert f"threshold {before.threshold_pct:g} %" in text_of(app.query_one("#settings"))
+        assert f"threshold {before.threshold_pct:g} %" in plain(app.query_one("#settings"))
         assert app.frame.attrs["conditions"] == before
         # An impossible Cl2 temperature is refused too, even when leaving the field, and nothing of it applies.
         await focus_field(pilot, screen, "cond-cl2")
         await pilot.press("end", "backspace", "backspace", "minus", "3", "0", "0", "tab")
         await settle(pilot)
         assert app.conditions == before
-        assert "absolute zero" in text_of(screen.query_one("#cond-note"))
+        assert "absolute zero" in plain(screen.query_one("#cond-note"))
         # Esc closes; the refused values are dropped and reopening shows the applied ones.
         await pilot.press("escape")
         await pilot.pause()
@@ -153,7 +141,7 @@ async def test_cl2_solvent_and_concentration(tmp_path):
         await pilot.press("end", "backspace", "9", "9", "enter")
         await settle(pilot)
         assert app.conditions.cl2_solvent_molar == 4.0
-        assert "outside" in text_of(screen.query_one("#cond-note"))
+        assert "outside" in plain(screen.query_one("#cond-note"))
 
 
 @pytest.mark.parametrize(

@@ -3,29 +3,17 @@
 from __future__ import annotations
 
 import threading
-from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
 from tui.app import HalosiftApp
 from tui.detail import WORKING_NOTE, DetailScreen
 from tui.table import LibraryTable
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (120, 40)
 
 
-def write_library(folder: Path) -> Path:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return path
-
-
-def text_of(widget) -> str:
-    from test_tui_app import plain
-
-    return plain(widget)
 
 
 def gate_products(monkeypatch, library, slow_rows: set[int]) -> threading.Event:
@@ -63,12 +51,12 @@ async def test_slow_detail_shows_working_and_the_screen_stays_live(tmp_path, mon
             await open_row(pilot, "CCc1ccccc1")
             screen = app.screen
             assert isinstance(screen, DetailScreen) and screen.working
-            assert "working…" in text_of(screen.query_one("#detail-head"))
-            assert text_of(screen.query_one("#detail-products")) == WORKING_NOTE
+            assert "working…" in plain(screen.query_one("#detail-head"))
+            assert plain(screen.query_one("#detail-products")) == WORKING_NOTE
             # The interface thread is free: a key is handled while the products are still being worked out.
             await pilot.press("space")
             await pilot.pause()
-            assert app.marked[slow] and "on shortlist" in text_of(screen.query_one("#detail-head"))
+            assert app.marked[slow] and "on shortlist" in plain(screen.query_one("#detail-head"))
             # Esc leaves at once, before the work is done.
             await pilot.press("escape")
             await pilot.pause()
@@ -95,14 +83,14 @@ async def test_answer_for_a_row_already_left_is_not_shown(tmp_path, monkeypatch)
             following = screen.row
             assert following != slow and not screen.working
             assert screen.result is not None and screen.result.row == following
-            shown = text_of(screen.query_one("#detail-products"))
+            shown = plain(screen.query_one("#detail-products"))
         finally:
             gate.set()
         # The slow row's answer arrives now; it must not replace the row on screen.
         await pilot.pause(0.3)
         await settle(pilot)
         assert screen.row == following and screen.result.row == following
-        assert text_of(screen.query_one("#detail-products")) == shown
+        assert plain(screen.query_one("#detail-products")) == shown
         expected = app.library.products(following, app.conditions)
         for p in expected.itertuples():
             assert p.product in shown
@@ -122,5 +110,5 @@ async def test_a_failing_detail_is_one_line(tmp_path, monkeypatch):
         await settle(pilot)
         screen = app.screen
         assert isinstance(screen, DetailScreen) and not screen.working
-        body = text_of(screen.query_one("#detail-products"))
+        body = plain(screen.query_one("#detail-products"))
         assert body == "Could not work out this row's products: RuntimeError: perception broke"

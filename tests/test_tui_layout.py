@@ -2,28 +2,15 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 
-import numpy as np
-import pandas as pd
 
 from tui.app import HalosiftApp
 from tui.filters import FilterSpec, SortSpec
 from tui.header import Phrase, column_title, fit_phrases
 from tui.table import _GUTTER, LibraryTable, fit
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import async_test, plain, settle, write_library
 
 
-def write_library(folder: Path) -> Path:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return path
-
-
-def text_of(widget) -> str:
-    from test_tui_app import plain
-
-    return plain(widget)
 
 
 @async_test
@@ -79,8 +66,8 @@ async def test_header_lines_keep_whole_phrases_at_80_columns(tmp_path):
         app.sort = SortSpec("br2_major_pct", True)
         await settle(pilot)
         width = app.query_one("#settings").size.width
-        settings = text_of(app.query_one("#settings"))
-        counts = text_of(app.query_one("#counts"))
+        settings = plain(app.query_one("#settings"))
+        counts = plain(app.query_one("#counts"))
         for line in (settings, counts):
             assert len(line) <= width and not line.endswith("…")
         assert settings.startswith("Cl2 25 °C · Br2 125 °C · threshold 90 %")
@@ -98,7 +85,7 @@ async def test_only_user_facing_titles_in_the_header(tmp_path):
         await pilot.press("v", "v")  # the rejected view has no Br2 % column
         await settle(pilot)
         assert app.view == "rejected"
-        settings = text_of(app.query_one("#settings"))
+        settings = plain(app.query_one("#settings"))
         assert "br2_major_pct" not in settings and "Br2 % ▲" in settings
 
 
@@ -143,9 +130,9 @@ async def test_condition_warnings_are_whole_or_summed_up(tmp_path):
         app.conditions = one
         await settle(pilot)
         box = app.query_one("#warnings")
-        assert box.display and text_of(box) == "\n".join(f"! {w}" for w in one.warnings())
+        assert box.display and plain(box) == "\n".join(f"! {w}" for w in one.warnings())
         assert box.size.height >= 2  # wrapped, not cut
         many = engine.Conditions(cl2_temp_c=400.0, br2_temp_c=400.0, nbs_temp_c=400.0)
         app.conditions = many
         await settle(pilot)
-        assert text_of(box).startswith(f"! {len(many.warnings())} warnings about these conditions")
+        assert plain(box).startswith(f"! {len(many.warnings())} warnings about these conditions")

@@ -12,15 +12,10 @@ from tui.app import HalosiftApp
 from tui.export import ExportScreen
 from tui.id_list import IdListScreen, match_ids, read_ids
 from tui.table import LibraryTable
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (120, 40)
 
-
-def write_library(folder: Path) -> Path:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return path
 
 
 @async_test
@@ -109,8 +104,6 @@ async def test_exports_follow_the_table_order_and_say_so(tmp_path):
         await pilot.press("e")
         screen = app.screen
         assert isinstance(screen, ExportScreen)
-        from test_tui_app import plain
-
         assert "table's order: Br2 % ▼" in plain(screen.query_one("#export-order"))
         screen.query_one("#export-path").value = str(out)
         await pilot.press("enter")

@@ -11,17 +11,14 @@ import threading
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
 from tui.app import HalosiftApp
 from tui.table import LibraryTable
-from tui_helpers import QX_ROWS, settle
+from tui_helpers import settle, write_library
 
 
 def make_app(folder: Path) -> HalosiftApp:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return HalosiftApp(str(path))
+    return HalosiftApp(str(write_library(folder)))
 
 
 def test_conditions_panel_refusing_a_value_80x24(snap_compare, tmp_path):

@@ -13,7 +13,7 @@ import engine
 from tui import session as sessions
 from tui.app import HalosiftApp
 from tui.filters import FilterSpec, SortSpec
-from tui_helpers import QX_ROWS, async_test, settle
+from tui_helpers import QX_ROWS, async_test, settle, write_library
 
 SIZE = (120, 40)
 
@@ -24,11 +24,6 @@ def session_dir(tmp_path, monkeypatch) -> Path:
     monkeypatch.setenv(sessions.SESSION_ENV, str(folder))
     return folder
 
-
-def write_library(folder: Path) -> Path:
-    path = folder / "qx_library.csv"
-    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
-    return path
 
 
 async def change_everything(pilot) -> None:

@@ -4,6 +4,10 @@ from __future__ import annotations
 
 import asyncio
 import functools
+import io
+from pathlib import Path
+
+import pandas as pd
 
 #: An invented supplier's list (IDs made up) covering every verdict and two rejections.
 QX_ROWS = [
@@ -50,3 +54,24 @@ async def settle(pilot, app=None, rounds: int = 1000) -> None:
             return
         await pilot.pause(0.02)
     raise AssertionError("the app did not settle")
+
+
+def write_library(folder: Path) -> Path:
+    """Write :data:`QX_ROWS` as ``qx_library.csv`` in folder and return its path."""
+    path = folder / "qx_library.csv"
+    pd.DataFrame(QX_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path
+
+
+def plain(widget) -> str:
+    """What a Static shows, as plain text."""
+    from rich.console import Console
+
+    content = widget.content
+    if isinstance(content, str):
+        return content
+    if hasattr(content, "plain"):
+        return content.plain
+    console = Console(width=max(widget.size.width, 40), record=True, file=io.StringIO(), color_system=None)
+    console.print(content)
+    return console.export_text()

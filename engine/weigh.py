@@ -499,14 +499,23 @@ def _transposed_split(
     return np.where(rows & (total > 0), best, np.nan), count
 
 
+def _so2cl2_weighs_as_cl2(conditions: Conditions) -> bool:
+    """Whether SO2Cl2's per-H rates are Cl2's under these conditions (then its shares are Cl2's too).
+
+    Decided on the rates themselves, so every condition that sets them (temperature,
+    phase, solvent) counts, including any added later.
+    """
+    return bool(np.array_equal(conditions.per_h("so2cl2"), conditions.per_h("cl2")))
+
+
 def _borrowed_so2cl2(conditions: Conditions, cl2: dict) -> dict | None:
-    """The so2cl2 part read off Cl2's, when both weigh Cl· alike (same temperature, Cl2 neat); else None.
+    """The so2cl2 part read off Cl2's, when both weigh Cl· alike (:func:`_so2cl2_weighs_as_cl2`); else None.
 
     SO2Cl2 borrows the Cl· constants, so its shares are Cl2's; only its bases differ
     (every one an estimate), and with one basis for every site the weakest among the
     products at or above the cut-off is that basis wherever the major reaches it.
     """
-    if conditions.cl2_solvent != "none" or conditions.so2cl2_temp_c != conditions.cl2_temp_c:
+    if not _so2cl2_weighs_as_cl2(conditions):
         return None
     rank = basis_rank(conditions, "so2cl2")[: len(ABSTRACTABLE)]
     if len(set(rank.tolist())) != 1:
@@ -532,9 +541,8 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
         nbs = _start(memo, keys["nbs"], lambda: _nbs_part(perception, conditions), pool)
         static = _memo(memo, ("static",), lambda: _static(perception))
         parts = {r: memo[keys[r]] for r in SITE_REAGENTS if memo is not None and keys[r] in memo}
-        # so2cl2 at Cl2's temperature (Cl2 neat) is Cl2's weighing: never weighed twice.
-        borrow = conditions.cl2_solvent == "none" and conditions.so2cl2_temp_c == conditions.cl2_temp_c
-        wanted = set(SITE_REAGENTS) - set(parts) - ({"so2cl2"} if borrow else set())
+        # so2cl2 with Cl2's rates is Cl2's weighing: never weighed twice.
+        wanted = set(SITE_REAGENTS) - set(parts) - ({"so2cl2"} if _so2cl2_weighs_as_cl2(conditions) else set())
         # Each missing reagent is weighed in _TASKS_PER_REAGENT shares, br2 (the longer) first, then its text.
         filling = {}
         for r in sorted(wanted, key=lambda r: (r != "br2", r)):

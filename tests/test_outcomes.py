@@ -140,6 +140,10 @@ def test_so2cl2_is_cl_at_its_own_temperature() -> None:
     assert list(same["so2cl2_major"]) == list(same["cl2_major"])
     # … and at its own 70 °C it is the Cl2 split at 70 °C, whatever Cl2's own temperature.
     assert np.allclose(base["so2cl2_major_pct"], same["cl2_major_pct"])
+    # Cl2 in the gas phase at 70 °C weighs other rates; SO2Cl2 stays the liquid-phase Cl· split at 70 °C.
+    gas = engine.summarise(p, Conditions(cl2_temp_c=70, so2cl2_temp_c=70, cl2_phase="gas"))
+    assert np.allclose(gas["so2cl2_major_pct"], same["so2cl2_major_pct"])
+    assert not np.allclose(gas["cl2_major_pct"], same["cl2_major_pct"])
     # Explain weighs it the same way.
     e = engine.explain("CCc1ccccc1")
     assert e.outcome("so2cl2").major_pct == pytest.approx(base["so2cl2_major_pct"].iloc[0])

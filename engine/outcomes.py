@@ -172,13 +172,17 @@ def reagent_outcomes(
     return Outcomes(outcome, reason, serves, verdict)
 
 
+def _with_threshold(docs: Mapping[str, str], threshold_pct: float | None) -> dict[str, str]:
+    """``docs`` with ``{threshold}`` filled in ('the threshold' when None)."""
+    shown = "the threshold" if threshold_pct is None else f"{threshold_pct:g}"
+    return {k: t.format(threshold=shown) for k, t in docs.items()}
+
+
 def outcome_docs(threshold_pct: float | None = None) -> dict[str, str]:
     """:data:`OUTCOME_DOCS` with the threshold filled in ('the threshold' when None)."""
-    shown = "the threshold" if threshold_pct is None else f"{threshold_pct:g}"
-    return {k: t.format(threshold=shown) for k, t in OUTCOME_DOCS.items()}
+    return _with_threshold(OUTCOME_DOCS, threshold_pct)
 
 
 def verdict_docs(threshold_pct: float | None = None) -> dict[str, str]:
     """:data:`VERDICT_DOCS` with the threshold filled in ('the threshold' when None)."""
-    shown = "the threshold" if threshold_pct is None else f"{threshold_pct:g}"
-    return {k: t.format(threshold=shown) for k, t in VERDICT_DOCS.items()}
+    return _with_threshold(VERDICT_DOCS, threshold_pct)

@@ -16,8 +16,8 @@ import tempfile
 import time
 from pathlib import Path
 
-import engine.io.delimited as delimited
-from engine.io import open_library
+import halosift.engine.io.delimited as delimited
+from halosift.engine.io import open_library
 
 
 def _write(path: Path, rows: int) -> None:

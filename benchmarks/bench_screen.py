@@ -31,10 +31,10 @@ sys.path.insert(0, str(HERE.parent))
 
 from library_gen import make_library  # noqa: E402
 
-import engine  # noqa: E402
-from engine.cache import take  # noqa: E402
-from engine.parallel import default_workers  # noqa: E402
-from engine.perception import Perception  # noqa: E402
+from halosift import engine  # noqa: E402
+from halosift.engine.cache import take  # noqa: E402
+from halosift.engine.parallel import default_workers  # noqa: E402
+from halosift.engine.perception import Perception  # noqa: E402
 
 TARGETS = {"c/a": 3.0, "speed-up": 1.7, "reweigh_s": 1.0, "peak_gb": 2.0, "reopen_s": 5.0}
 

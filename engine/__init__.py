@@ -4,17 +4,17 @@ Perceive once (:func:`perceive`, RDKit), weigh many (:func:`weigh`,
 :func:`summarise`, numpy/pandas only).
 """
 
-from engine.conditions import REAGENTS, Conditions
-from engine.explain import Explanation, ProductRecord, explain
-from engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit, to_mol
-from engine.perception import Perception, perceive
-from engine.reagents import EXPLAIN_REAGENTS, NOT_PREDICTED, UnsupportedReagent, check_reagent
-from engine.safety import CAUTION
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
-from engine.special_sites import FLAGS
-from engine.weigh import VERDICTS, summarise, weigh
+from halosift.engine.conditions import REAGENTS, Conditions
+from halosift.engine.explain import Explanation, ProductRecord, explain
+from halosift.engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit, to_mol
+from halosift.engine.perception import Perception, perceive
+from halosift.engine.reagents import EXPLAIN_REAGENTS, NOT_PREDICTED, UnsupportedReagent, check_reagent
+from halosift.engine.safety import CAUTION
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from halosift.engine.special_sites import FLAGS
+from halosift.engine.weigh import VERDICTS, summarise, weigh
 
-__version__ = "0.1.0"
+from halosift._version import __version__
 
 __all__ = [
     "ABSTRACTABLE", "CAUTION", "Conditions", "EXPLAIN_REAGENTS", "Explanation", "FLAGS", "NOT_PREDICTED", "Parsed",
@@ -22,17 +22,17 @@ __all__ = [
     "explain", "parse_hydrocarbon", "perceive", "quiet_rdkit", "summarise", "to_mol", "weigh", "__version__",
 ]
 
-# Library-level names load on first use, so `import engine` stays light for
+# Library-level names load on first use, so `from halosift import engine` stays light for
 # callers that only explain single structures.
 _LAZY = {
-    "Cancelled": "engine.parallel",
-    "perceive_batch": "engine.parallel",
-    "Library": "engine.library",
-    "RESULT_COLUMNS": "engine.library",
-    "RESULT_DOCS": "engine.library",
-    "load_library": "engine.library",
-    "screen": "engine.library",
-    "LibraryError": "engine.io",
+    "Cancelled": "halosift.engine.parallel",
+    "perceive_batch": "halosift.engine.parallel",
+    "Library": "halosift.engine.library",
+    "RESULT_COLUMNS": "halosift.engine.library",
+    "RESULT_DOCS": "halosift.engine.library",
+    "load_library": "halosift.engine.library",
+    "screen": "halosift.engine.library",
+    "LibraryError": "halosift.engine.io",
 }
 __all__ += list(_LAZY)
 
@@ -42,4 +42,4 @@ def __getattr__(name: str):
         import importlib
 
         return getattr(importlib.import_module(_LAZY[name]), name)
-    raise AttributeError(f"module 'engine' has no attribute {name!r}")
+    raise AttributeError(f"module 'halosift.engine' has no attribute {name!r}")

@@ -35,8 +35,8 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
-from engine.nbs import frame_from_rows
-from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
+from halosift.engine.nbs import frame_from_rows
+from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
 #: Every engine module perception runs (a test derives the list from the imports).
 _FINGERPRINTED = (
@@ -61,7 +61,7 @@ _FOLDER = re.compile(r"perception-[0-9a-z-]+")
 @cache
 def engine_fingerprint() -> str:
     """Hash of the code and data that perception depends on."""
-    from engine import __version__
+    from halosift.engine import __version__
 
     h = hashlib.sha256(__version__.encode())
     here = Path(__file__).parent

@@ -6,11 +6,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
-from engine.rates import RateTable, rate_table
-from engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
-from engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
+from halosift.engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
+from halosift.engine.rates import RateTable, rate_table
+from halosift.engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from halosift.engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
 __all__ = ["CL2_PHASES", "Conditions", "EXPLAIN_REAGENTS", "MAX_TEMP_C", "REAGENTS", "REAGENT_LABELS"]
 

@@ -7,7 +7,7 @@ detail on demand.
 Why the test is exact. Every rate per H is Arrhenius, k_c = A_c·exp(−E_c/RT),
 in each of the rate tables a condition can select (Cl· gas phase, Cl· neat
 liquid, Br·), and a Cl2 solvent multiplies every log-selectivity against
-primary by one exponent s (:func:`engine.solvent.scale_rates`). The winners
+primary by one exponent s (:func:`halosift.engine.solvent.scale_rates`). The winners
 over a union of tables are the union of each table's winners, so each table
 is checked on its own. So, up to a term common to
 all products, the log-weight of a group g of site class c with h_g hydrogens is
@@ -15,7 +15,7 @@ all products, the log-weight of a group g of site class c with h_g hydrogens is
     score_g(x, y) = ln h_g + x·(ln A_c − ln A_primary) − y·(E_c − E_primary)/R
 
 with x = s and y = s/T. Every temperature up to the program's limit
-(:data:`engine.conditions.MAX_TEMP_C`) and every solvent exponent s ≥ 0 is a
+(:data:`halosift.engine.conditions.MAX_TEMP_C`) and every solvent exponent s ≥ 0 is a
 point of the cone x ≥ 0, y ≥ x/T_max (Br2: the ray x = 1, y ≥ 1/T_max). The
 winners over the cone are the faces of the upper envelope of these planes;
 each face is a pointed convex region with a corner where its winner ties
@@ -24,7 +24,7 @@ Checking the argmax at every such corner therefore finds every product that
 wins anywhere — a superset of what allowed conditions reach, never a subset.
 
 In the liquid a solvent scales only each class's alkyl part: a π-activated
-class c of degree d keeps its excess over d (:data:`engine.site_classes.SOLVENT_BASE`).
+class c of degree d keeps its excess over d (:data:`halosift.engine.site_classes.SOLVENT_BASE`).
 Its score is then
 
     score_g = ln h_g + β_c − z·φ_c + x·α_c − y·ε_c
@@ -46,10 +46,10 @@ from functools import lru_cache
 
 import numpy as np
 
-from engine.conditions import MAX_TEMP_C
-from engine.parameters import KELVIN, R_KCAL
-from engine.rates import rate_table
-from engine.site_classes import ABSTRACTABLE, SOLVENT_BASE
+from halosift.engine.conditions import MAX_TEMP_C
+from halosift.engine.parameters import KELVIN, R_KCAL
+from halosift.engine.rates import rate_table
+from halosift.engine.site_classes import ABSTRACTABLE, SOLVENT_BASE
 
 #: Scores within this of the maximum count as tied (ties are kept: a superset is safe).
 TIE = 1e-9
@@ -188,7 +188,7 @@ def contenders(groups: Sequence[tuple[int, int]]) -> tuple[set[int], set[int]]:
     (vinyl, aryl, alkynyl) are never abstracted and never contend. Within a
     class the rate per H is shared, so only the class's largest group can win;
     of groups tied for largest, the first listed, since that is the one
-    :func:`engine.weigh.summarise` names when shares are equal.
+    :func:`halosift.engine.weigh.summarise` names when shares are equal.
     """
     best: dict[int, int] = {}
     first: dict[int, int] = {}

@@ -6,17 +6,17 @@ from dataclasses import asdict, dataclass, field
 
 import math
 
-from engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
-from engine.nbs import nbs_products
-from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
-from engine.parameters import NBS_NOTE, SO2CL2_NOTE
-from engine.perception import perceive
-from engine.reagents import NBS, check_reagent
-from engine.rates import enthalpy_of_abstraction, exo_fraction
-from engine.reagents import RADICAL_OF
-from engine.site_classes import SITE_CLASSES, SITE_CODE, site_bde
-from engine.special_sites import FlagNote, flag_notes
-from engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
+from halosift.engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
+from halosift.engine.nbs import nbs_products
+from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
+from halosift.engine.parameters import NBS_NOTE, SO2CL2_NOTE
+from halosift.engine.perception import perceive
+from halosift.engine.reagents import NBS, check_reagent
+from halosift.engine.rates import enthalpy_of_abstraction, exo_fraction
+from halosift.engine.reagents import RADICAL_OF
+from halosift.engine.site_classes import SITE_CLASSES, SITE_CODE, site_bde
+from halosift.engine.special_sites import FlagNote, flag_notes
+from halosift.engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
 
 #: Notes shown whenever a reagent is part of an explanation.
 REAGENT_NOTES: dict[str, str] = {"so2cl2": SO2CL2_NOTE, NBS: NBS_NOTE}

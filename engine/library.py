@@ -10,16 +10,16 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from engine.cache import PerceptionCache, take
-from engine.conditions import REAGENTS, Conditions
-from engine.parallel import perceive_parallel
-from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.perception import Perception, concat, perceive
-from engine.site_classes import ABSTRACTABLE
-from engine.nbs import nbs_products
-from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
-from engine.rates import enthalpy_of_abstraction
-from engine.weigh import SUMMARY_COLUMNS, summarise, weigh
+from halosift.engine.cache import PerceptionCache, take
+from halosift.engine.conditions import REAGENTS, Conditions
+from halosift.engine.parallel import perceive_parallel
+from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from halosift.engine.perception import Perception, concat, perceive
+from halosift.engine.site_classes import ABSTRACTABLE
+from halosift.engine.nbs import nbs_products
+from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
+from halosift.engine.rates import enthalpy_of_abstraction
+from halosift.engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
 _HOT_ALKENE = (
     "; a C=C substrate above the temperature at which substitution wins is judged on the split with each allyl "
@@ -351,14 +351,14 @@ def load_library(
     """Read a library file (or DataFrame) and perceive it.
 
     ``caller_helps``: this thread perceives too, alongside one worker process
-    fewer (batch runs; see :func:`engine.parallel.perceive_parallel`).
+    fewer (batch runs; see :func:`halosift.engine.parallel.perceive_parallel`).
 
-    Raises :class:`engine.io.LibraryError` for whole-file problems and
-    :class:`engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
+    Raises :class:`halosift.engine.io.LibraryError` for whole-file problems and
+    :class:`halosift.engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
     receives (rows done, rows in all), rows done being estimated from the
     share of distinct structures perceived; it is called from this thread.
     """
-    from engine.io import open_frame, open_library
+    from halosift.engine.io import open_frame, open_library
 
     if isinstance(source, pd.DataFrame):
         src = open_frame(source, smiles_column=smiles_column, id_column=id_column)
@@ -369,7 +369,7 @@ def load_library(
     frames, smiles, errors = [], [], []
     for batch in src.iter_batches():
         if cancel is not None and cancel.is_set():
-            from engine.parallel import Cancelled
+            from halosift.engine.parallel import Cancelled
 
             raise Cancelled()
         frames.append(batch.frame)

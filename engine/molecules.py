@@ -7,8 +7,8 @@ from dataclasses import dataclass
 from rdkit import Chem
 from rdkit.Chem import rdmolops
 
-from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.rdkit_log import quiet_rdkit
+from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from halosift.engine.rdkit_log import quiet_rdkit
 
 _ELEMENT_NAMES = {
     "N": "nitrogen", "O": "oxygen", "S": "sulfur", "P": "phosphorus", "F": "fluorine",

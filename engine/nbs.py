@@ -4,7 +4,7 @@ Perception side (RDKit, once per structure): for every allylic or benzylic
 site group, the bromide at the radical carbon and, for an allylic carbon
 a–b=c, the transposed bromide (Br on c, double bond moved to a=b). Each
 terminus gets a weight within its radical from the substitution of the
-product's C=C (:data:`engine.parameters.NBS_SUBSTITUENT_FACTOR`), stored as
+product's C=C (:data:`halosift.engine.parameters.NBS_SUBSTITUENT_FACTOR`), stored as
 ``share``. Longer conjugation (pentadienyl ends beyond the first C=C) is not
 followed: only termini one bond away from the radical carbon's neighbours.
 
@@ -25,11 +25,11 @@ import pandas as pd
 import pyarrow as pa
 from rdkit import Chem
 
-from engine import parameters as P
-from engine.shares import cast_checked, percent_of_structure
-from engine.site_classes import SITE_CODE
-from engine.sites import substitute
-from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
+from halosift.engine import parameters as P
+from halosift.engine.shares import cast_checked, percent_of_structure
+from halosift.engine.site_classes import SITE_CODE
+from halosift.engine.sites import substitute
+from halosift.engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE
@@ -40,7 +40,7 @@ NBS_SITES: tuple[str, ...] = tuple(
 )
 TERMINI = ("radical carbon", "allylic shift")
 
-#: Column types of :attr:`engine.perception.Perception.allylic` (one row per site group × NBS product).
+#: Column types of :attr:`halosift.engine.perception.Perception.allylic` (one row per site group × NBS product).
 ALLYLIC_SCHEMA = pa.schema(
     [
         pa.field("struct", pa.int32(), metadata={"doc": "row of the structures table"}),
@@ -220,7 +220,7 @@ def allylic_rows(
 ) -> list[tuple]:
     """NBS product rows of one structure (without ``struct``): see :data:`ALLYLIC_SCHEMA`.
 
-    ``groups`` are the structure's :class:`engine.sites.SiteGroup` list. With
+    ``groups`` are the structure's :class:`halosift.engine.sites.SiteGroup` list. With
     input stereo every carbon of a group is followed (they may give different
     stereoisomers); otherwise the first stands for all. ``outcomes`` (per
     group, the site table's stereo) is reused for a bromide formed only at the

@@ -1,11 +1,11 @@
 """What each reagent does to a substrate, and the verdict that follows: rules of the model, vectorised.
 
-The rate model (:mod:`engine.rates`, :mod:`engine.weigh`) says how C–H
+The rate model (:mod:`halosift.engine.rates`, :mod:`halosift.engine.weigh`) says how C–H
 substitution splits among the products. It cannot say whether substitution is
 what happens at all: halogens add to C=C and C≡C, Br· opens cyclopropane rings,
 the central bond of a propellane or a bicyclo[1.1.0]butane adds halogens, and a
 cyclopropylmethyl radical ring-opens before it is trapped. This module turns
-those pathways (found as structure flags, :mod:`engine.special_sites`) into one
+those pathways (found as structure flags, :mod:`halosift.engine.special_sites`) into one
 **outcome** per reagent:
 
 * ``clean``     – substitution is weighed and its major monohalide reaches the threshold;
@@ -25,8 +25,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from engine import parameters as P
-from engine.conditions import Conditions
+from halosift.engine import parameters as P
+from halosift.engine.conditions import Conditions
 
 #: Every reagent with an outcome column, in the order ``serves`` tries them: the plainest that is clean wins
 #: (a rule of this program). SO2Cl2 is weighed as Cl· at its own temperature.

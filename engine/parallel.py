@@ -19,10 +19,10 @@ from contextlib import contextmanager
 
 import pyarrow as pa
 
-from engine.cores import capped_workers, usable_cores
-from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.nbs import frame_from_rows
-from engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
+from halosift.engine.cores import capped_workers, usable_cores
+from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from halosift.engine.nbs import frame_from_rows
+from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
 
 #: Most strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.
 CHUNK = 2_000
@@ -140,10 +140,10 @@ def _stop(pool: ProcessPoolExecutor) -> None:
 def perceive_batch(
     batch: pa.RecordBatch, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_ATOMS, detail: bool = True
 ) -> tuple[pa.RecordBatch, pa.RecordBatch, pa.RecordBatch]:
-    """Perceive the ``smiles`` column of ``batch`` (``detail``: as :func:`engine.perception.perceive`).
+    """Perceive the ``smiles`` column of ``batch`` (``detail``: as :func:`halosift.engine.perception.perceive`).
 
     Returns (structures, sites, allylic) as record batches with
-    :data:`engine.perception.STRUCTURE_SCHEMA`, :data:`SITE_SCHEMA` and
+    :data:`halosift.engine.perception.STRUCTURE_SCHEMA`, :data:`SITE_SCHEMA` and
     :data:`ALLYLIC_SCHEMA`; ``struct`` counts rows of this batch from 0.
     """
     p = perceive(batch.column("smiles").to_pylist(), max_heavy_atoms, detail)
@@ -195,7 +195,7 @@ def perceive_parallel(
     """Perceive many strings, in worker processes when it pays; order is kept.
 
     ``detail=False`` works out product SMILES and stereo only where a major
-    product can come from (see :func:`engine.perception.perceive`).
+    product can come from (see :func:`halosift.engine.perception.perceive`).
     ``caller_helps``: the calling thread perceives chunks itself between
     collecting results, so ``workers`` counts it and one process fewer is
     started (one interpreter and import fewer). For batch runs only: in an

@@ -1,7 +1,7 @@
 """Perception: the one expensive RDKit pass per structure, into two compact tables.
 
 Everything condition-dependent (reagent, temperature, threshold) is computed
-later from these tables by :mod:`engine.weigh` without touching RDKit again.
+later from these tables by :mod:`halosift.engine.weigh` without touching RDKit again.
 """
 
 from __future__ import annotations
@@ -14,15 +14,15 @@ import pandas as pd
 import pyarrow as pa
 from rdkit import Chem
 
-from engine.contenders import contenders
-from engine.molecules import parse_hydrocarbon, quiet_rdkit
-from engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
-from engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
-from engine.shares import cast_checked
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
-from engine.sites import has_specified_stereo, site_groups, substitute
-from engine.special_sites import small_bridgeheads, structure_flags
-from engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome, work_share
+from halosift.engine.contenders import contenders
+from halosift.engine.molecules import parse_hydrocarbon, quiet_rdkit
+from halosift.engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
+from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
+from halosift.engine.shares import cast_checked
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
+from halosift.engine.sites import has_specified_stereo, site_groups, substitute
+from halosift.engine.special_sites import small_bridgeheads, structure_flags
+from halosift.engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome, work_share
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
 
@@ -73,7 +73,7 @@ class Perception:
     """One row per constitutional monohalide, columns of :data:`SITE_SCHEMA`."""
     allylic: pd.DataFrame
     """NBS products: one row per allylic/benzylic site group and product, columns of
-    :data:`engine.nbs.ALLYLIC_SCHEMA` (see :mod:`engine.nbs`)."""
+    :data:`halosift.engine.nbs.ALLYLIC_SCHEMA` (see :mod:`halosift.engine.nbs`)."""
 
     def __len__(self) -> int:
         return len(self.structures)
@@ -140,10 +140,10 @@ def perceive(
     ``detail=False`` is the library screen's mode: product SMILES are worked
     out only for the groups that can be the Cl2 or Br2 major product under
     some conditions, and stereo only for the possible Br2 majors (see
-    :mod:`engine.contenders`); the other groups keep their counts, class and
+    :mod:`halosift.engine.contenders`); the other groups keep their counts, class and
     weights but get an empty ``product`` or ``stereo``, and NBS products get no
     stereo.
-    :meth:`engine.library.Library.products` fills in one structure on demand.
+    :meth:`halosift.engine.library.Library.products` fills in one structure on demand.
     """
     outcomes: list[_Outcome] = []
     with quiet_rdkit():

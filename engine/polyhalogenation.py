@@ -9,7 +9,7 @@ for planning, assumptions stated in full).
   B_i → P    at rate f·(K − k_i)·[B_i]·r    (P: polyhalide)
   A monohalide keeps the substrate's other C–H; the halogen it carries slows
   them all by one factor f per radical
-  (:data:`engine.parameters.POLY_DEACTIVATION`, an estimate).
+  (:data:`halosift.engine.parameters.POLY_DEACTIVATION`, an estimate).
 * Dividing by dA/dt removes time and radical concentration: with φ_i =
   h_i k_i/K (the monohalide share) and κ_i = f·(1 − k_i/K),
 
@@ -36,9 +36,9 @@ from functools import lru_cache
 
 import numpy as np
 
-from engine import parameters as P
-from engine.reagents import RADICAL_OF
-from engine.shares import blocks_by_length
+from halosift.engine import parameters as P
+from halosift.engine.reagents import RADICAL_OF
+from halosift.engine.shares import blocks_by_length
 
 #: One line for output files and JSON: what the estimate assumes.
 MODEL_NOTE = (

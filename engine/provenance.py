@@ -4,10 +4,10 @@ from __future__ import annotations
 
 from datetime import datetime, timezone
 
-from engine.conditions import Conditions
-from engine.outcomes import OUTCOME_DOCS, VERDICT_DOCS
-from engine.safety import CAUTION
-from engine.stereo import OUTCOMES as STEREO_OUTCOMES
+from halosift.engine.conditions import Conditions
+from halosift.engine.outcomes import OUTCOME_DOCS, VERDICT_DOCS
+from halosift.engine.safety import CAUTION
+from halosift.engine.stereo import OUTCOMES as STEREO_OUTCOMES
 
 MODEL_SOURCES = (
     "Cl· site kinetics: Sarzyński & Sztuba, Int. J. Chem. Kinet. 2002, 34, 651; "
@@ -21,7 +21,7 @@ MODEL_SOURCES = (
 
 def export_metadata(conditions: Conditions, **extra: str) -> dict[str, str]:
     """Key/value provenance for file metadata, SDF properties or a sidecar file."""
-    from engine import __version__
+    from halosift.engine import __version__
 
     meta = {
         "halosift_version": __version__,

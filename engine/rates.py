@@ -1,11 +1,11 @@
 """Per-hydrogen rate constants k(T) = A·exp(−Ea/RT) for every site class.
 
-The measured anchors live in :mod:`engine.parameters`; this module derives
+The measured anchors live in :mod:`halosift.engine.parameters`; this module derives
 the rest (documented per class) and exposes vectorised look-ups.
 
 Three tables: Cl· in the gas phase, Cl· in the liquid (the neat hydrocarbon,
 which is what a preparative chlorination is), and Br·. Every entry of every
-table is Arrhenius, which :mod:`engine.contenders` relies on.
+table is Arrhenius, which :mod:`halosift.engine.contenders` relies on.
 """
 
 from __future__ import annotations
@@ -16,9 +16,9 @@ from functools import cache
 
 import numpy as np
 
-from engine import parameters as P
-from engine.parameters import Arrhenius
-from engine.site_classes import (
+from halosift.engine import parameters as P
+from halosift.engine.parameters import Arrhenius
+from halosift.engine.site_classes import (
     ABSTRACTABLE,
     BICYCLIC,
     DEGREES,

@@ -5,15 +5,15 @@ Two sets, kept apart on purpose:
 * :data:`REAGENTS` — the pair every screen weighs (``cl2``, ``br2``); the
   library columns ``cl2_*`` / ``br2_*`` are built from it and stay fixed.
 * :data:`EXPLAIN_REAGENTS` — also ``so2cl2``, whose product table
-  :func:`engine.explain` lists (``halosift explain --reagent so2cl2``); it is
-  treated as Cl· (see :data:`engine.parameters.SO2CL2_NOTE`), so a screen
+  :func:`halosift.engine.explain` lists (``halosift explain --reagent so2cl2``); it is
+  treated as Cl· (see :data:`halosift.engine.parameters.SO2CL2_NOTE`), so a screen
   gives it only its major, share and outcome (``so2cl2_*``, engine.outcomes),
   weighed at its own temperature.
 
 * :data:`NBS` — N-bromosuccinimide (Wohl–Ziegler): Br· at low Br2
   concentration, allylic/benzylic C–H only, with allylic transposition. Its
   products are not the site table's monohalides, so it is weighed from the
-  perception's ``allylic`` table (:mod:`engine.nbs`): screens get
+  perception's ``allylic`` table (:mod:`halosift.engine.nbs`): screens get
   ``nbs_major``/``nbs_major_pct``, explain lists every NBS product.
 
 F2 and I2 are asked for often enough that they get a reasoned refusal
@@ -24,17 +24,17 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from engine import parameters as P
+from halosift.engine import parameters as P
 
 #: Screened reagent → chain-carrying radical (fixed: the app reads cl2_*/br2_* columns).
 REAGENTS: dict[str, str] = {"cl2": "cl", "br2": "br"}
-#: Every reagent :func:`engine.explain` predicts → chain-carrying radical.
+#: Every reagent :func:`halosift.engine.explain` predicts → chain-carrying radical.
 EXPLAIN_REAGENTS: dict[str, str] = {**REAGENTS, "so2cl2": "cl"}
 #: N-bromosuccinimide: weighed from the allylic table, never from the site table.
 NBS = "nbs"
 #: Every reagent with a chain-carrying radical, NBS included (temperatures, rate tables, warnings).
 RADICAL_OF: dict[str, str] = {**EXPLAIN_REAGENTS, NBS: "br"}
-#: What :func:`engine.explain` and ``halosift explain --reagent`` accept.
+#: What :func:`halosift.engine.explain` and ``halosift explain --reagent`` accept.
 ACCEPTED_REAGENTS: dict[str, str] = RADICAL_OF
 REAGENT_LABELS: dict[str, str] = {
     "cl2": "Cl2, light", "br2": "Br2, light", "so2cl2": "SO2Cl2, initiator", NBS: "NBS, initiator",

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from engine.parameters import BDE, BDE_BRIDGEHEAD, NORBORNYL7_EXTRA_BDE, Value
+from halosift.engine.parameters import BDE, BDE_BRIDGEHEAD, NORBORNYL7_EXTRA_BDE, Value
 
 DEGREES = ("primary", "secondary", "tertiary")
 DELOCALISED = ("allylic", "benzylic", "propargylic")

@@ -9,8 +9,8 @@ from functools import cached_property
 
 from rdkit import Chem
 
-from engine.special_sites import small_bridgeheads
-from engine.stereo import canonical
+from halosift.engine.special_sites import small_bridgeheads
+from halosift.engine.stereo import canonical
 
 _SINGLE = Chem.BondType.SINGLE
 _DEGREE_NAMES = {1: "primary", 2: "secondary", 3: "tertiary"}
@@ -55,9 +55,9 @@ def _matched(mol: Chem.Mol, name: str) -> set[int]:
 
 
 def site_classes(mol: Chem.Mol, atoms: Iterable[int], bridgeheads: frozenset[int]) -> list[str]:
-    """Site class (see :mod:`engine.site_classes`) of each of ``atoms`` (H-bearing carbons).
+    """Site class (see :mod:`halosift.engine.site_classes`) of each of ``atoms`` (H-bearing carbons).
 
-    ``bridgeheads``: :func:`engine.special_sites.small_bridgeheads` of ``mol``.
+    ``bridgeheads``: :func:`halosift.engine.special_sites.small_bridgeheads` of ``mol``.
     First rule that applies: aryl, alkynyl, vinyl (never abstracted); methane;
     cyclopropyl (a σ radical, which neighbouring π systems barely help);
     bridgehead (a small bicycle's bridgehead cannot planarise, so it overrides
@@ -202,7 +202,7 @@ def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | N
     automorphism group (the very definition of equivalent positions), or,
     when there are too many automorphisms to list, by the canonical SMILES of
     each member's monochloride, a complete invariant.
-    ``bridgeheads``: :func:`engine.special_sites.small_bridgeheads` of ``mol``
+    ``bridgeheads``: :func:`halosift.engine.special_sites.small_bridgeheads` of ``mol``
     when the caller has it already.
     """
     ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))

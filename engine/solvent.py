@@ -1,6 +1,6 @@
 """Solvent effect on Cl· selectivity: complexing solvents make chlorine atoms choosier.
 
-Data: Russell's 2,3-dimethylbutane series (:data:`engine.parameters.RUSSELL_POINTS`),
+Data: Russell's 2,3-dimethylbutane series (:data:`halosift.engine.parameters.RUSSELL_POINTS`),
 per-H tertiary : primary at 25 °C.
 
 Model (an estimate; the assumptions are the whole of it):
@@ -14,7 +14,7 @@ Model (an estimate; the assumptions are the whole of it):
    activation difference ΔEa(site) = −RT·ln(k(site)/k(primary)) is scaled by
    ``s``. ``s`` is fixed so that the neat-liquid table's tertiary : primary
    ratio at 25 °C (Russell's neat point, ≈ 4, by construction of
-   :func:`engine.rates.neat_liquid_exponent`) becomes the interpolated measured
+   :func:`halosift.engine.rates.neat_liquid_exponent`) becomes the interpolated measured
    ratio; the same ``s`` is applied at every temperature and to every alkyl
    site class (secondary, bicyclic …), which Russell's data do not test.
    Benzylic, allylic and propargylic classes keep their excess over the alkyl
@@ -33,8 +33,8 @@ from functools import cache
 
 import numpy as np
 
-from engine import parameters as P
-from engine.site_classes import SITE_CLASSES, SOLVENT_BASE
+from halosift.engine import parameters as P
+from halosift.engine.site_classes import SITE_CLASSES, SOLVENT_BASE
 
 SOLVENTS: tuple[str, ...] = ("none", "benzene", "cs2")
 _PRIMARY = SITE_CLASSES.index("primary")
@@ -78,7 +78,7 @@ def extrapolated(solvent: str, molar: float) -> bool:
 
 @cache
 def _model_ratio_25c() -> float:
-    from engine.rates import rate_table
+    from halosift.engine.rates import rate_table
 
     k = rate_table("cl", "liquid").per_h(P.RUSSELL_T_K)
     return float(k[_TERTIARY] / k[_PRIMARY])
@@ -98,7 +98,7 @@ def scale_rates(k: np.ndarray, s: float) -> np.ndarray:
     """Per-H rates by site code with each class's alkyl log-selectivity vs primary multiplied by ``s``.
 
     A π-activated class keeps its excess over the alkyl class of the same degree
-    (:data:`engine.site_classes.SOLVENT_BASE`): k' = k_p · (k_base / k_p)^s · k / k_base.
+    (:data:`halosift.engine.site_classes.SOLVENT_BASE`): k' = k_p · (k_base / k_p)^s · k / k_base.
     """
     if s == 1.0:
         return k

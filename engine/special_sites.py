@@ -2,7 +2,7 @@
 
 Each flag names a risk the percentages do not show (ring opening, addition,
 cage rearrangement) or a site the ordinary degree classes would misjudge
-(bridgeheads). :mod:`engine.outcomes` turns the risks into per-reagent
+(bridgeheads). :mod:`halosift.engine.outcomes` turns the risks into per-reagent
 outcomes: a flag that names another pathway rules the reagents it concerns out. Flags are perception-level: computed with RDKit when a
 structure is perceived, stored as a comma-joined string in the structures
 table, and never depend on conditions.
@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 from rdkit import Chem
 
-from engine import parameters as P
+from halosift.engine import parameters as P
 
 _DOUBLE = Chem.BondType.DOUBLE
 

@@ -7,14 +7,14 @@ structure with the same site class and H count. Every product of a run has the
 same share under any conditions, so a run is weighed once: its first product
 stands for it as a candidate major and for the confidence cut-off, and in the
 polyhalide estimate it is one term (terms of equal κ add). Runs are laid out
-in blocks of structures with equally many (:func:`engine.shares.blocks_by_length`),
+in blocks of structures with equally many (:func:`halosift.engine.shares.blocks_by_length`),
 so per-structure sums are whole-array passes; text is gathered only for the
 structures' majors. Large libraries weigh the NBS split and the two reagents on
 threads (numpy and Arrow release the GIL in their loops).
 
 SO2Cl2 is weighed as Cl· at its own temperature (its part is read off Cl2's
 when the two match). Each reagent's outcome, the reagent offered and the
-verdict come from :mod:`engine.outcomes`, from the majors and the structure
+verdict come from :mod:`halosift.engine.outcomes`, from the majors and the structure
 flags only.
 """
 
@@ -31,16 +31,16 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
 
-from engine.conditions import REAGENTS, Conditions
-from engine.cores import usable_cores
-from engine.nbs import NBS_SITES, nbs_majors, nbs_percent
-from engine.outcomes import (
+from halosift.engine.conditions import REAGENTS, Conditions
+from halosift.engine.cores import usable_cores
+from halosift.engine.nbs import NBS_SITES, nbs_majors, nbs_percent
+from halosift.engine.outcomes import (
     FEATURES, OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, SITE_REAGENTS, VERDICTS, pathway_applies, reagent_outcomes,
 )
-from engine.polyhalogenation import deactivation, poly_pct_of_block
-from engine.perception import Perception
-from engine.shares import blocks_by_length, percent_of_structure
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
+from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
+from halosift.engine.perception import Perception
+from halosift.engine.shares import blocks_by_length, percent_of_structure
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
 
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",

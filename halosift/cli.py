@@ -169,7 +169,7 @@ def _add_library_options(p: argparse.ArgumentParser) -> None:
 
 
 def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
-    from engine import Conditions
+    from halosift.engine import Conditions
 
     kwargs: dict[str, float | str] = {}
     for name, value in args.temp or ():
@@ -188,10 +188,10 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
 
 
 def _explain(args: argparse.Namespace) -> int:
-    from engine import CAUTION, explain
+    from halosift.engine import CAUTION, explain
     from halosift.formatting import explanation_table
 
-    from engine.reagents import UnsupportedReagent, check_reagent
+    from halosift.engine.reagents import UnsupportedReagent, check_reagent
 
     try:
         reagents = tuple(dict.fromkeys(check_reagent(r) for r in (args.reagent or ("cl2", "br2"))))
@@ -218,7 +218,7 @@ def _explain(args: argparse.Namespace) -> int:
         if result.status == "ok":
             d["warnings"] = warnings
             if plans:
-                from engine.polyhalogenation import MODEL_NOTE
+                from halosift.engine.polyhalogenation import MODEL_NOTE
 
                 d["polyhalogenation"] = {
                     p.reagent: {k: (None if v == float("inf") else v) for k, v in asdict(p).items()} for p in plans
@@ -235,8 +235,8 @@ def _explain(args: argparse.Namespace) -> int:
 
 def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> list:
     """Polyhalogenation plans per site reagent (cl2, br2, so2cl2; not nbs); ValueError on bad values."""
-    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
-    from engine.reagents import EXPLAIN_REAGENTS
+    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+    from halosift.engine.reagents import EXPLAIN_REAGENTS
 
     cap = DEFAULT_MAX_POLY_PCT if args.max_poly is None else args.max_poly
     ratio = DEFAULT_RATIO if args.ratio is None else args.ratio
@@ -255,9 +255,9 @@ def _poly_plans(args: argparse.Namespace, result, reagents: Sequence[str]) -> li
 def _screen(args: argparse.Namespace) -> int:
     import time
 
-    from engine import Cancelled, LibraryError
-    from engine.io import check_output, write_table
-    from engine.provenance import export_metadata
+    from halosift.engine import Cancelled, LibraryError
+    from halosift.engine.io import check_output, write_table
+    from halosift.engine.provenance import export_metadata
     from halosift.progress import summary_lines
 
     started = time.monotonic()
@@ -287,8 +287,8 @@ def _screen(args: argparse.Namespace) -> int:
 def _report(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from engine import Cancelled, LibraryError
-    from engine.outcomes import VERDICTS
+    from halosift.engine import Cancelled, LibraryError
+    from halosift.engine.outcomes import VERDICTS
     from halosift.report import check_report_output, read_ids, render_report, select_rows, write_report
 
     unknown = [v for v in args.only or () if v not in VERDICTS]
@@ -340,7 +340,7 @@ def _run_conditions(args: argparse.Namespace):
 
 def _note_worker_cap(requested: int | None) -> None:
     """One line on stderr when --workers asks for more processes than there are usable cores."""
-    from engine.cores import capped_workers
+    from halosift.engine.cores import capped_workers
 
     if requested is not None and capped_workers(requested) < requested:
         print(f"halosift: note: --workers {requested} capped at {capped_workers(requested)}, "
@@ -349,7 +349,7 @@ def _note_worker_cap(requested: int | None) -> None:
 
 def _load(args: argparse.Namespace, *, quiet: bool):
     """The library named on the command line, perceived with a progress bar on a terminal."""
-    from engine import load_library
+    from halosift.engine import load_library
     from halosift.progress import ProgressLine
 
     bar = ProgressLine(enabled=not quiet)
@@ -363,7 +363,7 @@ def _load(args: argparse.Namespace, *, quiet: bool):
 
 
 def _browse(args: argparse.Namespace) -> int:
-    from tui.app import run
+    from halosift.tui.app import run
 
     return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images,
                fresh=args.fresh)
@@ -476,7 +476,7 @@ def _cache_notes() -> Iterator[None]:
 
         def show(message: Warning | str, category: type[Warning], filename: str, lineno: int,
                  file: TextIO | None = None, line: str | None = None) -> None:
-            from engine.cache import CacheWarning
+            from halosift.engine.cache import CacheWarning
 
             if issubclass(category, CacheWarning):
                 print(f"halosift: note: {message}", file=sys.stderr)

@@ -4,12 +4,12 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from engine.conditions import REAGENT_LABELS
-from engine.reagents import EXPLAIN_REAGENTS, NBS
-from engine.explain import REAGENT_NOTES, Explanation
-from engine.polyhalogenation import PolyPlan
-from engine.safety import CAUTION
-from engine.stereo import count_text
+from halosift.engine.conditions import REAGENT_LABELS
+from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS
+from halosift.engine.explain import REAGENT_NOTES, Explanation
+from halosift.engine.polyhalogenation import PolyPlan
+from halosift.engine.safety import CAUTION
+from halosift.engine.stereo import count_text
 
 
 def _table(headers: Sequence[str], rows: Sequence[Sequence[str]], right: set[int]) -> list[str]:
@@ -89,7 +89,7 @@ def explanation_table(
 
 def outcome_lines(result: Explanation) -> list[str]:
     """Per reagent what it does (clean / mixture / ruled-out, with the reason), then the verdict and offer."""
-    from engine.outcomes import verdict_docs
+    from halosift.engine.outcomes import verdict_docs
 
     cond = result.conditions
     rows = []

@@ -60,7 +60,7 @@ def summary_lines(result: pd.DataFrame, wall_s: float) -> list[str]:
     for reason, count in kinds.most_common():
         lines.append(f"  rejected {count:>8,}  {reason}")
     verdicts = result.loc[result["status"] == "ok", "verdict"].value_counts()
-    from engine.outcomes import VERDICTS
+    from halosift.engine.outcomes import VERDICTS
 
     for verdict in VERDICTS:
         lines.append(f"  {verdict:<13}{int(verdicts.get(verdict, 0)):>8,}")

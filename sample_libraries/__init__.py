@@ -36,5 +36,5 @@ def sample_path(name: str = CATALOGUE_CSV) -> Path:
         path = Path(__file__).resolve().parent / name
     if not path.is_file():
         raise FileNotFoundError(f"bundled sample file {name} is missing from {path.parent}; "
-                                "rebuild it with: python -m sample_libraries.build_catalogue")
+                                "rebuild it with: python -m halosift.sample_libraries.build_catalogue")
     return path

@@ -7,7 +7,7 @@ and their common names are real chemistry.
 
 Run from the repository root::
 
-    /work/venv/bin/python -m sample_libraries.build_catalogue
+    /work/venv/bin/python -m halosift.sample_libraries.build_catalogue
 
 It writes ``catalogue.csv``, ``catalogue.parquet`` and ``bad_rows.csv`` next to
 this file. The same seed always gives byte-identical CSV files.

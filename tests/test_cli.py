@@ -12,7 +12,7 @@ import pyarrow.parquet as pq
 import pytest
 
 from halosift.cli import main
-from sample_libraries import sample_path
+from halosift.sample_libraries import sample_path
 
 
 def run(*args: str) -> subprocess.CompletedProcess:

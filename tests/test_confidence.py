@@ -6,11 +6,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import engine
-from engine import Conditions
-from engine.library import RESULT_COLUMNS, RESULT_DOCS
-from engine.site_classes import SITE_CLASSES
-from engine.weigh import BASES, basis_rank, ranks_at_cutoff
+from halosift import engine
+from halosift.engine import Conditions
+from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
+from halosift.engine.site_classes import SITE_CLASSES
+from halosift.engine.weigh import BASES, basis_rank, ranks_at_cutoff
 
 SMILES = ["CCC", "CC(C)C", "CCc1ccccc1", "C", "CC1CC1", "c1ccccc1", "CCO", "C=CC", "CC(C)CC"]
 

@@ -10,12 +10,12 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine.conditions import MAX_TEMP_C
-from engine.contenders import contending_classes
-from engine.parameters import KELVIN
-from engine.rates import rate_table
-from engine.site_classes import ABSTRACTABLE, SITE_CODE
-from engine.solvent import scale_rates
+from halosift.engine.conditions import MAX_TEMP_C
+from halosift.engine.contenders import contending_classes
+from halosift.engine.parameters import KELVIN
+from halosift.engine.rates import rate_table
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CODE
+from halosift.engine.solvent import scale_rates
 
 
 def _patterns(n: int, seed: int) -> list[tuple[tuple[int, int], ...]]:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-import engine
+from halosift import engine
 from alkanes import alkanes
 
 # OEIS A000602: number of alkane isomers CnH2n+2 (n = 1..10).

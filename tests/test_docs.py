@@ -7,7 +7,7 @@ import subprocess
 import sys
 from pathlib import Path
 
-from engine.library import RESULT_COLUMNS, RESULT_DOCS
+from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
 
 README = Path(__file__).resolve().parents[1] / "README.md"
 

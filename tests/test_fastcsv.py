@@ -9,10 +9,10 @@ from pathlib import Path
 import pandas as pd
 import pytest
 
-import engine.io.delimited as delimited
-from engine.io import open_library
-from engine.io.fastcsv import read_fast
-from engine.io.source import concat_batches
+import halosift.engine.io.delimited as delimited
+from halosift.engine.io import open_library
+from halosift.engine.io.fastcsv import read_fast
+from halosift.engine.io.source import concat_batches
 
 
 def _batches(path: Path, monkeypatch: pytest.MonkeyPatch, careful: bool, batch_rows: int = 7) -> list:

@@ -23,11 +23,11 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
 
-import engine
-from engine import cache as cache_mod
-from engine import parallel
-from engine.cache import CacheWarning, PerceptionCache
-from engine.cores import capped_workers, usable_cores
+from halosift import engine
+from halosift.engine import cache as cache_mod
+from halosift.engine import parallel
+from halosift.engine.cache import CacheWarning, PerceptionCache
+from halosift.engine.cores import capped_workers, usable_cores
 from halosift.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -328,9 +328,9 @@ def test_no_home_means_no_cache_not_a_stray_folder(tmp_path: Path, frame: pd.Dat
 _SHARER = """
 import sys, warnings
 import pandas as pd
-import engine
-from engine import cache
-from engine.cache import CacheWarning
+from halosift import engine
+from halosift.engine import cache
+from halosift.engine.cache import CacheWarning
 
 cache.MAX_SHARDS = 2  # compact often, so compactions overlap the other screen's reads and writes
 warnings.simplefilter("error", CacheWarning)  # any note (a shard seen as damaged) fails the run
@@ -474,7 +474,7 @@ def test_signalled_screen_leaves_no_process_and_no_temp_file(
 
 _STUCK_WORKER = """
 import os, sys, time
-from engine.parallel import worker_pool
+from halosift.engine.parallel import worker_pool
 
 def big(n):
     return b"x" * n
@@ -518,7 +518,7 @@ from halosift.cli import _stop_on_signals
 out = Path(sys.argv[1])
 try:
     with _stop_on_signals():  # entered before numpy and Arrow start threads, as halosift's main() does
-        from engine.io.atomic import atomic_path
+        from halosift.engine.io.atomic import atomic_path
 
         with atomic_path(out) as temp:
             temp.write_text("half a new result")
@@ -591,7 +591,7 @@ def test_ctrl_c_during_an_rdkit_embedding_is_not_lost(tmp_path: Path) -> None:
 
 _CTRL_C_IN_WORKER = _EMBED + """
 import os, signal, sys, time
-from engine.parallel import worker_pool
+from halosift.engine.parallel import worker_pool
 
 if __name__ == "__main__":
     with worker_pool(1) as pool:
@@ -675,7 +675,7 @@ def test_perception_starts_no_more_processes_than_cores(monkeypatch: pytest.Monk
     monkeypatch.setattr(parallel, "worker_pool", fake_pool)
     monkeypatch.setattr(parallel, "MIN_PARALLEL", 10)
     monkeypatch.setattr(parallel, "usable_cores", lambda: 2)
-    monkeypatch.setattr("engine.cores.usable_cores", lambda: 2)
+    monkeypatch.setattr("halosift.engine.cores.usable_cores", lambda: 2)
     with pytest.raises(Enough):
         parallel.perceive_parallel(["CCC"] * 50, workers=12)
     assert started == [2]

@@ -21,7 +21,7 @@ import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
 
-import engine
+from halosift import engine
 from halosift.cli import main
 from tui_helpers import async_test, settle
 
@@ -153,8 +153,8 @@ def test_all_rejected_and_empty_frames_through_the_api(frame: pd.DataFrame) -> N
 @pytest.mark.parametrize("kind", ["csv-heteroatoms", "csv-latin1", "parquet-all-null", "sdf-no-m-end"])
 @async_test
 async def test_all_rejected_library_in_the_app(kind: str, tmp_path: Path) -> None:
-    from tui.app import HalosiftApp
-    from tui.table import LibraryTable
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.table import LibraryTable
 
     source, n_rows = _write_all_rejected(kind, tmp_path)
     app = HalosiftApp(str(source), use_cache=False)
@@ -205,7 +205,7 @@ def test_comb_row_inside_a_batch_through_the_api(tmp_path: Path) -> None:
 
 def test_comb_row_in_a_worker_batch() -> None:
     """The worker processes' unit of work turns the comb into typed record batches too."""
-    from engine.parallel import perceive_batch
+    from halosift.engine.parallel import perceive_batch
 
     batch = pa.record_batch([pa.array(["CCC", COMB, "CC(C)C"], type=pa.string())], names=["smiles"])
     for detail in (False, True):
@@ -241,7 +241,7 @@ def _sabotaged(real: Callable, how: str) -> Callable:
     "how", ["raises", "count-beyond-int64", "count-beyond-int32", "product-not-text", "bad-structure-row"]
 )
 def test_any_misbehaving_row_is_rejected_alone(how: str, monkeypatch: pytest.MonkeyPatch) -> None:
-    import engine.perception as perception
+    import halosift.engine.perception as perception
 
     monkeypatch.setattr(perception, "_perceive_one", _sabotaged(perception._perceive_one, how))
     smiles = ["CCC", "CC(C)C", "CC", "C1CCCCC1", "CCO", "CC", "Cc1ccccc1"] * 3
@@ -336,8 +336,8 @@ def test_parquet_with_repeated_column_names_is_one_line(tmp_path: Path) -> None:
 
 @async_test
 async def test_the_app_shows_a_suppliers_status_column_under_its_result_name(tmp_path: Path) -> None:
-    from tui.app import HalosiftApp
-    from tui.table import LibraryTable
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.table import LibraryTable
 
     app = HalosiftApp(str(_supplier_library(tmp_path)), use_cache=False)
     async with app.run_test(size=(160, 40)) as pilot:
@@ -364,7 +364,7 @@ WRITERS = {".csv": "write_delimited", ".tsv.gz": "write_delimited", ".parquet": 
 def test_two_writers_of_one_new_file_one_is_refused(
     suffix: str, links: bool, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    import engine.io.writers as writers
+    import halosift.engine.io.writers as writers
 
     if not links:  # a file system without hard links (some network and FAT mounts)
 
@@ -410,7 +410,7 @@ def test_two_writers_of_one_new_file_one_is_refused(
 
 def _another_writer_meanwhile(monkeypatch: pytest.MonkeyPatch, target: Path) -> None:
     """Make the target appear (another run finishing first) while this run writes its file."""
-    import engine.io.writers as writers
+    import halosift.engine.io.writers as writers
 
     real = writers.write_parquet
 
@@ -588,7 +588,7 @@ def test_a_named_pipe_through_the_api(fifo: Path) -> None:
 
 @async_test
 async def test_a_named_pipe_in_the_app(fifo: Path) -> None:
-    from tui.app import HalosiftApp
+    from halosift.tui.app import HalosiftApp
 
     app = HalosiftApp(str(fifo), use_cache=False)
     async with app.run_test(size=(120, 40)) as pilot:
@@ -602,8 +602,8 @@ async def test_a_named_pipe_in_the_app(fifo: Path) -> None:
 
 @async_test
 async def test_the_app_shows_an_input_smiles_column_named_like_a_result(tmp_path: Path) -> None:
-    from tui.app import HalosiftApp
-    from tui.table import LibraryTable
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.table import LibraryTable
 
     frame = pd.DataFrame({"id": ["WS-0201", "WS-0202"], "canonical_smiles": ["CCO", "CC(C)C"]})
     app = HalosiftApp(frame, use_cache=False)

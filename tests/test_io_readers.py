@@ -12,9 +12,9 @@ import pyarrow.parquet as pq
 import pytest
 from rdkit import Chem, RDLogger, rdBase
 
-from engine.io import LibraryError, RawBatch, open_frame, open_library, write_table
-from engine.rdkit_log import quiet_rdkit as rdkit_quiet
-from engine.io.coerce import settle_types
+from halosift.engine.io import LibraryError, RawBatch, open_frame, open_library, write_table
+from halosift.engine.rdkit_log import quiet_rdkit as rdkit_quiet
+from halosift.engine.io.coerce import settle_types
 
 # An invented supplier's catalogue: IDs chosen to trip naive NA handling.
 IDS = ["NA", "null", "QX-0007", "QX-0008", "N/A"]

@@ -12,9 +12,9 @@ import pyarrow.parquet as pq
 import pytest
 from rdkit import Chem
 
-import engine.io.writers as writers
-from engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
-from engine.io.delimited import FORMULA_RULE
+import halosift.engine.io.writers as writers
+from halosift.engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
+from halosift.engine.io.delimited import FORMULA_RULE
 
 META = {"tool": "halosift", "caution": "Invented caution line one.\nInvented caution line two."}
 

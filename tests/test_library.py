@@ -6,11 +6,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import engine
-import engine.parallel as parallel
-from engine import Conditions
-from engine.library import RESULT_COLUMNS
-from sample_libraries import sample_path
+from halosift import engine
+import halosift.engine.parallel as parallel
+from halosift.engine import Conditions
+from halosift.engine.library import RESULT_COLUMNS
+from halosift.sample_libraries import sample_path
 
 MIXED = [
     ("g1", "CCC"),
@@ -123,7 +123,7 @@ def test_reweigh_without_reperceiving(mixed_frame: pd.DataFrame, monkeypatch: py
     def forbidden(*args, **kwargs):
         raise AssertionError("re-weighing must not touch RDKit")
 
-    import engine.perception as perceive_module
+    import halosift.engine.perception as perceive_module
 
     monkeypatch.setattr(perceive_module, "_perceive_one", forbidden)
     hot = library.evaluate(Conditions(cl2_temp_c=300.0))

@@ -9,11 +9,11 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import engine
-from engine import parameters as P
-from engine.cache import PerceptionCache, take
-from engine.rates import rate_table
-from engine.site_classes import SITE_CLASSES
+from halosift import engine
+from halosift.engine import parameters as P
+from halosift.engine.cache import PerceptionCache, take
+from halosift.engine.rates import rate_table
+from halosift.engine.site_classes import SITE_CLASSES
 from halosift.cli import main
 
 
@@ -68,7 +68,7 @@ def test_specified_alkene_geometry_is_kept_at_the_radical_carbon() -> None:
 def test_nbs_shares_add_up_per_structure() -> None:
     smiles = ["C=CCC", "CC1=CCCCC1", "C=CCC=C", "CC=C(C)C", "C=CCc1ccccc1", "CCCC"]
     p = engine.perceive(smiles)
-    from engine.nbs import nbs_products
+    from halosift.engine.nbs import nbs_products
 
     table = nbs_products(p.allylic, engine.Conditions().per_h("nbs"), len(smiles))
     totals = table.groupby("struct")["nbs_pct"].sum()
@@ -148,7 +148,7 @@ def test_nbs_majors_match_a_per_structure_loop(shuffled: bool) -> None:
 
     import numpy as np
 
-    from engine.nbs import nbs_majors, nbs_percent
+    from halosift.engine.nbs import nbs_majors, nbs_percent
 
     sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
     from library_gen import make_library

@@ -11,10 +11,10 @@ from __future__ import annotations
 import pytest
 from rdkit import Chem
 
-import engine
-from engine.nbs import radical_class
-from engine.perception import perceive
-from engine.site_classes import SITE_CODE
+from halosift import engine
+from halosift.engine.nbs import radical_class
+from halosift.engine.perception import perceive
+from halosift.engine.site_classes import SITE_CODE
 
 
 def nbs_split(smiles: str) -> dict[str, float]:

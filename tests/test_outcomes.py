@@ -12,12 +12,12 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from rdkit import Chem
 
-import engine
-from engine import Conditions
-from engine import parameters as P
-from engine.library import RESULT_COLUMNS, RESULT_DOCS
-from engine.outcomes import OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, VERDICTS
-from engine.stereo import OUTCOMES as STEREO_OUTCOMES
+from halosift import engine
+from halosift.engine import Conditions
+from halosift.engine import parameters as P
+from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
+from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, VERDICTS
+from halosift.engine.stereo import OUTCOMES as STEREO_OUTCOMES
 from halosift.cli import main
 
 C, M, X = "clean", "mixture", "ruled-out"
@@ -34,7 +34,7 @@ KNOWN = [
     ("C/C=C/CC", "trans-2-pentene", X, X, X, M, "mixture", "",
      "Br2 adds to the C=C (textbook); under NBS the secondary allylic CH2 (a 1,3-dialkylallyl radical) leads "
      "but the CH3 (a 1-alkylallyl radical) keeps a third of the bromides: allyl-radical weighting of "
-     "engine.parameters, an estimate; NBS on unsymmetrical alkenes giving mixtures is common practice"),
+     "halosift.engine.parameters, an estimate; NBS on unsymmetrical alkenes giving mixtures is common practice"),
     ("C1C23CC12C3", "[1.1.1]propellane", X, X, X, X, "ruled-out", "",
      "halogens add across the central bond (Wiberg & Waddell, J. Am. Chem. Soc. 1990, 112, 2194; from memory)"),
     ("C1C2CC12", "bicyclo[1.1.0]butane", X, X, X, X, "ruled-out", "",
@@ -188,8 +188,8 @@ def test_columns_and_docs() -> None:
 
 
 def test_metadata_and_help_name_the_words() -> None:
-    from engine.provenance import export_metadata
-    from tui.help import STEREO_DOCS, VERDICT_DOCS
+    from halosift.engine.provenance import export_metadata
+    from halosift.tui.help import STEREO_DOCS, VERDICT_DOCS
 
     meta = export_metadata(Conditions())
     for word in (*VERDICTS, *OUTCOMES):

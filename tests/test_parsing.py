@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
-import engine
-from engine.molecules import parse_hydrocarbon
+from halosift import engine
+from halosift.engine.molecules import parse_hydrocarbon
 
 REJECTIONS = [
     ("", "empty"),

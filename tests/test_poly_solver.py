@@ -7,10 +7,10 @@ import math
 import numpy as np
 import pytest
 
-import engine
-from engine import polyhalogenation as ph
-from engine.polyhalogenation import Split, left_and_mono_at_ratio, poly_pct_at_ratio, poly_pct_of_block
-from engine.shares import blocks_by_length
+from halosift import engine
+from halosift.engine import polyhalogenation as ph
+from halosift.engine.polyhalogenation import Split, left_and_mono_at_ratio, poly_pct_at_ratio, poly_pct_of_block
+from halosift.engine.shares import blocks_by_length
 
 
 def _mono(left: float, phi: list[float], kappa: list[float]) -> float:

@@ -8,9 +8,9 @@ import math
 import numpy as np
 import pytest
 
-import engine
-from engine import parameters as P
-from engine.polyhalogenation import Split, monohalide, plan, poly_pct_at_ratio, poly_share
+from halosift import engine
+from halosift.engine import parameters as P
+from halosift.engine.polyhalogenation import Split, monohalide, plan, poly_pct_at_ratio, poly_share
 from halosift.cli import main
 
 

@@ -7,8 +7,8 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from rdkit import Chem
 
-import engine
-from engine.site_classes import ABSTRACTABLE
+from halosift import engine
+from halosift.engine.site_classes import ABSTRACTABLE
 
 
 @st.composite

@@ -18,8 +18,8 @@ from pathlib import Path
 import pytest
 from rdkit import Chem
 
-import engine
-from engine import Conditions
+from halosift import engine
+from halosift.engine import Conditions
 
 
 @dataclass(frozen=True)

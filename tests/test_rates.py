@@ -11,9 +11,9 @@ import math
 
 import pytest
 
-from engine import parameters as P
-from engine.rates import TABLES, br_activation_energy, enthalpy_of_abstraction, rate_table
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from halosift.engine import parameters as P
+from halosift.engine.rates import TABLES, br_activation_energy, enthalpy_of_abstraction, rate_table
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 
 
 def per_h_ratio(radical: str, site: str, temp_k: float, phase: str = "gas", over: str = "primary") -> float:
@@ -94,7 +94,7 @@ def test_bep_slopes_are_physical() -> None:
     params = rate_table("br").params
     for site, anchor in (("cyclopropyl", "secondary"), ("bridgehead", "tertiary"),
                          ("norbornyl-7-secondary", "secondary")):
-        from engine.site_classes import site_bde
+        from halosift.engine.site_classes import site_bde
 
         slope = (params[site].ea - params[anchor].ea) / (site_bde(site).value - site_bde(anchor).value)
         assert 0 < slope < 1, site

@@ -8,9 +8,9 @@ import sys
 
 import pytest
 
-import engine
-from engine import parameters as P
-from engine.reagents import NOT_PREDICTED, UnsupportedReagent, check_reagent
+from halosift import engine
+from halosift.engine import parameters as P
+from halosift.engine.reagents import NOT_PREDICTED, UnsupportedReagent, check_reagent
 from halosift.cli import main
 
 

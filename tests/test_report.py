@@ -13,8 +13,8 @@ from pathlib import Path
 import pandas as pd
 import pytest
 
-import engine
-from engine.provenance import MODEL_SOURCES
+from halosift import engine
+from halosift.engine.provenance import MODEL_SOURCES
 from halosift.cli import main
 from halosift.report import render_report
 from halosift.report.charts import histogram, nice_ticks

@@ -10,8 +10,8 @@ import pyarrow.parquet as pq
 import pytest
 from rdkit import Chem, RDLogger
 
-import sample_libraries
-from sample_libraries import build_catalogue
+from halosift import sample_libraries
+from halosift.sample_libraries import build_catalogue
 
 COLUMNS = list(build_catalogue.COLUMNS)
 REJECTION_KINDS = {"unparsable", "empty", "heteroatom", "charged", "radical",

@@ -15,14 +15,14 @@ import pandas as pd
 import pytest
 from rdkit import Chem
 
-import engine
-from engine import Conditions
-from engine.conditions import MAX_TEMP_C
-from engine.contenders import contending_classes
-from engine.parameters import KELVIN
-from engine.perception import perceive
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
-from sample_libraries import sample_path
+from halosift import engine
+from halosift.engine import Conditions
+from halosift.engine.conditions import MAX_TEMP_C
+from halosift.engine.contenders import contending_classes
+from halosift.engine.parameters import KELVIN
+from halosift.engine.perception import perceive
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from halosift.sample_libraries import sample_path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
 from library_gen import make_library  # noqa: E402

@@ -14,11 +14,11 @@ import pandas as pd
 import pytest
 from rdkit import Chem
 
-from engine.sites import site_classes
-from engine.special_sites import (
+from halosift.engine.sites import site_classes
+from halosift.engine.special_sites import (
     CAGE_MAX_RING, CAGE_MIN_ATOMS, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags,
 )
-from sample_libraries import sample_path
+from halosift.sample_libraries import sample_path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
 from library_gen import make_library  # noqa: E402

@@ -12,9 +12,9 @@ import math
 
 import pytest
 
-import engine
-from engine import Conditions
-from engine.solvent import measured_ratio, selectivity_exponent
+from halosift import engine
+from halosift.engine import Conditions
+from halosift.engine.solvent import measured_ratio, selectivity_exponent
 from halosift.cli import main
 
 

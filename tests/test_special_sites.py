@@ -8,13 +8,13 @@ import pandas as pd
 import pytest
 from rdkit import Chem
 
-import engine
+from halosift import engine
 
-from engine import parameters as P
-from engine.perception import STRUCTURE_SCHEMA
-from engine.rates import rate_table
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
-from engine.special_sites import FLAG_NOTES, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags
+from halosift.engine import parameters as P
+from halosift.engine.perception import STRUCTURE_SCHEMA
+from halosift.engine.rates import rate_table
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
+from halosift.engine.special_sites import FLAG_NOTES, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags
 
 
 def flags(smiles: str) -> tuple[str, ...]:
@@ -145,7 +145,7 @@ def test_cache_fingerprint_covers_everything_perception_imports() -> None:
     import ast
     from pathlib import Path
 
-    from engine import cache
+    from halosift.engine import cache
 
     root = Path(cache.__file__).parent
     seen: set[str] = set()
@@ -156,8 +156,8 @@ def test_cache_fingerprint_covers_everything_perception_imports() -> None:
             continue
         seen.add(name)
         for node in ast.walk(ast.parse((root / f"{name}.py").read_text())):
-            if isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("engine"):
-                parts = node.module.split(".")[1:]
+            if isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("halosift.engine"):
+                parts = node.module.split(".")[2:]
                 todo.extend([parts[0]] if parts else [alias.name for alias in node.names])
     assert {"special_sites", "contenders", "stereo"} <= seen
     assert {f"{m}.py" for m in seen} <= set(cache._FINGERPRINTED)

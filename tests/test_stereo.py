@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 from rdkit import Chem
 
-import engine
+from halosift import engine
 
 
 def product(substrate: str, chloride: str):
@@ -73,7 +73,7 @@ def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
     # Our geometry-to-tag rule against RDKit's own 3D perception on the same coordinates.
     from rdkit.Chem import rdDistGeom
 
-    from engine.stereo import _tag_from_positions
+    from halosift.engine.stereo import _tag_from_positions
 
     mol = Chem.MolFromSmiles(smiles)
     mol_h = Chem.AddHs(mol)
@@ -116,7 +116,7 @@ def test_symmetry_decides_the_count(substrate: str, chloride: str, outcome: str,
 
 def _simple_ring_systems(mol: Chem.Mol) -> bool:
     """No spiro atom and no bridged or small fused system: canonical SMILES tell every isomer apart."""
-    from engine.stereo import geometry_atoms
+    from halosift.engine.stereo import geometry_atoms
 
     ring_count = [0] * mol.GetNumAtoms()
     for ring in mol.GetRingInfo().AtomRings():
@@ -136,10 +136,10 @@ def test_orbit_count_agrees_with_enumeration_where_smiles_are_reliable() -> None
     sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
     from library_gen import make_library
 
-    from engine.molecules import parse_hydrocarbon
-    from engine.site_classes import ABSTRACTABLE
-    from engine.sites import site_groups
-    from engine.stereo import Skeleton, stereo_outcome
+    from halosift.engine.molecules import parse_hydrocarbon
+    from halosift.engine.site_classes import ABSTRACTABLE
+    from halosift.engine.sites import site_groups
+    from halosift.engine.stereo import Skeleton, stereo_outcome
 
     compared = with_elements = 0
     for smiles in make_library(1500, seed=23):

@@ -17,7 +17,7 @@ from hypothesis import strategies as st
 from rdkit import Chem
 from rdkit.Chem.EnumerateStereoisomers import EnumerateStereoisomers, StereoEnumerationOptions
 
-import engine
+from halosift import engine
 
 
 def product(substrate: str, chloride: str) -> engine.ProductRecord:
@@ -200,7 +200,7 @@ def test_skeleton_decides_cage_and_spirane_counts(
 def test_closed_polyhedral_cage_pins_every_atom(substrate: str) -> None:
     # Counting argument: a rigid closed cage allows one configuration and its mirror image,
     # so every cage atom's configuration is fixed by the skeleton.
-    from engine.stereo import geometry_atoms
+    from halosift.engine.stereo import geometry_atoms
 
     mol = Chem.MolFromSmiles(substrate)
     assert geometry_atoms(mol) == frozenset(range(mol.GetNumAtoms()))
@@ -210,7 +210,7 @@ def test_closed_polyhedral_cage_pins_every_atom(substrate: str) -> None:
 def test_open_fused_rings_are_not_pinned(substrate: str) -> None:
     # Decalin and perhydropyrene exist with cis and trans ring fusions (Eliel & Wilen ch. 11):
     # the cage rule must not pin their fusion atoms.
-    from engine.stereo import geometry_atoms
+    from halosift.engine.stereo import geometry_atoms
 
     assert geometry_atoms(Chem.MolFromSmiles(substrate)) == frozenset()
 
@@ -243,7 +243,7 @@ def test_symmetric_chain_count_is_exact_with_its_meso_forms() -> None:
 def test_count_beyond_the_cap_is_capped_and_marked() -> None:
     # 60 centres: 2^60 stereoisomers, more than the columns carry exactly; stored as the
     # documented cap with the approximate flag ("at least"), never a wrapped number.
-    from engine.stereo import COUNT_CAP
+    from halosift.engine.stereo import COUNT_CAP
 
     p = product(_chain(60), "CC" + "C(C)" * 60 + "CCCCl")
     assert (p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (COUNT_CAP, COUNT_CAP, True)
@@ -252,7 +252,7 @@ def test_count_beyond_the_cap_is_capped_and_marked() -> None:
 def test_count_columns_are_int64_and_never_negative() -> None:
     import pyarrow as pa
 
-    from engine.perception import SITE_SCHEMA
+    from halosift.engine.perception import SITE_SCHEMA
 
     perception = engine.perceive([_chain(k) for k in (31, 45, 60)])
     sites = perception.sites
@@ -274,7 +274,7 @@ def test_too_many_open_elements_gives_the_fallback_with_its_bound() -> None:
     # Counting argument for the bound: the two terminal methyls are one site group; each
     # chloride keeps the set centre and leaves 45 elements open, 2^45 configurations each,
     # so at most 2 × 2^45 stereoisomers form. Not counted, and said so.
-    from engine.stereo import NOT_COUNTED
+    from halosift.engine.stereo import NOT_COUNTED
 
     p = product(BUDGET_SUBSTRATE, BUDGET_CHLORIDE)
     assert (p.stereo, p.n_stereoisomers, p.n_diastereomers, p.stereo_approximate) == (
@@ -287,7 +287,7 @@ def test_budget_is_the_same_in_screen_explain_and_detail() -> None:
     # explain, and the detail the app and the report ask the library for agree row by row.
     import pandas as pd
 
-    from engine.stereo import NOT_COUNTED
+    from halosift.engine.stereo import NOT_COUNTED
 
     lean = engine.perceive([BUDGET_SUBSTRATE], detail=False).sites
     full = engine.perceive([BUDGET_SUBSTRATE], detail=True).sites
@@ -315,7 +315,7 @@ def test_within_the_budget_the_same_kind_of_input_is_still_counted() -> None:
 
 def test_shown_counts_say_when_they_are_bounds() -> None:
     # What explain and the report print after a stereo outcome: a count, or the bound it is.
-    from engine.stereo import COUNT_CAP, NOT_COUNTED, count_text
+    from halosift.engine.stereo import COUNT_CAP, NOT_COUNTED, count_text
 
     assert count_text("racemate", 2) == "(2)"
     assert count_text("achiral", 1) == ""

@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 from rdkit import Chem
 
-import engine
+from halosift import engine
 
 
 def _rank_classes(smiles: str) -> int:

@@ -11,14 +11,14 @@ import pandas as pd
 import pyarrow.parquet as pq
 import pytest
 
-import engine
-from tui.app import HalosiftApp, run
-from tui.conditions import ConditionsScreen
-from tui.detail import DetailScreen, bar
-from tui.export import ConfirmScreen, ExportScreen, check_export_path
-from tui.filter_form import FilterForm
-from tui.help import HelpScreen
-from tui.table import ROW_KEY, LibraryTable
+from halosift import engine
+from halosift.tui.app import HalosiftApp, run
+from halosift.tui.conditions import ConditionsScreen
+from halosift.tui.detail import DetailScreen, bar
+from halosift.tui.export import ConfirmScreen, ExportScreen, check_export_path
+from halosift.tui.filter_form import FilterForm
+from halosift.tui.help import HelpScreen
+from halosift.tui.table import ROW_KEY, LibraryTable
 from tui_helpers import QX_ROWS, async_test, plain, settle
 
 SIZE = (120, 40)
@@ -39,7 +39,7 @@ def small_library(folder: Path) -> Path:
 def library_path(folder: Path) -> Path:
     """The bundled sample library when it is there, else the small library."""
     try:
-        from sample_libraries import sample_path
+        from halosift.sample_libraries import sample_path
 
         return Path(sample_path())
     except (ImportError, OSError, ValueError):
@@ -480,7 +480,8 @@ async def test_mouse_picks_rows_and_columns(tmp_path):
 async def test_screening_in_worker_processes_works_inside_the_app(tmp_path, monkeypatch):
     """Inside a running Textual app sys.stderr has no file descriptor; spawning the engine's
     process pool must still work (the app starts multiprocessing's helper before it runs)."""
-    import engine.parallel
+    import halosift.engine.parallel
+    from halosift import engine
     from multiprocessing import resource_tracker
 
     resource_tracker._resource_tracker._stop()  # as in a fresh process: no helper running yet

@@ -5,10 +5,10 @@ from __future__ import annotations
 
 import pytest
 
-import engine
-from tui.app import HalosiftApp
-from tui.conditions import ConditionsScreen, read_fields
-from tui.table import LibraryTable
+from halosift import engine
+from halosift.tui.app import HalosiftApp
+from halosift.tui.conditions import ConditionsScreen, read_fields
+from halosift.tui.table import LibraryTable
 from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (100, 30)

@@ -6,9 +6,9 @@ import threading
 
 import numpy as np
 
-from tui.app import HalosiftApp
-from tui.detail import WORKING_NOTE, DetailScreen
-from tui.table import LibraryTable
+from halosift.tui.app import HalosiftApp
+from halosift.tui.detail import WORKING_NOTE, DetailScreen
+from halosift.tui.table import LibraryTable
 from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (120, 40)

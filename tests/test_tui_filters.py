@@ -6,7 +6,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from tui.filters import (
+from halosift.tui.filters import (
     FilterSpec,
     OrderCache,
     SortSpec,
@@ -210,7 +210,7 @@ def test_sort_spec_defaults():
 
 def test_filters_work_on_a_real_evaluated_library():
     """Column names and dtypes as Library.evaluate returns them (engine output, not hand-written)."""
-    import engine
+    from halosift import engine
 
     source = pd.DataFrame({"code": ["QX-1", "QX-2", "QX-3", "QX-4"], "smiles": ["CC", "CCC", "O", "c1ccccc1"]})
     evaluated = engine.load_library(source, use_cache=False).evaluate(engine.Conditions())

@@ -4,10 +4,10 @@ from __future__ import annotations
 
 
 
-from tui.app import HalosiftApp
-from tui.filters import FilterSpec, SortSpec
-from tui.header import Phrase, column_title, fit_phrases
-from tui.table import _GUTTER, LibraryTable, fit
+from halosift.tui.app import HalosiftApp
+from halosift.tui.filters import FilterSpec, SortSpec
+from halosift.tui.header import Phrase, column_title, fit_phrases
+from halosift.tui.table import _GUTTER, LibraryTable, fit
 from tui_helpers import async_test, plain, settle, write_library
 
 
@@ -121,7 +121,7 @@ async def test_dialogs_use_the_width_they_have(tmp_path):
 
 @async_test
 async def test_condition_warnings_are_whole_or_summed_up(tmp_path):
-    import engine
+    from halosift import engine
 
     app = HalosiftApp(str(write_library(tmp_path)))
     async with app.run_test(size=(80, 24)) as pilot:

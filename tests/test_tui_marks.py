@@ -8,10 +8,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from tui.app import HalosiftApp
-from tui.export import ExportScreen
-from tui.id_list import IdListScreen, match_ids, read_ids
-from tui.table import LibraryTable
+from halosift.tui.app import HalosiftApp
+from halosift.tui.export import ExportScreen
+from halosift.tui.id_list import IdListScreen, match_ids, read_ids
+from halosift.tui.table import LibraryTable
 from tui_helpers import async_test, plain, settle, write_library
 
 SIZE = (120, 40)

@@ -6,9 +6,9 @@ from pathlib import Path
 
 import pandas as pd
 
-from tui.app import HalosiftApp
-from tui.detail import DetailScreen
-from tui.table import LibraryTable
+from halosift.tui.app import HalosiftApp
+from halosift.tui.detail import DetailScreen
+from halosift.tui.table import LibraryTable
 from tui_helpers import async_test, settle
 
 

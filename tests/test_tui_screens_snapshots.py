@@ -12,8 +12,8 @@ from pathlib import Path
 
 import numpy as np
 
-from tui.app import HalosiftApp
-from tui.table import LibraryTable
+from halosift.tui.app import HalosiftApp
+from halosift.tui.table import LibraryTable
 from tui_helpers import settle, write_library
 
 
@@ -49,7 +49,7 @@ def test_conditions_panel_pending_80x24(snap_compare, tmp_path):
 
 def test_detail_working_80x24(snap_compare, tmp_path, monkeypatch):
     gate = threading.Event()
-    from engine.library import Library
+    from halosift.engine.library import Library
 
     original = Library.products
 
@@ -77,7 +77,7 @@ def test_scrolled_right_with_filters_80x24(snap_compare, tmp_path):
     """ID and verdict stay at the left, numbers are whole, the header keeps whole phrases."""
 
     async def scrolled(pilot) -> None:
-        from tui.filters import FilterSpec
+        from halosift.tui.filters import FilterSpec
 
         await settle(pilot)
         pilot.app.filters = FilterSpec(min_br2_pct=50.0, max_products=4, site_types=frozenset({"tertiary", "primary"}))

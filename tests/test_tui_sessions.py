@@ -9,10 +9,10 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import engine
-from tui import session as sessions
-from tui.app import HalosiftApp
-from tui.filters import FilterSpec, SortSpec
+from halosift import engine
+from halosift.tui import session as sessions
+from halosift.tui.app import HalosiftApp
+from halosift.tui.filters import FilterSpec, SortSpec
 from tui_helpers import QX_ROWS, async_test, settle, write_library
 
 SIZE = (120, 40)

@@ -11,8 +11,8 @@ from pathlib import Path
 
 import numpy as np
 
-from tui.app import HalosiftApp
-from tui.table import LibraryTable
+from halosift.tui.app import HalosiftApp
+from halosift.tui.table import LibraryTable
 from tui_helpers import settle, write_library
 
 def make_app(folder: Path) -> HalosiftApp:

@@ -8,8 +8,8 @@ import pytest
 from textual.app import App, ComposeResult
 from textual.widgets import Static
 
-import engine
-from tui import structure_view as sv
+from halosift import engine
+from halosift.tui import structure_view as sv
 
 
 @pytest.fixture
@@ -86,7 +86,7 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
     # The app's detail screen mounts the image widget in image mode and the note otherwise.
     import pandas as pd
 
-    from tui.app import HalosiftApp
+    from halosift.tui.app import HalosiftApp
 
     lib = tmp_path / "lib.csv"
     pd.DataFrame({"id": ["A1", "A2"], "smiles": ["CCC", "CC(C)C"]}).to_csv(lib, index=False)
@@ -98,7 +98,7 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
                 await pilot.pause(0.05)
                 if getattr(app, "library", None) is not None:
                     break
-            from tui.detail import DetailScreen
+            from halosift.tui.detail import DetailScreen
 
             for _ in range(100):  # the table fills once the first evaluation lands
                 await pilot.press("enter")

@@ -7,9 +7,9 @@ import gc
 import numpy as np
 import pandas as pd
 
-from tui.app import HalosiftApp
-from tui.filters import FilterSpec
-from tui.table import LibraryTable, fit, format_values
+from halosift.tui.app import HalosiftApp
+from halosift.tui.filters import FilterSpec
+from halosift.tui.table import LibraryTable, fit, format_values
 from tui_helpers import async_test, settle
 
 N_ROWS = 100_000

@@ -1,4 +1,4 @@
-"""engine.summarise against a plain per-structure computation of every column (test-local, loops only)."""
+"""halosift.engine.summarise against a plain per-structure computation of every column (test-local, loops only)."""
 
 from __future__ import annotations
 
@@ -12,14 +12,14 @@ import numpy as np
 import pandas as pd
 import pytest
 
-import engine
-from engine import Conditions
-from engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
-from engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
-from engine.perception import Perception
-from engine.polyhalogenation import deactivation
-from engine.site_classes import ABSTRACTABLE, SITE_CLASSES
-from engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
+from halosift import engine
+from halosift.engine import Conditions
+from halosift.engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
+from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
+from halosift.engine.perception import Perception
+from halosift.engine.polyhalogenation import deactivation
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
+from halosift.engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
 
 ALKENE_RULE = next(p for p in PATHWAYS if p.feature == "alkene")
 
@@ -81,7 +81,7 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
     k = {r: conditions.per_h(r) for r in site_reagents}
     rank = {r: [BASES.index(b) if b in BASES else len(BASES) for b in conditions.bases(r)]
             for r in (*site_reagents, "nbs")}
-    # NBS majors come from engine.nbs, which this re-weighing only passes through.
+    # NBS majors come from halosift.engine.nbs, which this re-weighing only passes through.
     nbs_major, nbs_pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
     # NBS products per structure, with their summed shares and the bases of the sites giving them.
     allylic = perception.allylic
@@ -251,7 +251,7 @@ def _synthetic(seed: int, object_text: bool) -> Perception:
 def test_synthetic_sites_match_reference(
     monkeypatch: pytest.MonkeyPatch, threaded: bool, object_text: bool, conditions: Conditions
 ) -> None:
-    weigh = importlib.import_module("engine.weigh")
+    weigh = importlib.import_module("halosift.engine.weigh")
     # Large site tables are weighed on several threads; any table is when the floor is 0.
     monkeypatch.setattr(weigh, "_THREADED_MIN_ROWS", 0 if threaded else 10**12)
     p = _synthetic(3, object_text)
@@ -281,7 +281,7 @@ def test_empty_perception() -> None:
 
 @pytest.mark.parametrize("chunk", [1, 2, 3, 7, 1 << 20])
 def test_cl_to_br_rewrite_equals_str_replace(monkeypatch: pytest.MonkeyPatch, chunk: int) -> None:
-    weigh = importlib.import_module("engine.weigh")  # the module: engine.weigh is also a function's name
+    weigh = importlib.import_module("halosift.engine.weigh")  # the module: engine.weigh is also a function's name
     monkeypatch.setattr(weigh, "_SWAP_CHUNK", chunk)  # pieces of every size, so matches straddle their edges
     rng = np.random.default_rng(chunk)
     parts = ["C", "l", "Cl", "lC", "é", "→", "(", ")", "Br", "c"]
@@ -306,7 +306,7 @@ def test_long_runs_of_many_hydrogens() -> None:
 
 @pytest.mark.parametrize(("chunk_rows", "slice_runs"), [(1, 1), (5, 3), (64, 1000)])
 def test_pass_sizes_change_nothing(monkeypatch: pytest.MonkeyPatch, chunk_rows: int, slice_runs: int) -> None:
-    weigh = importlib.import_module("engine.weigh")
+    weigh = importlib.import_module("halosift.engine.weigh")
     monkeypatch.setattr(weigh, "_CHUNK_ROWS", chunk_rows)  # run finder cut into many passes between structures
     monkeypatch.setattr(weigh, "_SLICE_RUNS", slice_runs)  # blocks weighed in many column slices
     p = _synthetic(6, False)

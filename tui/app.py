@@ -2,7 +2,7 @@
 
 The app owns the state (library, conditions, filters, sort, view, marks) and
 hands it down to its widgets; widgets report back with the messages in
-:mod:`tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
+:mod:`halosift.tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
 worker threads or on first use, so the first paint does not wait for them.
 """
 
@@ -27,9 +27,9 @@ from textual.timer import Timer
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
 
-from tui.conditions import ConditionsScreen
-from tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
-from tui.messages import (
+from halosift.tui.conditions import ConditionsScreen
+from halosift.tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
+from halosift.tui.messages import (
     ConditionsProposed,
     CursorMoved,
     DetailMoved,
@@ -47,14 +47,14 @@ from tui.messages import (
     ViewComputed,
     ViewFailed,
 )
-from tui.search import SearchBar
-from tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
+from halosift.tui.search import SearchBar
+from halosift.tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
 
 if TYPE_CHECKING:
     import pandas as pd
 
-    from engine import Conditions, Library
-    from tui.export import ExportChoice
+    from halosift.engine import Conditions, Library
+    from halosift.tui.export import ExportChoice
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
@@ -147,7 +147,7 @@ class HalosiftApp(App[int]):
     phase: reactive[str] = reactive("screening")
     """screening (worker running), ready (a library is loaded) or stopped (cancelled or failed)."""
     view: reactive[str] = reactive("library", init=False)
-    """Which rows the table lists: one of :data:`tui.filters.VIEWS`."""
+    """Which rows the table lists: one of :data:`halosift.tui.filters.VIEWS`."""
     filters: reactive[FilterSpec] = reactive(FilterSpec, init=False)
     """The library view's filters."""
     sort: reactive[SortSpec] = reactive(SortSpec, init=False)
@@ -255,7 +255,7 @@ class HalosiftApp(App[int]):
     @work(thread=True, exclusive=True, group="screen", exit_on_error=False)
     def _screen(self, cancel: threading.Event) -> None:
         """Read and perceive the library, then evaluate it under default conditions."""
-        import engine
+        from halosift import engine
 
         last = [0.0]
 
@@ -277,7 +277,7 @@ class HalosiftApp(App[int]):
             session, key, note = self._read_session(len(library.input))
             conditions = self.conditions or engine.Conditions()
             if session is not None and session.conditions and self.conditions is None:
-                from tui.session import restore_conditions
+                from halosift.tui.session import restore_conditions
 
                 try:
                     conditions = restore_conditions(session.conditions)
@@ -302,7 +302,7 @@ class HalosiftApp(App[int]):
         """(session to restore or None, library key or None, one-line note) — file reads, so called in the worker."""
         if not self.sessions or self._session_restored:
             return None, self.session_key, ""
-        from tui import session as sessions
+        from halosift.tui import session as sessions
 
         try:
             key = sessions.library_key(self.source)
@@ -367,7 +367,7 @@ class HalosiftApp(App[int]):
 
     def current_session(self) -> Any:
         """The state to save for this library (tui.session.Session)."""
-        from tui.session import Session, conditions_record
+        from halosift.tui.session import Session, conditions_record
 
         return Session(
             n_rows=len(self.marked), marked=self.marked.copy(), sort=self.sort, filters=self.filters, view=self.view,
@@ -394,7 +394,7 @@ class HalosiftApp(App[int]):
     @work(thread=True, group="session", exit_on_error=False)
     def _save_session(self, key: str, saved: Any, seq: int) -> None:
         """Write the session file (atomically) off the interface thread; an older state never replaces a newer one."""
-        from tui.session import save
+        from halosift.tui.session import save
 
         try:
             with self._session_lock:
@@ -413,7 +413,7 @@ class HalosiftApp(App[int]):
             self._session_timer = None
         if not (self._session_dirty and self.session_key is not None and self.library is not None):
             return
-        from tui.session import save
+        from halosift.tui.session import save
 
         self._session_dirty = False
         self._session_seq += 1
@@ -426,7 +426,7 @@ class HalosiftApp(App[int]):
 
     def action_start_fresh(self) -> None:
         """Drop this library's session: no marks (z brings them back), input order, no filters, default conditions."""
-        from engine import Conditions
+        from halosift.engine import Conditions
 
         if self.marked.any():
             self._undo.append(MarksUndo(f"start fresh (cleared {int(self.marked.sum()):,} marks)", self.marked.copy()))
@@ -543,7 +543,7 @@ class HalosiftApp(App[int]):
         text_columns: tuple[list[Hashable], list[Hashable]],
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
-        from tui.filters import ordered_rows, view_mask
+        from halosift.tui.filters import ordered_rows, view_mask
 
         worker = get_current_worker()
         try:
@@ -564,8 +564,8 @@ class HalosiftApp(App[int]):
         self, library: Library, conditions: Conditions, frame: pd.DataFrame, sort: SortSpec
     ) -> np.ndarray | None:
         """Every frame row in ``sort`` order, or None for input order (call off the interface thread)."""
-        from engine import VERDICTS
-        from engine.stereo import OUTCOMES
+        from halosift.engine import VERDICTS
+        from halosift.engine.stereo import OUTCOMES
 
         if sort.column == ROW_KEY:
             return np.arange(len(frame))[::-1] if sort.descending else None
@@ -646,7 +646,7 @@ class HalosiftApp(App[int]):
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
-        from tui.header import Phrase, fit_phrases
+        from halosift.tui.header import Phrase, fit_phrases
 
         ok, rejected = self._counts
         shown = len(self.query_one(LibraryTable).rows)
@@ -698,7 +698,7 @@ class HalosiftApp(App[int]):
 
     def _sort_text(self) -> str:
         """The sort order in words, e.g. 'Br2 % ▼' or 'input order' (titles a chemist reads, never internal names)."""
-        from tui.header import column_title
+        from halosift.tui.header import column_title
 
         if self.sort.column is None:
             return "input order"
@@ -754,7 +754,7 @@ class HalosiftApp(App[int]):
     def on_mark_requested(self, message: MarkRequested) -> None:
         self.marked[message.row] = not self.marked[message.row]
         self._marks_changed()
-        from tui.detail import DetailScreen
+        from halosift.tui.detail import DetailScreen
 
         if isinstance(self.screen, DetailScreen):
             self.screen.marked = bool(self.marked[self.screen.row])
@@ -774,7 +774,7 @@ class HalosiftApp(App[int]):
         self.query_one(LibraryTable).go_to_row(message.row)
 
     def on_detail_requested(self, message: DetailRequested) -> None:
-        from tui.detail import DetailScreen
+        from halosift.tui.detail import DetailScreen
 
         table = self.query_one(LibraryTable)
         self.push_screen(
@@ -785,7 +785,7 @@ class HalosiftApp(App[int]):
 
     def action_help(self) -> None:
         """Show every key, the verdicts, the model's sources and the safety caution."""
-        from tui.help import HelpScreen
+        from halosift.tui.help import HelpScreen
 
         if not isinstance(self.screen, HelpScreen):
             self.push_screen(HelpScreen())
@@ -830,7 +830,7 @@ class HalosiftApp(App[int]):
 
     def action_mark_from_file(self) -> None:
         """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
-        from tui.id_list import IdListScreen
+        from halosift.tui.id_list import IdListScreen
 
         if self.library is None or self.library.id_column is None:
             self.notify("This library has no ID column, so there are no IDs to match", title="Marks",
@@ -846,7 +846,7 @@ class HalosiftApp(App[int]):
     @work(thread=True, exclusive=True, group="ids", exit_on_error=False)
     def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
         """Read an ID list and find its rows (pandas, off the interface thread)."""
-        from tui.id_list import match_ids, read_ids
+        from halosift.tui.id_list import match_ids, read_ids
 
         try:
             ids = read_ids(path, str(id_column))
@@ -887,8 +887,8 @@ class HalosiftApp(App[int]):
 
     def action_filters(self) -> None:
         """Open the filter form."""
-        from tui.filters import site_choices
-        from tui.filter_form import FilterForm
+        from halosift.tui.filters import site_choices
+        from halosift.tui.filter_form import FilterForm
 
         def done(spec: FilterSpec | None) -> None:
             if spec is not None:
@@ -932,7 +932,7 @@ class HalosiftApp(App[int]):
 
     def action_export(self) -> None:
         """Export the shortlist or the current view (CSV, TSV, Parquet or SDF, or an HTML report)."""
-        from tui.export import ExportScreen
+        from halosift.tui.export import ExportScreen
 
         table = self.query_one(LibraryTable)
         protected = [Path(self.source)] if isinstance(self.source, (str, os.PathLike)) else []
@@ -966,11 +966,11 @@ class HalosiftApp(App[int]):
         ``rows`` are the view's rows as shown; for the shortlist they are None and
         the ``marked`` rows are put in ``sort`` order here, off the interface thread.
         """
-        from tui.export import export_frame, export_metadata, write_report_export
-        from tui.filters import ordered_rows
+        from halosift.tui.export import export_frame, export_metadata, write_report_export
+        from halosift.tui.filters import ordered_rows
 
-        import engine
-        from engine.io import about_path, output_format, write_table
+        from halosift import engine
+        from halosift.engine.io import about_path, output_format, write_table
         from halosift.report import is_report_path
 
         try:
@@ -1019,7 +1019,7 @@ def run(
     """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
     if path is None:
         try:
-            from sample_libraries import sample_path
+            from halosift.sample_libraries import sample_path
 
             path = str(sample_path())
         except (ImportError, OSError, ValueError) as exc:
@@ -1030,14 +1030,14 @@ def run(
         return 2
     # Whole-file problems (type, emptiness, missing SMILES column) are cheap to
     # find from the header; say them in one line before taking over the terminal.
-    from engine.io import LibraryError, open_library
+    from halosift.engine.io import LibraryError, open_library
 
     try:
         open_library(path, smiles_column=smiles_column, id_column=id_column)
     except LibraryError as exc:
         print(f"halosift: {exc}", file=sys.stderr)
         return 2
-    from tui.structure_view import detect_graphics
+    from halosift.tui.structure_view import detect_graphics
 
     # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
     graphics = detect_graphics(enabled=images)

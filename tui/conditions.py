@@ -21,8 +21,8 @@ from textual.reactive import reactive
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Input, Label, RadioSet, Static
 
-from tui.messages import ConditionsProposed
-from tui.toggles import ChoiceButton
+from halosift.tui.messages import ConditionsProposed
+from halosift.tui.toggles import ChoiceButton
 
 
 @dataclass(frozen=True)

@@ -19,8 +19,8 @@ from textual.screen import Screen
 from textual.widgets import Footer, Static
 from textual.worker import get_current_worker
 
-from tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
-from tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
+from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
+from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -82,7 +82,7 @@ def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
 
 def poly_text(products: pd.DataFrame) -> Text:
     """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap."""
-    from engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
 
     text = Text()
     text.append("\nPolyhalogenation", style="bold")
@@ -135,7 +135,7 @@ class DetailResult:
 
 def work_out_detail(library: Any, row: int, canonical_smiles: str, conditions: Any, graphics: str | None) -> DetailResult:
     """The products, NBS products and drawing of one row (slow: may perceive the structure again with RDKit)."""
-    from tui.structure_view import structure_picture
+    from halosift.tui.structure_view import structure_picture
 
     products = library.products(row, conditions)
     nbs = library.nbs_products(row, conditions)
@@ -339,7 +339,7 @@ class DetailScreen(Screen):
         width = max(40, self.size.width - 6)  # padding and scroll bar of the body
         products_box.update(Group(Text("Products", style="bold"), products_table(products)))
         if draw:
-            from tui.structure_view import picture_widget
+            from halosift.tui.structure_view import picture_widget
 
             box = self.query_one("#detail-structure", Vertical)
             box.remove_children()
@@ -359,7 +359,7 @@ class DetailScreen(Screen):
         )
         for s in stereo:
             notes.append(f"{s}: {STEREO_DOCS.get(s, '')}\n")
-        from engine.special_sites import flag_notes  # engine is loaded by now: a library is shown
+        from halosift.engine.special_sites import flag_notes  # engine is loaded by now: a library is shown
 
         confidence = str(record.get("confidence", ""))
         if confidence:

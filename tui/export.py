@@ -16,7 +16,7 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, RadioSet, Static
 
-from tui.toggles import ChoiceButton
+from halosift.tui.toggles import ChoiceButton
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -46,7 +46,7 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
     writable; the extension must be one the writer knows; the path must not
     be one of ``protected`` (the library being screened).
     """
-    from engine.io import LibraryError, output_format
+    from halosift.engine.io import LibraryError, output_format
     from halosift.report import is_report_path
 
     text = text.strip()
@@ -75,7 +75,7 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
 
 def existing_targets(path: Path, fmt: str) -> list[Path]:
     """Files the export would replace (the data file, and the CSV/TSV sidecar)."""
-    from engine.io import about_path
+    from halosift.engine.io import about_path
 
     targets = [path, about_path(path)] if fmt in ("csv", "tsv") else [path]
     return [t for t in targets if t.exists()]
@@ -92,7 +92,7 @@ def export_frame(frame: pd.DataFrame, rows: np.ndarray) -> pd.DataFrame:
 
 def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, str]:
     """The engine's provenance record (conditions, sources, safety caution) plus what was selected, from where."""
-    from engine.provenance import export_metadata as provenance
+    from halosift.engine.provenance import export_metadata as provenance
 
     warnings = conditions.warnings()
     return provenance(

@@ -11,10 +11,10 @@ from textual.containers import Grid, Horizontal, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, RadioSet, Static
 
-from tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
-from tui.toggles import ChoiceButton, TickBox
+from halosift.tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
+from halosift.tui.toggles import ChoiceButton, TickBox
 
-from engine.outcomes import VERDICTS
+from halosift.engine.outcomes import VERDICTS
 
 #: Verdict names in display order (the engine's own order).
 VERDICT_ORDER = VERDICTS

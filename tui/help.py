@@ -13,10 +13,10 @@ from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 
-from tui.filters import NO_NEW_STEREO, VIEW_DOCS
+from halosift.tui.filters import NO_NEW_STEREO, VIEW_DOCS
 
-from engine.outcomes import OUTCOME_DOCS
-from engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
+from halosift.engine.outcomes import OUTCOME_DOCS
+from halosift.engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
 
 #: What each verdict means ({threshold} is filled in with the current threshold); the engine words them.
 VERDICT_DOCS: dict[str, str] = {
@@ -41,8 +41,8 @@ CONFIDENCE_NOTE = (
 
 
 def sources() -> list[tuple[str, str]]:
-    """The model's sources, in brief; the numbers quoted are read from engine.parameters."""
-    from engine.parameters import ALKENE_SUBSTITUTION_T_C, BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
+    """The model's sources, in brief; the numbers quoted are read from halosift.engine.parameters."""
+    from halosift.engine.parameters import ALKENE_SUBSTITUTION_T_C, BR_RATIOS, BR_REFERENCE_T_K, CL_RANGE_K, KELVIN
 
     ratios = " : ".join(f"{BR_RATIOS[k].value:g}" for k in ("primary", "secondary", "tertiary"))
     lo, hi = (t - KELVIN for t in CL_RANGE_K)
@@ -67,14 +67,14 @@ def verdict_text(verdict: str, threshold_pct: float) -> str:
 
 def _bindings_table(app) -> Group:
     """Every key the app answers to, read from the classes' own binding lists."""
-    from tui.app import HalosiftApp
-    from tui.conditions import ConditionsScreen
-    from tui.detail import DetailScreen
-    from tui.export import ConfirmScreen, ExportScreen
-    from tui.filter_form import FilterForm
-    from tui.id_list import IdListScreen
-    from tui.search import SearchBar
-    from tui.table import LibraryTable
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.conditions import ConditionsScreen
+    from halosift.tui.detail import DetailScreen
+    from halosift.tui.export import ConfirmScreen, ExportScreen
+    from halosift.tui.filter_form import FilterForm
+    from halosift.tui.id_list import IdListScreen
+    from halosift.tui.search import SearchBar
+    from halosift.tui.table import LibraryTable
 
     groups = (
         ("Anywhere (not while typing in a field)", [b for b in HalosiftApp.BINDINGS if b.action in ("leave", "help")]),
@@ -184,7 +184,7 @@ class HelpScreen(Screen):
         return self._section("Views (v cycles them), marks and sessions", rows)
 
     def _columns(self) -> Table:
-        from engine.special_sites import FLAG_NOTES
+        from halosift.engine.special_sites import FLAG_NOTES
 
         rows = [
             ("confidence", CONFIDENCE_NOTE + "; shown in the site detail and with o"),
@@ -208,7 +208,7 @@ class HelpScreen(Screen):
 
     @staticmethod
     def _caution() -> Text:
-        from engine import CAUTION
+        from halosift.engine import CAUTION
 
         return Text(CAUTION, style="bold")
 

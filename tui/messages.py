@@ -161,7 +161,7 @@ class DetailReady(Message):
     request: int
     """Which request of the detail screen this answers; older answers are dropped."""
     result: Any
-    """A :class:`tui.detail.DetailResult`."""
+    """A :class:`halosift.tui.detail.DetailResult`."""
 
 
 @dataclass

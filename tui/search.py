@@ -8,7 +8,7 @@ from textual.binding import Binding, BindingType
 from textual.timer import Timer
 from textual.widgets import Input
 
-from tui.messages import PanelClosed, SearchChanged
+from halosift.tui.messages import PanelClosed, SearchChanged
 
 #: Seconds of quiet typing before the filter is applied (each keystroke would
 #: otherwise start a scan of a possibly million-row table).

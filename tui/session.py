@@ -20,7 +20,7 @@ from typing import Any
 
 import numpy as np
 
-from tui.filters import VIEWS, FilterSpec, SortSpec
+from halosift.tui.filters import VIEWS, FilterSpec, SortSpec
 
 #: Environment variable naming the folder sessions are kept in.
 SESSION_ENV = "HALOSIFT_SESSION_DIR"
@@ -145,7 +145,7 @@ def conditions_record(conditions: Any) -> dict[str, Any]:
 
 def restore_conditions(record: dict[str, Any]) -> Any:
     """engine.Conditions from a saved record, checked with validate(); ValueError (one line) when unusable."""
-    from engine import Conditions
+    from halosift.engine import Conditions
 
     names = {f.name for f in fields(Conditions)}
     unknown = set(record) - names

@@ -4,7 +4,7 @@ Terminals that speak an inline-image protocol (Sixel, or the Kitty graphics
 protocol) get the RDKit drawing with every site labelled by its predicted
 split; every other terminal gets a one-line text note instead. Detection has
 to happen before Textual takes over the terminal, so :func:`detect_graphics`
-is called from :func:`tui.app.run`.
+is called from :func:`halosift.tui.app.run`.
 """
 
 from __future__ import annotations
@@ -75,7 +75,7 @@ def structure_picture(graphics: str | None, canonical_smiles: str, products: pd.
 
         from halosift.report.drawing import structure_png
 
-        from engine import quiet_rdkit
+        from halosift.engine import quiet_rdkit
 
         with quiet_rdkit():
             png = structure_png(canonical_smiles, marks_for(products))

@@ -22,7 +22,7 @@ from textual.reactive import reactive
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
-from tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
+from halosift.tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
 
 if TYPE_CHECKING:
     import pandas as pd

@@ -166,7 +166,7 @@ def open_delimited(
     """Check a CSV/TSV file (encoding, header, at least one row) and return its source.
 
     The file is opened once: its bytes are read whole, offered to Arrow's parser
-    (:mod:`engine.io.fastcsv`) and, when that declines, streamed from memory by the
+    (:mod:`halosift.engine.io.fastcsv`) and, when that declines, streamed from memory by the
     careful reader.
     """
     data = read_bytes(path, gzipped)

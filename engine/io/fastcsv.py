@@ -1,6 +1,6 @@
 """The fast path for plainly well-formed CSV/TSV: one pyarrow.csv parse of the whole file.
 
-The careful reader in :mod:`engine.io.delimited` accounts for every damaged line
+The careful reader in :mod:`halosift.engine.io.delimited` accounts for every damaged line
 (stray quotes, ragged rows, undecodable bytes) but runs Python per row. Most
 catalogues are clean, so the file is first offered to Arrow's C++ parser under
 conditions in which both readers are known to agree cell for cell; anything

@@ -11,7 +11,7 @@ import pandas as pd
 from rdkit import Chem
 from rdkit.Chem import rdDepictor
 
-from engine.rdkit_log import quiet_rdkit
+from halosift.engine.rdkit_log import quiet_rdkit
 from .columns import ID_NAMES, SMILES_NAMES, choose, detect
 from .errors import LibraryError
 from .source import LibrarySource, RawBatch

@@ -16,7 +16,7 @@ from halosift.report.drawing import SiteMark, colour_hex, structure_svg
 from halosift.report.style import STYLESHEET
 
 if TYPE_CHECKING:
-    from engine import Conditions, Library
+    from halosift.engine import Conditions, Library
 
 #: Default cap on per-substrate sections (a printed report beyond this is rarely read).
 DEFAULT_MAX_PAGES = 200
@@ -27,7 +27,7 @@ PRODUCTS_BARS = 10
 
 def verdict_meaning(threshold_pct: float) -> dict[str, str]:
     """What each verdict means, written out (the report never relies on colour); engine.outcomes words them."""
-    from engine.outcomes import verdict_docs
+    from halosift.engine.outcomes import verdict_docs
 
     return verdict_docs(threshold_pct)
 
@@ -111,7 +111,7 @@ def _caution_body(caution: str) -> str:
 
 
 def _header(conditions: Conditions, meta: dict[str, str], source: str, selection: str) -> str:
-    from engine.provenance import MODEL_SOURCES
+    from halosift.engine.provenance import MODEL_SOURCES
 
     warnings = conditions.warnings()
     warn = ""
@@ -140,7 +140,7 @@ def _count_row(label: str, key: str, value: int, meaning: str = "") -> str:
 
 
 def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> str:
-    from engine import VERDICTS
+    from halosift.engine import VERDICTS
 
     n = len(result)
     ok = (result["status"] == "ok").to_numpy()
@@ -194,7 +194,7 @@ def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> 
 
 
 def _key(conditions: Conditions) -> str:
-    from engine.outcomes import outcome_docs
+    from halosift.engine.outcomes import outcome_docs
 
     items = "".join(f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in verdict_meaning(conditions.threshold_pct).items())
     outcome_items = "".join(
@@ -221,7 +221,7 @@ clean):</p>
 def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
     if products.empty:
         return "<p>No abstractable C–H: no monohalide forms by radical abstraction.</p>"
-    from engine.stereo import count_text
+    from halosift.engine.stereo import count_text
 
     body = []
     for letter, p in zip(letters, products.itertuples(index=False)):
@@ -246,7 +246,7 @@ def _legend(sites: Sequence[str]) -> str:
 
 def _section(library: Library, row: int, row_id: str, result_row: pd.Series, conditions: Conditions,
              warnings: list[str]) -> str:
-    from engine import ABSTRACTABLE
+    from halosift.engine import ABSTRACTABLE
 
     products = library.products(row, conditions)
     products = products[products["site"].isin(ABSTRACTABLE)].reset_index(drop=True)
@@ -342,7 +342,7 @@ def render_report(
     up to ``max_pages`` sections, with a note saying how many were left out.
     Rejected rows of the selection are listed with their reasons.
     """
-    from engine.provenance import export_metadata
+    from halosift.engine.provenance import export_metadata
 
     if max_pages < 0:
         raise ValueError("the page cap must be 0 or more")

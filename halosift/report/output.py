@@ -19,7 +19,7 @@ def check_report_output(
     path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
 ) -> Path:
     """Raise engine.LibraryError (one line) now if the report could not or should not be written to ``path``."""
-    from engine.io import LibraryError, guard_output
+    from halosift.engine.io import LibraryError, guard_output
 
     path = Path(path).expanduser()
     if not is_report_path(path):
@@ -31,7 +31,7 @@ def write_report(
     html: str, path: str | os.PathLike[str], *, force: bool = False, protect: Iterable[str | os.PathLike[str]] = ()
 ) -> Path:
     """Write the page to ``path`` atomically (UTF-8); return the path. Problems raise engine.LibraryError."""
-    from engine.io import LibraryError, atomic_path
+    from halosift.engine.io import LibraryError, atomic_path
 
     path = check_report_output(path, force=force, protect=protect)
     try:

@@ -28,9 +28,9 @@ def read_ids(path: str | os.PathLike[str]) -> list[str]:
 
     Raises engine.LibraryError (one line) when the file cannot be read or holds no IDs.
     """
-    from engine.io import LibraryError
+    from halosift.engine.io import LibraryError
 
-    from engine.io.readers import not_regular
+    from halosift.engine.io.readers import not_regular
 
     path = Path(path)
     try:
@@ -67,7 +67,7 @@ def select_rows(
     library's input column); it is required when ``ids`` is given. IDs are
     compared as text with surrounding spaces removed.
     """
-    from engine.io import LibraryError
+    from halosift.engine.io import LibraryError
 
     keep = np.ones(len(result), dtype=bool)
     parts: list[str] = []

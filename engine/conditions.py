@@ -7,7 +7,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from halosift.engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
-from halosift.engine.rates import RateTable, rate_table
+from halosift.engine.rates import RateTable, product_basis, rate_table
 from halosift.engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
@@ -78,17 +78,18 @@ class Conditions:
         return scale_rates(k, self.solvent_exponent(reagent))
 
     def bases(self, reagent: str) -> np.ndarray:
-        """What each site code's rate rests on: measured / textbook / estimate / 'not abstracted'.
+        """What each site code's product share rests on: measured / textbook / from memory / estimate / 'not abstracted'.
 
-        A solvent scaling is an interpolation applied to every class, so it
-        makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
+        The rate's basis, weakened to 'from memory' when its source says so and by any split of the product
+        (exo/endo, allylic termini: engine.rates.product_basis). A solvent scaling is an interpolation
+        applied to every class, so it makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
         an assumption (common practice), so its rates are estimates too.
         """
         table = self.table(reagent)
         assumed = reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
         out = np.full(len(SITE_CLASSES), "not abstracted", dtype=object)
         for i, site in enumerate(ABSTRACTABLE):
-            out[i] = "estimate" if assumed else table.params[site].basis
+            out[i] = "estimate" if assumed else product_basis(table, site)
         return out
 
     def validate(self) -> None:

@@ -42,7 +42,7 @@ class ProductRecord:
     dh: dict[str, float]
     """ΔH of H abstraction by each radical ('cl', 'br'), kcal/mol."""
     rate_basis: dict[str, str]
-    """Per reagent: measured / textbook / estimate / not abstracted (what the rate constant rests on)."""
+    """Per reagent: measured / textbook / from memory / estimate / not abstracted (what the share rests on: rate and any exo/endo or allyl-terminus split)."""
     relative_rate: dict[str, float]
     """Per reagent: rate per H relative to a primary C–H at the same temperature."""
     stereo: str
@@ -89,7 +89,7 @@ class NbsProduct:
     pct: float
     """Percent of the NBS monobromides."""
     rate_basis: str = "estimate"
-    """Weakest basis of the Br· rates of the sites that give it: measured / textbook / estimate."""
+    """Weakest basis of the Br· rates of the sites that give it and of the terminus split: measured / textbook / from memory / estimate."""
 
 
 @dataclass(frozen=True)

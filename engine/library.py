@@ -49,11 +49,14 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (
-        "measured / textbook / estimate: the weakest basis (estimate weakest, measured strongest) of the rate "
-        "constants behind the products that carry at least 5 % of the Cl2, Br2 or NBS monohalides; a product "
-        "counts only for the reagent under which it reaches 5 %, and only reagents whose outcome is not ruled-out "
-        "count (SO2Cl2, whose constants are Cl2's by assumption, only when it is the reagent offered); a Cl2 "
-        "solvent makes every Cl2 rate an estimate; empty when rejected, inert or ruled-out"
+        "measured / textbook / from memory / estimate: the weakest basis (estimate weakest, measured strongest) "
+        "of the values behind the products that carry at least 5 % of the Cl2, Br2 or NBS monohalides — each "
+        "product's rate constant and any split of it (exo/endo of a norbornane 2-halide, the two ends of an allyl "
+        "radical); 'from memory' when a published value behind them was quoted from memory, not re-checked "
+        "against its source; a product counts only for the reagent under which it reaches 5 %, and only reagents "
+        "whose outcome is not ruled-out count (SO2Cl2, whose constants are Cl2's by assumption, only when it is "
+        "the reagent offered); a Cl2 solvent makes every Cl2 rate an estimate; empty when rejected, inert or "
+        "ruled-out"
     ),
     "nbs_major": (
         "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "

@@ -4,10 +4,13 @@ Nothing else in the engine holds a chemical constant. Values are tagged with a
 ``basis`` so every prediction can say what it stands on:
 
 * ``measured``  – a published measurement, cited;
-* ``textbook``  – a standard textbook value (cited, but checked from memory);
+* ``textbook``  – a standard textbook value (cited);
 * ``estimate``  – derived here (Bell–Evans–Polanyi, additivity), with the
   assumption stated;
-* values we could not re-check against the paper are marked "from memory".
+* values we could not re-check against the paper are marked "from memory" in
+  their source text; :func:`halosift.engine.rates.stated_basis` reads that
+  marker, so a prediction resting on such a value reports ``from memory``
+  rather than ``measured`` or ``textbook`` (the ``confidence`` column).
 """
 
 from __future__ import annotations
@@ -148,14 +151,16 @@ CL_LOW_T_K = 298.15
 
 # Benzylic C–H toward Cl·.
 # Gas phase: Cl + toluene k = 5.9e-11 cm³ molecule⁻¹ s⁻¹ at 298 K, all benzylic abstraction
-# (Shi & Bernhard, Int. J. Chem. Kinet. 1997, 29, 349, as quoted by Finlayson-Pitts & Pitts,
-# Chemistry of the Upper and Lower Atmosphere, 2000; journal pages from memory). Its temperature
+# (Shi & Bernhard, Int. J. Chem. Kinet. 1997, as quoted by Finlayson-Pitts & Pitts, Chemistry of
+# the Upper and Lower Atmosphere, 2000). The value was checked against a published excerpt of that
+# book (climate-policy-watcher.org/aromatic-hydrocarbons/ch-1.html: toluene 0.59e-10, benzene
+# 1.3e-15, Shi and Bernhard 1997); the journal's volume and pages were not. Its temperature
 # dependence is slight (from memory), so the benzylic excess over an alkyl C–H of the same degree
 # is put into A, not Ea (estimate).
 CL_TOLUENE_K298 = Value(
     5.9e-11, "measured",
     "Cl + toluene, 298 K, gas phase: 5.9e-11 cm³ molecule⁻¹ s⁻¹ for 3 benzylic H (Shi & Bernhard 1997, "
-    "quoted in Finlayson-Pitts & Pitts 2000; pages from memory)",
+    "quoted in Finlayson-Pitts & Pitts 2000; value checked against an excerpt of the book, journal pages not)",
 )
 CL_TOLUENE_H = 3
 # Liquid phase: photochlorination of ethylbenzene gives α 90 % / β 10 %, and over 22–98 °C the

@@ -305,6 +305,49 @@ def rate_table(radical: str, phase: str = "gas") -> RateTable:
     return _derive(radical, "liquid" if radical == "br" else phase)
 
 
+#: What a prediction can rest on, weakest first (the ``confidence`` ranking): an ``estimate`` (derived or assumed
+#: here), a published value quoted ``from memory`` (not re-checked against its source; the project marks every
+#: such value so in its source text), a ``textbook`` value, a ``measured`` value checked against its publication.
+CONFIDENCE_BASES: tuple[str, ...] = ("estimate", "from memory", "textbook", "measured")
+#: The marker engine.parameters puts in the source of every value quoted from memory (a project rule).
+FROM_MEMORY = "from memory"
+
+
+def stated_basis(basis: str, source: str) -> str:
+    """A value's basis for ``confidence``: 'from memory' when a published value's source says it was recalled."""
+    if basis != "estimate" and FROM_MEMORY in source:
+        return FROM_MEMORY
+    return basis
+
+
+def weakest(*bases: str) -> str:
+    """The weakest of ``bases`` in :data:`CONFIDENCE_BASES` order."""
+    return CONFIDENCE_BASES[min(CONFIDENCE_BASES.index(b) for b in bases)]
+
+
+def _product_values(site: str, radical: str) -> tuple[P.Value, ...]:
+    """Values besides the site's rate that the share of its product rests on.
+
+    A norbornane C2-type site's product is split exo/endo (:data:`P.EXO_FRACTION`); an allylic radical
+    (an allylic site, or a ``conjugated`` one) puts the halogen on either terminus, weighed by
+    :data:`P.NBS_SUBSTITUENT_FACTOR` — under NBS, and under Cl2/Br2/SO2Cl2 above the temperature at which
+    a C=C substrate substitutes (below it those reagents are ruled out for any substrate with allylic C–H).
+    """
+    if site.startswith("norbornyl-2-"):
+        return (P.EXO_FRACTION[radical],)
+    if site.startswith("allylic-") or site == "conjugated":
+        return (P.NBS_SUBSTITUENT_FACTOR, P.NBS_CONJUGATION_SUBSTITUENTS) if site == "conjugated" else (
+            P.NBS_SUBSTITUENT_FACTOR,)
+    return ()
+
+
+def product_basis(table: RateTable, site: str) -> str:
+    """What the share of a site's product rests on: its rate's basis and that of any split of the product."""
+    p = table.params[site]
+    own = stated_basis(p.basis, p.source)
+    return weakest(own, *(stated_basis(v.basis, v.source) for v in _product_values(site, table.radical)))
+
+
 def exo_fraction(site: str, radical: str) -> float | None:
     """Share of the exo 2-halide among the 2-halides of a norbornane C2-type site; None for other sites."""
     if not site.startswith("norbornyl-2-"):
@@ -317,4 +360,5 @@ def enthalpy_of_abstraction(site: str, radical: str) -> float:
     return site_bde(site).value - P.BDE_HX[radical].value
 
 
-__all__ = ["BICYCLIC", "PHASES", "RADICALS", "RateTable", "TABLES", "exo_fraction", "rate_table"]
+__all__ = ["BICYCLIC", "CONFIDENCE_BASES", "PHASES", "RADICALS", "RateTable", "TABLES", "exo_fraction", "product_basis",
+           "rate_table", "stated_basis", "weakest"]

@@ -37,8 +37,9 @@ from halosift.engine.nbs import NBS_SITES, nbs_majors, nbs_percent
 from halosift.engine.outcomes import (
     FEATURES, OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, SITE_REAGENTS, VERDICTS, pathway_applies, reagent_outcomes,
 )
-from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
 from halosift.engine.perception import Perception
+from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
+from halosift.engine.rates import CONFIDENCE_BASES
 from halosift.engine.shares import blocks_by_length, percent_of_structure
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
 
@@ -52,8 +53,8 @@ SUMMARY_COLUMNS = (
 SERVES_ORDER = OUTCOME_REAGENTS
 #: Reagents with a polyhalide column (so2cl2 is weighed for its outcome only).
 POLY_REAGENTS = tuple(REAGENTS)
-#: Weakest first: the order in which a prediction's bases are ranked.
-BASES = ("estimate", "textbook", "measured")
+#: Weakest first: the order in which a prediction's bases are ranked (engine.rates.CONFIDENCE_BASES).
+BASES = CONFIDENCE_BASES
 #: A product counts towards ``confidence`` when it carries at least this share
 #: of either reagent's monohalides (a definition of this program, not chemistry).
 CONFIDENCE_MIN_PCT = 5.0

@@ -75,7 +75,7 @@ def explanation_table(
             "ruled-out reagents do not count)"
         )
     lines.append("units      BDE and ΔH in kcal/mol; * marks an estimated bond enthalpy")
-    lines.append("basis      what each rate constant rests on: measured / textbook / estimate (engine/parameters.py)")
+    lines.append("basis      what each product share rests on: measured / textbook / from memory / estimate (engine/parameters.py)")
     lines.extend(f"flag       {f.flag}: {f.note} [{f.source}]" for f in result.flags)
     lines.extend(f"note       {r}: {REAGENT_NOTES[r]}" for r in [*reagents, *([NBS] if nbs else [])]
                  if r in REAGENT_NOTES)

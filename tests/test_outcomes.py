@@ -163,11 +163,12 @@ def test_threshold_moves_clean_and_mixture_only() -> None:
 def test_confidence_ignores_ruled_out_reagents() -> None:
     # trans-2-pentene: Cl2/Br2/SO2Cl2 are ruled out, so the prediction rests on NBS's allylic Br· rates, which are
     # Bell–Evans–Polanyi estimates (engine.parameters): confidence says estimate.
-    # Gas-phase Cl· rates: propane's rest on the textbook Br· and measured Cl· fits. The neat-liquid default
-    # scales Cl· by an estimated factor, so propane reads estimate there.
+    # Gas-phase Cl· rates: propane's rest on Morrison & Boyd's Br· ratios and Hass, McBee & Weber's 300 °C
+    # Cl· ratios, both quoted from memory, so it reads "from memory". The neat-liquid default scales Cl· by an
+    # estimated factor, so propane reads estimate there.
     frame = pd.DataFrame({"smiles": ["C/C=C/CC", "C1C23CC12C3", "CCC"]})
     row = engine.screen(frame, engine.Conditions(cl2_phase="gas"), use_cache=False)
-    assert list(row["confidence"]) == ["estimate", "", "textbook"]
+    assert list(row["confidence"]) == ["estimate", "", "from memory"]
     assert list(engine.screen(frame, use_cache=False)["confidence"]) == ["estimate", "", "estimate"]
     e = engine.explain("C/C=C/CC")
     assert e.confidence() == "estimate" and e.confidence(("cl2", "br2")) == ""  # both ruled out: nothing rests

@@ -35,8 +35,9 @@ STEREO_DOCS: dict[str, str] = {
 
 #: What the confidence column means (also quoted by the detail screen).
 CONFIDENCE_NOTE = (
-    "the weakest basis (measured > textbook > estimate) of the rate constants behind the products that carry "
-    "≥ 5 % under Cl2 or Br2"
+    "the weakest basis (measured > textbook > from memory > estimate) of the values behind the products that "
+    "carry ≥ 5 % under Cl2, Br2 or NBS (rate constants, exo/endo and allyl-terminus splits); 'from memory': a "
+    "published value quoted without re-checking its source"
 )
 
 

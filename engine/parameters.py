@@ -125,9 +125,11 @@ CL_RANGE_K = (295.0, 300.0 + KELVIN)
 # CH2) (Sarzyński & Sztuba, fits above), and ethane's CH3 (next to CH3) ≈ 0.97× propane's CH3 (JPL
 # 19-5, below) — where the relationship predicts 0.79, 1.0 and 1.27. Its own constants (k_prim
 # 3.32e-11, k_sec 8.34e-11, k_tert 6.09e-11 per group) give propane 39/61 and isobutane 56/44
-# against the published 45/55 and 62–64/36, where the site fits give 45/55 and 64/36. The engine
-# therefore keeps one rate per class; tests/test_rates.py checks the neighbour-independence on
-# these data. (The site code could carry a neighbour count; with F ≈ 1 it would change nothing.)
+# against the published 45/55 and 62–64/36, where the site fits give 45/55 and 64/36 (n-butane:
+# SAR 28.5/71.5, model 28.8/71.2, published 28/72); its factors on this model's class rates put
+# n-butane at 33.9/66.1. The engine therefore keeps one rate per class; tests/test_rates.py checks
+# the neighbour-independence on the site fits, tests/test_neighbour_sar.py the distributions.
+# (The paper's table was searched for and not found, so the constants stay "from memory".)
 CL_SAR_F_NONMETHYL = Value(0.79, "measured", "Aschmann & Atkinson, Int. J. Chem. Kinet. 1995, 27, 613 (from memory; "
                            "not used, see above)")
 CL_SAR_GROUP_K298 = {"primary": 3.32e-11, "secondary": 8.34e-11, "tertiary": 6.09e-11}  # same source; per group

@@ -16,7 +16,8 @@ Model (an estimate; the assumptions are the whole of it):
    ratio at 25 °C (Russell's neat point, ≈ 4, by construction of
    :func:`halosift.engine.rates.neat_liquid_exponent`) becomes the interpolated measured
    ratio; the same ``s`` is applied at every temperature and to every alkyl
-   site class (secondary, bicyclic …), which Russell's data do not test.
+   site class (secondary, bicyclic …), which Russell's data do not test; no per-class
+   solvent data with numbers were found (README, *Solvent*), so none are entered.
    Benzylic, allylic and propargylic classes keep their excess over the alkyl
    class of the same degree unscaled: the liquid benzylic data were measured
    on neat alkylbenzenes, which are an aromatic medium already (an estimate;

@@ -83,10 +83,13 @@ class Conditions:
         The rate's basis, weakened to 'from memory' when its source says so and by any split of the product
         (exo/endo, allylic termini: engine.rates.product_basis). A solvent scaling is an interpolation
         applied to every class, so it makes every Cl2 rate an estimate; so2cl2 borrows the Cl· constants on
-        an assumption (common practice), so its rates are estimates too.
+        an assumption (common practice), so its rates are estimates too. Outside the temperature range of
+        the reagent's rate data (the range :meth:`warnings` names) every rate is an extrapolation: an estimate.
         """
         table = self.table(reagent)
-        assumed = reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
+        lo, hi = table.valid_k
+        assumed = (reagent == "so2cl2" or self.solvent_exponent(reagent) != 1.0
+                   or not lo <= self.temp_k(reagent) <= hi)
         out = np.full(len(SITE_CLASSES), "not abstracted", dtype=object)
         for i, site in enumerate(ABSTRACTABLE):
             out[i] = "estimate" if assumed else product_basis(table, site)

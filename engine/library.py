@@ -55,8 +55,8 @@ RESULT_DOCS: dict[str, str] = {
         "radical); 'from memory' when a published value behind them was quoted from memory, not re-checked "
         "against its source; a product counts only for the reagent under which it reaches 5 %, and only reagents "
         "whose outcome is not ruled-out count (SO2Cl2, whose constants are Cl2's by assumption, only when it is "
-        "the reagent offered); a Cl2 solvent makes every Cl2 rate an estimate; empty when rejected, inert or "
-        "ruled-out"
+        "the reagent offered); a Cl2 solvent, and a temperature outside the range of a reagent's rate data, make "
+        "its rates estimates; empty when rejected, inert or ruled-out"
     ),
     "nbs_major": (
         "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "

@@ -58,6 +58,21 @@ def test_measured_only_prediction_says_measured() -> None:
     assert engine.explain("CCc1ccccc1").confidence(("cl2",)) == "measured"
 
 
+def test_extrapolated_temperature_is_an_estimate() -> None:
+    # Outside the temperature range of a reagent's rate data (Conditions.warnings names it) every rate is an
+    # extrapolation. Gas-phase Cl·: Sarzyński & Sztuba's 295–469 K and the 300 °C vapour-phase data.
+    inside = Conditions(cl2_temp_c=250.0, cl2_phase="gas")
+    outside = Conditions(cl2_temp_c=450.0, cl2_phase="gas")
+    assert not inside.warnings(("cl2",)) and outside.warnings(("cl2",))
+    assert engine.explain("CC(C)(C)C", inside).confidence(("cl2",)) == "measured"
+    assert engine.explain("CC(C)(C)C", outside).confidence(("cl2",)) == "estimate"
+    # 1-butene at 450 °C, where Cl2 substitutes rather than adds: its CH3 product too is an extrapolation.
+    e = engine.explain("C=CCC", outside)
+    assert {p.rate_basis["cl2"] for p in e.products if p.pct["cl2"] > 0} == {"estimate"}
+    # Br·: the 127 °C ratios and the reverse kinetics span 298–536 K.
+    assert engine.explain("CC(C)(C)C", Conditions(br2_temp_c=300.0)).confidence(("br2",)) == "estimate"
+
+
 def test_norbornane_exo_split_counts() -> None:
     # The 2-halide's exo/endo split is part of the prediction: under Br2 it is an estimate (EXO_FRACTION['br']),
     # so norbornane + Br2 is an estimate although the open-chain secondary Br· rate is textbook (from memory);

@@ -111,3 +111,103 @@ def test_readme_quotes_the_evaluation() -> None:
     assert total is not None
     for got, mode in zip(total.groups(), ("model", "own", "factors")):
         assert float(got) == pytest.approx(sum(error(c, mode) for c in SAR_CHECKS), abs=0.15), mode
+
+
+# --- Whole-molecule rate constants -----------------------------------------------------------------------------
+#: Cl + alkane, gas phase, 298 K: (name, SMILES, k cm³ molecule⁻¹ s⁻¹, stated uncertainty). Source: the evaluated
+#: compilation of gas-phase rate constants shipped as the ``reactions`` data set of the gt R package
+#: (github.com/rstudio/gt, data-raw/reactions.csv, commit 042da4e8b42231b89844de523e1fa457f3be8e13, columns
+#: Cl_k298 and Cl_unc; that it reproduces McGillen et al., Earth Syst. Sci. Data 2020, is from memory). None of
+#: these numbers set a model parameter (the model's Cl· constants are Sarzyński & Sztuba's site fits).
+WHOLE_MOLECULE = (
+    ("ethane", "CC", 5.80e-11, 0.15),
+    ("propane", "CCC", 1.40e-10, 0.15),
+    ("n-butane", "CCCC", 2.05e-10, 0.15),
+    ("2-methylpropane", "CC(C)C", 1.40e-10, 0.10),
+    ("2,2-dimethylpropane", "CC(C)(C)C", 1.10e-10, 0.18),
+    ("n-pentane", "CCCCC", 2.70e-10, 0.15),
+    ("2-methylbutane", "CCC(C)C", 2.10e-10, 0.14),
+    ("n-hexane", "CCCCCC", 3.30e-10, 0.15),
+    ("2-methylpentane", "CCCC(C)C", 2.80e-10, 0.14),
+    ("3-methylpentane", "CCC(CC)C", 2.69e-10, 0.20),
+    ("2,3-dimethylbutane", "CC(C)C(C)C", 2.20e-10, 0.14),
+    ("n-heptane", "CCCCCCC", 3.80e-10, 0.16),
+    ("n-octane", "CCCCCCCC", 4.40e-10, 0.16),
+    ("2,2,4-trimethylpentane", "CC(C)CC(C)(C)C", 2.50e-10, 0.16),
+    ("n-nonane", "CCCCCCCCC", 4.60e-10, 0.20),
+    ("n-decane", "CCCCCCCCCC", 5.27e-10, 0.21),
+    ("cyclopentane", "C1CCCC1", 2.90e-10, 0.21),
+    ("cyclohexane", "C1CCCCC1", 3.30e-10, 0.15),
+    ("methylcyclohexane", "CC1CCCCC1", 3.54e-10, 0.15),
+)
+_DEGREE_OF_H = {3: "primary", 2: "secondary", 1: "tertiary"}
+#: What the 'pair' variant is fitted on (the one molecule; every other row is a check of it).
+PAIR_FIT = "cyclohexane"
+
+
+def _groups(smiles: str) -> list[tuple[str, int, int]]:
+    """Per H-bearing carbon (methane excepted): its class, H count and number of non-methyl carbon neighbours."""
+    mol = Chem.MolFromSmiles(smiles)
+    return [
+        (_DEGREE_OF_H[a.GetTotalNumHs()], a.GetTotalNumHs(),
+         sum(1 for n in a.GetNeighbors() if n.GetTotalNumHs() < 3))
+        for a in mol.GetAtoms() if 1 <= a.GetTotalNumHs() <= 3
+    ]
+
+
+def whole_k(smiles: str, mode: str, pair: float = 1.0) -> float:
+    """k(298 K) of the whole molecule: 'model' (one rate per class), 'own' (the SAR), or 'pair' (a CH2 between
+    two non-methyl carbons × ``pair``, every other site as the model)."""
+    k = rate_table("cl", "gas").per_h(298.0)
+    f = P.CL_SAR_F_NONMETHYL.value
+    total = 0.0
+    for degree, h, n in _groups(smiles):
+        if mode == "own":
+            total += P.CL_SAR_GROUP_K298[degree] * f**n
+        else:
+            factor = pair if (mode == "pair" and degree == "secondary" and n == 2) else 1.0
+            total += h * k[SITE_CODE[degree]] * factor
+    return total
+
+
+def pair_factor() -> float:
+    """The 'pair' factor that makes cyclohexane's k(298 K) the measured one."""
+    name, smiles, k, _ = next(row for row in WHOLE_MOLECULE if row[0] == PAIR_FIT)
+    return k / whole_k(smiles, "model")
+
+
+def ratios(name: str) -> tuple[float, float, float]:
+    """Predicted / measured k(298 K) for the model, the SAR and the pair variant."""
+    _, smiles, k, _ = next(row for row in WHOLE_MOLECULE if row[0] == name)
+    return (whole_k(smiles, "model") / k, whole_k(smiles, "own") / k, whole_k(smiles, "pair", pair_factor()) / k)
+
+
+def test_whole_molecule_open_chains_up_to_c8_within_uncertainty() -> None:
+    # Independent: the one-rate-per-class model sums to the compiled k(298 K) of every open-chain alkane up to
+    # C8 (branched ones included) within the compilation's stated uncertainty.
+    for name, smiles, k, unc in WHOLE_MOLECULE:
+        if "cyclo" in name or Chem.MolFromSmiles(smiles).GetNumAtoms() > 8:
+            continue
+        assert ratios(name)[0] == pytest.approx(1.0, abs=unc), name
+
+
+def test_whole_molecule_rings_and_long_chains_are_overestimated() -> None:
+    # The model's known shortcoming (README, "Neighbour effects toward Cl·"): a CH2 between two non-methyl carbons
+    # reacts ≈ 0.76× a CH2 next to a methyl, so rings come out 24–31 % and C9–C10 chains 21–23 % too fast, beyond
+    # the stated uncertainty for cyclohexane and methylcyclohexane. Fixing it must update the README.
+    for name in ("cyclopentane", "cyclohexane", "methylcyclohexane", "n-nonane", "n-decane"):
+        assert ratios(name)[0] > 1.2, name
+    assert pair_factor() == pytest.approx(0.76, abs=0.01)
+    # The pair variant, fitted on cyclohexane alone, brings every other molecule within 7 %.
+    for name, *_ in WHOLE_MOLECULE:
+        assert ratios(name)[2] == pytest.approx(1.0, abs=0.07), name
+
+
+def test_readme_quotes_the_whole_molecule_evaluation() -> None:
+    text = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
+    rows = {m.group(1): m.group(2) for m in re.finditer(r"^\| k298 ([^|]+?) \|(.*)$", text, re.M)}
+    assert set(rows) == {row[0] for row in WHOLE_MOLECULE}
+    for name, got in rows.items():
+        cells = [c.strip() for c in got.split("|")]
+        shown = [float(c) for c in cells[1:4]]
+        assert shown == pytest.approx([round(r, 2) for r in ratios(name)], abs=0.006), name

@@ -335,9 +335,10 @@ def _product_values(site: str, radical: str) -> tuple[P.Value, ...]:
     """
     if site.startswith("norbornyl-2-"):
         return (P.EXO_FRACTION[radical],)
-    if site.startswith("allylic-") or site == "conjugated":
-        return (P.NBS_SUBSTITUENT_FACTOR, P.NBS_CONJUGATION_SUBSTITUENTS) if site == "conjugated" else (
-            P.NBS_SUBSTITUENT_FACTOR,)
+    if site == "conjugated":  # a terminus C=C conjugated further counts one substituent more
+        return (P.NBS_SUBSTITUENT_FACTOR, P.NBS_CONJUGATION_SUBSTITUENTS)
+    if site.startswith("allylic-"):
+        return (P.NBS_SUBSTITUENT_FACTOR,)
     return ()
 
 

@@ -37,8 +37,8 @@ from halosift.engine.nbs import NBS_SITES, nbs_majors, nbs_percent
 from halosift.engine.outcomes import (
     FEATURES, OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, SITE_REAGENTS, VERDICTS, pathway_applies, reagent_outcomes,
 )
-from halosift.engine.perception import Perception
 from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
+from halosift.engine.perception import Perception
 from halosift.engine.rates import CONFIDENCE_BASES
 from halosift.engine.shares import blocks_by_length, percent_of_structure
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE

@@ -172,7 +172,7 @@ def whole_k(smiles: str, mode: str, pair: float = 1.0) -> float:
 
 def pair_factor() -> float:
     """The 'pair' factor that makes cyclohexane's k(298 K) the measured one."""
-    name, smiles, k, _ = next(row for row in WHOLE_MOLECULE if row[0] == PAIR_FIT)
+    _, smiles, k, _ = next(row for row in WHOLE_MOLECULE if row[0] == PAIR_FIT)
     return k / whole_k(smiles, "model")
 
 

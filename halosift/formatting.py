@@ -71,8 +71,8 @@ def explanation_table(
     if confidence:
         counted = result.counted_reagents(asked)
         lines.append(
-            f"confidence {confidence}  (weakest rate basis among products with ≥ 5 % under {', '.join(counted)}; "
-            "ruled-out reagents do not count)"
+            f"confidence {confidence}  (weakest basis of the rates and product splits among products with ≥ 5 % "
+            f"under {', '.join(counted)}; ruled-out reagents do not count)"
         )
     lines.append("units      BDE and ΔH in kcal/mol; * marks an estimated bond enthalpy")
     lines.append("basis      what each product share rests on: measured / textbook / from memory / estimate (engine/parameters.py)")

@@ -136,8 +136,10 @@ CL_RANGE_K = (295.0, 300.0 + KELVIN)
 CL_SAR_F_NONMETHYL = Value(0.79, "measured", "Aschmann & Atkinson, Int. J. Chem. Kinet. 1995, 27, 613 (from memory; "
                            "not used, see above)")
 CL_SAR_GROUP_K298 = {"primary": 3.32e-11, "secondary": 8.34e-11, "tertiary": 6.09e-11}  # same source; per group
-#: Cl + ethane, JPL Publication 19-5: 7.2e-11·exp(−70/T) for 6 H (from memory) — a check of neighbour-independence.
-CL_ETHANE = _from_b(7.2e-11, 6, 70.0, "JPL Publication 19-5, Cl + C2H6, 7.2e-11·exp(−70/T) (from memory)")
+#: Cl + ethane, 7.05e-11·exp(−60/T) for 6 H, 220–600 K, k298 5.8e-11 ± 15 % (the compilation _GT below; JPL 19-5's
+#: 7.2e-11·exp(−70/T), recalled from memory, agrees within 1 % at 298 K) — a check of neighbour-independence.
+CL_ETHANE = _from_b(7.05e-11, 6, 60.0, "compiled Cl + RH rate constants, gt R package data set data-raw/reactions.csv "
+                    "(rstudio/gt @042da4e8): Cl + C2H6, 7.05e-11·exp(−60/T), 220–600 K")
 
 #: Vapour-phase chlorination at 300 °C: per-H relative rates primary : secondary : tertiary
 #: 1 : 3.25 : 4.43 — the rule Hass, McBee & Weber drew from their product analyses of propane,
@@ -272,25 +274,28 @@ BR_BENZYLIC_RATIOS: dict[str, Value] = {
 # JPL Publication 19-5 (Burkholder et al. 2019): 7.1e-12·exp(−1270/T) for 4 H
 # (from memory).
 # ---------------------------------------------------------------------------
-CL_METHANE = _from_b(7.1e-12, 4, 1270.0, "JPL Publication 19-5, Cl + CH4, 7.1e-12·exp(−1270/T) (from memory)")
+#: A compilation of evaluated gas-phase rate constants at hand as a file: the ``reactions`` data set of the gt R
+#: package (github.com/rstudio/gt, data-raw/reactions.csv at commit 042da4e8b42231b89844de523e1fa457f3be8e13,
+#: columns Cl_k298, Cl_unc, Cl_A, Cl_B, Cl_t_low, Cl_t_high; k = A·exp(−B/T)). Values were read from that file;
+#: the primary studies behind them were not re-checked.
+_GT = "compiled Cl + RH rate constants, gt R package data set data-raw/reactions.csv (rstudio/gt @042da4e8)"
+CL_METHANE = _from_b(6.6e-12, 4, 1240.0, _GT + ": Cl + CH4, 6.6e-12·exp(−1240/T), 200–300 K, k298 1.0e-13 ± 15 %")
+#: The JPL 19-5 expression recalled for the same reaction, 7.1e-12·exp(−1270/T) (from memory), gives the same
+#: k(298 K), 1.0e-13; kept as a cross-check (tests/test_rates.py).
+CL_METHANE_JPL = (7.1e-12, 1270.0)
 
 # ---------------------------------------------------------------------------
-# Cl· + cyclopropane, 298 K: k ≈ 1.1e-13 cm³ molecule⁻¹ s⁻¹ for the whole
-# molecule (6 equivalent H), some 500 times slower per H than a primary C–H —
-# ring C–H are unusually strong (common practice; the value is from memory of
-# the gas-phase kinetics literature/NIST kinetics database, not re-checked).
-# Only k(298 K) is used: the A factor per H is taken equal to the secondary
-# anchor's (a ring CH2), and Ea is derived from k and that A (estimate).
-# This replaces a BEP extrapolation whose fitted slope (≈ 0.1) made ring C–H
-# react almost like secondary ones.
+# Cl· + cyclopropane: k = 1.4e-10·exp(−2074/T) for the whole molecule (6 equivalent H), 300–450 K,
+# k(298 K) = 1.4e-13 ± 29 % (the compilation above), some 400 times slower per H than a primary C–H —
+# ring C–H are unusually strong. This replaces k(298 K) ≈ 1.1e-13 recalled from memory with A per H
+# borrowed from the secondary anchor and Ea derived from the two (4.29 kcal/mol; the compiled
+# expression has 4.12), which had replaced a BEP extrapolation whose fitted slope (≈ 0.1) made ring
+# C–H react almost like secondary ones.
 # ---------------------------------------------------------------------------
-CL_CYCLOPROPANE_K298 = Value(
-    1.1e-13,
-    "measured",
-    "Cl + cyclopropane, k(298 K) ≈ 1.1e-13 cm³ molecule⁻¹ s⁻¹ for 6 H (gas phase; from memory, not re-checked)",
+CL_CYCLOPROPANE = _from_b(
+    1.4e-10, 6, 2074.0, _GT + ": Cl + cyclopropane, 1.4e-10·exp(−2074/T), 300–450 K, k298 1.4e-13 ± 29 %"
 )
 CL_CYCLOPROPANE_H = 6
-CL_CYCLOPROPANE_T_K = 298.0
 
 # ---------------------------------------------------------------------------
 # Reagent defaults and verdict threshold (common practice, no source).

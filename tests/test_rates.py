@@ -56,6 +56,20 @@ def test_neat_liquid_matches_russell() -> None:
     assert per_h_ratio("cl", "tertiary", 298.15, "liquid") < per_h_ratio("cl", "tertiary", 298.15, "gas")
 
 
+def test_methane_and_cyclopropane_from_the_compilation() -> None:
+    # Guard: Cl + CH4 and Cl + cyclopropane follow the compiled Arrhenius expressions (gt R package data set
+    # data-raw/reactions.csv: 6.6e-12·exp(−1240/T), 1.4e-10·exp(−2074/T)) inside their ranges.
+    # Independent: JPL 19-5's methane expression as recalled (7.1e-12·exp(−1270/T), from memory) agrees within 5 %.
+    for t in (250.0, 298.0):
+        k = rate_table("cl", "gas").per_h(t)[SITE_CLASSES.index("methane")] * 4
+        assert k == pytest.approx(6.6e-12 * math.exp(-1240 / t), rel=1e-6)
+        a, b = P.CL_METHANE_JPL
+        assert k == pytest.approx(a * math.exp(-b / t), rel=0.05)
+    for t in (300.0, 450.0):
+        k = rate_table("cl", "gas").per_h(t)[SITE_CLASSES.index("cyclopropyl")] * 6
+        assert k == pytest.approx(1.4e-10 * math.exp(-2074 / t), rel=1e-6)
+
+
 def test_bromine_ratios_at_127c() -> None:
     # Guard. Morrison & Boyd (textbook, from memory): 1 : 82 : 1600 per H at 127 °C.
     assert per_h_ratio("br", "secondary", 400.15) == pytest.approx(82, rel=1e-6)
@@ -166,7 +180,7 @@ def test_every_parameter_has_a_source() -> None:
     ],
 )
 def test_cl_rates_do_not_depend_on_neighbours(label: str, k_site: tuple, k_model_site: str) -> None:
-    # Independent: site-resolved Cl· kinetics (Sarzyński & Sztuba 2002; JPL 19-5 for ethane, from memory) show
+    # Independent: site-resolved Cl· kinetics (Sarzyński & Sztuba 2002; the compiled Cl + ethane expression) show
     # per-H rates within 5 % of the propane-based class constant, whatever the neighbours; Aschmann &
     # Atkinson's F = 0.79 (engine.parameters.CL_SAR_F_NONMETHYL, not used) would move two of them by 21–27 %.
     t = 298.0

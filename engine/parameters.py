@@ -170,6 +170,16 @@ CL_TOLUENE_K298 = Value(
     "quoted in Finlayson-Pitts & Pitts 2000; value checked against an excerpt of the book, journal pages not)",
 )
 CL_TOLUENE_H = 3
+#: Cl + ethylbenzene, 298 K, gas phase: 1.29e-10 ± 25 % for the whole molecule (the compilation _GT below). With
+#: the ring H negligible (Cl + benzene 1.3e-15, same excerpt as toluene) and the β CH3 taken as an ordinary primary
+#: C–H (assumption), it fixes the secondary benzylic excess: ≈ 1.4× a secondary alkyl C–H per H, against ≈ 2.0×
+#: for toluene's primary benzylic C–H over a primary one — the excess shrinks with degree, so carrying toluene's
+#: over (as before) made ethylbenzene 1.36× too fast.
+CL_ETHYLBENZENE_K298 = Value(
+    1.29e-10, "measured",
+    "compiled Cl + RH rate constants, gt R package data set data-raw/reactions.csv (rstudio/gt @042da4e8): "
+    "Cl + ethylbenzene, k298 1.29e-10 ± 25 %",
+)
 # Liquid phase: photochlorination of ethylbenzene gives α 90 % / β 10 %, and over 22–98 °C the
 # α and β chlorinations differ in activation energy by 3.13 kcal/mol (α the lower: it is the
 # favoured one) — liquid-phase photochlorination of C6H5R, R = Et, Pr, iPr, Bu, s-Bu, pentyl

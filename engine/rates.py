@@ -100,15 +100,22 @@ def _cl_delocalised(table: dict[str, Arrhenius], phase: str) -> dict[str, Arrhen
     """Benzylic (and, by the same factors, allylic and propargylic) C–H toward Cl·."""
     out = {}
     if phase == "gas":
-        tol = P.CL_TOLUENE_K298
-        g = tol.value / P.CL_TOLUENE_H / _k(table["primary"], P.CL_LOW_T_K)
+        # Benzylic excess over the alkyl C–H of the same degree at 298 K: toluene fixes the primary one,
+        # ethylbenzene (less its β CH3) the secondary one, which tertiary sites take too (estimate).
+        t = P.CL_LOW_T_K
+        tol, eb = P.CL_TOLUENE_K298, P.CL_ETHYLBENZENE_K298
+        g_prim = tol.value / P.CL_TOLUENE_H / _k(table["primary"], t)
+        g_sec = (eb.value - 3 * _k(table["primary"], t)) / 2 / _k(table["secondary"], t)
+        excess = {"primary": (g_prim, tol.source), "secondary": (g_sec, eb.source + " less 3 primary C–H"),
+                  "tertiary": (g_sec, eb.source + " less 3 primary C–H; carried over from secondary")}
         for kind in DELOCALISED:
             for degree in DEGREES:
+                g, src = excess[degree]
+                measured = kind == "benzylic" and degree != "tertiary"
                 out[f"{kind}-{degree}"] = _a_times(
-                    table[degree], g, "measured" if (kind, degree) == ("benzylic", "primary") else "estimate",
-                    f"{degree} alkyl × {g:.2f} in A (benzylic excess at 298 K from {tol.source}; "
-                    "temperature-independent, and carried over to other degrees"
-                    + ("" if kind == "benzylic" else " and to the " + kind + " class") + ": estimate)",
+                    table[degree], g, "measured" if measured else "estimate",
+                    f"{degree} alkyl × {g:.2f} in A (benzylic excess at 298 K from {src}; temperature-independent"
+                    + ("" if kind == "benzylic" else ", carried over to the " + kind + " class") + ": estimate)",
                 )
         return out
     t = P.CL_ETHYLBENZENE_T_K

@@ -128,6 +128,11 @@ def test_chlorine_benzylic_constants() -> None:
     # ethylbenzene α 90 % / β 10 % at 25 °C with Eα − Eβ = −3.13 kcal/mol (liquid-phase study, 22–98 °C).
     k = rate_table("cl", "gas").per_h(298.0)
     assert 3 * k[SITE_CLASSES.index("benzylic-primary")] == pytest.approx(5.9e-11, rel=1e-3)
+    # Guard: Cl + ethylbenzene 1.29e-10 at 298 K, whole molecule (compiled gas-phase data, gt R package data set
+    # data-raw/reactions.csv), from 2 α H and 3 ordinary β H. Independent: the compilation's toluene, 6.0e-11 ± 10 %.
+    assert 2 * k[SITE_CLASSES.index("benzylic-secondary")] + 3 * k[SITE_CLASSES.index("primary")] == pytest.approx(
+        1.29e-10, rel=1e-3)
+    assert 3 * k[SITE_CLASSES.index("benzylic-primary")] == pytest.approx(6.0e-11, rel=0.10)
     liq = rate_table("cl", "liquid").params
     assert liq["benzylic-secondary"].ea - liq["primary"].ea == pytest.approx(-3.13)
     assert per_h_ratio("cl", "benzylic-secondary", 298.15, "liquid") == pytest.approx(13.5, rel=1e-6)

@@ -132,7 +132,8 @@ CL_RANGE_K = (295.0, 300.0 + KELVIN)
 # (The paper's table was searched for and not found, so the constants stay "from memory".)
 # Whole-molecule k(298 K) of larger alkanes (tests/test_neighbour_sar.py) do show a neighbour effect the
 # site fits cannot: a CH2 between two non-methyl carbons reacts ≈ 0.76× (cyclohexane), so the class model is
-# 24–31 % fast for rings and ≈ 22 % for C9–C10 chains. Not adopted yet (README, "Neighbour effects toward Cl·").
+# 20–73 % fast for rings and 21–63 % for C9–C14 chains (open chains to C8 agree within the data's uncertainty).
+# Not adopted yet (README, "Neighbour effects toward Cl·").
 CL_SAR_F_NONMETHYL = Value(0.79, "measured", "Aschmann & Atkinson, Int. J. Chem. Kinet. 1995, 27, 613 (from memory; "
                            "not used, see above)")
 CL_SAR_GROUP_K298 = {"primary": 3.32e-11, "secondary": 8.34e-11, "tertiary": 6.09e-11}  # same source; per group

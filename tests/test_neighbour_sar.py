@@ -118,27 +118,48 @@ def test_readme_quotes_the_evaluation() -> None:
 #: compilation of gas-phase rate constants shipped as the ``reactions`` data set of the gt R package
 #: (github.com/rstudio/gt, data-raw/reactions.csv, commit 042da4e8b42231b89844de523e1fa457f3be8e13, columns
 #: Cl_k298 and Cl_unc; that it reproduces McGillen et al., Earth Syst. Sci. Data 2020, is from memory). None of
-#: these numbers set a model parameter (the model's Cl· constants are Sarzyński & Sztuba's site fits).
+#: these numbers set a model parameter (the model's Cl· constants are Sarzyński & Sztuba's site fits). Every saturated
+#: hydrocarbon of the file with a Cl rate constant is listed except methane and cyclopropane (classes of their own,
+#: engine.parameters.CL_METHANE / CL_CYCLOPROPANE are taken from the same file).
 WHOLE_MOLECULE = (
     ("ethane", "CC", 5.80e-11, 0.15),
     ("propane", "CCC", 1.40e-10, 0.15),
-    ("n-butane", "CCCC", 2.05e-10, 0.15),
+    ("cyclobutane", "C1CCC1", 2.20e-10, 0.32),
     ("2-methylpropane", "CC(C)C", 1.40e-10, 0.10),
+    ("n-butane", "CCCC", 2.05e-10, 0.15),
+    ("cyclopentane", "C1CCCC1", 2.90e-10, 0.21),
     ("2,2-dimethylpropane", "CC(C)(C)C", 1.10e-10, 0.18),
-    ("n-pentane", "CCCCC", 2.70e-10, 0.15),
     ("2-methylbutane", "CCC(C)C", 2.10e-10, 0.14),
-    ("n-hexane", "CCCCCC", 3.30e-10, 0.15),
-    ("2-methylpentane", "CCCC(C)C", 2.80e-10, 0.14),
+    ("n-pentane", "CCCCC", 2.70e-10, 0.15),
+    ("cyclohexane", "C1CCCCC1", 3.30e-10, 0.15),
+    ("2,3-dimethylbutane", "CC(C(C)C)C", 2.20e-10, 0.14),
     ("3-methylpentane", "CCC(CC)C", 2.69e-10, 0.20),
-    ("2,3-dimethylbutane", "CC(C)C(C)C", 2.20e-10, 0.14),
+    ("2-methylpentane", "CCCC(C)C", 2.80e-10, 0.14),
+    ("n-hexane", "CCCCCC", 3.30e-10, 0.15),
+    ("cycloheptane", "C1CCCCCC1", 4.22e-10, 0.10),
+    ("methylcyclohexane", "CC1CCCCC1", 3.54e-10, 0.15),
+    ("2,2,3-trimethylbutane", "CC(C(C)(C)C)C", 1.93e-10, 0.20),
+    ("2,4-dimethylpentane", "CC(CC(C)C)C", 2.77e-10, 0.20),
     ("n-heptane", "CCCCCCC", 3.80e-10, 0.16),
+    ("cyclooctane", "C1CCCCCCC1", 4.53e-10, 0.15),
+    ("2,2,3,3-tetramethylbutane", "CC(C(C)(C)C)(C)C", 1.69e-10, 0.20),
+    ("2,2,4-trimethylpentane", "CC(CC(C)(C)C)C", 2.50e-10, 0.16),
     ("n-octane", "CCCCCCCC", 4.40e-10, 0.16),
-    ("2,2,4-trimethylpentane", "CC(C)CC(C)(C)C", 2.50e-10, 0.16),
     ("n-nonane", "CCCCCCCCC", 4.60e-10, 0.20),
     ("n-decane", "CCCCCCCCCC", 5.27e-10, 0.21),
-    ("cyclopentane", "C1CCCC1", 2.90e-10, 0.21),
-    ("cyclohexane", "C1CCCCC1", 3.30e-10, 0.15),
-    ("methylcyclohexane", "CC1CCCCC1", 3.54e-10, 0.15),
+    ("n-undecane", "CCCCCCCCCCC", 5.47e-10, 0.15),
+    ("n-dodecane", "CCCCCCCCCCCC", 5.12e-10, 0.15),
+    ("n-tridecane", "CCCCCCCCCCCCC", 5.30e-10, 0.15),
+    ("n-tetradecane", "CCCCCCCCCCCCCC", 5.68e-10, 0.15),
+    ("n-hexylcyclohexane", "CCCCCCC1CCCCC1", 5.28e-10, 0.20),
+    ("2-methylhexane", "CCCCC(C)C", 3.38e-10, 0.20),
+    ("cyclodecane", "C1CCCCCCCCC1", 5.13e-10, 0.10),
+    ("(Z)-1,4-dimethylcyclohexane", "C[C@@H]1CC[C@@H](CC1)C", 2.89e-10, 0.10),
+    ("(E)-1,4-dimethylcyclohexane", "C[C@@H]1CC[C@H](CC1)C", 3.26e-10, 0.16),
+    ("1,3,5-trimethylcyclohexane", "CC1CC(C)CC(C1)C", 2.61e-10, 0.16),
+    ("ethylcyclohexane", "CCC1CCCCC1", 3.88e-10, 0.11),
+    ("n-heptylcyclohexane", "CCCCCCCC1CCCCC1", 5.74e-10, 0.30),
+    ("n-octylcyclohexane", "CCCCCCCCC1CCCCC1", 5.92e-10, 0.30),
 )
 _DEGREE_OF_H = {3: "primary", 2: "secondary", 1: "tertiary"}
 #: What the 'pair' variant is fitted on (the one molecule; every other row is a check of it).
@@ -182,25 +203,45 @@ def ratios(name: str) -> tuple[float, float, float]:
     return (whole_k(smiles, "model") / k, whole_k(smiles, "own") / k, whole_k(smiles, "pair", pair_factor()) / k)
 
 
+def _kind(smiles: str) -> str:
+    """'chain' (acyclic), 'ring' (one ring, no substituent), 'substituted ring'."""
+    mol = Chem.MolFromSmiles(smiles)
+    if not mol.GetRingInfo().NumRings():
+        return "chain"
+    return "ring" if all(a.IsInRing() for a in mol.GetAtoms()) else "substituted ring"
+
+
+def _carbons(smiles: str) -> int:
+    return Chem.MolFromSmiles(smiles).GetNumAtoms()
+
+
 def test_whole_molecule_open_chains_up_to_c8_within_uncertainty() -> None:
     # Independent: the one-rate-per-class model sums to the compiled k(298 K) of every open-chain alkane up to
     # C8 (branched ones included) within the compilation's stated uncertainty.
-    for name, smiles, k, unc in WHOLE_MOLECULE:
-        if "cyclo" in name or Chem.MolFromSmiles(smiles).GetNumAtoms() > 8:
-            continue
-        assert ratios(name)[0] == pytest.approx(1.0, abs=unc), name
+    checked = 0
+    for name, smiles, _, unc in WHOLE_MOLECULE:
+        if _kind(smiles) == "chain" and _carbons(smiles) <= 8:
+            assert ratios(name)[0] == pytest.approx(1.0, abs=unc), name
+            checked += 1
+    assert checked == 18  # the file's open-chain alkanes C2–C8
 
 
 def test_whole_molecule_rings_and_long_chains_are_overestimated() -> None:
-    # The model's known shortcoming (README, "Neighbour effects toward Cl·"): a CH2 between two non-methyl carbons
-    # reacts ≈ 0.76× a CH2 next to a methyl, so rings come out 24–31 % and C9–C10 chains 21–23 % too fast, beyond
-    # the stated uncertainty for cyclohexane and methylcyclohexane. Fixing it must update the README.
-    for name in ("cyclopentane", "cyclohexane", "methylcyclohexane", "n-nonane", "n-decane"):
-        assert ratios(name)[0] > 1.2, name
+    # The model's known shortcoming (README, "Neighbour effects toward Cl·"): every ring and every chain from C9 on
+    # comes out more than 15 % too fast (20–73 %). Fixing it must update the README.
+    for name, smiles, *_ in WHOLE_MOLECULE:
+        if _kind(smiles) != "chain" or _carbons(smiles) >= 9:
+            assert ratios(name)[0] > 1.15, name
     assert pair_factor() == pytest.approx(0.76, abs=0.01)
-    # The pair variant, fitted on cyclohexane alone, brings every other molecule within 7 %.
-    for name, *_ in WHOLE_MOLECULE:
-        assert ratios(name)[2] == pytest.approx(1.0, abs=0.07), name
+    # The pair variant, fitted on cyclohexane alone, brings every open chain up to C11 and every unsubstituted
+    # ring within 10 %, but not the alkylcyclohexanes' ring CH (nor C12 and longer chains, which level off
+    # towards 5–6e-10, as no sum over sites does).
+    for name, smiles, *_ in WHOLE_MOLECULE:
+        model, _, pair = ratios(name)
+        if (_kind(smiles) == "chain" and _carbons(smiles) <= 11) or _kind(smiles) == "ring":
+            assert pair == pytest.approx(1.0, abs=0.10), name
+        elif _kind(smiles) == "chain":
+            assert pair > 1.2, name
 
 
 def test_readme_quotes_the_whole_molecule_evaluation() -> None:

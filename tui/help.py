@@ -54,7 +54,8 @@ def sources() -> list[tuple[str, str]]:
          f"{ratios} at {BR_REFERENCE_T_K - KELVIN:.0f} °C"),
         ("C–H bond enthalpies", "Blanksby & Ellison 2003 (Acc. Chem. Res.)"),
         ("Sites without data", "Bell–Evans–Polanyi estimates from the bond enthalpies (benzylic, allylic, "
-         "propargylic toward Br·; methane and cyclopropyl C–H)"),
+         "propargylic, methane and cyclopropyl C–H toward Br·; Cl· + methane, cyclopropane and ethylbenzene are "
+         "compiled gas-phase rate constants, the gt R package's data set)"),
         ("Other pathways", f"C=C adds Cl2/Br2 below {ALKENE_SUBSTITUTION_T_C.value:.0f} °C (propene + Cl2 gives allyl "
          "chloride only hotter: Groll & Hearne 1939); Br· opens cyclopropane rings; halogens add across the central "
          "bond of propellanes and bicyclo[1.1.0]butanes; cyclopropylmethyl radicals ring-open (engine/outcomes.py)"),

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import re
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -108,17 +109,20 @@ def _draw(drawer, mol, colours) -> None:
 
 #: Bond length of report drawings in SVG user units (CSS px at natural size): every molecule is drawn at this
 #: scale, so site letters keep one print size whatever the molecule's size (the canvas grows instead).
-BOND_PX = 28.0
+BOND_PX = 32.0
+#: RDKit's 2D depictions have bonds 1.5 coordinate units long.
+DEPICTION_BOND = 1.5
 #: Site-letter font size, user units: 13 px ≈ 9.75 pt at natural size, legible in print.
 LABEL_FONT_PX = 13.0
 #: Room around the molecule for letters on its outermost atoms, in bond lengths.
 MARGIN_BONDS = 1.7
 #: Smallest canvas, so a tiny molecule still gets a usable figure.
 MIN_WIDTH, MIN_HEIGHT = 200, 140
-#: Half-width of the band around a bond line that letters keep out of (covers double-bond offsets and wedges).
-BOND_CLEARANCE = 0.24 * BOND_PX
-#: Letters keep this far from every atom centre (where atom symbols and highlight centres sit).
-ATOM_CLEARANCE = 0.28 * BOND_PX
+#: Half-width of the band around a bond line that letters keep out of, in bond lengths (covers the second line
+#: of a double bond, drawn 0.15 bond lengths off, and stereo wedges).
+BOND_CLEARANCE = 0.24
+#: Letters keep this far from every atom centre (where atom symbols and highlight centres sit), in bond lengths.
+ATOM_CLEARANCE = 0.28
 
 
 @dataclass(frozen=True)
@@ -201,8 +205,6 @@ def place_labels(
     the direction that points away from the atom's bonds; the first clear one is
     taken. Greedy in ``sites`` order, atoms with the fewest free directions first.
     """
-    import math
-
     segments = [(atoms[i], atoms[j]) for i, j in bonds]
     neighbours: dict[int, list[int]] = {i: [] for i in range(len(atoms))}
     for i, j in bonds:
@@ -216,9 +218,9 @@ def place_labels(
             return False
         if any(box.overlaps(other, pad=2.0) for other in placed):
             return False
-        if any(box.near_point(p, ATOM_CLEARANCE) for p in atoms):
+        if any(box.near_point(p, ATOM_CLEARANCE * bond_px) for p in atoms):
             return False
-        return not any(box.near_segment(a, b, BOND_CLEARANCE * bond_px / BOND_PX) for a, b in segments)
+        return not any(box.near_segment(a, b, BOND_CLEARANCE * bond_px) for a, b in segments)
 
     def candidates(atom: int, letter: str) -> list[tuple[float, float]]:
         ax, ay = atoms[atom]
@@ -261,8 +263,9 @@ def _canvas(mol) -> tuple[int, int]:
     xs = [conf.GetAtomPosition(i).x for i in range(mol.GetNumAtoms())]
     ys = [conf.GetAtomPosition(i).y for i in range(mol.GetNumAtoms())]
     margin = 2 * MARGIN_BONDS * BOND_PX
-    width = max(MIN_WIDTH, round((max(xs) - min(xs)) * BOND_PX + margin))
-    height = max(MIN_HEIGHT, round((max(ys) - min(ys)) * BOND_PX + margin))
+    scale = BOND_PX / DEPICTION_BOND
+    width = max(MIN_WIDTH, round((max(xs) - min(xs)) * scale + margin))
+    height = max(MIN_HEIGHT, round((max(ys) - min(ys)) * scale + margin))
     return width, height
 
 
@@ -287,7 +290,7 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     drawer = rdMolDraw2D.MolDraw2DSVG(width, height)
     options = drawer.drawOptions()
     options.clearBackground = True
-    options.fixedBondLength = BOND_PX
+    options.fixedBondLength = BOND_PX / DEPICTION_BOND  # pixels per coordinate unit
     options.padding = 0.0
     rdMolDraw2D.PrepareAndDrawMolecule(
         drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
@@ -295,7 +298,9 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     drawer.FinishDrawing()
     points = [(drawer.GetDrawCoords(i).x, drawer.GetDrawCoords(i).y) for i in range(mol.GetNumAtoms())]
     bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx()) for b in mol.GetBonds()]
-    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height))
+    lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
+    bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX  # as drawn (RDKit shrinks what does not fit)
+    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px)
     texts = "".join(
         f'<text class="site-label" data-atom="{m.atom}" x="{s.x:.1f}" y="{s.y:.1f}" text-anchor="middle" '
         f'dominant-baseline="central" font-size="{LABEL_FONT_PX:g}" font-weight="bold" '

@@ -125,6 +125,7 @@ LABEL_ROWS = [
     ("LB-10", "C1CCC2CCCCC2C1"),                       # 10 C, decalin
     ("LB-10b", "CC(C)c1ccc(C)cc1"),                    # 10 C, p-cymene
     ("LB-11", "C[C@H](CC)C[C@@H](C)CC(C)C"),           # 11 C, two stereocentres (wedges)
+    ("LB-11b", "CC1C2CC3CC(C2)CC1C3"),                # 11 C, 2-methyladamantane: crossing bonds in 2D, a leader line
     ("LB-12", "CCCCCCCCCCCC"),                         # 12 C chain
     ("LB-13", "C1CC2CCC1C2CC(C)CC"),                   # 13 C, norbornane with a side chain
     ("LB-15", "CC(C)CCCC(C)CCCC(C)C"),                 # 15 C, branched

@@ -116,6 +116,8 @@ DEPICTION_BOND = 1.5
 LABEL_FONT_PX = 13.0
 #: Room around the molecule for letters on its outermost atoms, in bond lengths.
 MARGIN_BONDS = 1.7
+#: Farther rings of candidate spots, in bond lengths, for crowded drawings (a thin leader line joins them).
+LEADER_RADII = (1.8, 2.1, 2.5)
 #: Smallest canvas, so a tiny molecule still gets a usable figure.
 MIN_WIDTH, MIN_HEIGHT = 200, 140
 #: Half-width of the band around a bond line that letters keep out of, in bond lengths (covers the second line
@@ -183,6 +185,8 @@ class LabelSpot:
     """The room reserved for the letter (a little larger than its glyphs)."""
     clear: bool
     """False when no spot free of bonds and other letters was found (the letter is then placed nearest)."""
+    leader: bool = False
+    """True when the letter sits far from its atom (a crowded drawing) and a thin line joins them."""
 
 
 def label_box(x: float, y: float, text: str, font_px: float = LABEL_FONT_PX) -> Box:
@@ -206,6 +210,7 @@ def place_labels(
     taken. Greedy in ``sites`` order, atoms with the fewest free directions first.
     """
     segments = [(atoms[i], atoms[j]) for i, j in bonds]
+    leaders: list[tuple[tuple[float, float], tuple[float, float]]] = []
     neighbours: dict[int, list[int]] = {i: [] for i in range(len(atoms))}
     for i, j in bonds:
         neighbours[i].append(j)
@@ -220,6 +225,8 @@ def place_labels(
             return False
         if any(box.near_point(p, ATOM_CLEARANCE * bond_px) for p in atoms):
             return False
+        if any(box.near_segment(a, b, 2.0) for a, b in leaders):
+            return False
         return not any(box.near_segment(a, b, BOND_CLEARANCE * bond_px) for a, b in segments)
 
     def candidates(atom: int, letter: str) -> list[tuple[float, float]]:
@@ -231,7 +238,7 @@ def place_labels(
             ox, oy = ox + dx / d, oy + dy / d
         outward = math.atan2(oy, ox) if (ox or oy) else -math.pi / 2
         out = []
-        for radius in (0.5, 0.62, 0.75, 0.9, 1.05, 1.25, 1.5):
+        for radius in (0.5, 0.62, 0.75, 0.9, 1.05, 1.25, 1.5, *LEADER_RADII):
             steps = sorted(range(24), key=lambda k: min(k, 24 - k))  # outward first, then alternately each side
             for k in steps:
                 angle = outward + k * math.pi / 12
@@ -247,12 +254,15 @@ def place_labels(
         for x, y in candidates(atom, letter):
             box = label_box(x, y, letter)
             if free(box):
-                spot = LabelSpot(letter, x, y, box, True)
+                far = math.dist((x, y), atoms[atom]) > 1.6 * bond_px
+                spot = LabelSpot(letter, x, y, box, True, leader=far)
                 break
         if spot is None:  # nothing clear: the nearest spot off the bonds' own atom
             x, y = candidates(atom, letter)[0]
             spot = LabelSpot(letter, x, y, label_box(x, y, letter), False)
         placed.append(spot.box)
+        if spot.leader:
+            leaders.append((atoms[atom], (spot.x, spot.y)))
         spots[k] = spot
     return [spots[k] for k in range(len(sites))]
 
@@ -301,7 +311,12 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
     bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX  # as drawn (RDKit shrinks what does not fit)
     spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px)
-    texts = "".join(
+    leaders = "".join(
+        f'<line class="label-leader" x1="{points[m.atom][0]:.1f}" y1="{points[m.atom][1]:.1f}" '
+        f'x2="{s.x:.1f}" y2="{s.y:.1f}" stroke="#777" stroke-width="0.8" stroke-dasharray="2 2"/>'
+        for m, s in zip(marks, spots) if s.leader
+    )
+    texts = leaders + "".join(
         f'<text class="site-label" data-atom="{m.atom}" x="{s.x:.1f}" y="{s.y:.1f}" text-anchor="middle" '
         f'dominant-baseline="central" font-size="{LABEL_FONT_PX:g}" font-weight="bold" '
         f'font-family="DejaVu Sans, Helvetica, Arial, sans-serif" fill="#111" stroke="#fff" stroke-width="3" '

@@ -61,7 +61,7 @@ def pct_text(value: float) -> str:
 
 
 def site_note(mark: SiteMark) -> str:
-    """The note written beside a site's carbon, e.g. 'a: Cl 45 / Br 3'."""
+    """A site's shares in short, e.g. 'a: Cl 45 / Br 3': beside its carbon in the app's PNG, in the SVG's <desc>."""
     return f"{mark.letter}: Cl {pct_text(mark.cl2_pct)} / Br {pct_text(mark.br2_pct)}"
 
 

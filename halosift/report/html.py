@@ -243,7 +243,8 @@ products table, which gives the predicted shares: % Cl2 is the site's share of t
 with Br in place of Cl. The site class is also named in the legend and the table. C–H bonds on sp2 and sp
 carbons (aryl, vinyl, alkynyl) are not abstracted and are not listed. Where the substrate has allylic or
 benzylic C–H a second table gives the NBS monobromides (Wohl–Ziegler), both ends of an allyl radical included
-(Br at the radical carbon or with an allylic shift). These shares are of the monohalides only; the further
+(Br at the radical carbon or with an allylic shift; the E/Z ratio of a moved C=C is not predicted, so E and Z are
+counted as stereoisomers). These shares are of the monohalides only; the further
 halogenation of a monohalide is estimated separately, as the polyhalide share of the halogenated product when
 substrate and halogen are charged 1 : 1 and all the halogen reacts (competitive consecutive kinetics with an
 estimated deactivation by the first halogen). A number after the stereo outcome counts the stereoisomers formed.

@@ -435,6 +435,7 @@ def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
     assert "not modelled" not in guide.replace("or is not modelled (strained cage)", "")
     assert "polyhalide" in guide and "NBS monobromides" in guide
     assert "a: Cl 45" not in guide  # the drawing carries letters only; the shares are in the table
+    assert "column" not in guide  # a report has entries, not the screen's columns
     for verdict, meaning in engine.outcomes.verdict_docs(engine.Conditions().threshold_pct).items():
         assert meaning in guide
 
@@ -446,3 +447,17 @@ def test_every_report_carries_the_caution(tmp_path: Path) -> None:
         text = html.unescape(made.html)
         assert engine.CAUTION in text  # whole, in the footer
         assert engine.CAUTION.partition(":")[2].strip() in text  # and in the header's box
+
+
+def test_norbornane_entry_gives_the_exo_endo_split_its_flag_promises(tmp_path: Path) -> None:
+    # The bridgehead flag's text says the 2-halide's exo/endo split is shown beside its stereo: the report does so.
+    from halosift.engine import parameters as P
+
+    source = tmp_path / "nb.csv"
+    source.write_text("id,smiles\nNB-1,C1CC2CCC1C2\n", encoding="utf-8")
+    out = tmp_path / "nb.html"
+    assert main(["report", str(source), "-o", str(out)]) == 0
+    page = html.unescape(out.read_text(encoding="utf-8"))
+    cl, br = P.EXO_FRACTION["cl"].value, P.EXO_FRACTION["br"].value
+    expected = f"exo:endo {100 * cl:.0f}:{100 * (1 - cl):.0f} Cl2, {100 * br:.0f}:{100 * (1 - br):.0f} Br2"
+    assert page.count(expected) == 1 and "bridgehead</strong>: a bridgehead C–H" in page

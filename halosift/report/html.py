@@ -228,8 +228,10 @@ def _key(conditions: Conditions) -> str:
     from halosift.engine.outcomes import outcome_docs
 
     items = "".join(f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in verdict_meaning(conditions.threshold_pct).items())
+    # The engine's words speak of the screen's columns; an entry gives the reason in brackets after the outcome.
     outcome_items = "".join(
-        f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in outcome_docs(conditions.threshold_pct).items()
+        f"<dt>{_e(v)}</dt><dd>{_e(m.replace('the reason column says why', 'the reason follows in brackets'))}.</dd>"
+        for v, m in outcome_docs(conditions.threshold_pct).items()
     )
     return f"""<section class="key"><h2>Reading the substrate entries</h2>
 <p>Entries are grouped by verdict, best candidates first: one product by symmetry, then selective with the
@@ -268,6 +270,7 @@ def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
     body = []
     for letter, p in zip(letters, products.itertuples(index=False)):
         stereo = " ".join(filter(None, [str(p.stereo), count_text(str(p.stereo), int(p.n_stereoisomers))]))
+        stereo += _exo_endo(str(p.site))
         body.append(
             f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{smiles_html(p.product)}</td><td>{_e(p.site)}</td>"
             f'<td class="num">{int(p.h_count)}</td><td>{_e(stereo)}</td>'
@@ -320,6 +323,18 @@ def _nbs_table(library: Library, row: int, conditions: Conditions) -> str:
     return (f'<table class="products nbs"><caption>NBS at {conditions.nbs_temp_c:g} °C: monobromides</caption>'
             '<thead><tr><th>monobromide</th><th>radical class</th><th>Br at</th><th>stereo outcome</th>'
             '<th class="num">% NBS</th></tr></thead><tbody>' + body + "</tbody></table>")
+
+
+def _exo_endo(site: str) -> str:
+    """'; exo:endo 70:30 Cl2, 95:5 Br2' for a norbornane 2-halide (engine.rates.exo_fraction), '' otherwise."""
+    from halosift.engine.rates import exo_fraction
+
+    splits = []
+    for reagent, radical, name in (("cl2", "cl", "Cl2"), ("br2", "br", "Br2")):
+        f = exo_fraction(site, radical)
+        if f is not None:
+            splits.append(f"{100 * f:.0f}:{100 * (1 - f):.0f} {name}")
+    return "; exo:endo " + ", ".join(splits) if splits else ""
 
 
 def _legend(sites: Sequence[str]) -> str:

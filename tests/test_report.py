@@ -436,7 +436,7 @@ def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
     assert "polyhalide" in guide and "NBS monobromides" in guide
     assert "a: Cl 45" not in guide  # the drawing carries letters only; the shares are in the table
     assert "column" not in guide  # a report has entries, not the screen's columns
-    for verdict, meaning in engine.outcomes.verdict_docs(engine.Conditions().threshold_pct).items():
+    for meaning in engine.outcomes.verdict_docs(engine.Conditions().threshold_pct).values():
         assert meaning in guide
 
 
@@ -461,3 +461,49 @@ def test_norbornane_entry_gives_the_exo_endo_split_its_flag_promises(tmp_path: P
     cl, br = P.EXO_FRACTION["cl"].value, P.EXO_FRACTION["br"].value
     expected = f"exo:endo {100 * cl:.0f}:{100 * (1 - cl):.0f} Cl2, {100 * br:.0f}:{100 * (1 - br):.0f} Br2"
     assert page.count(expected) == 1 and "bridgehead</strong>: a bridgehead C–H" in page
+
+
+def test_site_letters_placed_clear_at_one_size_without_a_browser() -> None:
+    # The same molecules as the browser test (5 to 20 carbons): every letter finds a clear spot, the drawn bond
+    # length stays the fixed one (the canvas grows instead), and the letter size never changes.
+    from halosift.report import drawing
+    from halosift.report.html import _letters
+    from test_report_browser import LABEL_ROWS
+
+    spots_seen: list[list[drawing.LabelSpot]] = []
+    original = drawing.place_labels
+
+    def spy(*args, **kwargs):
+        spots = original(*args, **kwargs)
+        spots_seen.append(spots)
+        return spots
+
+    lib = engine.load_library(pd.DataFrame(LABEL_ROWS, columns=["id", "smiles"]), use_cache=False)
+    result = lib.evaluate()
+    sizes = set()
+    try:
+        drawing.place_labels = spy
+        for row in range(len(LABEL_ROWS)):
+            products = lib.products(row)
+            products = products[products["site"].isin(engine.ABSTRACTABLE)].reset_index(drop=True)
+            marks = [drawing.SiteMark(int(p.atom), _letters(i), p.site, p.cl2_pct, p.br2_pct)
+                     for i, p in enumerate(products.itertuples())]
+            svg = drawing.structure_svg(result["canonical_smiles"].iloc[row], marks)
+            sizes |= set(re.findall(r'<text class="site-label"[^>]*font-size="([\d.]+)"', svg))
+            per_bond: dict[str, float] = {}  # a hashed wedge is many short strokes: the longest stands for the bond
+            for bond, *xy in re.findall(
+                    r"<path class='bond-(\d+) atom-\d+ atom-\d+' d='M ([\d.]+),([\d.]+) L ([\d.]+),([\d.]+)'", svg):
+                x0, y0, x1, y1 = map(float, xy)
+                per_bond[bond] = max(per_bond.get(bond, 0.0), ((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5)
+            lengths = sorted(per_bond.values())
+            typical = lengths[len(lengths) // 2]  # a 2D cage (adamantane) has a few long bonds
+            assert abs(typical - drawing.BOND_PX) <= 1.5, (LABEL_ROWS[row], typical)
+            assert int(re.search(r"width='(\d+)px'", svg).group(1)) <= 680  # fits an A4 column unshrunk
+    finally:
+        drawing.place_labels = original
+    assert len(spots_seen) == len(LABEL_ROWS)
+    assert all(spot.clear for spots in spots_seen for spot in spots)
+    assert sizes == {f"{drawing.LABEL_FONT_PX:g}"}
+    for spots in spots_seen:
+        for i, a in enumerate(spots):
+            assert not any(a.box.overlaps(b.box) for b in spots[i + 1:])

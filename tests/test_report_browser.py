@@ -134,6 +134,9 @@ LABEL_ROWS = [
     ("LB-20b", "CCCCCCCCCCCCCCCCCCCC"),                # 20 C chain
 ]
 
+#: Larger than the printed column: shrunk on the page, so their letters are drawn larger to print at the same size.
+WIDE_ROWS = [("LW-30", "C" * 30), ("LW-40", "C" * 40)]
+
 #: Measures, in the browser, every site letter's box against the other letters and against every bond line
 #: (each bond path sampled every 0.5 px), and writes the result into the page as JSON.
 MEASURE = """
@@ -181,7 +184,8 @@ def test_site_letters_never_touch_each_other_or_bonds(tmp_path: Path) -> None:
     from halosift import engine
 
     source = tmp_path / "labels.csv"
-    pd.DataFrame(LABEL_ROWS, columns=["id", "smiles"]).to_csv(source, index=False)
+    rows = LABEL_ROWS + WIDE_ROWS
+    pd.DataFrame(rows, columns=["id", "smiles"]).to_csv(source, index=False)
     report = tmp_path / "labels.html"
     assert main(["report", str(source), "-o", str(report)]) == 0
     page = tmp_path / "measured.html"
@@ -191,14 +195,18 @@ def test_site_letters_never_touch_each_other_or_bonds(tmp_path: Path) -> None:
     assert found and found.group(1), proc.stderr[-2000:]
     measured = {int(m["row"]): m for m in json.loads(found.group(1).replace("&quot;", '"'))}
     screened = engine.screen(source, use_cache=False)
-    assert sorted(measured) == list(range(1, len(LABEL_ROWS) + 1))
+    assert sorted(measured) == list(range(1, len(rows) + 1))
     for row, m in measured.items():
-        smiles = LABEL_ROWS[row - 1][1]
+        smiles = rows[row - 1][1]
         assert m["n"] == int(screened["n_products"].iloc[row - 1]) >= 1, (smiles, m["n"])  # every site lettered
         assert m["bondPoints"] > 0, smiles
         assert m["pairs"] == [], (smiles, m["pairs"])
         assert m["hits"] == [], (smiles, m["hits"])
-        # One print size whatever the molecule: drawn at natural size (not shrunk), letters ≥ 12 px tall.
-        assert abs(m["width"] - m["natural"]) < 1.5, (smiles, m["width"], m["natural"])
+        # One print size whatever the molecule: up to 20 carbons drawn at natural size (not shrunk); wider ones
+        # shrunk to the column with larger letters; on the page every letter is at least 12 px tall.
+        if row <= len(LABEL_ROWS):
+            assert abs(m["width"] - m["natural"]) < 1.5, (smiles, m["width"], m["natural"])
+        else:
+            assert m["width"] < m["natural"] - 100, (smiles, m["width"], m["natural"])
         assert min(m["heights"]) >= 12, (smiles, m["heights"])
     assert max(m["n"] for m in measured.values()) >= 12  # the test includes crowded drawings

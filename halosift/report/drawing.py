@@ -118,6 +118,9 @@ LABEL_FONT_PX = 13.0
 MARGIN_BONDS = 1.7
 #: Farther rings of candidate spots, in bond lengths, for crowded drawings (a thin leader line joins them).
 LEADER_RADII = (1.8, 2.1, 2.5)
+#: Widest drawing shown unshrunk: the printed column (A4 less margins, about 178 mm). A wider molecule is scaled
+#: down to it on the page, so its letters are drawn larger by the same factor and still print at one size.
+COLUMN_PX = 672
 #: Smallest canvas, so a tiny molecule still gets a usable figure.
 MIN_WIDTH, MIN_HEIGHT = 200, 140
 #: Half-width of the band around a bond line that letters keep out of, in bond lengths (covers the second line
@@ -202,6 +205,7 @@ def place_labels(
     sites: Sequence[tuple[int, str]],
     size: tuple[float, float],
     bond_px: float = BOND_PX,
+    font_px: float = LABEL_FONT_PX,
 ) -> list[LabelSpot]:
     """A spot for each (atom, letter) of ``sites`` clear of every bond band, atom centre, other letter and the edge.
 
@@ -252,14 +256,14 @@ def place_labels(
         atom, letter = sites[k]
         spot = None
         for x, y in candidates(atom, letter):
-            box = label_box(x, y, letter)
+            box = label_box(x, y, letter, font_px)
             if free(box):
                 far = math.dist((x, y), atoms[atom]) > 1.6 * bond_px
                 spot = LabelSpot(letter, x, y, box, True, leader=far)
                 break
         if spot is None:  # nothing clear: the nearest spot off the bonds' own atom
             x, y = candidates(atom, letter)[0]
-            spot = LabelSpot(letter, x, y, label_box(x, y, letter), False)
+            spot = LabelSpot(letter, x, y, label_box(x, y, letter, font_px), False)
         placed.append(spot.box)
         if spot.leader:
             leaders.append((atoms[atom], (spot.x, spot.y)))
@@ -310,7 +314,8 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx()) for b in mol.GetBonds()]
     lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
     bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX  # as drawn (RDKit shrinks what does not fit)
-    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px)
+    font_px = LABEL_FONT_PX * max(1.0, width / COLUMN_PX)
+    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px, font_px)
     leaders = "".join(
         f'<line class="label-leader" x1="{points[m.atom][0]:.1f}" y1="{points[m.atom][1]:.1f}" '
         f'x2="{s.x:.1f}" y2="{s.y:.1f}" stroke="#777" stroke-width="0.8" stroke-dasharray="2 2"/>'
@@ -318,7 +323,7 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     )
     texts = leaders + "".join(
         f'<text class="site-label" data-atom="{m.atom}" x="{s.x:.1f}" y="{s.y:.1f}" text-anchor="middle" '
-        f'dominant-baseline="central" font-size="{LABEL_FONT_PX:g}" font-weight="bold" '
+        f'dominant-baseline="central" font-size="{font_px:.3g}" font-weight="bold" '
         f'font-family="DejaVu Sans, Helvetica, Arial, sans-serif" fill="#111" stroke="#fff" stroke-width="3" '
         f'paint-order="stroke">{escape(m.letter)}</text>'
         for m, s in zip(marks, spots)

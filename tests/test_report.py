@@ -381,6 +381,9 @@ def test_header_and_title_name_the_file_only(tmp_path: Path) -> None:
     library = engine.load_library(folder / "kv_catalogue.csv")
     made = render_report(library, engine.Conditions(), source=str(folder / "kv_catalogue.csv"))
     assert str(folder) not in made.html and "kv_catalogue.csv" in made.html
+    from halosift.report.html import source_name
+
+    assert source_name("C:\\Users\\chemist\\lib.csv") == "lib.csv" and source_name("-") == "standard input"
 
 
 def test_entries_grouped_best_first_and_cap_applies_after_grouping(tmp_path: Path) -> None:

@@ -452,6 +452,8 @@ def source_name(source: str) -> str:
     text = str(source).strip()
     if not text:
         return ""
+    if text == "-":
+        return "standard input"
     name = PurePath(text.replace("\\", "/")).name
     return name or text
 

@@ -139,7 +139,8 @@ def build_parser() -> argparse.ArgumentParser:
                     "(repeatable; default: every row)")
     rp.add_argument("--ids", metavar="FILE", help="report only the rows whose ID is listed in FILE (one per line)")
     rp.add_argument("--max-pages", type=int, default=200, metavar="N",
-                    help="at most N substrate entries (default 200); the report says how many were left out")
+                    help="at most N substrate entries (default 200), the best kept: entries are grouped by "
+                    "verdict, best candidates first; the report says how many of each verdict were left out")
     _add_run_options(rp)
 
     br = sub.add_parser("browse", help="open a library in the terminal app")

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import html
+from collections import Counter
 import re
 import subprocess
 import sys
@@ -93,6 +94,28 @@ def summary_counts(page: str) -> dict[str, int]:
     return {k: int(v.replace(",", "")) for k, v in re.findall(r'data-count="([\w-]+)">([\d,]+)<', page)}
 
 
+GROUP_ORDER = ("by-symmetry", "selective", "mixture", "ruled-out", "inert")
+
+
+def expected_order(screened: pd.DataFrame, rows: list[int] | None = None) -> list[int]:
+    """1-based rows of the modelled entries in the order the report must give them, worked out here from the
+    screen's own columns: verdict group (best first), then the ranking share descending, then input order."""
+    keys = []
+    for i in range(len(screened)) if rows is None else [r - 1 for r in rows]:
+        row = screened.iloc[i]
+        if row["status"] != "ok":
+            continue
+        verdict = row["verdict"]
+        share = 0.0
+        if verdict in ("by-symmetry", "selective"):
+            share = float(row[f"{row['serves']}_major_pct"])
+        elif verdict == "mixture":
+            share = max(float(row[f"{r}_major_pct"]) for r in ("cl2", "br2", "so2cl2", "nbs")
+                        if row[f"{r}_outcome"] != "ruled-out" and not pd.isna(row[f"{r}_major_pct"]))
+        keys.append((GROUP_ORDER.index(verdict), -share, i + 1))
+    return [k[2] for k in sorted(keys)]
+
+
 def cli(*args: str) -> subprocess.CompletedProcess:
     return subprocess.run([sys.executable, "-m", "halosift", *args], capture_output=True, text=True, timeout=300)
 
@@ -107,7 +130,8 @@ def test_page_is_well_formed_with_header_and_one_section_per_substrate(tmp_path:
     assert "<?xml" not in page and "<script" not in page.lower()
     screened = engine.screen(tmp_path / "kv_catalogue.csv")
     ok_rows = [i + 1 for i in range(len(screened)) if screened["status"].iloc[i] == "ok"]
-    assert section_rows(page) == ok_rows
+    assert sorted(section_rows(page)) == ok_rows
+    assert section_rows(page) == expected_order(screened)
     assert page.count('<svg class="structure"') == len(ok_rows)
     assert sum('class="chart"' in s for s in drawings) == 4
     text = html.unescape(page)
@@ -148,12 +172,25 @@ def test_products_table_and_drawing_marks_agree_with_the_engine(tmp_path: Path) 
     (drawing,) = svgs(section)
     marked = sorted({int(a) for a in re.findall(r"<ellipse[^>]*class='atom-(\d+)'", drawing)})
     assert marked == sorted(products["atom"].tolist())
-    assert len(re.findall(r'<td class="smiles">', section)) == len(products)
+    main_table = section[section.index('<table class="products">'):]
+    main_table = main_table[: main_table.index("</table>")]
+    cells = [c.replace("<wbr>", "") for c in re.findall(r'<td class="smiles">(.*?)</td>', main_table)]
+    assert cells == products["product"].tolist()
     for p in products.itertuples():
-        assert f'<td class="smiles">{p.product}</td>' in section
-        assert f">{p.cl2_pct:.1f}<" in section or p.cl2_pct < 0.05
+        assert f">{p.cl2_pct:.1f}<" in main_table or p.cl2_pct < 0.05
+    # The drawing carries one letter per site, at that site's atom, in table order; the shares are in the table.
+    labels = re.findall(r'<text class="site-label" data-atom="(\d+)"[^>]*>([a-z]+)</text>', drawing)
+    assert labels == [(str(a), chr(ord("a") + i)) for i, a in enumerate(products["atom"])]
+    assert [c for c in re.findall(r"<tr><td>([a-z]+)</td>", main_table)] == [b for _, b in labels]
+    assert "%" not in "".join(re.findall(r"<text[^>]*>(.*?)</text>", drawing))
     desc = re.search(r"<desc>(.*?)</desc>", drawing).group(1)
     assert desc.count("Cl ") == len(products) and "a: Cl" in desc
+    # The NBS split of this allylic substrate: its own table, one row per NBS monobromide.
+    nbs = library.nbs_products(9)
+    nbs_table = section[section.index('<table class="products nbs">'):]
+    nbs_table = nbs_table[: nbs_table.index("</table>")]
+    cells = [c.replace("<wbr>", "") for c in re.findall(r'<td class="smiles">(.*?)</td>', nbs_table)]
+    assert cells == nbs["product"].tolist() and len(cells) >= 2
 
 
 def _ids(folder: Path, ids: list[str]) -> Path:
@@ -165,8 +202,10 @@ def _ids(folder: Path, ids: list[str]) -> Path:
 def test_only_filters_by_verdict(tmp_path: Path) -> None:
     page = report(tmp_path, "--only", "by-symmetry", "--only", "inert")
     screened = engine.screen(tmp_path / "kv_catalogue.csv")
-    expected = [i + 1 for i, v in enumerate(screened["verdict"]) if v in ("by-symmetry", "inert")]
+    picked = [i + 1 for i, v in enumerate(screened["verdict"]) if v in ("by-symmetry", "inert")]
+    expected = expected_order(screened, picked)
     assert expected and section_rows(page) == expected
+    assert screened["verdict"].iloc[expected[-1] - 1] == "inert"  # by-symmetry first, inert last
     assert "verdict by-symmetry or inert" in page
 
 
@@ -174,7 +213,7 @@ def test_ids_filter_and_unknown_ids(tmp_path: Path, capsys: pytest.CaptureFixtur
     write_library(tmp_path)
     ids = _ids(tmp_path, ["  KV-106 ", "KV-101", "KV-999", "KV-107"])
     page = report(tmp_path, "--ids", str(ids))
-    assert section_rows(page) == [1, 6]  # input order; KV-107 is rejected and listed with its reason
+    assert section_rows(page) == [1, 6]  # by-symmetry before mixture; KV-107 is rejected and listed with its reason
     assert '<section class="rejected">' in page and "KV-107" in page
     assert "KV-999" in page and "1 ID from the list is not in the library: KV-999" in page
     assert "4 IDs from picks.txt" in page
@@ -297,3 +336,177 @@ def test_entries_carry_confidence_flags_and_serving_reagent(tmp_path: Path) -> N
     assert page.count("Confidence: ") == int((ok["confidence"] != "").sum())
     for flag in {f for flags in ok["flags"] for f in flags.split(",") if f}:
         assert flag in page
+
+
+def test_smiles_break_only_between_tokens() -> None:
+    from halosift.report.html import smiles_html
+
+    smiles = "ClC[C@@H](Br)C1CC[C@H](CCl)CC1C%10CC%10"
+    marked = smiles_html(smiles)
+    assert marked.replace("<wbr>", "") == smiles
+    pieces = marked.split("<wbr>")
+    assert len(pieces) > 8
+    for piece in pieces:
+        # No break inside a two-letter element or a bracket atom: every piece has whole brackets, and no piece
+        # ends with the C of Cl/Br or starts with its l/r.
+        assert piece.count("[") == piece.count("]"), piece
+        assert not piece.startswith(("l", "r")), piece
+    for i, piece in enumerate(pieces[:-1]):
+        assert piece[-1] in ")0123456789]CcHBrl", piece  # after ')', a ring digit or an atom only
+        assert not (piece.endswith("B") or (piece.endswith("C") and pieces[i + 1].startswith("l")))
+    assert "%1<wbr>0" not in marked and "(<wbr>" not in marked
+
+
+def test_page_smiles_carry_break_points_and_no_break_all(tmp_path: Path) -> None:
+    page = report(tmp_path)
+    from halosift.report.style import STYLESHEET
+
+    assert "break-all" not in STYLESHEET
+    cells = re.findall(r'class="smiles">(.*?)</(?:td|span)>', page)
+    assert cells and any("<wbr>" in c for c in cells)
+    for cell in cells:
+        for piece in cell.split("<wbr>"):
+            assert piece.count("[") == piece.count("]") and not piece.startswith(("l", "r")), cell
+
+
+def test_header_and_title_name_the_file_only(tmp_path: Path) -> None:
+    folder = tmp_path / "private" / "projects"
+    folder.mkdir(parents=True)
+    page = report(folder)
+    title = re.search(r"<title>(.*?)</title>", page).group(1)
+    assert title == "halosift report: kv_catalogue.csv"
+    assert '<dd data-field="library">kv_catalogue.csv</dd>' in page
+    assert str(folder) not in page and "private" not in page
+    # The in-process API, given an absolute path, does the same.
+    library = engine.load_library(folder / "kv_catalogue.csv")
+    made = render_report(library, engine.Conditions(), source=str(folder / "kv_catalogue.csv"))
+    assert str(folder) not in made.html and "kv_catalogue.csv" in made.html
+    from halosift.report.html import source_name
+
+    assert source_name("C:\\Users\\chemist\\lib.csv") == "lib.csv" and source_name("-") == "standard input"
+
+
+def test_entries_grouped_best_first_and_cap_applies_after_grouping(tmp_path: Path) -> None:
+    page = report(tmp_path)
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    order = section_rows(page)
+    verdicts = [screened["verdict"].iloc[r - 1] for r in order]
+    assert [GROUP_ORDER.index(v) for v in verdicts] == sorted(GROUP_ORDER.index(v) for v in verdicts)
+    headings = re.findall(r'<h2 class="group" id="group-([\w-]+)"', page)
+    assert headings == list(dict.fromkeys(verdicts))
+    # Within the selective group the reagent offered's major share falls.
+    selective = [r for r, v in zip(order, verdicts) if v == "selective"]
+    shares = [float(screened[f"{screened['serves'].iloc[r - 1]}_major_pct"].iloc[r - 1]) for r in selective]
+    assert len(shares) >= 2 and shares == sorted(shares, reverse=True)
+
+    n_ok = len(order)
+    capped = report(tmp_path, "--max-pages", "3")
+    assert section_rows(capped) == order[:3]  # the cap keeps the best, not the first rows of the file
+    missed = Counter(verdicts[3:])
+    note = re.search(r'<p class="note cap-note">(.*?)</p>', capped, flags=re.DOTALL).group(1)
+    assert f"3 of {n_ok} selected substrates are shown; {n_ok - 3} more were left out" in note
+    for verdict, n in missed.items():
+        assert f"{n} {verdict}" in note
+    for verdict in missed:
+        assert re.search(rf'<p class="note group-cap">{missed[verdict]} more {verdict} entr', capped)
+    library = engine.load_library(tmp_path / "kv_catalogue.csv")
+    made = render_report(library, engine.Conditions(), max_pages=3)
+    assert made.left_out_by_verdict == dict(missed) and made.n_left_out == n_ok - 3
+
+
+def test_flags_come_with_their_text_and_polyhalide_estimate(tmp_path: Path) -> None:
+    from halosift.engine.special_sites import FLAG_NOTES
+
+    page = html.unescape(report(tmp_path))
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    flagged = screened[(screened["status"] == "ok") & (screened["flags"] != "")]
+    assert len(flagged) >= 2
+    for row in flagged.index:
+        section = page[page.index(f'data-row="{row + 1}"'):]
+        section = section[: section.index("</section>")]
+        for flag in screened["flags"].iloc[row].split(","):
+            assert f"{flag}: {FLAG_NOTES[flag].note}" in re.sub(r"</?strong>", "", section)
+        poly = re.search(r'<p class="meta poly">(.*?)</p>', section).group(1)
+        assert f"Cl2 {screened['cl2_poly_pct'].iloc[row]:.1f} %" in poly
+
+
+def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
+    page = html.unescape(report(tmp_path))
+    guide = page[page.index('<section class="key">'):]
+    guide = guide[: guide.index("</section>")]
+    # Contradictions fixed once must not come back: the report gives polyhalide estimates and NBS splits.
+    assert "not modelled" not in guide.replace("or is not modelled (strained cage)", "")
+    assert "polyhalide" in guide and "NBS monobromides" in guide
+    assert "a: Cl 45" not in guide  # the drawing carries letters only; the shares are in the table
+    assert "column" not in guide  # a report has entries, not the screen's columns
+    for meaning in engine.outcomes.verdict_docs(engine.Conditions().threshold_pct).values():
+        assert meaning in guide
+
+
+def test_every_report_carries_the_caution(tmp_path: Path) -> None:
+    lib = engine.load_library(pd.DataFrame({"smiles": ["CCC", "CCO"]}), use_cache=False)
+    for kwargs in ({}, {"max_pages": 0}, {"rows": [1]}):
+        made = render_report(lib, engine.Conditions(), **kwargs)
+        text = html.unescape(made.html)
+        assert engine.CAUTION in text  # whole, in the footer
+        assert engine.CAUTION.partition(":")[2].strip() in text  # and in the header's box
+
+
+def test_norbornane_entry_gives_the_exo_endo_split_its_flag_promises(tmp_path: Path) -> None:
+    # The bridgehead flag's text says the 2-halide's exo/endo split is shown beside its stereo: the report does so.
+    from halosift.engine import parameters as P
+
+    source = tmp_path / "nb.csv"
+    source.write_text("id,smiles\nNB-1,C1CC2CCC1C2\n", encoding="utf-8")
+    out = tmp_path / "nb.html"
+    assert main(["report", str(source), "-o", str(out)]) == 0
+    page = html.unescape(out.read_text(encoding="utf-8"))
+    cl, br = P.EXO_FRACTION["cl"].value, P.EXO_FRACTION["br"].value
+    expected = f"exo:endo {100 * cl:.0f}:{100 * (1 - cl):.0f} Cl2, {100 * br:.0f}:{100 * (1 - br):.0f} Br2"
+    assert page.count(expected) == 1 and "bridgehead</strong>: a bridgehead C–H" in page
+
+
+def test_site_letters_placed_clear_at_one_size_without_a_browser() -> None:
+    # The same molecules as the browser test (5 to 20 carbons): every letter finds a clear spot, the drawn bond
+    # length stays the fixed one (the canvas grows instead), and the letter size never changes.
+    from halosift.report import drawing
+    from halosift.report.html import _letters
+    from test_report_browser import LABEL_ROWS
+
+    spots_seen: list[list[drawing.LabelSpot]] = []
+    original = drawing.place_labels
+
+    def spy(*args, **kwargs):
+        spots = original(*args, **kwargs)
+        spots_seen.append(spots)
+        return spots
+
+    lib = engine.load_library(pd.DataFrame(LABEL_ROWS, columns=["id", "smiles"]), use_cache=False)
+    result = lib.evaluate()
+    sizes = set()
+    try:
+        drawing.place_labels = spy
+        for row in range(len(LABEL_ROWS)):
+            products = lib.products(row)
+            products = products[products["site"].isin(engine.ABSTRACTABLE)].reset_index(drop=True)
+            marks = [drawing.SiteMark(int(p.atom), _letters(i), p.site, p.cl2_pct, p.br2_pct)
+                     for i, p in enumerate(products.itertuples())]
+            svg = drawing.structure_svg(result["canonical_smiles"].iloc[row], marks)
+            sizes |= set(re.findall(r'<text class="site-label"[^>]*font-size="([\d.]+)"', svg))
+            per_bond: dict[str, float] = {}  # a hashed wedge is many short strokes: the longest stands for the bond
+            for bond, *xy in re.findall(
+                    r"<path class='bond-(\d+) atom-\d+ atom-\d+' d='M ([\d.]+),([\d.]+) L ([\d.]+),([\d.]+)'", svg):
+                x0, y0, x1, y1 = map(float, xy)
+                per_bond[bond] = max(per_bond.get(bond, 0.0), ((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5)
+            lengths = sorted(per_bond.values())
+            typical = lengths[len(lengths) // 2]  # a 2D cage (adamantane) has a few long bonds
+            assert abs(typical - drawing.BOND_PX) <= 1.5, (LABEL_ROWS[row], typical)
+            assert int(re.search(r"width='(\d+)px'", svg).group(1)) <= 680  # fits an A4 column unshrunk
+    finally:
+        drawing.place_labels = original
+    assert len(spots_seen) == len(LABEL_ROWS)
+    assert all(spot.clear for spots in spots_seen for spot in spots)
+    assert sizes == {f"{drawing.LABEL_FONT_PX:g}"}
+    for spots in spots_seen:
+        for i, a in enumerate(spots):
+            assert not any(a.box.overlaps(b.box) for b in spots[i + 1:])

@@ -113,3 +113,100 @@ def test_report_renders_in_headless_chromium(tmp_path: Path) -> None:
     assert len(re.findall(r'<svg[^>]*class="structure"', dom)) == n_drawings
     assert len(re.findall(r'<section class="substrate"', dom)) == n_drawings
     assert len(re.findall(r'<svg[^>]*class="chart"', dom)) == 4
+
+
+#: Substrates from 5 to 20 carbons (invented IDs): chains, branches, rings, fused rings, an arene, stereo, a bicycle.
+LABEL_ROWS = [
+    ("LB-05", "CCCCC"),                                # 5 C
+    ("LB-06", "CC(C)C(C)C"),                           # 6 C
+    ("LB-07", "CC1CCCCC1"),                            # 7 C
+    ("LB-08", "CC(C)(C)CC(C)C"),                       # 8 C, crowded quaternary carbon
+    ("LB-09", "CC(C)c1ccccc1"),                        # 9 C, cumene
+    ("LB-10", "C1CCC2CCCCC2C1"),                       # 10 C, decalin
+    ("LB-10b", "CC(C)c1ccc(C)cc1"),                    # 10 C, p-cymene
+    ("LB-11", "C[C@H](CC)C[C@@H](C)CC(C)C"),           # 11 C, two stereocentres (wedges)
+    ("LB-11b", "CC1C2CC3CC(C2)CC1C3"),                # 11 C, 2-methyladamantane: crossing bonds in 2D, a leader line
+    ("LB-12", "CCCCCCCCCCCC"),                         # 12 C chain
+    ("LB-13", "C1CC2CCC1C2CC(C)CC"),                   # 13 C, norbornane with a side chain
+    ("LB-15", "CC(C)CCCC(C)CCCC(C)C"),                 # 15 C, branched
+    ("LB-17", "C1CCC2C(C1)CCC1C2CCC2CCCC21"),          # 17 C, the steroid ring skeleton: 17 sites
+    ("LB-20", "CC(C)CCCC(C)CCCC(C)CCCC(C)C"),          # 20 C, phytane
+    ("LB-20b", "CCCCCCCCCCCCCCCCCCCC"),                # 20 C chain
+]
+
+#: Larger than the printed column: shrunk on the page, so their letters are drawn larger to print at the same size.
+WIDE_ROWS = [("LW-30", "C" * 30), ("LW-40", "C" * 40)]
+
+#: Measures, in the browser, every site letter's box against the other letters and against every bond line
+#: (each bond path sampled every 0.5 px), and writes the result into the page as JSON.
+MEASURE = """
+<pre id="measure"></pre>
+<script>
+const out = [];
+for (const svg of document.querySelectorAll('svg.structure')) {
+  const row = svg.closest('section').dataset.row;
+  const labels = [...svg.querySelectorAll('text.site-label')].map(t => {
+    const r = t.getBoundingClientRect();
+    return {l: t.textContent, x0: r.left, y0: r.top, x1: r.right, y1: r.bottom};
+  });
+  const points = [];
+  for (const p of svg.querySelectorAll('path[class^="bond-"]')) {
+    const m = p.getScreenCTM();
+    const n = p.getTotalLength();
+    for (let s = 0; s <= n; s += 0.5) {
+      const q = p.getPointAtLength(s);
+      const d = new DOMPoint(q.x, q.y).matrixTransform(m);
+      points.push([d.x, d.y]);
+    }
+  }
+  const pairs = [], hits = [];
+  const half = 1.0;  // half the bond stroke width
+  for (let i = 0; i < labels.length; i++) {
+    const a = labels[i];
+    for (let j = i + 1; j < labels.length; j++) {
+      const b = labels[j];
+      if (a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1) pairs.push(a.l + '/' + b.l);
+    }
+    if (points.some(([x, y]) => x > a.x0 - half && x < a.x1 + half && y > a.y0 - half && y < a.y1 + half)) hits.push(a.l);
+  }
+  const box = svg.getBoundingClientRect();
+  out.push({row, n: labels.length, bondPoints: points.length, pairs, hits,
+            heights: labels.map(l => l.y1 - l.y0), width: box.width, natural: svg.viewBox.baseVal.width});
+}
+document.getElementById('measure').textContent = JSON.stringify(out);
+</script>
+"""
+
+
+def test_site_letters_never_touch_each_other_or_bonds(tmp_path: Path) -> None:
+    import json
+
+    from halosift import engine
+
+    source = tmp_path / "labels.csv"
+    rows = LABEL_ROWS + WIDE_ROWS
+    pd.DataFrame(rows, columns=["id", "smiles"]).to_csv(source, index=False)
+    report = tmp_path / "labels.html"
+    assert main(["report", str(source), "-o", str(report)]) == 0
+    page = tmp_path / "measured.html"
+    page.write_text(report.read_text(encoding="utf-8").replace("</body>", MEASURE + "</body>"), encoding="utf-8")
+    proc = chromium("--window-size=1200,2000", "--dump-dom", page.as_uri(), profile=tmp_path / "profile")
+    found = re.search(r'<pre id="measure">(.*?)</pre>', proc.stdout, flags=re.DOTALL)
+    assert found and found.group(1), proc.stderr[-2000:]
+    measured = {int(m["row"]): m for m in json.loads(found.group(1).replace("&quot;", '"'))}
+    screened = engine.screen(source, use_cache=False)
+    assert sorted(measured) == list(range(1, len(rows) + 1))
+    for row, m in measured.items():
+        smiles = rows[row - 1][1]
+        assert m["n"] == int(screened["n_products"].iloc[row - 1]) >= 1, (smiles, m["n"])  # every site lettered
+        assert m["bondPoints"] > 0, smiles
+        assert m["pairs"] == [], (smiles, m["pairs"])
+        assert m["hits"] == [], (smiles, m["hits"])
+        # One print size whatever the molecule: up to 20 carbons drawn at natural size (not shrunk); wider ones
+        # shrunk to the column with larger letters; on the page every letter is at least 12 px tall.
+        if row <= len(LABEL_ROWS):
+            assert abs(m["width"] - m["natural"]) < 1.5, (smiles, m["width"], m["natural"])
+        else:
+            assert m["width"] < m["natural"] - 100, (smiles, m["width"], m["natural"])
+        assert min(m["heights"]) >= 12, (smiles, m["heights"])
+    assert max(m["n"] for m in measured.values()) >= 12  # the test includes crowded drawings

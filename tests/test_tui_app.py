@@ -279,12 +279,50 @@ async def test_shortlist_exports_as_html_report(tmp_path):
         assert app.last_export == out.resolve()
         page = out.read_text(encoding="utf-8")
         sections = [int(r) for r in re.findall(r'<section class="substrate" data-row="(\d+)"', page)]
-        assert sections == [r + 1 for r in marked_rows]
+        assert sorted(sections) == [r + 1 for r in marked_rows]  # entries are grouped by verdict, best first
         assert page.count('<svg class="structure"') == 3
         assert "shortlist: 3 marked rows" in page
         assert app.conditions.describe() in page
         assert 'data-count="rows">12<' in page  # the summary counts the whole library
         assert not Path(str(out) + ".about.txt").exists()
+
+
+@async_test
+async def test_html_export_shows_progress_until_written(tmp_path, monkeypatch):
+    from halosift import engine
+    from halosift.tui import export as export_module
+
+    seen: list[tuple[int, int, bool]] = []
+    original = export_module.ExportProgress.update_progress
+
+    def record(self, done: int, total: int) -> None:
+        seen.append((done, total, self.is_mounted))
+        original(self, done, total)
+
+    monkeypatch.setattr(export_module.ExportProgress, "update_progress", record)
+    monkeypatch.setattr(export_module, "PROGRESS_INTERVAL_S", 0.0)  # every step reaches the bar
+    source = tmp_path / "many.csv"
+    chains = [("MN-%03d" % i, "C" * (3 + i % 12) + "C(C)C" * (i % 3)) for i in range(30)]
+    pd.DataFrame(chains, columns=["id", "smiles"]).to_csv(source, index=False)
+    app = HalosiftApp(str(source))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        out = tmp_path / "many.html"
+        await pilot.press("e")
+        assert isinstance(app.screen, ExportScreen)
+        app.screen.query_one("#export-path").value = str(out)  # nothing marked: the current view is chosen
+        await pilot.pause()
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert app.last_export == out.resolve(), [n.message for n in app._notifications]
+        # The bar showed every step, from 0 to all drawn, while mounted, and is gone once the file is written.
+        assert seen and seen[0][0] == 0 and seen[-1][0] == seen[-1][1] == 31  # 30 entries and the page
+        assert [d for d, _, _ in seen] == sorted(d for d, _, _ in seen)
+        assert all(mounted for _, _, mounted in seen)
+        assert not app.query(export_module.ExportProgress)
+        page = out.read_text(encoding="utf-8")
+        assert engine.CAUTION.partition(":")[2].strip() in page  # the export keeps the safety caution
+        assert str(tmp_path) not in page  # and names the library by its file name only
 
 
 @async_test

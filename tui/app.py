@@ -966,7 +966,7 @@ class HalosiftApp(App[int]):
         ``rows`` are the view's rows as shown; for the shortlist they are None and
         the ``marked`` rows are put in ``sort`` order here, off the interface thread.
         """
-        from halosift.tui.export import export_frame, export_metadata, write_report_export
+        from halosift.tui.export import ReportProgress, export_frame, export_metadata, write_report_export
         from halosift.tui.filters import ordered_rows
 
         from halosift import engine
@@ -978,10 +978,14 @@ class HalosiftApp(App[int]):
                 rows = ordered_rows(marked, self._sort_order(self.library, conditions, frame, sort))
             protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
             if is_report_path(path):
-                written = write_report_export(
-                    self.library, conditions, rows, path, force=force, selection=selection,
-                    source=self._source_text(), protect=protect,
-                )
+                progress = ReportProgress(self, path)  # a report draws every entry: seconds on a large library
+                try:
+                    written = write_report_export(
+                        self.library, conditions, rows, path, force=force, selection=selection,
+                        source=self._source_text(), protect=protect, progress=progress,
+                    )
+                finally:
+                    progress.close()
                 n_rows, sidecar = len(rows), ""
             else:
                 out = export_frame(frame, rows)

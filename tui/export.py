@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 import os
-from collections.abc import Sequence
+import time
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
@@ -14,12 +15,13 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, RadioSet, Static
+from textual.widgets import Button, Input, Label, ProgressBar, RadioSet, Static
 
 from halosift.tui.toggles import ChoiceButton
 
 if TYPE_CHECKING:
     import pandas as pd
+    from textual.app import App
 
 #: Default file names per choice (in the folder the app was started from).
 DEFAULT_NAMES: dict[str, str] = {"shortlist": "halosift-shortlist.csv", "view": "halosift-view.csv"}
@@ -106,13 +108,93 @@ def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, s
 
 def write_report_export(
     library: Any, conditions: Any, rows: np.ndarray, path: Path, *, force: bool, selection: str, source: str,
-    protect: Sequence[Any] = (),
+    protect: Sequence[Any] = (), progress: Callable[[int, int], None] | None = None,
 ) -> Path:
-    """Write the printable HTML report (halosift.report) for the chosen rows; the summary counts the whole library."""
+    """Write the printable HTML report (halosift.report) for the chosen rows; the summary counts the whole library.
+
+    ``source`` is shown by its file name only. ``progress(done, total)`` is called
+    as the entries are drawn (from the calling thread).
+    """
     from halosift.report import render_report, write_report
 
-    report = render_report(library, conditions, rows=np.asarray(rows, dtype=np.int64), selection=selection, source=source)
+    report = render_report(library, conditions, rows=np.asarray(rows, dtype=np.int64), selection=selection,
+                           source=source, progress=progress)
     return write_report(report.html, path, force=force, protect=protect)
+
+
+#: Seconds between progress updates sent from the export worker (keeps the interface's queue short).
+PROGRESS_INTERVAL_S = 0.1
+
+
+class ExportProgress(Horizontal):
+    """A one-line bar below the table while a report is written: what is written, and how far it is."""
+
+    DEFAULT_CSS = """
+    ExportProgress { height: 1; padding: 0 1; background: $panel; }
+    ExportProgress > Label { width: auto; margin-right: 1; }
+    ExportProgress > ProgressBar { width: 1fr; }
+    """
+
+    def __init__(self, name: str) -> None:
+        super().__init__(id="export-progress")
+        self.file_name = name
+        """File name of the report being written."""
+
+    def compose(self) -> ComposeResult:
+        yield Label(f"Writing report {self.file_name}: drawing entries", id="export-progress-label")
+        yield ProgressBar(total=None, show_eta=False, id="export-progress-bar")
+
+    def update_progress(self, done: int, total: int) -> None:
+        """Show ``done`` of ``total`` entries drawn."""
+        self.query_one("#export-progress-bar", ProgressBar).update(total=total, progress=done)
+        self.query_one("#export-progress-label", Label).update(
+            f"Writing report {self.file_name}: {min(done, total):,} of {total:,} steps")
+
+
+def _show_progress(app: App, name: str) -> Any:
+    """Mount the bar on the main screen (whatever dialog is open on top); the awaitable finishes the mount."""
+    for old in app.screen_stack[0].query(ExportProgress):
+        old.remove()
+    return app.screen_stack[0].mount(ExportProgress(name))  # call_from_thread awaits it: mounted before updates
+
+
+def _update_progress(app: App, done: int, total: int) -> None:
+    for bar in app.screen_stack[0].query(ExportProgress):
+        bar.update_progress(done, total)
+
+
+def _hide_progress(app: App) -> Any:
+    """Remove the bar; the awaitable finishes the removal."""
+    return app.screen_stack[0].query(ExportProgress).remove()
+
+
+class ReportProgress:
+    """Progress of a report export, sent from the worker thread to the bar on the main screen.
+
+    Create it in the worker (it shows the bar), pass it as ``progress`` to
+    :func:`write_report_export`, and call :meth:`close` when writing ends (it
+    removes the bar, also after a failure). Updates are thinned to one per
+    :data:`PROGRESS_INTERVAL_S`, the last one always sent.
+    """
+
+    def __init__(self, app: App, path: Path) -> None:
+        self.app = app
+        """The running app (its main screen shows the bar)."""
+        self.last = 0.0
+        """Monotonic time of the last update sent."""
+        app.call_from_thread(_show_progress, app, Path(path).name)
+
+    def __call__(self, done: int, total: int) -> None:
+        """Send ``done`` of ``total`` to the bar (thinned)."""
+        now = time.monotonic()
+        if done < total and now - self.last < PROGRESS_INTERVAL_S:
+            return
+        self.last = now
+        self.app.call_from_thread(_update_progress, self.app, done, total)
+
+    def close(self) -> None:
+        """Remove the bar."""
+        self.app.call_from_thread(_hide_progress, self.app)
 
 
 class ConfirmScreen(ModalScreen[bool]):

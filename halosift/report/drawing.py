@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import re
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -60,7 +61,7 @@ def pct_text(value: float) -> str:
 
 
 def site_note(mark: SiteMark) -> str:
-    """The note written beside a site's carbon, e.g. 'a: Cl 45 / Br 3'."""
+    """A site's shares in short, e.g. 'a: Cl 45 / Br 3': beside its carbon in the app's PNG, in the SVG's <desc>."""
     return f"{mark.letter}: Cl {pct_text(mark.cl2_pct)} / Br {pct_text(mark.br2_pct)}"
 
 
@@ -106,21 +107,231 @@ def _draw(drawer, mol, colours) -> None:
     drawer.FinishDrawing()
 
 
-def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
-    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and noted 'a: Cl 45 / Br 3'.
+#: Bond length of report drawings in SVG user units (CSS px at natural size): every molecule is drawn at this
+#: scale, so site letters keep one print size whatever the molecule's size (the canvas grows instead).
+BOND_PX = 32.0
+#: RDKit's 2D depictions have bonds 1.5 coordinate units long.
+DEPICTION_BOND = 1.5
+#: Site-letter font size, user units: 13 px ≈ 9.75 pt at natural size, legible in print.
+LABEL_FONT_PX = 13.0
+#: Room around the molecule for letters on its outermost atoms, in bond lengths.
+MARGIN_BONDS = 1.7
+#: Farther rings of candidate spots, in bond lengths, for crowded drawings (a thin leader line joins them).
+LEADER_RADII = (1.8, 2.1, 2.5)
+#: Widest drawing shown unshrunk: the printed column (A4 less margins, about 178 mm). A wider molecule is scaled
+#: down to it on the page, so its letters are drawn larger by the same factor and still print at one size.
+COLUMN_PX = 672
+#: Smallest canvas, so a tiny molecule still gets a usable figure.
+MIN_WIDTH, MIN_HEIGHT = 200, 140
+#: Half-width of the band around a bond line that letters keep out of, in bond lengths (covers the second line
+#: of a double bond, drawn 0.15 bond lengths off, and stereo wedges).
+BOND_CLEARANCE = 0.24
+#: Letters keep this far from every atom centre (where atom symbols and highlight centres sit), in bond lengths.
+ATOM_CLEARANCE = 0.28
 
+
+@dataclass(frozen=True)
+class Box:
+    """An axis-aligned rectangle in drawing coordinates."""
+
+    x0: float
+    """Left edge."""
+    y0: float
+    """Top edge."""
+    x1: float
+    """Right edge."""
+    y1: float
+    """Bottom edge."""
+
+    def overlaps(self, other: Box, pad: float = 0.0) -> bool:
+        """True when the boxes intersect once each is grown by ``pad``."""
+        return not (self.x1 + pad <= other.x0 or other.x1 + pad <= self.x0
+                    or self.y1 + pad <= other.y0 or other.y1 + pad <= self.y0)
+
+    def near_segment(self, a: tuple[float, float], b: tuple[float, float], clearance: float) -> bool:
+        """True when the segment a–b passes within ``clearance`` of the box (Liang–Barsky clip of the grown box)."""
+        x0, y0, x1, y1 = self.x0 - clearance, self.y0 - clearance, self.x1 + clearance, self.y1 + clearance
+        dx, dy = b[0] - a[0], b[1] - a[1]
+        lo, hi = 0.0, 1.0
+        for p, q in ((-dx, a[0] - x0), (dx, x1 - a[0]), (-dy, a[1] - y0), (dy, y1 - a[1])):
+            if p == 0:
+                if q < 0:
+                    return False
+            else:
+                t = q / p
+                if p < 0:
+                    lo = max(lo, t)
+                else:
+                    hi = min(hi, t)
+                if lo > hi:
+                    return False
+        return True
+
+    def near_point(self, point: tuple[float, float], clearance: float) -> bool:
+        """True when ``point`` lies within ``clearance`` of the box."""
+        dx = max(self.x0 - point[0], 0.0, point[0] - self.x1)
+        dy = max(self.y0 - point[1], 0.0, point[1] - self.y1)
+        return dx * dx + dy * dy < clearance * clearance
+
+
+@dataclass(frozen=True)
+class LabelSpot:
+    """Where one site letter is written on the drawing."""
+
+    letter: str
+    """The site's letter."""
+    x: float
+    """Centre of the letter, drawing units."""
+    y: float
+    """Centre of the letter, drawing units."""
+    box: Box
+    """The room reserved for the letter (a little larger than its glyphs)."""
+    clear: bool
+    """False when no spot free of bonds and other letters was found (the letter is then placed nearest)."""
+    leader: bool = False
+    """True when the letter sits far from its atom (a crowded drawing) and a thin line joins them."""
+
+
+def label_box(x: float, y: float, text: str, font_px: float = LABEL_FONT_PX) -> Box:
+    """The room a letter centred at (x, y) takes: generous, so the glyphs' real extent always lies inside."""
+    half_w = (0.64 * font_px * len(text) + 3.0) / 2
+    half_h = 0.68 * font_px
+    return Box(x - half_w, y - half_h, x + half_w, y + half_h)
+
+
+def place_labels(
+    atoms: Sequence[tuple[float, float]],
+    bonds: Sequence[tuple[int, int]],
+    sites: Sequence[tuple[int, str]],
+    size: tuple[float, float],
+    bond_px: float = BOND_PX,
+    font_px: float = LABEL_FONT_PX,
+) -> list[LabelSpot]:
+    """A spot for each (atom, letter) of ``sites`` clear of every bond band, atom centre, other letter and the edge.
+
+    Candidates ring each atom at growing distances, nearest first, starting from
+    the direction that points away from the atom's bonds; the first clear one is
+    taken. Greedy in ``sites`` order, atoms with the fewest free directions first.
+    """
+    segments = [(atoms[i], atoms[j]) for i, j in bonds]
+    leaders: list[tuple[tuple[float, float], tuple[float, float]]] = []
+    neighbours: dict[int, list[int]] = {i: [] for i in range(len(atoms))}
+    for i, j in bonds:
+        neighbours[i].append(j)
+        neighbours[j].append(i)
+    width, height = size
+    placed: list[Box] = []
+
+    def free(box: Box) -> bool:
+        if box.x0 < 1 or box.y0 < 1 or box.x1 > width - 1 or box.y1 > height - 1:
+            return False
+        if any(box.overlaps(other, pad=2.0) for other in placed):
+            return False
+        if any(box.near_point(p, ATOM_CLEARANCE * bond_px) for p in atoms):
+            return False
+        if any(box.near_segment(a, b, 2.0) for a, b in leaders):
+            return False
+        return not any(box.near_segment(a, b, BOND_CLEARANCE * bond_px) for a, b in segments)
+
+    def candidates(atom: int, letter: str) -> list[tuple[float, float]]:
+        ax, ay = atoms[atom]
+        ox = oy = 0.0
+        for n in neighbours[atom]:
+            dx, dy = ax - atoms[n][0], ay - atoms[n][1]
+            d = math.hypot(dx, dy) or 1.0
+            ox, oy = ox + dx / d, oy + dy / d
+        outward = math.atan2(oy, ox) if (ox or oy) else -math.pi / 2
+        out = []
+        for radius in (0.5, 0.62, 0.75, 0.9, 1.05, 1.25, 1.5, *LEADER_RADII):
+            steps = sorted(range(24), key=lambda k: min(k, 24 - k))  # outward first, then alternately each side
+            for k in steps:
+                angle = outward + k * math.pi / 12
+                out.append((ax + radius * bond_px * math.cos(angle), ay + radius * bond_px * math.sin(angle)))
+        return out
+
+    spots: dict[int, LabelSpot] = {}
+    # Crowded atoms (more bonds) choose first, while the most room is left around them.
+    order = sorted(range(len(sites)), key=lambda k: -len(neighbours[sites[k][0]]))
+    for k in order:
+        atom, letter = sites[k]
+        spot = None
+        for x, y in candidates(atom, letter):
+            box = label_box(x, y, letter, font_px)
+            if free(box):
+                far = math.dist((x, y), atoms[atom]) > 1.6 * bond_px
+                spot = LabelSpot(letter, x, y, box, True, leader=far)
+                break
+        if spot is None:  # nothing clear: the nearest spot off the bonds' own atom
+            x, y = candidates(atom, letter)[0]
+            spot = LabelSpot(letter, x, y, label_box(x, y, letter, font_px), False)
+        placed.append(spot.box)
+        if spot.leader:
+            leaders.append((atoms[atom], (spot.x, spot.y)))
+        spots[k] = spot
+    return [spots[k] for k in range(len(sites))]
+
+
+def _canvas(mol) -> tuple[int, int]:
+    """Canvas size for ``mol`` (with 2D coordinates) at :data:`BOND_PX` per bond length, margins included."""
+    conf = mol.GetConformer()
+    xs = [conf.GetAtomPosition(i).x for i in range(mol.GetNumAtoms())]
+    ys = [conf.GetAtomPosition(i).y for i in range(mol.GetNumAtoms())]
+    margin = 2 * MARGIN_BONDS * BOND_PX
+    scale = BOND_PX / DEPICTION_BOND
+    width = max(MIN_WIDTH, round((max(xs) - min(xs)) * scale + margin))
+    height = max(MIN_HEIGHT, round((max(ys) - min(ys)) * scale + margin))
+    return width, height
+
+
+def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
+    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and lettered (a, b, …).
+
+    The letters match the products table, where the percentages are; each is
+    placed clear of bonds, atoms and the other letters (:func:`place_labels`)
+    and written as SVG text at a fixed size, the canvas growing with the molecule.
     ``canonical_smiles`` must be the engine's canonical SMILES: parsing it numbers
     the atoms in the same order as :attr:`SiteMark.atom`. Raises ValueError when
     it does not parse (it always should, coming from the engine).
     """
+    from rdkit.Chem import rdDepictor
     from rdkit.Chem.Draw import rdMolDraw2D
 
     mol, colours, notes = _drawable(canonical_smiles, marks)
-    drawer = rdMolDraw2D.MolDraw2DSVG(WIDTH, HEIGHT)
-    _draw(drawer, mol, colours)
+    for atom in mol.GetAtoms():
+        atom.ClearProp("atomNote")  # letters are drawn below, as text placed off the bonds
+    rdDepictor.Compute2DCoords(mol)
+    width, height = _canvas(mol)
+    drawer = rdMolDraw2D.MolDraw2DSVG(width, height)
+    options = drawer.drawOptions()
+    options.clearBackground = True
+    options.fixedBondLength = BOND_PX / DEPICTION_BOND  # pixels per coordinate unit
+    options.padding = 0.0
+    rdMolDraw2D.PrepareAndDrawMolecule(
+        drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
+    )
+    drawer.FinishDrawing()
+    points = [(drawer.GetDrawCoords(i).x, drawer.GetDrawCoords(i).y) for i in range(mol.GetNumAtoms())]
+    bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx()) for b in mol.GetBonds()]
+    lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
+    bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX  # as drawn (RDKit shrinks what does not fit)
+    font_px = LABEL_FONT_PX * max(1.0, width / COLUMN_PX)
+    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px, font_px)
+    leaders = "".join(
+        f'<line class="label-leader" x1="{points[m.atom][0]:.1f}" y1="{points[m.atom][1]:.1f}" '
+        f'x2="{s.x:.1f}" y2="{s.y:.1f}" stroke="#777" stroke-width="0.8" stroke-dasharray="2 2"/>'
+        for m, s in zip(marks, spots) if s.leader
+    )
+    texts = leaders + "".join(
+        f'<text class="site-label" data-atom="{m.atom}" x="{s.x:.1f}" y="{s.y:.1f}" text-anchor="middle" '
+        f'dominant-baseline="central" font-size="{font_px:.3g}" font-weight="bold" '
+        f'font-family="DejaVu Sans, Helvetica, Arial, sans-serif" fill="#111" stroke="#fff" stroke-width="3" '
+        f'paint-order="stroke">{escape(m.letter)}</text>'
+        for m, s in zip(marks, spots)
+    )
     svg = _PROLOG.sub("", drawer.GetDrawingText(), count=1).strip()
+    svg = svg.replace("</svg>", f"{texts}</svg>", 1) if texts else svg
     label = escape(title or f"structure of {canonical_smiles}", quote=True)
-    # RDKit draws letters as paths; a <desc> keeps the notes readable to screen readers and searches.
+    # RDKit draws atom symbols as paths; a <desc> keeps the notes readable to screen readers and searches.
     desc = escape("; ".join(notes) if notes else "no abstractable C–H site", quote=False)
     svg = re.sub(r"(<svg\b[^>]*>)", lambda m: f"{m.group(1)}\n<desc>{desc}</desc>", svg, count=1)
     # Tag the root so CSS (and tests) can find structure drawings among the charts.

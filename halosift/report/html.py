@@ -2,9 +2,10 @@
 
 from __future__ import annotations
 
+import re
 from collections import Counter
-from collections.abc import Sequence
-from dataclasses import dataclass
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field
 from html import escape
 from typing import TYPE_CHECKING
 
@@ -46,10 +47,40 @@ class Report:
     """Substrate sections written."""
     n_left_out: int
     """Modelled rows of the selection left out by the page cap."""
+    left_out_by_verdict: dict[str, int] = field(default_factory=dict)
+    """Rows left out by the page cap, per verdict group (groups with none left out are absent)."""
 
 
 def _e(value: object) -> str:
     return escape("" if value is None else str(value), quote=True)
+
+
+#: SMILES tokens: bracket atoms, two-letter elements, one-letter and aromatic atoms, %nn and single ring digits,
+#: bonds and branches. A line may break only between tokens, never inside one (Cl, Br, [C@@H]).
+_SMILES_TOKEN = re.compile(r"\[[^\]]*\]|Cl|Br|%\d\d|[A-Za-z]|\d|[()=#$:/\\.+-]|.", re.DOTALL)
+_ATOM = re.compile(r"\[|Cl$|Br$|[A-Za-z]$")
+_RING = re.compile(r"%\d\d$|\d$")
+
+
+def smiles_tokens(smiles: str) -> list[str]:
+    """The SMILES split into tokens (atoms, ring closures, bonds, branches); joined they give the string back."""
+    return _SMILES_TOKEN.findall(smiles)
+
+
+def smiles_html(smiles: object) -> str:
+    """Escaped SMILES with <wbr> break points after ')', after ring-closure digits and between atoms only."""
+    if smiles is None or (isinstance(smiles, float) and smiles != smiles):
+        return ""
+    tokens = smiles_tokens(str(smiles))
+    out: list[str] = []
+    for i, token in enumerate(tokens):
+        out.append(_e(token))
+        nxt = tokens[i + 1] if i + 1 < len(tokens) else ""
+        if not nxt:
+            continue
+        if token == ")" or _RING.match(token) or (_ATOM.match(token) and (_ATOM.match(nxt) or nxt == "(")):
+            out.append("<wbr>")
+    return "".join(out)
 
 
 def _letters(i: int) -> str:
@@ -125,7 +156,7 @@ def _header(conditions: Conditions, meta: dict[str, str], source: str, selection
 <p class="caution" role="note"><strong>Safety</strong>{_e(_caution_body(meta["caution"]))}</p>
 {warn}<dl class="facts">
 <dt>Conditions</dt><dd data-field="conditions">{_e(meta["conditions"])}</dd>
-<dt>Library</dt><dd>{_e(source)}</dd>
+<dt>Library</dt><dd data-field="library">{_e(source)}</dd>
 <dt>Reported rows</dt><dd>{_e(selection)}</dd>
 <dt>halosift version</dt><dd data-field="version">{_e(meta["halosift_version"])}</dd>
 <dt>Created (UTC)</dt><dd data-field="created">{_e(meta["created_utc"])}</dd>
@@ -197,17 +228,30 @@ def _key(conditions: Conditions) -> str:
     from halosift.engine.outcomes import outcome_docs
 
     items = "".join(f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in verdict_meaning(conditions.threshold_pct).items())
+    # The engine's words speak of the screen's columns; an entry gives the reason in brackets after the outcome.
     outcome_items = "".join(
-        f"<dt>{_e(v)}</dt><dd>{_e(m)}.</dd>" for v, m in outcome_docs(conditions.threshold_pct).items()
+        f"<dt>{_e(v)}</dt><dd>{_e(m.replace('the reason column says why', 'the reason follows in brackets'))}.</dd>"
+        for v, m in outcome_docs(conditions.threshold_pct).items()
     )
     return f"""<section class="key"><h2>Reading the substrate entries</h2>
+<p>Entries are grouped by verdict, best candidates first: one product by symmetry, then selective with the
+reagent named, then mixtures, ruled-out and inert substrates; within a group the highest share of the major
+monohalide (of the reagent offered; for a mixture, of the best reagent not ruled out) comes first. A page limit
+applies after this grouping, and the page says how many entries of each group it left out.</p>
 <p>Each entry draws the substrate and marks every distinct abstractable C–H site (one representative carbon per
-set of equivalent carbons) with a letter and its predicted share: for example <code>a: Cl 45 / Br 3</code> means
-site a gives 45 % of the monochlorides under Cl2 and 3 % of the monobromides under Br2. Tables name
-the monochloride; the monobromide is the same SMILES with Br in place of Cl. The tint of a marked carbon
-shows its site class; the class is also named in the legend and the table. C–H bonds on sp2 and sp carbons
-(aryl, vinyl, alkynyl) are not abstracted and are not listed. Shares are percentages of the monohalides only;
-polyhalogenation is not modelled. A number after the stereo outcome counts the stereoisomers formed.</p>
+set of equivalent carbons) with a tint for its site class and a letter; the letter leads the site's row in the
+products table, which gives the predicted shares: % Cl2 is the site's share of the monochlorides under Cl2,
+% Br2 its share of the monobromides under Br2. Tables name the monochloride; the monobromide is the same SMILES
+with Br in place of Cl. The site class is also named in the legend and the table. C–H bonds on sp2 and sp
+carbons (aryl, vinyl, alkynyl) are not abstracted and are not listed. Where the substrate has allylic or
+benzylic C–H a second table gives the NBS monobromides (Wohl–Ziegler), both ends of an allyl radical included
+(Br at the radical carbon or with an allylic shift; the E/Z ratio of a moved C=C is not predicted, so E and Z are
+counted as stereoisomers). These shares are of the monohalides only; the further
+halogenation of a monohalide is estimated separately, as the polyhalide share of the halogenated product when
+substrate and halogen are charged 1 : 1 and all the halogen reacts (competitive consecutive kinetics with an
+estimated deactivation by the first halogen). A number after the stereo outcome counts the stereoisomers formed.
+Flags name risks the percentages do not show, each with its explanation; every flag but bridgehead rules some
+reagents out. SO2Cl2 is weighed as Cl· at its own temperature.</p>
 <p>Verdicts, read off the outcomes of Cl2, Br2, SO2Cl2 and NBS (a reagent is offered only when its outcome is
 clean):</p>
 <dl>{items}</dl>
@@ -226,14 +270,71 @@ def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
     body = []
     for letter, p in zip(letters, products.itertuples(index=False)):
         stereo = " ".join(filter(None, [str(p.stereo), count_text(str(p.stereo), int(p.n_stereoisomers))]))
+        stereo += _exo_endo(str(p.site))
         body.append(
-            f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{_e(p.product)}</td><td>{_e(p.site)}</td>"
+            f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{smiles_html(p.product)}</td><td>{_e(p.site)}</td>"
             f'<td class="num">{int(p.h_count)}</td><td>{_e(stereo)}</td>'
             f'<td class="num">{_pct(float(p.cl2_pct))}</td><td class="num">{_pct(float(p.br2_pct))}</td></tr>'
         )
     return ('<table class="products"><thead><tr><th>site</th><th>monochloride</th>'
             '<th>class</th><th class="num">H</th><th>stereo outcome</th><th class="num">% Cl2</th>'
             '<th class="num">% Br2</th></tr></thead><tbody>' + "".join(body) + "</tbody></table>")
+
+
+def _poly_line(result_row: pd.Series) -> str:
+    """The polyhalide estimate of one entry (engine.polyhalogenation), '' when the screen gives none."""
+    parts = []
+    for reagent, name in (("cl2", "Cl2"), ("br2", "Br2")):
+        value = result_row.get(f"{reagent}_poly_pct")
+        if value is not None and not pd.isna(value):
+            parts.append(f"{name} {_pct(float(value))} %")
+    if not parts:
+        return ""
+    return (f'<p class="meta poly">Polyhalide at 1 : 1 substrate : halogen, all halogen consumed: '
+            f'{" · ".join(parts)} of the halogenated product.</p>')
+
+
+def _flags_list(flags: object) -> str:
+    """Each special-site flag of an entry with its note (engine.special_sites), '' when none."""
+    from halosift.engine.special_sites import FLAG_NOTES
+
+    if not isinstance(flags, str) or not flags:
+        return ""
+    items = []
+    for flag in flags.split(","):
+        note = FLAG_NOTES.get(flag)
+        items.append(f"<li><strong>{_e(flag)}</strong>: {_e(note.note if note else 'see engine.special_sites')}</li>")
+    return f'<div class="flags" role="note"><p>Flags:</p><ul>{"".join(items)}</ul></div>'
+
+
+def _nbs_table(library: Library, row: int, conditions: Conditions) -> str:
+    """The NBS monobromides of one entry (Wohl–Ziegler: allylic/benzylic C–H, allylic shift included)."""
+    from halosift.engine.stereo import count_text
+
+    nbs = library.nbs_products(row, conditions)
+    if nbs.empty:
+        return ""
+    body = "".join(
+        f'<tr><td class="smiles">{smiles_html(p.product)}</td><td>{_e(p.site)}</td><td>{_e(p.terminus)}</td>'
+        f'<td>{_e(" ".join(filter(None, [str(p.stereo), count_text(str(p.stereo), int(p.n_stereoisomers))])))}</td>'
+        f'<td class="num">{_pct(float(p.nbs_pct))}</td></tr>'
+        for p in nbs.itertuples(index=False)
+    )
+    return (f'<table class="products nbs"><caption>NBS at {conditions.nbs_temp_c:g} °C: monobromides</caption>'
+            '<thead><tr><th>monobromide</th><th>radical class</th><th>Br at</th><th>stereo outcome</th>'
+            '<th class="num">% NBS</th></tr></thead><tbody>' + body + "</tbody></table>")
+
+
+def _exo_endo(site: str) -> str:
+    """'; exo:endo 70:30 Cl2, 95:5 Br2' for a norbornane 2-halide (engine.rates.exo_fraction), '' otherwise."""
+    from halosift.engine.rates import exo_fraction
+
+    splits = []
+    for reagent, radical, name in (("cl2", "cl", "Cl2"), ("br2", "br", "Br2")):
+        f = exo_fraction(site, radical)
+        if f is not None:
+            splits.append(f"{100 * f:.0f}:{100 * (1 - f):.0f} {name}")
+    return "; exo:endo " + ", ".join(splits) if splits else ""
 
 
 def _legend(sites: Sequence[str]) -> str:
@@ -262,16 +363,16 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
         drawing = f'<p class="note">No drawing: {_e(exc)}</p>'
     verdict = str(result_row["verdict"])
     raw_smiles = library.input[library.smiles_column].iloc[row]
-    lines = [f'<p class="meta">Input row {row + 1} · input SMILES <span class="smiles">{_e(raw_smiles)}</span>'
-             f' · canonical <span class="smiles">{_e(canonical)}</span></p>']
+    lines = [f'<p class="meta">Input row {row + 1} · input SMILES <span class="smiles">{smiles_html(raw_smiles)}</span>'
+             f' · canonical <span class="smiles">{smiles_html(canonical)}</span></p>']
     dup = result_row["duplicate_of"]
     if not pd.isna(dup):
         lines.append(f'<p class="meta">Same structure as input row {int(dup)}.</p>')
     if len(products):
         lines.append(
-            f'<p class="meta">Major under Cl2: <span class="smiles">{_e(result_row["cl2_major"])}</span> '
+            f'<p class="meta">Major under Cl2: <span class="smiles">{smiles_html(result_row["cl2_major"])}</span> '
             f"({_pct(float(result_row['cl2_major_pct']))} %) · major under Br2: "
-            f'<span class="smiles">{_e(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
+            f'<span class="smiles">{smiles_html(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
             f" {_e(result_row['stereo'])})</p>"
         )
     outcomes = []
@@ -283,14 +384,20 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
     if outcomes:
         lines.append(f'<p class="meta">Outcomes: {_e("; ".join(outcomes))}</p>')
     extras = []
-    for column, label in (
-        ("serves", "Serves"), ("confidence", "Confidence"), ("flags", "Flags"), ("nbs_major", "Major under NBS"),
-    ):
+    for column, label in (("serves", "Serves"), ("confidence", "Confidence")):
         value = result_row.get(column, "")
         if isinstance(value, str) and value:
             extras.append(f"{label}: {_e(value)}")
+    nbs_major = result_row.get("nbs_major", "")
+    if isinstance(nbs_major, str) and nbs_major:
+        extras.append(f'Major under NBS: <span class="smiles">{smiles_html(nbs_major)}</span> '
+                      f'({_pct(float(result_row["nbs_major_pct"]))} %)')
     if extras:
         lines.append(f'<p class="meta">{" · ".join(extras)}</p>')
+    poly = _poly_line(result_row)
+    if poly:
+        lines.append(poly)
+    flags = _flags_list(result_row.get("flags", ""))
     warn = ""
     if warnings:
         warn = '<div class="warnings" role="note">' + "".join(f"<p>Warning: {_e(w)}</p>" for w in warnings) + "</div>"
@@ -299,7 +406,8 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
         f'<h3>{_e(row_id)} <span class="verdict verdict-{_e(verdict)}">verdict: {_e(verdict)}</span></h3>'
         + "".join(lines)
         + f'<div class="substrate-body"><figure>{drawing}{_legend([m.site for m in marks])}</figure>'
-        f"<div>{_products_table(products, letters)}</div></div>{warn}</section>"
+        f"<div>{_products_table(products, letters)}{_nbs_table(library, row, conditions)}</div></div>"
+        f"{flags}{warn}</section>"
     )
 
 
@@ -309,7 +417,7 @@ def _rejected_table(library: Library, rows: np.ndarray, ids: list[str], result: 
     shown = rows[:REJECTED_LISTED]
     raw = library.input[library.smiles_column]
     body = "".join(
-        f'<tr><td class="num">{r + 1}</td><td>{_e(ids[r])}</td><td class="smiles">{_e(raw.iloc[r])}</td>'
+        f'<tr><td class="num">{r + 1}</td><td>{_e(ids[r])}</td><td class="smiles">{smiles_html(raw.iloc[r])}</td>'
         f"<td>{_e(result['reason'].iloc[r])}</td></tr>"
         for r in shown
     )
@@ -325,6 +433,67 @@ def _rejected_table(library: Library, rows: np.ndarray, ids: list[str], result: 
 # ---------------------------------------------------------------------------- the page
 
 
+#: Section groups, best candidates first: (verdict, heading).
+GROUPS: tuple[tuple[str, str], ...] = (
+    ("by-symmetry", "One product by symmetry"),
+    ("selective", "Selective with the reagent named"),
+    ("mixture", "Mixtures"),
+    ("ruled-out", "Ruled out: another pathway"),
+    ("inert", "Inert: no abstractable C–H"),
+)
+
+ProgressFn = Callable[[int, int], None]
+
+
+def source_name(source: str) -> str:
+    """What the page calls its input: the file name only, never the folder it sits in (a report is forwarded)."""
+    from pathlib import PurePath
+
+    text = str(source).strip()
+    if not text:
+        return ""
+    if text == "-":
+        return "standard input"
+    name = PurePath(text.replace("\\", "/")).name
+    return name or text
+
+
+def _best_share(result: pd.DataFrame, rows: np.ndarray) -> np.ndarray:
+    """Per row, the share of the major monohalide that ranks it in its group (higher first).
+
+    By-symmetry and selective rows: the reagent offered (``serves``). Mixtures:
+    the highest major share among reagents not ruled out. Others: 0 (input order).
+    """
+    from halosift.engine.outcomes import OUTCOME_REAGENTS
+
+    sub = result.iloc[rows]
+    share = {r: sub[f"{r}_major_pct"].to_numpy(dtype=float) for r in OUTCOME_REAGENTS}
+    weighed = {r: (sub[f"{r}_outcome"] != "ruled-out").to_numpy() for r in OUTCOME_REAGENTS}
+    serves = sub["serves"].to_numpy(dtype=object)
+    out = np.zeros(len(rows))
+    for r in OUTCOME_REAGENTS:
+        offered = serves == r
+        out[offered] = share[r][offered]
+    mixture = (sub["verdict"] == "mixture").to_numpy()
+    best = np.zeros(len(rows))
+    for r in OUTCOME_REAGENTS:
+        best = np.fmax(best, np.where(weighed[r], share[r], np.nan))
+    out[mixture] = best[mixture]
+    return np.nan_to_num(out, nan=0.0)
+
+
+def group_rows(result: pd.DataFrame, rows: np.ndarray) -> list[tuple[str, np.ndarray]]:
+    """Modelled ``rows`` per verdict group in :data:`GROUPS` order, each best first (ties in input order)."""
+    verdicts = result["verdict"].to_numpy(dtype=object)[rows]
+    share = _best_share(result, rows)
+    groups = []
+    for verdict, _ in GROUPS:
+        mine = np.flatnonzero(verdicts == verdict)
+        order = np.lexsort((rows[mine], -share[mine]))  # last key first: share descending, then input row
+        groups.append((verdict, rows[mine][order]))
+    return groups
+
+
 def render_report(
     library: Library,
     conditions: Conditions,
@@ -334,13 +503,17 @@ def render_report(
     source: str = "",
     max_pages: int = DEFAULT_MAX_PAGES,
     missing_ids: Sequence[str] = (),
+    progress: ProgressFn | None = None,
 ) -> Report:
     """The report page for ``library`` under ``conditions``.
 
     The summary counts every row of the library; one section is written per
-    modelled row of ``rows`` (0-based input rows; None: all), in input order,
-    up to ``max_pages`` sections, with a note saying how many were left out.
-    Rejected rows of the selection are listed with their reasons.
+    modelled row of ``rows`` (0-based input rows; None: all), grouped by verdict
+    (:data:`GROUPS`, best candidates first; within a group the highest major
+    share first), and the first ``max_pages`` of that order are written, with a
+    note saying how many of each group were left out. Rejected rows of the
+    selection are listed with their reasons. ``source`` is shown by its file name
+    only. ``progress(done, total)`` is called as the entries are drawn.
     """
     from halosift.engine.provenance import export_metadata
 
@@ -350,15 +523,26 @@ def render_report(
     chosen = np.arange(len(library), dtype=np.int64) if rows is None else np.unique(np.asarray(rows, dtype=np.int64))
     if len(chosen) and (chosen[0] < 0 or chosen[-1] >= len(library)):
         raise ValueError("report rows must be input rows of the library")
-    meta = export_metadata(conditions, source=source)
+    name = source_name(source)
+    meta = export_metadata(conditions, source=name)
     ids = _row_ids(library)
     kinds = rejection_kinds(library)
     ok = (result["status"] == "ok").to_numpy()
     modelled = chosen[ok[chosen]]
     rejected = chosen[~ok[chosen]]
-    shown = modelled[:max_pages]
+    groups = group_rows(result, modelled)
+    room = max_pages
+    kept: list[tuple[str, np.ndarray, int]] = []  # verdict, rows shown, rows of the group left out
+    for verdict, members in groups:
+        take = members[:room]
+        room -= len(take)
+        kept.append((verdict, take, len(members) - len(take)))
+    shown = [int(r) for _, take, _ in kept for r in take]
     left_out = len(modelled) - len(shown)
     warnings = conditions.warnings()
+    total = len(shown) + 1
+    if progress is not None:
+        progress(0, total)
 
     notes = []
     if missing_ids:
@@ -369,10 +553,30 @@ def render_report(
         notes.append('<p class="note">No modelled substrate matches this report\'s selection.</p>')
     cap = ""
     if left_out:
+        per_group = "; ".join(f"{n:,} {v}" for v, _, n in kept if n)
         cap = (f'<p class="note cap-note">{len(shown):,} of {len(modelled):,} selected substrates are shown; '
-               f"{left_out:,} more were left out by the limit of {max_pages:,} substrate entries.</p>")
-    sections = "\n".join(_section(library, int(r), ids[r], result.iloc[r], conditions, warnings) for r in shown)
-    title = f"halosift report: {source}" if source else "halosift report"
+               f"{left_out:,} more were left out by the limit of {max_pages:,} substrate entries ({per_group}). "
+               "Entries are grouped by verdict, best candidates first, and the limit applies after grouping.</p>")
+    headings = dict(GROUPS)
+    parts: list[str] = []
+    done = 0
+    for verdict, take, missed in kept:
+        n_group = len(take) + missed
+        if not n_group:
+            continue
+        count = f"{len(take):,} of {n_group:,}" if missed else f"{n_group:,}"
+        parts.append(f'<h2 class="group" id="group-{verdict}" data-verdict="{verdict}">'
+                     f"{_e(headings[verdict])} ({count})</h2>")
+        for r in take:
+            parts.append(_section(library, int(r), ids[r], result.iloc[r], conditions, warnings))
+            done += 1
+            if progress is not None:
+                progress(done, total)
+        if missed:
+            parts.append(f'<p class="note group-cap">{missed:,} more {_e(verdict)} '
+                         f'{"entry was" if missed == 1 else "entries were"} left out by the page limit.</p>')
+    sections = "\n".join(parts)
+    title = f"halosift report: {name}" if name else "halosift report"
     html = f"""<!DOCTYPE html>
 <html lang="en">
 <head>
@@ -383,7 +587,7 @@ def render_report(
 <style>{STYLESHEET}</style>
 </head>
 <body>
-{_header(conditions, meta, source or "in-memory table", selection)}
+{_header(conditions, meta, name or "in-memory table", selection)}
 <main>
 {_summary(result, kinds, conditions)}
 {_key(conditions)}
@@ -398,4 +602,7 @@ def render_report(
 </body>
 </html>
 """
-    return Report(html=html, n_rows=len(library), n_selected=len(chosen), n_sections=len(shown), n_left_out=left_out)
+    if progress is not None:
+        progress(total, total)
+    return Report(html=html, n_rows=len(library), n_selected=len(chosen), n_sections=len(shown), n_left_out=left_out,
+                  left_out_by_verdict={v: n for v, _, n in kept if n})

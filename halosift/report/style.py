@@ -14,7 +14,9 @@ body {
 h1 { font-size: 1.7rem; margin: 0 0 0.3rem; color: var(--accent); letter-spacing: 0.01em; }
 h2 { font-size: 1.25rem; margin: 1.2rem 0 0.5rem; border-bottom: 1.5px solid var(--accent); padding-bottom: 0.15rem; }
 h3 { font-size: 1.05rem; margin: 0.8rem 0 0.3rem; }
-.smiles, code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 0.9em; word-break: break-all; }
+.smiles, code { font-family: "DejaVu Sans Mono", Menlo, Consolas, monospace; font-size: 0.9em; }
+/* SMILES break only at the <wbr> points the report puts in (after ')', ring digits, between atoms). */
+.smiles { word-break: normal; overflow-wrap: normal; hyphens: none; }
 .lede { color: var(--muted); margin: 0 0 0.8rem; }
 .caution {
   border: 2.5px solid #111; background: #fff8e1; padding: 0.6rem 0.8rem; margin: 0.8rem 0; font-size: 1rem;
@@ -55,8 +57,17 @@ section.substrate h3 { margin-top: 0.2rem; }
 .verdict-ruled-out { border-style: dotted; }
 .verdict-mixture { border-style: dashed; }
 .verdict-inert { border-style: dotted; color: var(--muted); }
-.substrate-body { display: grid; grid-template-columns: minmax(0, 250px) minmax(0, 1fr); gap: 0.8rem; align-items: start; }
-svg.structure { width: 100%; max-width: 250px; height: auto; border: 1px solid var(--rule); }
+/* The drawing keeps its natural size (fixed bond length, so the site letters keep one print size); a large one
+   takes the full width and the tables flow below it. */
+.substrate-body { display: flex; flex-wrap: wrap; gap: 0.8rem; align-items: flex-start; }
+.substrate-body > figure { flex: 0 1 auto; max-width: 100%; }
+.substrate-body > div { flex: 1 1 90mm; min-width: 0; }
+svg.structure { max-width: 100%; height: auto; border: 1px solid var(--rule); display: block; }
+table.products caption { text-align: left; font-weight: 600; padding: 0.2rem 0; }
+.flags { border-left: 4px solid var(--accent); padding: 0.2rem 0.8rem; margin: 0.4rem 0; font-size: 0.9rem; }
+.flags p { margin: 0.1rem 0; font-weight: 600; }
+.flags ul { margin: 0.1rem 0 0.1rem 1.1rem; padding: 0; }
+h2.group { margin-top: 1.6rem; }
 .legend { list-style: none; padding: 0; margin: 0.3rem 0; font-size: 0.85rem; }
 .legend li { display: inline-block; margin: 0 0.8rem 0.2rem 0; }
 .swatch { display: inline-block; width: 0.9em; height: 0.9em; border: 1px solid #777; vertical-align: -0.1em; margin-right: 0.25em; }
@@ -65,10 +76,9 @@ footer { margin-top: 1.5rem; border-top: 1px solid var(--rule); padding-top: 0.5
 @media print {
   html { font-size: 9.5pt; }
   body { max-width: none; padding: 0; }
-  .substrate-body { grid-template-columns: minmax(0, 60mm) minmax(0, 1fr); }
   a { color: inherit; text-decoration: none; }
 }
 @media screen and (max-width: 700px) {
-  .charts, .substrate-body { grid-template-columns: 1fr; }
+  .charts { grid-template-columns: 1fr; }
 }
 """

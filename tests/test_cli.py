@@ -72,7 +72,7 @@ def test_screen_round_trip(tmp_path: Path, suffix: str) -> None:
     if suffix == ".parquet":
         back = pd.read_parquet(out)
         meta = pq.read_schema(out).metadata
-        assert b"caution" in meta and b"conditions" in meta
+        assert b"halosift_caution" in meta and b"halosift_conditions" in meta
     elif suffix == ".sdf":
         from rdkit import Chem
 

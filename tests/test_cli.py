@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import re
+import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -414,3 +415,33 @@ def test_bash_completion_completes(tmp_path: Path) -> None:
     assert _complete(script, ["halosift", "explain", ""], tmp_path) == []  # a SMILES, not a file
     assert _complete(script, ["halosift", "completion", ""], tmp_path) == ["bash", "zsh", "fish"]
     assert _complete(script, ["halosift", "--ver"], tmp_path) == ["--version"]
+
+
+@pytest.mark.skipif(shutil.which("fish") is None, reason="fish is not installed")
+def test_fish_completion_completes(tmp_path: Path) -> None:
+    script = tmp_path / "halosift.fish"
+    script.write_text(run("completion", "fish").stdout)
+    assert subprocess.run(["fish", "-n", str(script)]).returncode == 0
+    (tmp_path / "lib.csv").write_text("smiles\nC\n")
+
+    def offered(line: str) -> list[str]:
+        proc = subprocess.run(["fish", "-c", f"source {script}; complete -C '{line}'"], capture_output=True,
+                              text=True, cwd=tmp_path, timeout=30)
+        assert proc.returncode == 0, proc.stderr
+        return [row.split("\t")[0] for row in proc.stdout.splitlines()]
+
+    assert offered("halosift sc") == ["screen"]
+    assert offered("halosift screen --ph") == ["--phase"]
+    assert offered("halosift screen lib.csv --phase ") == ["gas", "liquid", "solution"]
+    assert offered("halosift screen li") == ["lib.csv"]
+    assert sorted(offered("halosift completion ")) == ["bash", "fish", "zsh"]
+
+
+@pytest.mark.skipif(shutil.which("zsh") is None, reason="zsh is not installed")
+def test_zsh_completion_registers(tmp_path: Path) -> None:
+    script = tmp_path / "halosift.zsh"
+    script.write_text(run("completion", "zsh").stdout)
+    code = f"autoload -U compinit; compinit -u -d {tmp_path}/zcompdump; source {script}; print -r -- $_comps[halosift]"
+    proc = subprocess.run(["zsh", "-f", "-c", code], capture_output=True, text=True, timeout=30)
+    assert proc.returncode == 0 and proc.stderr == "", proc.stderr
+    assert "_halosift_complete" in proc.stdout  # zsh's bash layer runs the bash function

@@ -36,7 +36,7 @@ def test_readme_mentions_safety() -> None:
 
 
 def test_every_subcommand_has_help() -> None:
-    for command in ("explain", "screen", "report", "browse"):
+    for command in ("explain", "screen", "report", "browse", "completion"):
         proc = subprocess.run([sys.executable, "-m", "halosift", command, "--help"], capture_output=True, text=True)
         assert proc.returncode == 0 and "usage" in proc.stdout, command
 

@@ -188,6 +188,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _add_in_format_option(p: argparse.ArgumentParser) -> None:
+    """--in-format, for a library read from standard input."""
     p.add_argument("--in-format", choices=IN_FORMATS,
                    help="format of a library on standard input (input -); default: guessed from its first bytes")
 

@@ -40,7 +40,10 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "cl2_major": "SMILES of the major monochloride under Cl2",
     "cl2_major_pct": "its share of the monochlorides, percent",
-    "br2_major": "SMILES of the major monobromide under Br2",
+    "br2_major": (
+        "SMILES of the major monobromide under Br2 (written on the chloride's canonical SMILES with Br for Cl; "
+        "not re-canonicalised)"
+    ),
     "br2_major_pct": "its share of the monobromides, percent",
     "stereo": (
         "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "

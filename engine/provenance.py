@@ -20,11 +20,11 @@ MODEL_SOURCES = (
 
 
 def export_metadata(conditions: Conditions, **extra: str) -> dict[str, str]:
-    """Key/value provenance for file metadata, SDF properties or a sidecar file."""
+    """Key/value provenance for an export; the file writers namespace the keys (halosift.engine.io.metadata)."""
     from halosift.engine import __version__
 
     meta = {
-        "halosift_version": __version__,
+        "version": __version__,
         "created_utc": datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ"),
         "conditions": conditions.describe(),
         "cl2_temp_c": f"{conditions.cl2_temp_c:g}",

@@ -14,8 +14,22 @@ from contextlib import contextmanager
 from dataclasses import asdict
 from typing import TextIO
 
+from halosift._version import __version__
+
 EXIT_OK = 0
 EXIT_USAGE = 2
+
+STDIO = "-"
+"""The file name that means standard input (a library to read) or standard output (``-o -``)."""
+
+#: Formats a library on standard input may be given as (``--in-format``); engine.io.INPUT_FORMATS, checked by a test.
+IN_FORMATS = ("csv", "tsv", "parquet", "smi", "sdf")
+#: Formats ``-o -`` writes (``--out-format``); engine.io.OUTPUT_FORMATS, checked by a test.
+OUT_FORMATS = ("csv", "tsv", "parquet", "sdf")
+#: Output formats that are bytes, not text: never written to a terminal.
+BINARY_FORMATS = ("parquet",)
+#: Shells ``halosift completion`` writes a script for.
+SHELLS = ("bash", "zsh", "fish")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -93,7 +107,11 @@ def _reagent_arg(text: str) -> str:
 
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser for all subcommands."""
-    parser = _Parser(prog="halosift", description="Predict free-radical halogenation outcomes for hydrocarbons.")
+    parser = _Parser(
+        prog="halosift", description="Predict free-radical halogenation outcomes for hydrocarbons.",
+        epilog="Without a command, opens the app on the bundled sample catalogue (on a terminal only).",
+    )
+    parser.add_argument("--version", action="version", version=f"halosift {__version__}")
     sub = parser.add_subparsers(dest="command", parser_class=_Parser)
 
     ex = sub.add_parser("explain", help="every monohalide of one SMILES, with percentages")
@@ -118,8 +136,12 @@ def build_parser() -> argparse.ArgumentParser:
     ex.add_argument("--json", action="store_true", help="print one JSON object")
 
     sc = sub.add_parser("screen", help="screen a library file; one output row per input row")
-    sc.add_argument("input", help="CSV, TSV, Parquet, SMI or SDF (optionally .gz)")
-    sc.add_argument("-o", "--output", required=True, help="CSV, TSV, Parquet or SDF (by extension)")
+    sc.add_argument("input", help="CSV, TSV, Parquet, SMI or SDF (optionally .gz); - reads standard input")
+    sc.add_argument("-o", "--output", required=True,
+                    help="CSV, TSV, Parquet or SDF (by extension); - writes standard output (see --out-format)")
+    _add_in_format_option(sc)
+    sc.add_argument("--out-format", choices=OUT_FORMATS,
+                    help="format for -o - (default csv); Parquet is never written to a terminal")
     _add_condition_options(sc, "both reagents")
     _add_solvent_option(sc)
     _add_phase_option(sc)
@@ -128,8 +150,10 @@ def build_parser() -> argparse.ArgumentParser:
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
 
     rp = sub.add_parser("report", help="write a printable HTML report: summary charts and one drawn entry per substrate")
-    rp.add_argument("input", help="a library as for screen (a screen result re-reads as a library)")
+    rp.add_argument("input", help="a library as for screen (a screen result re-reads as a library); - reads "
+                    "standard input")
     rp.add_argument("-o", "--output", required=True, help="the report file (.html)")
+    _add_in_format_option(rp)
     _add_condition_options(rp, "both reagents")
     _add_phase_option(rp)
     _add_library_options(rp)
@@ -142,6 +166,13 @@ def build_parser() -> argparse.ArgumentParser:
                     help="at most N substrate entries (default 200), the best kept: entries are grouped by "
                     "verdict, best candidates first; the report says how many of each verdict were left out")
     _add_run_options(rp)
+    rp.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
+
+    co = sub.add_parser("completion", help="print a shell completion script (bash, zsh or fish)",
+                        description="Print a completion script for SHELL. bash: eval \"$(halosift completion bash)\" "
+                        "in ~/.bashrc; zsh: the same line in ~/.zshrc; fish: halosift completion fish > "
+                        "~/.config/fish/completions/halosift.fish")
+    co.add_argument("shell", choices=SHELLS)
 
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
@@ -155,6 +186,12 @@ def build_parser() -> argparse.ArgumentParser:
         help="start without this library's saved session (marks, sort, filters, view, conditions) and replace it",
     )
     return parser
+
+
+def _add_in_format_option(p: argparse.ArgumentParser) -> None:
+    """--in-format, for a library read from standard input."""
+    p.add_argument("--in-format", choices=IN_FORMATS,
+                   help="format of a library on standard input (input -); default: guessed from its first bytes")
 
 
 def _add_run_options(p: argparse.ArgumentParser) -> None:
@@ -258,24 +295,40 @@ def _screen(args: argparse.Namespace) -> int:
 
     from halosift.engine import Cancelled, LibraryError
     from halosift.engine.io import check_output, write_table
+    from halosift.engine.io.writers import write_stream
     from halosift.engine.provenance import export_metadata
     from halosift.progress import summary_lines
 
     started = time.monotonic()
+    to_stdout = args.output == STDIO
     try:
         cond = _run_conditions(args)
+        out_format = _stdout_format(args) if to_stdout else None
     except ValueError as exc:
         return _fail(str(exc))
     try:
-        check_output(args.output, force=args.force, protect=[args.input])
-        library = _load(args, quiet=args.quiet)
-        result = library.evaluate(cond)
-        meta = export_metadata(cond, source=str(args.input))
-        written = write_table(result, args.output, metadata=meta, force=args.force, protect=[args.input])
+        if out_format is None:
+            _check_out_format(args)
+            check_output(args.output, force=args.force, protect=_protected(args))
+        with _input_file(args) as input_path:
+            library = _load(args, input_path, quiet=args.quiet)
+            result = library.evaluate(cond)
+            meta = export_metadata(cond, source=_source_name(args))
+            if out_format is not None:
+                write_stream(result, sys.stdout.buffer, out_format, metadata=meta)
+                written = "standard output"
+            else:
+                written = str(write_table(result, args.output, metadata=meta, force=args.force,
+                                          protect=_protected(args)))
     except LibraryError as exc:
         return _fail(str(exc))
     except Cancelled:
         return _fail("cancelled")
+    if out_format in ("csv", "tsv"):
+        # No sidecar on a stream: the caution goes with the data in the only other place there is.
+        print("halosift: note: standard output has no .about.txt sidecar (conditions, sources); "
+              "-o FILE keeps one beside the data", file=sys.stderr)
+        print(meta["caution"], file=sys.stderr)
     if not args.quiet:
         for line in summary_lines(result, time.monotonic() - started):
             print(line, file=sys.stderr)
@@ -283,6 +336,76 @@ def _screen(args: argparse.Namespace) -> int:
             print(f"warning: {warning}", file=sys.stderr)
         print(f"wrote {written}", file=sys.stderr)
     return EXIT_OK
+
+
+def _stdout_format(args: argparse.Namespace) -> str:
+    """The format ``-o -`` writes; ValueError (one line) for bytes bound for a terminal."""
+    fmt = args.out_format or "csv"
+    if fmt in BINARY_FORMATS and sys.stdout.isatty():
+        raise ValueError(f"refusing to write {fmt} (binary) to a terminal; redirect standard output "
+                         f"(> result.{fmt}) or use --out-format csv")
+    return fmt
+
+
+def _check_out_format(args: argparse.Namespace) -> None:
+    """--out-format is for -o -; with a file name it must agree with the extension (LibraryError)."""
+    from halosift.engine.io import LibraryError, output_format
+
+    if args.out_format is not None and output_format(args.output) != args.out_format:
+        raise LibraryError(f"--out-format {args.out_format} is for -o -; {args.output} is "
+                           f"{output_format(args.output)} by its extension")
+
+
+def _protected(args: argparse.Namespace) -> list[str]:
+    """Files an output must never replace: the input, unless it is standard input."""
+    return [] if args.input == STDIO else [args.input]
+
+
+def _source_name(args: argparse.Namespace) -> str:
+    """The input as exports and the report name it."""
+    return "standard input" if args.input == STDIO else str(args.input)
+
+
+@contextmanager
+def _input_file(args: argparse.Namespace) -> Iterator[str]:
+    """The library's path; for ``-``, standard input copied to a temporary file named for its format.
+
+    The readers check a file up front and then stream it (two passes), which a pipe
+    cannot give, so standard input is copied once. Errors that would name the
+    temporary file name standard input instead.
+    """
+    from halosift.engine.io import LibraryError
+
+    if args.input != STDIO:
+        if args.in_format is not None:
+            raise LibraryError(f"--in-format is for input -; {args.input} is read by its extension")
+        yield args.input
+        return
+    import shutil
+    import tempfile
+
+    from halosift.engine.io.formats import SNIFF_BYTES, sniff_format
+
+    if sys.stdin is None or sys.stdin.isatty():
+        raise LibraryError("input - reads standard input, which is a terminal here; pipe a library in "
+                           "(e.g. < library.csv)")
+    with tempfile.TemporaryDirectory(prefix="halosift-stdin-") as folder:
+        spool = os.path.join(folder, "stdin")
+        with open(spool, "wb") as out:
+            shutil.copyfileobj(sys.stdin.buffer, out)
+        with open(spool, "rb") as back:
+            head = back.read(SNIFF_BYTES)
+        if not head.strip():
+            raise LibraryError("standard input is empty")
+        fmt, gzipped = (args.in_format, head.startswith(b"\x1f\x8b")) if args.in_format else sniff_format(head)
+        if gzipped and fmt == "parquet":
+            raise LibraryError("gzipped Parquet is not read: Parquet is compressed internally")
+        path = os.path.join(folder, f"stdin.{fmt}" + (".gz" if gzipped else ""))
+        os.replace(spool, path)
+        try:
+            yield path
+        except LibraryError as exc:
+            raise LibraryError(str(exc).replace(path, "standard input")) from None
 
 
 def _report(args: argparse.Namespace) -> int:
@@ -303,22 +426,25 @@ def _report(args: argparse.Namespace) -> int:
         return _fail(str(exc))
     try:
         # Cheap checks first: a bad output path or ID list should not wait for perception.
-        check_report_output(args.output, force=args.force, protect=[args.input])
+        check_report_output(args.output, force=args.force, protect=_protected(args))
         ids = read_ids(args.ids) if args.ids else None
-        library = _load(args, quiet=False)
-        result = library.evaluate(cond)
-        id_values = library.input[library.id_column] if library.id_column is not None else None
-        ids_source = Path(args.ids).name if args.ids else ""
-        chosen = select_rows(result, id_values, only=args.only or (), ids=ids, ids_source=ids_source)
-        report = render_report(
-            library, cond, rows=chosen.rows, selection=chosen.description, source=str(args.input),
-            max_pages=args.max_pages, missing_ids=chosen.missing_ids,
-        )
-        written = write_report(report.html, args.output, force=args.force, protect=[args.input])
+        with _input_file(args) as input_path:
+            library = _load(args, input_path, quiet=args.quiet)
+            result = library.evaluate(cond)
+            id_values = library.input[library.id_column] if library.id_column is not None else None
+            ids_source = Path(args.ids).name if args.ids else ""
+            chosen = select_rows(result, id_values, only=args.only or (), ids=ids, ids_source=ids_source)
+            report = render_report(
+                library, cond, rows=chosen.rows, selection=chosen.description, source=_source_name(args),
+                max_pages=args.max_pages, missing_ids=chosen.missing_ids,
+            )
+            written = write_report(report.html, args.output, force=args.force, protect=_protected(args))
     except LibraryError as exc:
         return _fail(str(exc))
     except Cancelled:
         return _fail("cancelled")
+    if args.quiet:
+        return EXIT_OK
     for warning in cond.warnings():
         print(f"warning: {warning}", file=sys.stderr)
     if chosen.missing_ids:
@@ -348,15 +474,15 @@ def _note_worker_cap(requested: int | None) -> None:
               "the cores this process may use", file=sys.stderr)
 
 
-def _load(args: argparse.Namespace, *, quiet: bool):
-    """The library named on the command line, perceived with a progress bar on a terminal."""
+def _load(args: argparse.Namespace, path: str, *, quiet: bool):
+    """The library at ``path`` (the command line's, or standard input's copy), perceived with a progress bar."""
     from halosift.engine import load_library
     from halosift.progress import ProgressLine
 
     bar = ProgressLine(enabled=not quiet)
     try:
         return load_library(
-            args.input, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
+            path, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
             use_cache=not args.no_cache, progress=bar, caller_helps=True,  # no interface to keep free here
         )
     finally:
@@ -488,19 +614,45 @@ def _cache_notes() -> Iterator[None]:
         yield
 
 
+def _on_terminal() -> bool:
+    """True when both standard input and standard output are terminals (the app needs both)."""
+    try:
+        return sys.stdin is not None and sys.stdout is not None and sys.stdin.isatty() and sys.stdout.isatty()
+    except (AttributeError, ValueError):  # replaced or closed streams
+        return False
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the console script."""
     parser = build_parser()
     args = parser.parse_args(argv)
     if args.command is None:
+        if not _on_terminal():
+            # A script or pipe that runs the bare command would otherwise get a full-screen app it cannot see.
+            print("halosift: no terminal on standard input and output, so the app does not open", file=sys.stderr)
+            print("halosift: run e.g. 'halosift screen LIBRARY -o result.csv', or 'halosift --help' for every command",
+                  file=sys.stderr)
+            return EXIT_USAGE
         # No command: the app on the bundled sample catalogue.
         args = parser.parse_args(["browse"])
+    if args.command == "completion":
+        from halosift.completion import completion_script
+
+        print(completion_script(parser, args.shell), end="")
+        return EXIT_OK
     handlers = {"explain": _explain, "screen": _screen, "report": _report}
     try:
         if args.command == "browse":
             return _browse(args)  # the app owns its keys and the terminal
         with _stop_on_signals(), _cache_notes():
             return handlers[args.command](args)
+    except BrokenPipeError:
+        # The reader of standard output went away (| head): stop quietly, as other tools do.
+        try:
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        except (OSError, ValueError):
+            pass
+        return 128 + 13  # as if killed by SIGPIPE
     except _Stopped as exc:
         print(f"halosift: stopped by {signal.Signals(exc.signum).name}", file=sys.stderr)
         return 128 + exc.signum

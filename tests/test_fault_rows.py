@@ -404,7 +404,7 @@ def test_two_writers_of_one_new_file_one_is_refused(
         written = pd.read_parquet(target) if suffix == ".parquet" else pd.read_csv(target, sep=None, engine="python")
         assert written["id"].tolist() == [f"WS-{winner}-1", f"WS-{winner}-2"]
     if suffix in (".csv", ".tsv.gz"):
-        assert engine.io.about_path(target).read_text(encoding="utf-8").startswith(f"run: {winner}\n")
+        assert engine.io.about_path(target).read_text(encoding="utf-8").startswith(f"halosift_run: {winner}\n")
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".halosift-tmp")]
 
 

@@ -15,6 +15,7 @@ from rdkit import Chem
 import halosift.engine.io.writers as writers
 from halosift.engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
 from halosift.engine.io.delimited import FORMULA_RULE
+from halosift.engine.io.metadata import PCT_PRECISION, file_metadata
 
 META = {"tool": "halosift", "caution": "Invented caution line one.\nInvented caution line two."}
 
@@ -73,8 +74,8 @@ def test_csv_is_plain_with_sidecar(tmp_path: Path) -> None:
     assert len(lines) == 4
     about = (tmp_path / "short.csv.about.txt").read_text(encoding="utf-8")
     assert about == (
-        "tool: halosift\ncaution: Invented caution line one.\n  Invented caution line two.\n"
-        f"formula_cells: {FORMULA_RULE}\n"
+        "halosift_tool: halosift\nhalosift_caution: Invented caution line one.\n  Invented caution line two.\n"
+        f"halosift_percent_precision: {PCT_PRECISION}\nhalosift_formula_cells: {FORMULA_RULE}\n"
     )
     assert about_path(out) == tmp_path / "short.csv.about.txt"
 
@@ -101,8 +102,8 @@ def test_parquet_keeps_dtypes_and_metadata(tmp_path: Path) -> None:
     out = write_table(frame, tmp_path / "r.parquet", metadata=META)
     table = pq.read_table(out)
     stored = {k.decode(): v.decode() for k, v in table.schema.metadata.items()}
-    assert stored["tool"] == "halosift"
-    assert stored["caution"] == META["caution"]
+    assert stored["halosift_tool"] == "halosift"
+    assert stored["halosift_caution"] == META["caution"]
     back = table.to_pandas()
     assert list(back.columns) == list(frame.columns)
     assert str(back["n_products"].dtype) == "Int64"
@@ -140,9 +141,11 @@ def test_sdf_every_row_is_a_record(tmp_path: Path) -> None:
     assert mols[1].GetProp("cl2_major_pct") == ""
     assert mols[0].GetProp("smiles") == "CCC"  # the input column is a property too
     assert not mols[0].HasProp("canonical_smiles")  # it is the structure
-    for mol in mols:
-        assert mol.GetProp("halosift_tool") == "halosift"
-        assert mol.GetProp("halosift_caution") == META["caution"]
+    # The metadata is written once, on the first record.
+    assert mols[0].GetProp("halosift_tool") == "halosift"
+    assert mols[0].GetProp("halosift_caution") == META["caution"]
+    assert not any(m.HasProp("halosift_tool") or m.HasProp("halosift_caution") for m in mols[1:])
+    assert text.count("<halosift_caution>") == 1
     assert mols[0].GetConformer().Is3D() is False
 
 
@@ -299,3 +302,155 @@ def test_atomic_path_missing_folder(tmp_path: Path) -> None:
     with pytest.raises(LibraryError, match="does not exist"):
         with atomic_path(tmp_path / "no" / "x.txt"):
             pass
+
+
+# --- metadata: one set of keys in every format; percentages rounded ------------------------------
+
+
+def _sidecar(path: Path) -> dict[str, str]:
+    """The .about.txt sidecar read back: "key: value" lines, two-space continuation lines."""
+    meta: dict[str, str] = {}
+    key = ""
+    for line in about_path(path).read_text(encoding="utf-8").splitlines():
+        if line.startswith("  "):
+            meta[key] += "\n" + line[2:]
+        else:
+            key, _, value = line.partition(": ")
+            meta[key] = value
+    return meta
+
+
+def _file_metadata_of(path: Path) -> dict[str, str]:
+    """The halosift metadata a written file carries, read the way a user's tool would read it."""
+    name = path.name
+    if name.endswith(".parquet"):
+        stored = pq.read_schema(path).metadata
+        return {k.decode(): v.decode() for k, v in stored.items() if k != b"pandas"}
+    if name.endswith(".sdf"):
+        first = next(Chem.SDMolSupplier(str(path)))
+        return {k: first.GetProp(k) for k in first.GetPropNames() if k.startswith("halosift_")}
+    return _sidecar(path)
+
+
+def test_every_format_records_the_same_metadata_keys(tmp_path: Path) -> None:
+    from halosift.engine import Conditions, __version__
+    from halosift.engine.provenance import export_metadata
+
+    meta = export_metadata(Conditions(), source="invented.csv")
+    seen = {}
+    for name in ("m.csv", "m.tsv", "m.parquet", "m.sdf"):
+        seen[name] = _file_metadata_of(write_table(_results(), tmp_path / name, metadata=meta))
+    first = seen["m.csv"]
+    assert all(found == first for found in seen.values()), {n: sorted(f) for n, f in seen.items()}
+    assert set(first) == {f"halosift_{k}" for k in meta} | {"halosift_percent_precision", "halosift_formula_cells"}
+    assert first["halosift_version"] == __version__
+    assert first["halosift_caution"] == meta["caution"]
+    assert first["halosift_percent_precision"] == PCT_PRECISION
+    assert not any(k.startswith("halosift_halosift_") for k in first)
+
+
+@pytest.mark.parametrize("key", ["halosift_version", "Version", "two words", ""])
+def test_file_metadata_refuses_keys_that_would_be_misnamed(key: str) -> None:
+    with pytest.raises(ValueError):
+        file_metadata({key: "x"})
+
+
+def test_sdf_metadata_once_even_for_many_rows(tmp_path: Path) -> None:
+    frame = pd.DataFrame({"canonical_smiles": ["C" * n for n in range(1, 21)]})
+    text = write_table(frame, tmp_path / "many.sdf", metadata=META).read_text(encoding="utf-8")
+    assert text.count("$$$$\n") == 20
+    assert text.count(">  <halosift_caution>") == 1 and text.count(">  <halosift_percent_precision>") == 1
+    assert text.index(">  <halosift_caution>") < text.index("$$$$\n")  # on the first record
+
+
+def _percent_frame() -> pd.DataFrame:
+    """Result percentages with more digits than exports keep, beside input columns that must stay raw."""
+    return pd.DataFrame(
+        {
+            "catalog_id": ["WS-0001", "WS-0002"],
+            "purity_pct": [99.123, 12.345],  # the supplier's own column
+            "input_cl2_major_pct": [1.2345, 6.789],  # a clashing input column, renamed by the screen
+            "cl2_major_pct": [55.34999, float("nan")],
+            "br2_major_pct": [96.46, 100.0],
+            "nbs_major_pct": [33.333333, 0.04],
+            "cl2_poly_pct": [7.25001, 0.0],
+            "canonical_smiles": ["CCC", "CC(C)C"],
+        }
+    )
+
+
+@pytest.mark.parametrize("name", ["p.csv", "p.tsv.gz", "p.parquet", "p.sdf"])
+def test_result_percentages_are_rounded_to_a_tenth_in_every_format(tmp_path: Path, name: str) -> None:
+    frame = _percent_frame()
+    out = write_table(frame, tmp_path / name, metadata=META)
+    if name.endswith(".parquet"):
+        back = pd.read_parquet(out)
+    elif name.endswith(".sdf"):
+        back = pd.DataFrame([m.GetPropsAsDict() for m in Chem.SDMolSupplier(str(out))])
+        back = back.replace("", float("nan"))
+    else:
+        back = open_library(out).read_all().frame
+    assert back["cl2_major_pct"].astype(float).tolist()[0] == 55.3
+    assert pd.isna(back["cl2_major_pct"].astype(float).tolist()[1])
+    assert back["br2_major_pct"].astype(float).tolist() == [96.5, 100.0]
+    assert back["nbs_major_pct"].astype(float).tolist() == [33.3, 0.0]
+    assert back["cl2_poly_pct"].astype(float).tolist() == [7.3, 0.0]
+    # Input columns are the supplier's data: written as they came.
+    assert back["purity_pct"].astype(float).tolist() == [99.123, 12.345]
+    assert back["input_cl2_major_pct"].astype(float).tolist() == [1.2345, 6.789]
+    assert frame["cl2_major_pct"].tolist()[0] == 55.34999  # the caller's frame is not changed
+    assert _file_metadata_of(out)["halosift_percent_precision"] == PCT_PRECISION
+
+
+def test_a_screen_result_keeps_no_unrounded_percentage(tmp_path: Path) -> None:
+    from halosift.engine import Conditions, screen
+    from halosift.engine.io.metadata import percent_columns
+    from halosift.engine.library import RESULT_COLUMNS
+
+    result = screen(pd.DataFrame({"smiles": ["CCC", "CCCC", "CC(C)CC", "CCc1ccccc1", "C=CCC"]}), use_cache=False)
+    columns = percent_columns(list(result.columns))
+    assert set(columns) == {c for c in RESULT_COLUMNS if c.endswith("_pct")}
+    assert any((result[c].dropna() * 10 % 1 > 1e-6).any() for c in columns)  # the model's shares are finer
+    back = pd.read_parquet(write_table(result, tmp_path / "s.parquet", metadata=META))
+    for column in columns:
+        values = back[column].dropna().to_numpy()
+        assert (abs(values * 10 - (values * 10).round()) < 1e-9).all(), column
+
+
+def test_sdf_result_reads_back_without_its_metadata(tmp_path: Path) -> None:
+    from halosift.engine import Conditions, screen
+    from halosift.engine.provenance import export_metadata
+
+    result = screen(pd.DataFrame({"smiles": ["CCC", "CC(C)C"], "catalog_id": ["WS-1", "WS-2"]}), use_cache=False)
+    out = write_table(result, tmp_path / "r.sdf", metadata=export_metadata(Conditions()))
+    source = open_library(out)
+    assert not any(c.startswith("halosift_") for c in source.columns)
+    assert "canonical_smiles" in source.columns and "name" not in source.columns  # read as a result
+
+
+def test_sdf_from_0_2_0_with_the_doubled_key_still_reads_as_a_result(tmp_path: Path) -> None:
+    record = Chem.MolToMolBlock(Chem.MolFromSmiles("CCC")) + (
+        ">  <status>\nok\n\n>  <halosift_halosift_version>\n0.2.0\n\n>  <halosift_caution>\nold\n\n$$$$\n"
+    )
+    old = tmp_path / "old.sdf"
+    old.write_text(record * 2, encoding="utf-8")
+    source = open_library(old)
+    assert "canonical_smiles" in source.columns and "name" not in source.columns
+    assert not any(c.startswith("halosift_") for c in source.columns)
+
+
+@pytest.mark.parametrize("fmt", ["csv", "tsv", "parquet", "sdf"])
+def test_write_stream_gives_the_bytes_a_file_would_hold(tmp_path: Path, fmt: str) -> None:
+    import io
+
+    from halosift.engine.io.writers import write_stream
+
+    stream = io.BytesIO()
+    meta = write_stream(_percent_frame(), stream, fmt, metadata=META)
+    assert meta["halosift_tool"] == "halosift"
+    written = write_table(_percent_frame(), tmp_path / f"f.{fmt}", metadata=META).read_bytes()
+    if fmt == "parquet":
+        assert pq.read_table(io.BytesIO(stream.getvalue())).equals(pq.read_table(io.BytesIO(written)))
+        assert pq.read_schema(io.BytesIO(stream.getvalue())).metadata[b"halosift_tool"] == b"halosift"
+    else:
+        assert stream.getvalue() == written

@@ -193,9 +193,9 @@ async def test_whole_path(tmp_path):
         table_pq = pq.read_table(out_pq)
         assert table_pq.num_rows == len(app.query_one(LibraryTable).rows)
         meta = {k.decode(): v.decode() for k, v in table_pq.schema.metadata.items()}
-        assert meta["conditions"] == app.conditions.describe()
-        assert meta["caution"] == engine.CAUTION
-        assert "library view" in meta["selection"]
+        assert meta["halosift_conditions"] == app.conditions.describe()
+        assert meta["halosift_caution"] == engine.CAUTION
+        assert "library view" in meta["halosift_selection"]
 
         # --- never overwrite without asking: "n" keeps the file, "y" replaces it
         stamp = out_csv.read_bytes()

@@ -306,7 +306,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             box.update(f"✓ HTML report to {path}; conditions, sources and the caution in its header{exists}")
             return path, fmt
         where = "in the Parquet schema metadata" if fmt == "parquet" else (
-            "as SDF properties" if fmt == "sdf" else "in a .about.txt file beside it")
+            "as properties of the first SDF record" if fmt == "sdf" else "in a .about.txt file beside it")
         box.update(f"✓ {fmt.upper()} to {path}; metadata {where}{exists}")
         return path, fmt
 

@@ -14,6 +14,7 @@ from rdkit.Chem import rdDepictor
 from halosift.engine.rdkit_log import quiet_rdkit
 from .columns import ID_NAMES, SMILES_NAMES, choose, detect
 from .errors import LibraryError
+from .metadata import METADATA_PREFIX
 from .source import LibrarySource, RawBatch
 from .textfile import UNDECODABLE, MarkedLines, open_output_text, open_text, probe_encoding, read_errors
 
@@ -26,11 +27,9 @@ TITLE_COLUMN = "name"
 UNREADABLE = "unreadable molblock"
 """row_errors text for a record RDKit cannot read as a molecule."""
 
-METADATA_PREFIX = "halosift_"
-"""Prefix of the properties that carry write_table() metadata on every record."""
-
-RESULT_MARK = METADATA_PREFIX + "halosift_version"
-"""Property that marks a screen's SDF result (write_table() with halosift's provenance)."""
+RESULT_MARKS: tuple[str, ...] = (METADATA_PREFIX + "version", METADATA_PREFIX + "halosift_version")
+"""Properties that mark a screen's SDF result on its first record: the version key, and the
+doubled name halosift 0.2.0 wrote on every record (still read, never written)."""
 
 RESULT_STRUCTURE_COLUMN = "canonical_smiles"
 """In a screen's SDF result, the column the molblock is read back into: the one it was written from."""
@@ -161,7 +160,7 @@ def open_sdf(
     _, _, props, has_end = _split(record)
     if not has_end and not ended:
         raise LibraryError(f"{path} does not look like an SD file (no 'M  END' or '$$$$' line found)")
-    result = RESULT_MARK in props
+    result = any(mark in props for mark in RESULT_MARKS)
     columns = _Columns(_generated(result))
     for prop in props:
         if not (result and prop.startswith(METADATA_PREFIX)):
@@ -278,8 +277,11 @@ def write_sdf(
     frame: pd.DataFrame, target: Path, gzipped: bool, smiles_column: str, metadata: Mapping[str, str]
 ) -> None:
     """Write one record per row: 2D molecule from smiles_column (empty molecule when missing or
-    invalid), title from the ID column or the 1-based row number, every other column and the
-    metadata (prefixed halosift_) as properties."""
+    invalid), title from the ID column or the 1-based row number, every other column as properties.
+
+    ``metadata`` (keys as given, already namespaced by :func:`.metadata.file_metadata`) is written
+    once, as properties of the first record after its own: an SD file has no file-level header,
+    and every record of a large file repeating the same paragraphs only made it larger."""
     columns = list(frame.columns)
     if smiles_column in columns:
         smiles_at: int | None = columns.index(smiles_column)
@@ -290,7 +292,7 @@ def write_sdf(
     ident = detect(columns, ID_NAMES, skip=skip)
     id_at = None if ident is None else columns.index(ident)
     props = [(i, _prop_name(c)) for i, c in enumerate(columns) if i != smiles_at]
-    trailer = "".join(_prop_block(_prop_name(METADATA_PREFIX + k), str(v)) for k, v in metadata.items())
+    trailer = "".join(_prop_block(_prop_name(k), str(v)) for k, v in metadata.items())
     with open_output_text(target, gzipped) as out, quiet_rdkit():
         for number, row in enumerate(frame.itertuples(index=False, name=None), start=1):
             title = _cell_text(row[id_at]) if id_at is not None else ""
@@ -303,5 +305,6 @@ def write_sdf(
             out.write(block)
             for i, name in props:
                 out.write(_prop_block(name, _cell_text(row[i])))
-            out.write(trailer)
+            if number == 1:
+                out.write(trailer)
             out.write("$$$$\n")

@@ -158,7 +158,7 @@ def _header(conditions: Conditions, meta: dict[str, str], source: str, selection
 <dt>Conditions</dt><dd data-field="conditions">{_e(meta["conditions"])}</dd>
 <dt>Library</dt><dd data-field="library">{_e(source)}</dd>
 <dt>Reported rows</dt><dd>{_e(selection)}</dd>
-<dt>halosift version</dt><dd data-field="version">{_e(meta["halosift_version"])}</dd>
+<dt>halosift version</dt><dd data-field="version">{_e(meta["version"])}</dd>
 <dt>Created (UTC)</dt><dd data-field="created">{_e(meta["created_utc"])}</dd>
 </dl>
 <div class="sources"><strong>Model sources</strong><ol>{sources}</ol></div>
@@ -582,7 +582,7 @@ def render_report(
 <head>
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
-<meta name="generator" content="halosift {_e(meta["halosift_version"])}">
+<meta name="generator" content="halosift {_e(meta["version"])}">
 <title>{_e(title)}</title>
 <style>{STYLESHEET}</style>
 </head>
@@ -597,7 +597,7 @@ def render_report(
 {cap}
 {_rejected_table(library, rejected, ids, result)}
 </main>
-<footer><p>{_e(meta["caution"])}</p><p>Written by halosift {_e(meta["halosift_version"])} on
+<footer><p>{_e(meta["caution"])}</p><p>Written by halosift {_e(meta["version"])} on
 {_e(meta["created_utc"])}; {_e(meta["conditions"])}.</p></footer>
 </body>
 </html>

@@ -130,7 +130,7 @@ class DetailResult:
     nbs: pd.DataFrame
     """Library.nbs_products(row, conditions)."""
     picture: object | str
-    """The structure drawing (a PIL image) or the note shown instead (tui.structure_view.structure_picture)."""
+    """The structure drawing (a PIL image), the text drawing's layout, or a note (tui.structure_view.structure_picture)."""
 
 
 def work_out_detail(library: Any, row: int, canonical_smiles: str, conditions: Any, graphics: str | None) -> DetailResult:

@@ -236,13 +236,22 @@ class DetailScreen(Screen):
         head.append("  · ✓ on shortlist" if self.marked else "  · not marked")
         if self.working:
             head.append("  · working…", style="bold")
-        head.append(f"\nSMILES {record[names[lib.smiles_column]]}")
+        from halosift.tui.text_structure import smiles_block
+
+        line_width = max(20, (self.size.width or self.app.size.width) - 2)  # the head's padding
+        given = str(record[names[lib.smiles_column]])
+        head.append("\n" + smiles_block("SMILES ", given, line_width))
         if record["status"] != "ok":
             head.append("\nRejected: ", style="bold")
             head.append(str(record["reason"]))
         else:
-            if record["canonical_smiles"] != record[names[lib.smiles_column]]:
-                head.append(f"  (canonical {record['canonical_smiles']})")
+            canonical = str(record["canonical_smiles"])
+            if canonical != given:
+                # Long ones wrap at ring closures and branches, never inside an atom symbol.
+                if len("SMILES ") + len(given) + len(canonical) + 13 <= line_width:
+                    head.append(f"  (canonical {canonical})")
+                else:
+                    head.append("\n" + smiles_block("canonical ", canonical, line_width))
             verdict = record["verdict"]
             head.append("\nVerdict: ", style="bold")
             head.append(verdict, style="bold")

@@ -76,6 +76,8 @@ class TextDrawing:
     """Where every site label was put."""
     atom_cells: Mapping[int, tuple[int, int]]
     """(line, cell) of every atom's position in the drawing."""
+    atom_dots: Mapping[int, tuple[int, int]]
+    """(x, y) braille-dot position of every atom in the drawing (2 dots a cell across, 4 down)."""
 
 
 def draw_structure(
@@ -94,7 +96,7 @@ def draw_structure(
     width, height = max(1, int(width)), max(1, int(height))
     canvas = _Canvas(width, height)
     if not molecule.atoms:
-        return TextDrawing((), (), (), {})
+        return TextDrawing((), (), (), {}, {})
     dots = _atom_dots(molecule, width, height)
     cells = {i: (y // 4, x // 2) for i, (x, y) in dots.items()}
     # Element symbols first: bonds stop at them, labels go round them.
@@ -111,7 +113,7 @@ def draw_structure(
         if atom not in cells:
             raise ValueError(f"label {text!r} is on atom {atom}, which {molecule.smiles!r} does not have")
         placed.append(_place_label(canvas, atom, text[:width], cells[atom], vertices - {cells[atom]}))
-    return canvas.cropped(placed, cells)
+    return canvas.cropped(placed, cells, dots)
 
 
 class _Canvas:
@@ -124,23 +126,32 @@ class _Canvas:
         self.text: dict[tuple[int, int], tuple[str, str]] = {}
 
     def dot(self, x: int, y: int) -> None:
+        """Set the braille dot at (x, y) (dots outside the canvas are dropped)."""
         if 0 <= x < 2 * self.width and 0 <= y < 4 * self.height:
             self.bits[y // 4][x // 2] |= _DOT_BITS[(x % 2, y % 4)]
 
     def put_text(self, row: int, col: int, text: str, kind: str) -> None:
+        """Write ``text`` from (row, col) over whatever dots are there."""
         for k, ch in enumerate(text):
             if 0 <= col + k < self.width and 0 <= row < self.height:
                 self.text[(row, col + k)] = (ch, kind)
 
     def free(self, row: int, col: int, length: int) -> bool:
-        return 0 <= row < self.height and col >= 0 and col + length <= self.width and all(
-            (row, col + k) not in self.text for k in range(length)
-        )
+        """Whether ``length`` cells from (row, col) are inside and hold no text, with no label right beside them."""
+        if not (0 <= row < self.height and col >= 0 and col + length <= self.width):
+            return False
+        if any((row, col + k) in self.text for k in range(length)):
+            return False
+        # Two labels side by side would read as one (P1P2): keep a cell between them.
+        return all(self.text.get((row, c), ("", ""))[1] != "label" for c in (col - 1, col + length))
 
-    def cropped(self, placed: list[PlacedLabel], cells: Mapping[int, tuple[int, int]]) -> TextDrawing:
+    def cropped(
+        self, placed: list[PlacedLabel], cells: Mapping[int, tuple[int, int]], dots: Mapping[int, tuple[int, int]]
+    ) -> TextDrawing:
+        """The used part of the canvas as a drawing (positions shifted to match)."""
         used = {(r, c) for r in range(self.height) for c in range(self.width) if self.bits[r][c]} | set(self.text)
         if not used:
-            return TextDrawing((), (), tuple(placed), dict(cells))
+            return TextDrawing((), (), tuple(placed), dict(cells), dict(dots))
         top, bottom = min(r for r, _ in used), max(r for r, _ in used)
         left, right = min(c for _, c in used), max(c for _, c in used)
         lines = []
@@ -167,7 +178,8 @@ class _Canvas:
                     c += 1
         moved = tuple(PlacedLabel(p.atom, p.text, p.line - top, p.start - left, p.moved) for p in placed)
         shifted = {i: (r - top, c - left) for i, (r, c) in cells.items()}
-        return TextDrawing(tuple(lines), tuple(spans), moved, shifted)
+        shifted_dots = {i: (x - 2 * left, y - 4 * top) for i, (x, y) in dots.items()}
+        return TextDrawing(tuple(lines), tuple(spans), moved, shifted, shifted_dots)
 
 
 def _atom_dots(molecule: Depiction, width: int, height: int) -> dict[int, tuple[int, int]]:
@@ -328,3 +340,11 @@ def smiles_lines(smiles: str, width: int, first_width: int | None = None) -> lis
         lines.append("".join(tokens[start:choice[0] + 1]))
         start = choice[0] + 1
     return lines or [""]
+
+
+def smiles_block(label: str, smiles: str, width: int) -> str:
+    """``label`` and ``smiles`` wrapped by :func:`smiles_lines` to ``width`` cells, continuation lines indented under it."""
+    indent = len(label)
+    room = max(8, width - indent)
+    lines = smiles_lines(smiles, room)
+    return "\n".join([label + lines[0], *(" " * indent + line for line in lines[1:])])

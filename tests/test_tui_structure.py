@@ -1,4 +1,4 @@
-"""Structure drawings in the app: detection, the drawing itself, and the text fallback."""
+"""Structure drawings in the app: detection, the drawing itself, and the text drawing where images are off."""
 
 from __future__ import annotations
 
@@ -58,16 +58,42 @@ class _Host(App):
         yield self._widget
 
 
-def test_fallback_is_a_clear_text_note(propane_products) -> None:
+def test_fallback_is_a_text_drawing_labelled_as_the_table(propane_products) -> None:
     widget = sv.structure_widget(None, "CCC", propane_products)
-    assert isinstance(widget, Static)
+    assert isinstance(widget, sv.TextStructure)
 
     async def scenario() -> None:
-        async with _Host(widget).run_test(size=(100, 10)) as pilot:
+        async with _Host(widget).run_test(size=(80, 24)) as pilot:
             await pilot.pause()
-            assert "no inline images" in str(widget.render())
+            shown = widget.render().plain
+            assert "P1" in shown and "P2" in shown and "P3" not in shown
+            assert any(0x2800 < ord(ch) <= 0x28FF for ch in shown)  # bonds in braille dots
+            assert widget.content_region.height == len(shown.splitlines())  # sized to the drawing
 
     asyncio.run(scenario())
+
+
+def test_without_a_structure_the_note_stays(propane_products) -> None:
+    widget = sv.structure_widget(None, "", propane_products)
+    assert isinstance(widget, Static) and "no inline images" in str(widget.content)
+
+
+def test_site_labels_are_the_products_table_names() -> None:
+    # The drawing's labels must read exactly as the first column of the detail's products table.
+    import io
+
+    from rich.console import Console
+
+    from halosift.tui.detail import products_table
+
+    library = engine.load_library(__import__("pandas").DataFrame({"smiles": ["CC(C)Cc1ccccc1"]}), use_cache=False)
+    products = library.products(0)
+    console = Console(width=200, file=io.StringIO(), record=True, color_system=None)
+    console.print(products_table(products))
+    first_column = [line.split()[0] for line in console.export_text().splitlines()[1:] if line.strip()]
+    labels = sv.site_labels(products)
+    assert list(labels.values()) == first_column
+    assert list(labels) == [int(a) for a in products["atom"]]
 
 
 def test_image_widget_mounts_and_renders(propane_products) -> None:
@@ -112,5 +138,5 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
             box = app.screen.query_one("#detail-structure")
             return [type(w).__name__ for w in box.children]
 
-    assert asyncio.run(scenario(None)) == ["Static"]
+    assert asyncio.run(scenario(None)) == ["TextStructure"]
     assert asyncio.run(scenario("unicode")) == ["UnicodeImage"]

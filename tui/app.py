@@ -610,7 +610,8 @@ class HalosiftApp(App[int]):
         if lib.id_column is not None:
             ident = names[lib.id_column]
             cols.append(Column(ident, "ID", self._text_width(frame, ident, "ID", 18)))
-        cols.append(Column(names[lib.smiles_column], "SMILES", 20))
+        smiles = names[lib.smiles_column]
+        cols.append(Column(smiles, "SMILES", 20, grow_to=self._text_width(frame, smiles, "SMILES", 120)))
         if self.view == "rejected":
             cols.append(Column("reason", "Reason", 56))
         else:

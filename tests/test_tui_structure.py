@@ -140,3 +140,63 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
 
     assert asyncio.run(scenario(None)) == ["TextStructure"]
     assert asyncio.run(scenario("unicode")) == ["UnicodeImage"]
+
+
+def test_detail_head_wraps_a_long_smiles_at_sensible_points(tmp_path) -> None:
+    import pandas as pd
+
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.detail import DetailScreen
+    from tui_helpers import plain, settle
+
+    given = "C(C)(C)CC1CCC(CC1)C(C)(C)Cc1ccc2cc(CC)ccc2c1C(C)C1CCCCC1CCCCCCCC1CCC(CC1)C(CC)CCC1CCC2CCCCC2C1"
+    lib = tmp_path / "lib.csv"
+    pd.DataFrame({"id": ["WS-4101"], "smiles": [given]}).to_csv(lib, index=False)
+
+    async def scenario():
+        app = HalosiftApp(str(lib), use_cache=False)
+        async with app.run_test(size=(80, 24)) as pilot:
+            await settle(pilot)
+            await pilot.press("enter")
+            await settle(pilot)
+            assert isinstance(app.screen, DetailScreen)
+            head = app.screen.query_one("#detail-head")
+            canonical = str(app.frame["canonical_smiles"].iloc[0])
+            return plain(head).splitlines(), head.content_region.width, canonical
+
+    lines, width, canonical = asyncio.run(scenario())
+    assert canonical != given
+    start = next(i for i, line in enumerate(lines) if line.startswith("SMILES "))
+    smiles_rows = [lines[start][len("SMILES "):]]
+    for line in lines[start + 1:]:
+        if not line.startswith(" " * len("SMILES ")):
+            break
+        smiles_rows.append(line.strip())
+    assert all(len(line) <= width for line in lines[start:start + len(smiles_rows)])  # our own breaks, none by Rich
+    assert len(smiles_rows) > 1 and "".join(smiles_rows) == given  # wrapped, nothing lost or cut
+    assert not any(row[:1].isdigit() for row in smiles_rows)  # ring-closure digits stay with their atom
+    canon_at = next(i for i, line in enumerate(lines) if line.startswith("canonical "))
+    assert lines[canon_at][len("canonical "):].strip() and canonical.startswith(lines[canon_at][len("canonical "):])
+
+
+@pytest.mark.parametrize("width", [74, 200])
+def test_products_view_keeps_every_monochloride_whole_and_inside(width: int) -> None:
+    import io
+
+    from rich.console import Console
+
+    from halosift.tui.detail import products_view
+
+    smiles = "CC(C)CC1CCC(CC1)C(C)(C)Cc1ccc2cc(CC)ccc2c1C(C)C1CCCCC1CCCCCCCC"
+    products = engine.load_library(__import__("pandas").DataFrame({"smiles": [smiles]}), use_cache=False).products(0)
+    console = Console(width=width, file=io.StringIO(), record=True, color_system=None)
+    console.print(products_view(products, width))
+    text = console.export_text()
+    assert all(len(line.rstrip()) <= width for line in text.splitlines())
+    squeezed = "".join(text.split())
+    for product in products["product"]:
+        if width == 200:
+            assert product in text  # room enough: one line each, in the table
+        assert product in squeezed  # broken into lines at most, never dropped or cut short
+    if width == 74:
+        assert "monochloride\n" in text  # too little room beside the columns: listed below the table

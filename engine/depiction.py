@@ -58,10 +58,9 @@ class Depiction:
 
 def depict(smiles: str) -> Depiction:
     """Lay ``smiles`` out with rdDepictor.Compute2DCoords (canonically oriented, so the same every call); ValueError if it does not parse."""
+    from halosift.engine.molecules import quiet_rdkit
     from rdkit import Chem
     from rdkit.Chem import rdDepictor
-
-    from halosift.engine.molecules import quiet_rdkit
 
     with quiet_rdkit():
         mol = Chem.MolFromSmiles(smiles)
@@ -84,9 +83,9 @@ def depict(smiles: str) -> Depiction:
     for b in mol.GetBonds():
         i, j = b.GetBeginAtomIdx(), b.GetEndAtomIdx()
         if kekule is not None:
-            order = int(round(kekule.GetBondWithIdx(b.GetIdx()).GetBondTypeAsDouble()))
+            order = round(kekule.GetBondWithIdx(b.GetIdx()).GetBondTypeAsDouble())
         else:
-            order = 1 if b.GetIsAromatic() else int(round(b.GetBondTypeAsDouble()))
+            order = 1 if b.GetIsAromatic() else round(b.GetBondTypeAsDouble())
         holding = [k for k, r in enumerate(rings) if i in r and j in r and _adjacent_in_ring(r, i, j)]
         ring = min(holding, key=lambda k: len(rings[k])) if holding else None
         bonds.append(DepictedBond(i, j, max(1, min(3, order)), b.GetIsAromatic(), ring))

@@ -4,15 +4,16 @@ from __future__ import annotations
 
 import math
 import re
+from itertools import pairwise
 
 import pandas as pd
 import pytest
+from alkanes import alkanes
+from halosift.engine.depiction import depict
+from halosift.tui.structure_view import site_labels
+from halosift.tui.text_structure import BRAILLE, draw_structure, smiles_lines
 
 from halosift import engine
-from halosift.engine.depiction import depict
-from halosift.tui.text_structure import BRAILLE, draw_structure, smiles_lines
-from halosift.tui.structure_view import site_labels
-from alkanes import alkanes
 
 #: Structures the detail screen meets: chains, branches, rings, bridged rings, arenes, alkenes, alkynes, up to C20.
 STRUCTURES = [
@@ -112,7 +113,7 @@ def test_output_is_deterministic() -> None:
 
 
 def dot_count(drawing) -> int:
-    return sum(bin(ord(ch) - BRAILLE).count("1") for line in drawing.lines for ch in line if ord(ch) >= BRAILLE)
+    return sum((ord(ch) - BRAILLE).bit_count() for line in drawing.lines for ch in line if ord(ch) >= BRAILLE)
 
 
 def test_double_and_triple_bonds_are_drawn_differently_from_single_bonds() -> None:
@@ -161,7 +162,7 @@ def test_smiles_lines_keep_every_character_and_fit(width: int) -> None:
 @pytest.mark.parametrize("width", [8, 10, 16, 25, 40])
 def test_smiles_lines_never_split_an_atom_or_a_ring_closure(width: int) -> None:
     lines = smiles_lines(LONG, width)
-    for before, after in zip(lines, lines[1:]):
+    for before, after in pairwise(lines):
         assert not (before.endswith("C") and after.startswith("l")) and not (before.endswith("B") and after.startswith("r"))
         assert not re.match(r"\d|%", after), (before, after)  # ring-closure digits stay with their atom
         assert before.count("[") == before.count("]")  # no bracket atom cut

@@ -12,7 +12,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.table import LibraryTable
 from tui_helpers import settle

@@ -22,7 +22,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
-    from halosift.engine.depiction import Depiction
+    from halosift.engine.depiction import DepictedBond, Depiction
 
 BRAILLE = 0x2800
 #: Bit of each dot of a braille cell, by (column 0–1, row 0–3) within the cell (Unicode's dot numbering).
@@ -204,15 +204,15 @@ def _atom_dots(molecule: Depiction, width: int, height: int) -> dict[int, tuple[
     off_x = 2 * margin + (room_x - span_x * scale) / 2
     off_y = (room_y - span_y * scale) / 2
     return {
-        a.index: (int(round(off_x + (a.x - min(xs)) * scale)), int(round(off_y + (max(ys) - a.y) * scale)))
+        a.index: (round(off_x + (a.x - min(xs)) * scale), round(off_y + (max(ys) - a.y) * scale))
         for a in molecule.atoms
     }
 
 
 def _line(canvas: _Canvas, start: tuple[float, float], end: tuple[float, float]) -> None:
     """Dots from start to end with no gaps (Bresenham), so every cell the bond crosses gets a dot."""
-    x0, y0 = int(round(start[0])), int(round(start[1]))
-    x1, y1 = int(round(end[0])), int(round(end[1]))
+    x0, y0 = round(start[0]), round(start[1])
+    x1, y1 = round(end[0]), round(end[1])
     dx, dy = abs(x1 - x0), -abs(y1 - y0)
     sx, sy = (1 if x0 < x1 else -1), (1 if y0 < y1 else -1)
     err = dx + dy
@@ -229,7 +229,7 @@ def _line(canvas: _Canvas, start: tuple[float, float], end: tuple[float, float])
             y0 += sy
 
 
-def _draw_bond(canvas: _Canvas, molecule: Depiction, bond, dots: Mapping[int, tuple[int, int]]) -> None:
+def _draw_bond(canvas: _Canvas, molecule: Depiction, bond: DepictedBond, dots: Mapping[int, tuple[int, int]]) -> None:
     """One bond: one line, plus a parallel one for a double bond and two for a triple bond."""
     (x0, y0), (x1, y1) = dots[bond.begin], dots[bond.end]
     _line(canvas, (x0, y0), (x1, y1))
@@ -263,9 +263,31 @@ def _place_label(
     """Put ``text`` on its atom's cell, or on the nearest free cells (never on another label or symbol)."""
     row0, col0 = cell
     n = len(text)
+    # Search near the carbon first: every place outside this window costs at least _WINDOW, so a
+    # cheaper one inside it is the best anywhere; only a crowded window needs the full search.
+    best = _best_place(canvas, text, cell, others, range(row0 - 4, row0 + 5), range(col0 - n - 8, col0 + 9))
+    if best is None or best[0] >= _WINDOW:
+        best = _best_place(canvas, text, cell, others, range(canvas.height), range(canvas.width - n + 1))
+    if best is None:
+        raise ValueError(f"no room for label {text!r} in a {canvas.width} × {canvas.height} drawing")
+    _, row, col = best
+    canvas.put_text(row, col, text, "label")
+    return PlacedLabel(atom, text, row, col, not (row == row0 and col <= col0 < col + n))
+
+
+#: Least cost of a place outside the near window of :func:`_place_label` (5 rows or 9 cells away).
+_WINDOW = 9.0
+
+
+def _best_place(
+    canvas: _Canvas, text: str, cell: tuple[int, int], others: set[tuple[int, int]], rows: range, cols: range
+) -> tuple[float, int, int] | None:
+    """(cost, row, first cell) of the cheapest free place for ``text`` among ``rows`` × ``cols``, or None."""
+    row0, col0 = cell
+    n = len(text)
     best: tuple[float, int, int] | None = None
-    for row in range(canvas.height):
-        for col in range(0, canvas.width - n + 1):
+    for row in rows:
+        for col in cols:
             if not canvas.free(row, col, n):
                 continue
             span = range(col, col + n)
@@ -276,16 +298,12 @@ def _place_label(
             cost += 0.3 * sum(bool(canvas.bits[row][c]) for c in span) * (dc > 0 or row != row0)
             if best is None or cost < best[0] - 1e-9:
                 best = (cost, row, col)
-    if best is None:
-        raise ValueError(f"no room for label {text!r} in a {canvas.width} × {canvas.height} drawing")
-    _, row, col = best
-    canvas.put_text(row, col, text, "label")
-    return PlacedLabel(atom, text, row, col, not (row == row0 and col <= col0 < col + n))
+    return best
 
 
 # ---------------------------------------------------------------------- SMILES wrapping
 
-_TOKEN = re.compile(r"\[[^\]]*\]|Br|Cl|%\d\d|.", re.S)
+_TOKEN = re.compile(r"\[[^\]]*\]|Br|Cl|%\d\d|.", re.DOTALL)
 
 
 def _break_quality(tokens: list[str], k: int) -> int:

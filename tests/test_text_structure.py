@@ -142,6 +142,17 @@ def test_twenty_carbons_fit_the_80x24_detail() -> None:
         assert len(drawing.lines[0]) <= 76 and len(drawing.lines) <= 12
 
 
+def test_layout_records_rings_and_kekule_orders() -> None:
+    benzene = depict("c1ccccc1")
+    assert len(benzene.atoms) == 6 and len(benzene.rings) == 1
+    assert sorted(b.order for b in benzene.bonds) == [1, 1, 1, 2, 2, 2] and all(b.ring == 0 for b in benzene.bonds)
+    chain = depict("CC=CC#C")
+    assert [b.order for b in chain.bonds] == [1, 2, 1, 3] and all(b.ring is None for b in chain.bonds)
+    assert depict("C1CC2CCC1C2") == depict("C1CC2CCC1C2")  # the same layout every time
+    with pytest.raises(ValueError, match="cannot lay out"):
+        depict("not a smiles")
+
+
 def test_a_label_on_a_missing_atom_is_an_error() -> None:
     with pytest.raises(ValueError, match="atom 9"):
         draw_structure("CCC", {9: "P1"}, 40, 8)

@@ -641,7 +641,7 @@ class HalosiftApp(App[int]):
     def _text_width(frame: pd.DataFrame, column: Hashable, label: str, cap: int) -> int:
         """Width for a column from its label and the first thousand values."""
         sample = frame[column].iloc[:1000].astype(str)
-        longest = int(sample.str.len().max()) if len(sample) else 0
+        longest = int(sample.str.len().fillna(0).max()) if len(sample) else 0  # missing values show empty
         return max(len(label) + 2, min(cap, longest))
 
     def _update_status(self) -> None:

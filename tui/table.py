@@ -86,16 +86,29 @@ REASON_COLUMNS: tuple[Column, ...] = (
 
 
 def grown(columns: Sequence[Column], table_width: int) -> list[Column]:
-    """The columns with each growing one widened by its share of half the cells beyond :data:`GROW_FROM`.
+    """The columns with each growing one widened into part of the cells the table has to spare.
 
-    Half, so the columns after it still come into view on a wide terminal; never
-    wider than its ``grow_to`` (its longest value), never narrower than ``width``.
+    Spare cells are those beyond :data:`GROW_FROM` and beyond the last number
+    column shown whole at the columns' own widths; half of them go to the
+    growing columns, so every number that was in view stays in view and the
+    columns after it still come into view on a wide terminal. A growing column
+    is never wider than its ``grow_to`` (its longest value) nor narrower than ``width``.
     """
     growing = [i for i, c in enumerate(columns) if c.grow_to > c.width]
-    spare = max(0, table_width - GROW_FROM) // 2
-    if not growing or not spare:
+    if not growing:
         return list(columns)
+    pinned = [c for i, c in enumerate(columns) if i == 0 or c.kind == "verdict"]
+    keep = x = _GUTTER + sum(c.width + _SEP for c in pinned)
+    for c in (c for i, c in enumerate(columns) if not (i == 0 or c.kind == "verdict")):
+        x += c.width + _SEP
+        if x - _SEP > table_width:
+            break
+        if c.number:
+            keep = x - _SEP
+    spare = max(0, table_width - max(GROW_FROM, keep)) // 2
     share = spare // len(growing)
+    if not share:
+        return list(columns)
     out = list(columns)
     for i in growing:
         c = columns[i]

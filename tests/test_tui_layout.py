@@ -136,3 +136,76 @@ async def test_condition_warnings_are_whole_or_summed_up(tmp_path):
         app.conditions = many
         await settle(pilot)
         assert plain(box).startswith(f"! {len(many.warnings())} warnings about these conditions")
+
+
+def long_smiles_library(folder):
+    """An invented list (Wrenfield Saturates, IDs made up) with one SMILES far longer than 20 characters."""
+    import pandas as pd
+
+    path = folder / "long.csv"
+    rows = [("WS-3101", "C" * 70 + "(C)C"), ("WS-3102", "CC(C)CC1CCC(CC1)C(C)(C)CC")]
+    pd.DataFrame(rows, columns=["id", "smiles"]).to_csv(path, index=False)
+    return path, rows
+
+
+def visible_numbers(table) -> set[str]:
+    """Labels of the number columns shown whole at scroll position 0."""
+    cols = table.columns
+    x, shown = table._fixed_width(), set()
+    for i in table._scrolling:
+        x += cols[i].width + 1
+        if x - 1 <= table.size.width and cols[i].number:
+            shown.add(cols[i].label)
+    return shown
+
+
+@async_test
+async def test_smiles_column_grows_with_the_terminal_and_stays_20_at_80(tmp_path):
+    path, rows = long_smiles_library(tmp_path)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        table = app.query_one(LibraryTable)
+
+        def smiles_column():
+            return next(c for c in table.columns if c.label == "SMILES")
+
+        assert smiles_column().width == 20  # the 80×24 layout is unchanged
+        table._fill_window()
+        # ID and verdict stay pinned; the long SMILES is cut with an ellipsis, never silently.
+        first = table.render_line(1).text
+        cols = table.columns
+        verdict_at = _GUTTER + cols[0].width + 1
+        assert first[_GUTTER:].startswith("WS-3101")
+        v = [c.key for c in cols].index("verdict")
+        assert first[verdict_at:verdict_at + cols[v].width].strip() == table._window[0][v]
+        assert fit(rows[0][1], 20) in first and fit(rows[0][1], 20).endswith("…")
+        whole_at_20 = visible_numbers(table)
+        await pilot.resize_terminal(160, 30)
+        await settle(pilot)
+        grown_width = smiles_column().width
+        assert 20 < grown_width < len(rows[0][1])
+        assert visible_numbers(table) >= whole_at_20  # growing never pushes a number out of view
+        table._fill_window()
+        assert fit(rows[0][1], grown_width) in table.render_line(1).text
+        assert rows[1][1] in table.render_line(2).text  # a SMILES that fits is shown whole
+        await pilot.resize_terminal(400, 30)
+        await settle(pilot)
+        assert smiles_column().width == len(rows[0][1])  # never wider than the longest value
+        await pilot.resize_terminal(80, 24)
+        await settle(pilot)
+        assert smiles_column().width == 20
+
+
+def test_grown_leaves_fixed_columns_alone():
+    from halosift.tui.table import Column, grown
+
+    cols = [Column("id", "ID", 8), Column("s", "SMILES", 20, grow_to=50), Column("v", "Verdict", 12, "verdict")]
+    assert grown(cols, 80) == cols
+    assert [c.width for c in grown(cols, 120)] == [8, 40, 12]
+    assert [c.width for c in grown(cols, 400)] == [8, 50, 12]
+    # A number column in view at the own widths keeps the cells it needs: only half of what is beyond it is shared.
+    with_number = [*cols, Column("m", "Br2 major", 40), Column("p", "Br2 %", 7, "pct"), Column("t", "text", 30)]
+    end = 2 + 9 + 13 + 21 + 41 + 7  # gutter, ID, verdict, SMILES, Br2 major, Br2 % (with the cells between)
+    assert [c.width for c in grown(with_number, 120)][1] == 20 + (120 - end) // 2
+    assert [c.width for c in grown(with_number, 80)][1] == 20

@@ -1,4 +1,4 @@
-"""Structure drawings in the app: detection, the drawing itself, and the text fallback."""
+"""Structure drawings in the app: detection, the drawing itself, and the text drawing where images are off."""
 
 from __future__ import annotations
 
@@ -58,16 +58,42 @@ class _Host(App):
         yield self._widget
 
 
-def test_fallback_is_a_clear_text_note(propane_products) -> None:
+def test_fallback_is_a_text_drawing_labelled_as_the_table(propane_products) -> None:
     widget = sv.structure_widget(None, "CCC", propane_products)
-    assert isinstance(widget, Static)
+    assert isinstance(widget, sv.TextStructure)
 
     async def scenario() -> None:
-        async with _Host(widget).run_test(size=(100, 10)) as pilot:
+        async with _Host(widget).run_test(size=(80, 24)) as pilot:
             await pilot.pause()
-            assert "no inline images" in str(widget.render())
+            shown = widget.render().plain
+            assert "P1" in shown and "P2" in shown and "P3" not in shown
+            assert any(0x2800 < ord(ch) <= 0x28FF for ch in shown)  # bonds in braille dots
+            assert widget.content_region.height == len(shown.splitlines())  # sized to the drawing
 
     asyncio.run(scenario())
+
+
+def test_without_a_structure_the_note_stays(propane_products) -> None:
+    widget = sv.structure_widget(None, "", propane_products)
+    assert isinstance(widget, Static) and "no inline images" in str(widget.content)
+
+
+def test_site_labels_are_the_products_table_names() -> None:
+    # The drawing's labels must read exactly as the first column of the detail's products table.
+    import io
+
+    from rich.console import Console
+
+    from halosift.tui.detail import products_table
+
+    library = engine.load_library(__import__("pandas").DataFrame({"smiles": ["CC(C)Cc1ccccc1"]}), use_cache=False)
+    products = library.products(0)
+    console = Console(width=200, file=io.StringIO(), record=True, color_system=None)
+    console.print(products_table(products))
+    first_column = [line.split()[0] for line in console.export_text().splitlines()[1:] if line.strip()]
+    labels = sv.site_labels(products)
+    assert list(labels.values()) == first_column
+    assert list(labels) == [int(a) for a in products["atom"]]
 
 
 def test_image_widget_mounts_and_renders(propane_products) -> None:
@@ -112,5 +138,69 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
             box = app.screen.query_one("#detail-structure")
             return [type(w).__name__ for w in box.children]
 
-    assert asyncio.run(scenario(None)) == ["Static"]
+    assert asyncio.run(scenario(None)) == ["TextStructure"]
     assert asyncio.run(scenario("unicode")) == ["UnicodeImage"]
+
+
+def test_detail_head_wraps_a_long_smiles_at_sensible_points(tmp_path) -> None:
+    import pandas as pd
+
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.detail import DetailScreen
+    from tui_helpers import plain, settle
+
+    given = "C(C)(C)CC1CCC(CC1)C(C)(C)Cc1ccc2cc(CC)ccc2c1C(C)C1CCCCC1CCCCCCCC1CCC(CC1)C(CC)CCC1CCC2CCCCC2C1"
+    lib = tmp_path / "lib.csv"
+    pd.DataFrame({"id": ["WS-4101"], "smiles": [given]}).to_csv(lib, index=False)
+
+    async def scenario():
+        app = HalosiftApp(str(lib), use_cache=False)
+        async with app.run_test(size=(80, 24)) as pilot:
+            await settle(pilot)
+            await pilot.press("enter")
+            await settle(pilot)
+            assert isinstance(app.screen, DetailScreen)
+            head = app.screen.query_one("#detail-head")
+            canonical = str(app.frame["canonical_smiles"].iloc[0])
+            return plain(head).splitlines(), head.content_region.width, canonical
+
+    lines, width, canonical = asyncio.run(scenario())
+    assert canonical != given
+    start = next(i for i, line in enumerate(lines) if line.startswith("SMILES "))
+    smiles_rows = [lines[start][len("SMILES "):]]
+    for line in lines[start + 1:]:
+        if not line.startswith(" " * len("SMILES ")):
+            break
+        smiles_rows.append(line.strip())
+    assert all(len(line) <= width for line in lines[start:start + len(smiles_rows)])  # our own breaks, none by Rich
+    assert len(smiles_rows) > 1 and "".join(smiles_rows) == given  # wrapped, nothing lost or cut
+    assert not any(row[:1].isdigit() for row in smiles_rows)  # ring-closure digits stay with their atom
+    canon_at = next(i for i, line in enumerate(lines) if line.startswith("canonical "))
+    assert lines[canon_at][len("canonical "):].strip() and canonical.startswith(lines[canon_at][len("canonical "):])
+
+
+@pytest.mark.parametrize("width", [74, 100, 200])
+def test_products_view_keeps_every_monochloride_whole_and_inside(width: int) -> None:
+    import io
+    import re
+
+    from rich.console import Console
+
+    from halosift.tui.detail import products_view
+
+    smiles = "CC(C)CC1CCC(CC1)C(C)(C)Cc1ccc2cc(CC)ccc2c1C(C)C1CCCCC1CCCCCCCC"
+    products = engine.load_library(__import__("pandas").DataFrame({"smiles": [smiles]}), use_cache=False).products(0)
+    console = Console(width=width, file=io.StringIO(), record=True, color_system=None)
+    console.print(products_view(products, width))
+    text = console.export_text()
+    assert all(len(line.rstrip()) <= width for line in text.splitlines())
+    squeezed = "".join(text.split())
+    for product in products["product"]:
+        if width == 200:
+            assert product in text  # room enough: one line each, in the table
+        assert product in squeezed  # broken into lines at most, never dropped or cut short
+    below = re.search(r"^monochloride\s*$", text, flags=re.M) is not None
+    assert below == (width == 74)  # too little room beside the other columns: listed below the table
+    if width == 100:  # in the table, broken between atoms: no line of the column starts with a ring digit
+        column = [line[text.splitlines()[1].index("monochloride"):].strip() for line in text.splitlines()[2:]]
+        assert column and not any(c[:1].isdigit() for c in column if c)

@@ -610,7 +610,8 @@ class HalosiftApp(App[int]):
         if lib.id_column is not None:
             ident = names[lib.id_column]
             cols.append(Column(ident, "ID", self._text_width(frame, ident, "ID", 18)))
-        cols.append(Column(names[lib.smiles_column], "SMILES", 20))
+        smiles = names[lib.smiles_column]
+        cols.append(Column(smiles, "SMILES", 20, grow_to=self._text_width(frame, smiles, "SMILES", 120)))
         if self.view == "rejected":
             cols.append(Column("reason", "Reason", 56))
         else:
@@ -640,7 +641,7 @@ class HalosiftApp(App[int]):
     def _text_width(frame: pd.DataFrame, column: Hashable, label: str, cap: int) -> int:
         """Width for a column from its label and the first thousand values."""
         sample = frame[column].iloc[:1000].astype(str)
-        longest = int(sample.str.len().max()) if len(sample) else 0
+        longest = int(sample.str.len().fillna(0).max()) if len(sample) else 0  # missing values show empty
         return max(len(label) + 2, min(cap, longest))
 
     def _update_status(self) -> None:

@@ -37,8 +37,15 @@ def bar(pct: float, width: int) -> str:
     return text + "░" * (width - len(text))
 
 
-def products_table(products: pd.DataFrame) -> Table:
-    """Every product with site class, H count, C–H BDE, ΔH for Cl·/Br· and stereo outcome."""
+def products_table(products: pd.DataFrame, smiles_width: int | None = None) -> Table:
+    """Every product with site class, H count, C–H BDE, ΔH for Cl·/Br· and stereo outcome.
+
+    ``smiles_width``: the monochloride SMILES are broken at sensible points
+    (:func:`halosift.tui.text_structure.smiles_lines`) to that many cells;
+    0 leaves the column out (:func:`products_view` lists them below instead).
+    """
+    from halosift.tui.text_structure import smiles_lines
+
     table = Table(box=None, padding=(0, 1), pad_edge=False, header_style="bold underline", expand=False)
     table.add_column("P", justify="right", no_wrap=True)
     table.add_column("site", no_wrap=True)
@@ -47,16 +54,50 @@ def products_table(products: pd.DataFrame) -> Table:
     table.add_column("ΔH Cl·", justify="right", no_wrap=True)
     table.add_column("ΔH Br·", justify="right", no_wrap=True)
     table.add_column("stereo", no_wrap=True)
-    table.add_column("monochloride", overflow="fold", min_width=12)
+    if smiles_width != 0:
+        table.add_column("monochloride", overflow="fold", min_width=12)
     for i, p in enumerate(products.itertuples(index=False), start=1):
         stereo = p.stereo or "—"  # empty for C–H that is not abstracted
         if int(p.n_stereoisomers) > 1:
             stereo = f"{stereo} ({int(p.n_stereoisomers)})"
-        table.add_row(
-            f"P{i}", p.site, str(int(p.h_count)), f"{p.bde:.1f}", f"{p.dh_cl:+.1f}", f"{p.dh_br:+.1f}", stereo,
-            p.product,
-        )
+        cells = [f"P{i}", p.site, str(int(p.h_count)), f"{p.bde:.1f}", f"{p.dh_cl:+.1f}", f"{p.dh_br:+.1f}", stereo]
+        if smiles_width:
+            cells.append("\n".join(smiles_lines(str(p.product), smiles_width)))
+        elif smiles_width is None:
+            cells.append(p.product)
+        table.add_row(*cells)
     return table
+
+
+#: Narrowest the monochloride column may be before the SMILES go below the table instead.
+MIN_SMILES_COLUMN = 16
+
+
+def products_view(products: pd.DataFrame, width: int) -> Group:
+    """The products table fitted to ``width`` cells: long SMILES wrap at ring closures and branches, never mid-atom.
+
+    When the other columns leave too little room, the monochlorides are listed
+    below the table, one P-numbered block each.
+    """
+    from halosift.tui.text_structure import smiles_block
+
+    # Cells of the columns before the SMILES: their longest text, plus two cells between columns.
+    texts = [
+        [f"P{len(products)}", "P"], [*products["site"].astype(str), "site"], [*products["h_count"].astype(int).astype(str)],
+        ["000.0", "BDE"], ["+00.0", "ΔH Cl·"], ["+00.0", "ΔH Br·"],
+        [*(f"{s or '—'} ({int(n)})" if int(n) > 1 else (s or "—")
+           for s, n in zip(products["stereo"], products["n_stereoisomers"])), "stereo"],
+    ]
+    used = sum(max(len(t) for t in column) for column in texts) + 2 * len(texts)
+    room = width - used
+    longest = int(products["product"].astype(str).str.len().max())
+    if room >= min(MIN_SMILES_COLUMN, longest):
+        return Group(Text("Products", style="bold"), products_table(products, smiles_width=room))
+    below = Text("\n".join(
+        smiles_block(f"P{i:<3}", str(p.product), width) for i, p in enumerate(products.itertuples(index=False), start=1)
+    ))
+    return Group(Text("Products", style="bold"), products_table(products, smiles_width=0),
+                 Text("\nmonochloride", style="bold underline"), below)
 
 
 def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
@@ -130,7 +171,7 @@ class DetailResult:
     nbs: pd.DataFrame
     """Library.nbs_products(row, conditions)."""
     picture: object | str
-    """The structure drawing (a PIL image) or the note shown instead (tui.structure_view.structure_picture)."""
+    """The structure drawing (a PIL image), the text drawing's layout, or a note (tui.structure_view.structure_picture)."""
 
 
 def work_out_detail(library: Any, row: int, canonical_smiles: str, conditions: Any, graphics: str | None) -> DetailResult:
@@ -236,13 +277,22 @@ class DetailScreen(Screen):
         head.append("  · ✓ on shortlist" if self.marked else "  · not marked")
         if self.working:
             head.append("  · working…", style="bold")
-        head.append(f"\nSMILES {record[names[lib.smiles_column]]}")
+        from halosift.tui.text_structure import smiles_block
+
+        line_width = max(20, (self.size.width or self.app.size.width) - 2)  # the head's padding
+        given = str(record[names[lib.smiles_column]])
+        head.append("\n" + smiles_block("SMILES ", given, line_width))
         if record["status"] != "ok":
             head.append("\nRejected: ", style="bold")
             head.append(str(record["reason"]))
         else:
-            if record["canonical_smiles"] != record[names[lib.smiles_column]]:
-                head.append(f"  (canonical {record['canonical_smiles']})")
+            canonical = str(record["canonical_smiles"])
+            if canonical != given:
+                # Long ones wrap at ring closures and branches, never inside an atom symbol.
+                if len("SMILES ") + len(given) + len(canonical) + 13 <= line_width:
+                    head.append(f"  (canonical {canonical})")
+                else:
+                    head.append("\n" + smiles_block("canonical ", canonical, line_width))
             verdict = record["verdict"]
             head.append("\nVerdict: ", style="bold")
             head.append(verdict, style="bold")
@@ -337,7 +387,7 @@ class DetailScreen(Screen):
             self._clear_body("No C–H bonds: no monohalide can form.")
             return
         width = max(40, self.size.width - 6)  # padding and scroll bar of the body
-        products_box.update(Group(Text("Products", style="bold"), products_table(products)))
+        products_box.update(products_view(products, width))
         if draw:
             from halosift.tui.structure_view import picture_widget
 

@@ -182,7 +182,8 @@ class HelpScreen(Screen):
         mode = getattr(self.app, "graphics", None)
         rows.append(("drawings", "the site detail draws the structure with each site's split where the terminal "
                      "shows inline images (Sixel or Kitty graphics; now: " + (mode or "off") + "); "
-                     "halosift browse --no-images or HALOSIFT_IMAGES=off turns this off"))
+                     "elsewhere, and with halosift browse --no-images or HALOSIFT_IMAGES=off, it draws it in "
+                     "text (braille dots, sites P1 … as in the products table)"))
         return self._section("Views (v cycles them), marks and sessions", rows)
 
     def _columns(self) -> Table:

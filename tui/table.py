@@ -9,7 +9,7 @@ lines with the Line API.
 from __future__ import annotations
 
 from collections.abc import Hashable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
@@ -31,6 +31,8 @@ if TYPE_CHECKING:
 ROW_KEY = "\x00row"
 #: Cell kinds: how a column's values are shown.
 KINDS = ("text", "pct", "count", "verdict", "row")
+#: Table width (cells) up to which every column keeps its own width: the 80×24 layout never changes.
+GROW_FROM = 80
 _SEP = 1  # blank cells between columns
 _GUTTER = 2  # cursor pointer + shortlist mark
 POINTER = "▸"
@@ -49,6 +51,8 @@ class Column:
     """Cells wide (the header's sort arrow included)."""
     kind: str = "text"
     """One of :data:`KINDS`."""
+    grow_to: int = 0
+    """Widest it may grow to on a table wider than :data:`GROW_FROM` cells (0: always ``width``)."""
 
     @property
     def right(self) -> bool:
@@ -79,6 +83,37 @@ REASON_COLUMNS: tuple[Column, ...] = (
     Column("so2cl2_major", "SO2Cl2 major", 18),
     Column("so2cl2_major_pct", "SO2Cl2 %", 9, "pct"),
 )
+
+
+def grown(columns: Sequence[Column], table_width: int) -> list[Column]:
+    """The columns with each growing one widened into part of the cells the table has to spare.
+
+    Spare cells are those beyond :data:`GROW_FROM` and beyond the last number
+    column shown whole at the columns' own widths; half of them go to the
+    growing columns, so every number that was in view stays in view and the
+    columns after it still come into view on a wide terminal. A growing column
+    is never wider than its ``grow_to`` (its longest value) nor narrower than ``width``.
+    """
+    growing = [i for i, c in enumerate(columns) if c.grow_to > c.width]
+    if not growing:
+        return list(columns)
+    pinned = [c for i, c in enumerate(columns) if i == 0 or c.kind == "verdict"]
+    keep = x = _GUTTER + sum(c.width + _SEP for c in pinned)
+    for c in (c for i, c in enumerate(columns) if not (i == 0 or c.kind == "verdict")):
+        x += c.width + _SEP
+        if x - _SEP > table_width:
+            break
+        if c.number:
+            keep = x - _SEP
+    spare = max(0, table_width - max(GROW_FROM, keep)) // 2
+    share = spare // len(growing)
+    if not share:
+        return list(columns)
+    out = list(columns)
+    for i in growing:
+        c = columns[i]
+        out[i] = replace(c, width=min(c.grow_to, c.width + share))
+    return out
 
 
 def fit(text: str, width: int, right: bool = False) -> str:
@@ -159,6 +194,7 @@ class LibraryTable(ScrollView, can_focus=True):
         self._frame: pd.DataFrame | None = None
         self._rows: np.ndarray = np.zeros(0, dtype=np.int64)
         self._columns: list[Column] = []
+        self._given_columns: list[Column] = []
         self._pinned: list[int] = []
         self._scrolling: list[int] = []
         self._marked: np.ndarray = np.zeros(0, dtype=bool)
@@ -208,7 +244,8 @@ class LibraryTable(ScrollView, can_focus=True):
         first_show = self._frame is None
         self._frame = frame
         self._rows = np.asarray(rows, dtype=np.int64)
-        self._columns = list(columns)
+        self._given_columns = list(columns)
+        self._columns = grown(self._given_columns, self.size.width)
         self._layout()
         self._sort = sort
         if marked is not None:
@@ -217,8 +254,7 @@ class LibraryTable(ScrollView, can_focus=True):
         self._window_key = None
         keys = [c.key for c in self._columns]
         self.set_reactive(LibraryTable.picked, keys.index(picked_key) if picked_key in keys else 0)
-        width = _GUTTER + sum(c.width + _SEP for c in self._columns)
-        self.virtual_size = Size(width, len(self._rows) + 1)
+        self._set_virtual_size()
         position = 0
         if top:
             self.scroll_to(y=0, animate=False, force=True)
@@ -298,8 +334,17 @@ class LibraryTable(ScrollView, can_focus=True):
                 self.scroll_to(x=target, animate=False, force=True)
         self.refresh()
 
+    def _set_virtual_size(self) -> None:
+        width = _GUTTER + sum(c.width + _SEP for c in self._columns)
+        self.virtual_size = Size(width, len(self._rows) + 1)
+
     def on_resize(self, event: events.Resize) -> None:
         self._window_key = None
+        columns = grown(self._given_columns, event.size.width)
+        if columns != self._columns:  # a growing column (SMILES) follows the terminal's width
+            self._columns = columns
+            self._set_virtual_size()
+            self.refresh()
 
     # ------------------------------------------------------------------ actions
 

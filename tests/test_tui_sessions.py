@@ -140,3 +140,27 @@ def test_save_is_atomic_and_leaves_no_temp_file(tmp_path):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["abc.json"]
     assert (sessions.load("abc", tmp_path)[0].marked == saved.marked).all()
     assert path == sessions.path_for("abc", tmp_path)
+
+
+def test_new_filters_round_trip_and_old_files_still_load():
+    marked = np.zeros(3, dtype=bool)
+    spec = FilterSpec(flags_has=frozenset({"alkene"}), flags_lacks=frozenset({"cage", "cyclopropane"}),
+                      outcomes=frozenset({("br2", "clean"), ("nbs", "mixture")}),
+                      confidence=frozenset({"measured", "textbook"}), duplicates="hide")
+    back = sessions.decode(sessions.encode(sessions.Session(3, marked, filters=spec)))
+    assert back.filters == spec
+    # A file written before these filters existed: exactly the old "filters" record.
+    old = (
+        '{"version": 1, "n_rows": 3, "marked": "AA==", "sort": {"column": null, "descending": false},'
+        ' "filters": {"verdicts": ["selective"], "min_br2_pct": null, "max_products": 2, "site_types": [],'
+        ' "site_match": "any", "no_new_stereo": false, "text": ""}, "view": "library",'
+        ' "conditions": {"br2_temp_c": 60.0}, "show_input_columns": false, "show_more_columns": false}'
+    )
+    loaded = sessions.decode(old)
+    assert loaded.filters == FilterSpec(verdicts=frozenset({"selective"}), max_products=2)
+    assert loaded.filters.duplicates == "all" and not loaded.filters.outcomes
+    # The conditions record of an old file has no Cl2 phase: it restores with the default phase.
+    assert sessions.restore_conditions(loaded.conditions) == engine.Conditions(br2_temp_c=60.0)
+    # An unknown duplicate mode is read as "all" rather than failing the whole session.
+    odd = sessions.encode(sessions.Session(3, marked, filters=spec)).replace('"hide"', '"sometimes"')
+    assert sessions.decode(odd).filters.duplicates == "all"

@@ -675,9 +675,7 @@ class HalosiftApp(App[int]):
         if self.view != "library":
             settings.append(Phrase(("filters off here", ""), keep=1))
         elif self.filters.active:
-            f = self.filters
-            n = sum((bool(f.verdicts), f.min_br2_pct is not None, f.max_products is not None, bool(f.site_types),
-                     f.no_new_stereo, bool(f.text)))
+            n = self.filters.count
             settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
                                    keep=2))
         else:

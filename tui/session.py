@@ -20,7 +20,7 @@ from typing import Any
 
 import numpy as np
 
-from halosift.tui.filters import VIEWS, FilterSpec, SortSpec
+from halosift.tui.filters import DUPLICATE_MODES, VIEWS, FilterSpec, SortSpec
 
 #: Environment variable naming the folder sessions are kept in.
 SESSION_ENV = "HALOSIFT_SESSION_DIR"
@@ -90,6 +90,9 @@ def encode(session: Session) -> str:
             "verdicts": sorted(spec.verdicts), "min_br2_pct": spec.min_br2_pct, "max_products": spec.max_products,
             "site_types": sorted(spec.site_types), "site_match": spec.site_match,
             "no_new_stereo": spec.no_new_stereo, "text": spec.text,
+            "flags_has": sorted(spec.flags_has), "flags_lacks": sorted(spec.flags_lacks),
+            "outcomes": sorted([reagent, outcome] for reagent, outcome in spec.outcomes),
+            "confidence": sorted(spec.confidence), "duplicates": spec.duplicates,
         },
         "view": session.view,
         "conditions": session.conditions,
@@ -122,6 +125,12 @@ def decode(text: str) -> Session:
             site_match=str(f["site_match"]) if f["site_match"] in ("any", "all") else "any",
             no_new_stereo=bool(f["no_new_stereo"]),
             text=str(f["text"]),
+            # Added later: files saved before these filters existed load with them off.
+            flags_has=frozenset(map(str, f.get("flags_has", ()))),
+            flags_lacks=frozenset(map(str, f.get("flags_lacks", ()))),
+            outcomes=frozenset((str(r), str(o)) for r, o in f.get("outcomes", ())),
+            confidence=frozenset(map(str, f.get("confidence", ()))),
+            duplicates=str(f.get("duplicates", "all")) if f.get("duplicates", "all") in DUPLICATE_MODES else "all",
         )
         view = str(data["view"]) if data["view"] in VIEWS else "library"
         conditions = data["conditions"]

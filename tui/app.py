@@ -646,7 +646,7 @@ class HalosiftApp(App[int]):
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
-        from halosift.tui.header import Phrase, fit_phrases
+        from halosift.tui.header import Phrase, cl2_forms, fit_phrases
 
         ok, rejected = self._counts
         shown = len(self.query_one(LibraryTable).rows)
@@ -663,13 +663,12 @@ class HalosiftApp(App[int]):
         width = max(20, self.size.width - 2)  # the lines' padding
         self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
-        solvent = f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if cond.cl2_solvent != "none" else ""
-        short_solvent = f" ({cond.cl2_solvent})" if cond.cl2_solvent != "none" else ""
+        cl2_long, cl2_short = cl2_forms(cond)
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
         settings = [
-            Phrase((f"Cl2 {cond.cl2_temp_c:g} °C{solvent} · {temps}", f"Cl2 {cond.cl2_temp_c:g} °C{short_solvent} · {temps}"),
-                   keep=4),
+            Phrase((f"{cl2_long} · Br2 {cond.br2_temp_c:g} °C · SO2Cl2 {cond.so2cl2_temp_c:g} °C · threshold "
+                    f"{cond.threshold_pct:g} %", f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
             Phrase((f"sort {sort}", sort), keep=3),
         ]
         if self.view != "library":

@@ -22,7 +22,7 @@ from halosift.tui.filters import (
     parse_optional_float,
     parse_optional_int,
 )
-from halosift.tui.toggles import ChoiceButton, TickBox
+from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
 
 from halosift.engine.outcomes import VERDICTS
 
@@ -78,7 +78,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             if self.sites:
                 with Horizontal(classes="filter-row"):
                     yield Label("Site types present:", classes="filter-label")
-                    with RadioSet(id="site-match", compact=True):
+                    with ChoiceSet(id="site-match", compact=True):
                         yield ChoiceButton("any of", spec.site_match == "any", id="match-any", compact=True)
                         yield ChoiceButton("all of", spec.site_match == "all", id="match-all", compact=True)
                 with Grid(id="site-grid"):
@@ -98,7 +98,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                 state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
                 with Horizontal(classes="filter-row"):
                     yield Label(flag, classes="filter-label row-name")
-                    with RadioSet(id=f"flag-{flag}", classes="choice-row", compact=True):
+                    with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
                         for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
                             yield ChoiceButton(label, state == choice, id=f"flag-{flag}-{choice}", compact=True)
             with Horizontal(classes="filter-row"):
@@ -107,7 +107,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                     yield TickBox(level, level in spec.confidence, id=f"confidence-{level}", compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Duplicate structures", classes="filter-label row-name")
-                with RadioSet(id="duplicates", classes="choice-row", compact=True):
+                with ChoiceSet(id="duplicates", classes="choice-row", compact=True):
                     for mode in DUPLICATE_MODES:
                         yield ChoiceButton(DUPLICATE_LABELS[mode], spec.duplicates == mode, id=f"dup-{mode}",
                                            compact=True)

@@ -12,7 +12,7 @@ import os
 import sys
 import threading
 import time
-from collections.abc import Hashable
+from collections.abc import Hashable, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
@@ -169,9 +169,12 @@ class HalosiftApp(App[int]):
         graphics: str | None = None,
         fresh: bool = False,
         sessions: bool = True,
+        conditions: Mapping[str, Any] | None = None,
     ) -> None:
         super().__init__()
         start_process_helpers()
+        self.explicit_conditions: dict[str, Any] = dict(conditions or {})
+        """engine.Conditions fields given on the command line; they win over the saved session's."""
         self.fresh = fresh
         """Ignore (and replace) the session saved for this library."""
         self.sessions = sessions and isinstance(source, (str, os.PathLike))
@@ -275,14 +278,14 @@ class HalosiftApp(App[int]):
                 cancel=cancel,
             )
             session, key, note = self._read_session(len(library.input))
-            conditions = self.conditions or engine.Conditions()
-            if session is not None and session.conditions and self.conditions is None:
-                from halosift.tui.session import restore_conditions
+            conditions = self.conditions
+            if conditions is None:
+                from halosift.tui.session import initial_conditions
 
-                try:
-                    conditions = restore_conditions(session.conditions)
-                except ValueError as exc:
-                    note = f"The saved conditions are not usable ({exc}); default conditions are used."
+                # Saved conditions, with the command line's explicit options winning field by field.
+                conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
+                                                           self.explicit_conditions)
+                note = " ".join(n for n in (note, cond_note) if n)
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -1011,9 +1014,12 @@ class HalosiftApp(App[int]):
 
 def run(
     path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True,
-    fresh: bool = False,
+    fresh: bool = False, conditions: Mapping[str, Any] | None = None,
 ) -> int:
-    """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
+    """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code.
+
+    ``conditions``: engine.Conditions fields to start with (they win over the saved session's).
+    """
     if path is None:
         try:
             from halosift.sample_libraries import sample_path
@@ -1038,6 +1044,7 @@ def run(
 
     # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
     graphics = detect_graphics(enabled=images)
-    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh)
+    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh,
+                      conditions=conditions)
     result = app.run()
     return int(result or app.return_code or 0)

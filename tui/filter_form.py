@@ -9,7 +9,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Grid, Horizontal, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, RadioSet, Static
+from textual.widgets import Button, Input, Label, Static
 
 from halosift.tui.filters import (
     CONFIDENCE_CHOICES,

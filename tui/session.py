@@ -14,7 +14,8 @@ import hashlib
 import json
 import os
 import tempfile
-from dataclasses import asdict, dataclass, field, fields
+from collections.abc import Mapping
+from dataclasses import asdict, dataclass, field, fields, replace
 from pathlib import Path
 from typing import Any
 
@@ -166,6 +167,38 @@ def restore_conditions(record: dict[str, Any]) -> Any:
     except (TypeError, ValueError) as exc:
         raise ValueError(" ".join(str(exc).split())) from None
     return conditions
+
+
+def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]) -> tuple[Any, str]:
+    """(engine.Conditions, one-line note or '') the app opens a library with.
+
+    The saved session's conditions (when usable), with every field given
+    explicitly on the command line (``explicit``) taking precedence. When the
+    explicit fields do not combine with the saved set (e.g. ``--phase gas``
+    over a saved Cl2 solvent), the explicit fields over the defaults are used
+    and the note says so. ``explicit`` alone must be valid (ValueError if not).
+    """
+    from halosift.engine import Conditions
+
+    note = ""
+    base = Conditions()
+    if saved:
+        try:
+            base = restore_conditions(saved)
+        except ValueError as exc:
+            note = f"The saved conditions are not usable ({exc}); default conditions are used."
+    if not explicit:
+        return base, note
+    try:
+        conditions = replace(base, **explicit)
+        conditions.validate()
+        return conditions, note
+    except ValueError as exc:
+        conditions = Conditions(**explicit)
+        conditions.validate()
+        reason = " ".join(str(exc).split())
+        return conditions, (f"The saved conditions do not combine with the options given ({reason}); "
+                            "the options over default conditions are used.")
 
 
 def path_for(key: str, folder: Path | None = None) -> Path:

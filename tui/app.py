@@ -88,8 +88,9 @@ MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
     ("flags", "Flags", 20, "text"),
     ("nbs_major", "NBS major", 18, "text"),
     ("nbs_major_pct", "NBS %", 7, "pct"),
-    ("cl2_poly_pct", "Cl2 poly %", 11, "pct"),
-    ("br2_poly_pct", "Br2 poly %", 11, "pct"),
+    # "% prod": percent of the halogenated product (engine.polyhalogenation.POLY_FIGURE), as in the detail.
+    ("cl2_poly_pct", "Cl2 poly % prod", 15, "pct"),
+    ("br2_poly_pct", "Br2 poly % prod", 15, "pct"),
 )
 
 

@@ -82,7 +82,7 @@ def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
 
 def poly_text(products: pd.DataFrame) -> Text:
     """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap."""
-    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, POLY_UNIT, plan
 
     text = Text()
     text.append("\nPolyhalogenation", style="bold")
@@ -91,10 +91,10 @@ def poly_text(products: pd.DataFrame) -> Text:
     for reagent in ("cl2", "br2"):
         p = plan(reagent, h, products[f"{reagent}_pct"].to_numpy(), ratio=DEFAULT_RATIO)
         excess = "no excess suffices" if p.min_ratio == float("inf") else f"≥ {p.min_ratio:.2g} : 1 substrate : halogen"
+        # The table's "poly % prod" column: the same figure, the same unit.
         text.append(
-            f"{reagent}: {p.unreacted_pct:.0f} % left, {p.mono_pct_of_charge:.0f} % mono, "
-            f"{p.poly_pct_of_charge:.0f} % poly; ≤ {DEFAULT_MAX_POLY_PCT:g} % poly needs ≤ "
-            f"{p.max_conversion_pct:.0f} % conversion ({excess})\n"
+            f"{reagent}: {p.poly_pct_at_ratio:.1f} {POLY_UNIT} is polyhalide; ≤ {DEFAULT_MAX_POLY_PCT:g} % "
+            f"needs ≤ {p.max_conversion_pct:.0f} % conversion ({excess})\n"
         )
     return text
 

@@ -196,7 +196,8 @@ class HelpScreen(Screen):
              "(or, for NBS, allylic/benzylic) C–H"),
             ("SO2Cl2 major / %", "major monochloride under SO2Cl2, weighed as Cl· at its own temperature"),
             ("NBS major / %", "major allylic/benzylic bromide under NBS (both allyl termini weighed)"),
-            ("Cl2/Br2 poly %", "polyhalide, percent of halogenated product, at 1 : 1 substrate : halogen (estimate)"),
+            ("Cl2/Br2 poly % prod", "polyhalide, percent of the halogenated product, at 1 : 1 substrate : halogen "
+                                    "with all halogen consumed (estimate; the detail shows the same figure)"),
         ]
         return self._section("More columns (o shows them)", rows)
 

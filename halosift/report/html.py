@@ -207,7 +207,8 @@ site a gives 45 % of the monochlorides under Cl2 and 3 % of the monobromides und
 the monochloride; the monobromide is the same SMILES with Br in place of Cl. The tint of a marked carbon
 shows its site class; the class is also named in the legend and the table. C–H bonds on sp2 and sp carbons
 (aryl, vinyl, alkynyl) are not abstracted and are not listed. Shares are percentages of the monohalides only;
-polyhalogenation is not modelled. A number after the stereo outcome counts the stereoisomers formed.</p>
+over-halogenation is estimated apart from them, as polyhalide in percent of the halogenated product at 1 : 1
+substrate : halogen with all halogen consumed (the cl2_poly_pct and br2_poly_pct columns of a screen). A number after the stereo outcome counts the stereoisomers formed.</p>
 <p>Verdicts, read off the outcomes of Cl2, Br2, SO2Cl2 and NBS (a reagent is offered only when its outcome is
 clean):</p>
 <dl>{items}</dl>

@@ -193,7 +193,7 @@ async def test_so2cl2_temperature_and_cl2_phase_in_one_fast_burst(tmp_path):
         settings = plain(app.query_one("#settings"))
         assert "Cl2 140 °C gas" in settings
         note = plain(screen.query_one("#cond-note"))
-        assert "Applied: Cl2 140 °C gas phase" in note and "SO2Cl2 60 °C" in note
+        assert "Applied: Cl2 140 °C gas · Br2" in note and "SO2Cl2 60 °C" in note
 
 
 @async_test

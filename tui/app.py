@@ -671,8 +671,7 @@ class HalosiftApp(App[int]):
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
         settings = [
-            Phrase((f"{cl2_long} · Br2 {cond.br2_temp_c:g} °C · SO2Cl2 {cond.so2cl2_temp_c:g} °C · threshold "
-                    f"{cond.threshold_pct:g} %", f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
+            Phrase((f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
             Phrase((f"sort {sort}", sort), keep=3),
         ]
         if self.view != "library":

@@ -66,6 +66,4 @@ def cl2_forms(conditions: Any) -> tuple[str, str]:
     if conditions.cl2_solvent != "none":
         solvent = "CS2" if conditions.cl2_solvent == "cs2" else conditions.cl2_solvent
         return (f"{temp} {phase} in {conditions.cl2_solvent_molar:g} M {solvent}", f"{temp} {phase} ({solvent})")
-    if phase == "liquid":
-        return f"{temp} neat liquid", f"{temp} liquid"
-    return f"{temp} {phase} phase", f"{temp} {phase}"
+    return f"{temp} {phase}", f"{temp} {phase}"  # liquid without a solvent: the neat hydrocarbon

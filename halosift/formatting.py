@@ -149,7 +149,7 @@ def poly_lines(plan: PolyPlan) -> list[str]:
                      "product is polyhalide")
     excess = "no excess suffices" if plan.min_ratio == float("inf") else f"substrate : halogen ≥ {plan.min_ratio:.2g} : 1"
     lines.append(
-        f"           ≤ {plan.max_poly_pct:g} % polyhalide (of product) needs conversion ≤ {plan.max_conversion_pct:.1f} %, "
+        f"           polyhalide ≤ {plan.max_poly_pct:g} {POLY_UNIT} needs conversion ≤ {plan.max_conversion_pct:.1f} %, "
         f"i.e. {excess}; deactivation by the first halogen f = {plan.deactivation:g} (estimate)"
     )
     return lines

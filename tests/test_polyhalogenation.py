@@ -153,7 +153,7 @@ def test_cli_planner(capsys: pytest.CaptureFixture) -> None:
     assert "estimate" in data["polyhalogenation_model"]
     assert main(["explain", "CCC", "--ratio", "3", "--max-poly", "5"]) == 0
     out = capsys.readouterr().out
-    assert "at 3 : 1 substrate : halogen" in out and "≤ 5 % polyhalide" in out
+    assert "at 3 : 1 substrate : halogen" in out and "polyhalide ≤ 5 % of the halogenated product" in out
     assert main(["explain", "c1ccccc1", "--ratio", "2"]) == 0  # inert: nothing planned
     assert "polyhalide" not in capsys.readouterr().out.replace("polyhalogenated", "")
     assert main(["explain", "CCC", "--ratio", "0"]) == 2

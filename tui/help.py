@@ -97,8 +97,10 @@ def _bindings_table(app) -> Group:
         "Find bar": [("⏎", "back to the table, keeping the text")],
         "Conditions panel": [("⏎", "apply (only a complete, valid set is applied)"),
                              ("tab / shift+tab", "next / previous field; leaving a field applies it too"),
-                             ("← / →", "choose the Cl2 solvent (in the solvent field)")],
-        "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field")],
+                             ("← / →, ⏎", "choose the Cl2 phase or solvent (in those fields)")],
+        "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field"),
+                        ("← / →, ⏎", "choose in a row of ( ) choices: site match, a flag's either / has it / "
+                                     "lacks it, duplicates all / hide repeats / only repeats")],
         "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
                         ("tab", "next field")],
         "Replace? dialog": [("⏎", "press the focused button (Keep)")],

@@ -173,19 +173,17 @@ def parse_optional_int(text: str, *, lo: int, what: str) -> int | None:
 
 
 def _by_unique(series: pd.Series, test) -> np.ndarray:
-    """Evaluate ``test(value) -> bool`` once per distinct value, broadcast to rows.
+    """Evaluate ``test(value) -> bool`` once per distinct value, broadcast to rows (missing values: False).
 
-    The text columns here (verdict, stereo, site_types) hold few distinct
-    values, so this is much faster than a string operation per row.
+    The text columns here (verdict, outcomes, flags, site_types) hold few
+    distinct values, so this is much faster than a string operation per row;
+    unique + isin rather than factorize, which is several times slower on
+    Arrow-backed text (bench_filters.py).
     """
     import pandas as pd
 
-    codes, uniques = pd.factorize(series, use_na_sentinel=True)
-    hits = np.fromiter((bool(test(u)) for u in uniques), dtype=bool, count=len(uniques))
-    out = np.zeros(len(codes), dtype=bool)
-    valid = codes >= 0
-    out[valid] = hits[codes[valid]]
-    return out
+    keep = [u for u in pd.unique(series) if not pd.isna(u) and bool(test(u))]
+    return series.isin(keep).to_numpy(dtype=bool, na_value=False)
 
 
 def site_set(value: object) -> frozenset[str]:

@@ -38,7 +38,6 @@ import numpy as np
 
 from halosift.engine import parameters as P
 from halosift.engine.reagents import RADICAL_OF
-from halosift.engine.shares import blocks_by_length
 
 #: One line for output files and JSON: what the estimate assumes.
 MODEL_NOTE = (

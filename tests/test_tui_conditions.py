@@ -105,7 +105,7 @@ async def test_focus_stays_in_the_panel_until_it_closes(tmp_path):
             focused = app.focused
             assert focused is not None and focused.screen is screen, "Tab left the panel"
             seen.append(focused.id)
-        assert {"cond-cl2", "cond-br2", "cond-nbs", "cond-threshold", "cond-solvent"} <= set(seen)
+        assert {"cond-cl2", "cond-phase", "cond-solvent", "cond-br2", "cond-so2cl2", "cond-nbs", "cond-threshold"} <= set(seen)
         # Shift+Tab from the first field wraps to the last.
         await focus_field(pilot, screen, "cond-cl2")
         await pilot.press("shift+tab")

@@ -38,7 +38,6 @@ import numpy as np
 
 from halosift.engine import parameters as P
 from halosift.engine.reagents import RADICAL_OF
-from halosift.engine.shares import blocks_by_length
 
 #: One line for output files and JSON: what the estimate assumes.
 MODEL_NOTE = (
@@ -50,6 +49,12 @@ MODEL_NOTE = (
 #: Default cap on polyhalides, percent of halogenated product (common practice: a planning figure, no source).
 DEFAULT_MAX_POLY_PCT = 10.0
 DEFAULT_RATIO = P.POLY_SCREEN_RATIO
+#: Unit of the polyhalide figure, wherever it is shown.
+POLY_UNIT = "% of the halogenated product"
+#: What the figure is, in words (app, explain, report and file metadata say it the same way).
+POLY_FIGURE = (
+    f"polyhalide, {POLY_UNIT} (moles), at {DEFAULT_RATIO:g} : 1 substrate : halogen with all halogen consumed"
+)
 #: Bisection steps: 2⁻⁴⁸ in A.
 _ITERATIONS = 48
 #: ln A searched down to here: with κ ≥ 1e-11, A^κ ≤ e^-10 at the floor (a slow monohalide spent too).
@@ -162,20 +167,6 @@ class Split:
         converted = -np.expm1(np.minimum(np.asarray(log_left, dtype=np.float64), 0.0))
         poly = np.maximum(0.0, converted - self.mono_log(log_left))
         return np.divide(poly, converted, out=np.zeros_like(converted), where=converted > 1e-15)
-
-    def log_left_at_ratio(self, ratio: float) -> np.ndarray:
-        """ln of the substrate left when halogen (1/ratio mol per mol substrate) is used up.
-
-        Bisected in ln A on [LOG_FLOOR, 0], where halogen used falls as ln A rises; 0 where
-        nothing reacts, -inf where more than two halogens per substrate are charged.
-        """
-        available = 1.0 / ratio
-        out = np.where(available >= 2.0, -np.inf, _bisect_log_left(self.mono_log, self.n, available))
-        return np.where(self.reacts, out, 0.0)
-
-    def left_at_ratio(self, ratio: float) -> np.ndarray:
-        """Substrate left when halogen (1/ratio mol per mol substrate) is used up; 1 where nothing reacts."""
-        return np.exp(self.log_left_at_ratio(ratio))
 
     def left_at_cap(self, cap: float) -> np.ndarray:
         """Substrate left at the conversion where polyhalide reaches ``cap`` (fraction of product)."""
@@ -291,7 +282,7 @@ def left_and_mono_at_ratio(
     equal κ may also be merged by adding their φ). Bracketed Halley steps from the stand-in start;
     a structure is done once its halogen balance settles, and the others alone are evaluated
     again. Structures that do not settle, and with halogen in excess those whose substrate is
-    all but spent, fall back to bisection in ln A, as :meth:`Split.log_left_at_ratio`.
+    all but spent, fall back to bisection in ln A, as :func:`_bisect_log_left`.
     """
     phi, kappa = np.asarray(phi, dtype=np.float64), np.asarray(kappa, dtype=np.float64)
     block = _Block(phi, kappa)
@@ -300,7 +291,7 @@ def left_and_mono_at_ratio(
     left_out, mono_out = np.ones(n), np.zeros(n)
     if n == 0:
         return left_out, mono_out
-    if available >= 2.0:  # more halogen than two per substrate: none survives (as Split.left_at_ratio)
+    if available >= 2.0:  # more halogen than two per substrate: none survives
         left_out[:] = 0.0
         return left_out, block.evaluate(left_out, derivatives=False)[0]
     weight = phi.sum(axis=0)
@@ -346,36 +337,18 @@ def left_and_mono_at_ratio(
 
 
 def poly_pct_of_block(phi: np.ndarray, kappa: np.ndarray, ratio: float = DEFAULT_RATIO) -> np.ndarray:
-    """Per structure (columns, as for :func:`left_and_mono_at_ratio`): polyhalide, percent of halogenated product."""
-    left, mono = left_and_mono_at_ratio(phi, kappa, ratio)
+    """Per structure (columns, as for :func:`left_and_mono_at_ratio`): polyhalide, percent of halogenated product.
+
+    The one polyhalide figure halosift shows (screen column, app, explain, report): :data:`POLY_FIGURE`.
+    """
+    return _poly_pct(*left_and_mono_at_ratio(phi, kappa, ratio))
+
+
+def _poly_pct(left: np.ndarray, mono: np.ndarray) -> np.ndarray:
+    """Polyhalide, percent of the halogenated product, from substrate left and ΣB_i (0 with nothing converted)."""
     converted = 1.0 - left
     poly = np.maximum(0.0, converted - mono)
     return 100.0 * np.divide(poly, converted, out=np.zeros_like(converted), where=converted > 1e-15)
-
-
-def poly_pct_at_ratio(
-    struct: np.ndarray, h: np.ndarray, share_pct: np.ndarray, reagent: str, n: int, ratio: float = DEFAULT_RATIO
-) -> np.ndarray:
-    """Per structure: polyhalide, percent of halogenated product, at ``ratio`` with all halogen used (NaN: inert)."""
-    struct = np.asarray(struct)
-    h = np.asarray(h, dtype=np.float64)
-    share = np.asarray(share_pct, dtype=np.float64) / 100.0
-    rows = np.flatnonzero((share > 0) & (h > 0))
-    rows = rows[np.argsort(struct[rows], kind="stable")]  # terms must come grouped by structure
-    s = struct[rows]
-    out = np.full(n, np.nan)
-    starts = np.flatnonzero(np.r_[True, s[1:] != s[:-1]]) if len(s) else np.zeros(0, dtype=np.int64)
-    phi, kappa = _site_terms(h[rows], share[rows], deactivation(reagent))
-    for segments, index in blocks_by_length(starts, np.diff(np.r_[starts, len(s)])):
-        out[s[starts[segments]]] = poly_pct_of_block(phi[index], kappa[index], ratio)
-    return out
-
-
-def poly_share(conversion: float, h_counts: Sequence[int], shares_pct: Sequence[float], f: float = 1.0) -> float:
-    """Polyhalide fraction of halogenated product (0–1) at fractional ``conversion`` for one structure."""
-    h = np.asarray(h_counts, dtype=np.float64)
-    split = Split(np.zeros(len(h), dtype=np.int64), h, np.asarray(shares_pct, float) / 100.0, f, 1)
-    return float(split.poly_fraction(np.array([1.0 - conversion]))[0])
 
 
 @dataclass(frozen=True)
@@ -398,6 +371,9 @@ class PolyPlan:
     """Monohalides at ``conversion_pct``, percent of the halogenated product (moles)."""
     poly_pct: float
     """Polyhalides at ``conversion_pct``, percent of the halogenated product (moles)."""
+    poly_pct_at_ratio: float
+    """Polyhalides at ``ratio`` with all halogen used, percent of the halogenated product (moles): at 1 : 1 the
+    screen's cl2_poly_pct / br2_poly_pct (:data:`POLY_FIGURE`)."""
     max_poly_pct: float
     """The cap asked for, percent of halogenated product."""
     max_conversion_pct: float
@@ -429,11 +405,14 @@ def plan(
     h = np.asarray(h_counts, dtype=np.float64)
     f = deactivation(reagent)
     split = Split(np.zeros(len(h), dtype=np.int64), h, np.asarray(shares_pct, float) / 100.0, f, 1)
-    log_left = split.log_left_at_ratio(ratio)
-    left = np.exp(log_left)
-    mono = split.mono_log(log_left)
+    if split.reacts[0]:
+        # The screen's own solve (one column), so explain, the app and the screen column give one number.
+        left, mono = left_and_mono_at_ratio(split.phi[:, None], split.kappa[:, None], ratio)
+    else:
+        left, mono = np.ones(1), np.zeros(1)
+    poly_at_ratio = _poly_pct(left, mono) / 100.0
     at = left if conversion_pct is None else np.array([1.0 - conversion_pct / 100.0])
-    poly = split.poly_fraction_log(log_left if conversion_pct is None else np.log(at))
+    poly = poly_at_ratio if conversion_pct is None else split.poly_fraction(at)
     cap_left = split.left_at_cap(max_poly_pct / 100.0)
     used = split.halogen_used(cap_left)
     min_ratio = float(1.0 / used[0]) if used[0] > 0 else float("inf")
@@ -441,7 +420,8 @@ def plan(
     return PolyPlan(
         reagent=reagent, ratio=ratio, unreacted_pct=100.0 * float(left[0]), mono_pct_of_charge=100.0 * float(mono[0]),
         poly_pct_of_charge=100.0 * float(1.0 - left[0] - mono[0]), conversion_pct=100.0 * float(1.0 - at[0]),
-        mono_pct=100.0 * float(1.0 - poly[0]), poly_pct=100.0 * float(poly[0]), max_poly_pct=max_poly_pct,
+        mono_pct=100.0 * float(1.0 - poly[0]), poly_pct=100.0 * float(poly[0]),
+        poly_pct_at_ratio=100.0 * float(poly_at_ratio[0]), max_poly_pct=max_poly_pct,
         max_conversion_pct=100.0 * float(1.0 - cap_left[0]), min_ratio=min_ratio, deactivation=f,
         deactivation_source=source,
     )

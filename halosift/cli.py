@@ -100,6 +100,14 @@ def _add_phase_option(p: argparse.ArgumentParser) -> None:
     )
 
 
+def _add_screen_conditions(p: argparse.ArgumentParser, note: str = "") -> None:
+    """The condition options of `screen` (and of `browse`, which sets the app's starting conditions)."""
+    group = p.add_argument_group("conditions" + note)
+    _add_condition_options(group, "both reagents")
+    _add_solvent_option(group)
+    _add_phase_option(group)
+
+
 def _reagent_arg(text: str) -> str:
     """Reagent names are checked later, so F2/I2 get their reasoned refusal rather than a usage error."""
     return text.strip().lower()
@@ -142,9 +150,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_in_format_option(sc)
     sc.add_argument("--out-format", choices=OUT_FORMATS,
                     help="format for -o - (default csv); Parquet is never written to a terminal")
-    _add_condition_options(sc, "both reagents")
-    _add_solvent_option(sc)
-    _add_phase_option(sc)
+    _add_screen_conditions(sc)
     _add_library_options(sc)
     _add_run_options(sc)
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
@@ -176,6 +182,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
+    _add_screen_conditions(br, " (the app starts with them; they win over the conditions saved in the session)")
     _add_library_options(br)
     br.add_argument(
         "--no-images", action="store_true",
@@ -207,8 +214,16 @@ def _add_library_options(p: argparse.ArgumentParser) -> None:
 
 
 def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
+    """engine.Conditions from the condition options, validated (ValueError: one line)."""
     from halosift.engine import Conditions
 
+    cond = Conditions(**_condition_fields(args, reagents))
+    cond.validate()
+    return cond
+
+
+def _condition_fields(args: argparse.Namespace, reagents: Sequence[str]) -> dict[str, float | str]:
+    """Only the engine.Conditions fields the options set explicitly (a bare --temp sets each of ``reagents``)."""
     kwargs: dict[str, float | str] = {}
     for name, value in args.temp or ():
         for r in ([name] if name else reagents):
@@ -220,9 +235,7 @@ def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
         kwargs["cl2_solvent"], kwargs["cl2_solvent_molar"] = solvent
     if getattr(args, "phase", None) is not None:
         kwargs["cl2_phase"] = args.phase
-    cond = Conditions(**kwargs)
-    cond.validate()
-    return cond
+    return kwargs
 
 
 def _explain(args: argparse.Namespace) -> int:
@@ -490,10 +503,16 @@ def _load(args: argparse.Namespace, path: str, *, quiet: bool):
 
 
 def _browse(args: argparse.Namespace) -> int:
+    # Checked here, in one line, before the app takes over the terminal.
+    try:
+        explicit = _condition_fields(args, ("cl2", "br2"))
+        _conditions(args, ("cl2", "br2"))
+    except ValueError as exc:
+        return _fail(str(exc))
     from halosift.tui.app import run
 
     return run(args.input, smiles_column=args.smiles_column, id_column=args.id_column, images=not args.no_images,
-               fresh=args.fresh)
+               fresh=args.fresh, conditions=explicit)
 
 
 def _short(text: str, limit: int = 60) -> str:

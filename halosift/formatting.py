@@ -7,7 +7,7 @@ from collections.abc import Sequence
 from halosift.engine.conditions import REAGENT_LABELS
 from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS
 from halosift.engine.explain import REAGENT_NOTES, Explanation
-from halosift.engine.polyhalogenation import PolyPlan
+from halosift.engine.polyhalogenation import POLY_UNIT, PolyPlan
 from halosift.engine.safety import CAUTION
 from halosift.engine.stereo import count_text
 
@@ -139,16 +139,17 @@ def _nbs_lines(result: Explanation) -> list[str]:
 def poly_lines(plan: PolyPlan) -> list[str]:
     """The polyhalogenation plan of one reagent in words (also used by the app)."""
     at = f"at {plan.ratio:g} : 1 substrate : halogen (all halogen used)"
+    # One figure everywhere: percent of the halogenated product, as the screen's <reagent>_poly_pct column.
     lines = [
-        f"polyhalide {plan.reagent} {at}: {plan.unreacted_pct:.1f} % substrate left, {plan.mono_pct_of_charge:.1f} % "
-        f"monohalide, {plan.poly_pct_of_charge:.1f} % polyhalide (of substrate charged)",
+        f"polyhalide {plan.reagent} {at}: {plan.poly_pct_at_ratio:.1f} {POLY_UNIT} "
+        f"({100.0 - plan.unreacted_pct:.1f} % of the substrate converted)",
     ]
     if abs(plan.conversion_pct - (100.0 - plan.unreacted_pct)) > 1e-6:
         lines.append(f"           at {plan.conversion_pct:g} % conversion ≈ {plan.poly_pct:.1f} % of the halogenated "
                      "product is polyhalide")
     excess = "no excess suffices" if plan.min_ratio == float("inf") else f"substrate : halogen ≥ {plan.min_ratio:.2g} : 1"
     lines.append(
-        f"           ≤ {plan.max_poly_pct:g} % polyhalide (of product) needs conversion ≤ {plan.max_conversion_pct:.1f} %, "
+        f"           polyhalide ≤ {plan.max_poly_pct:g} {POLY_UNIT} needs conversion ≤ {plan.max_conversion_pct:.1f} %, "
         f"i.e. {excess}; deactivation by the first halogen f = {plan.deactivation:g} (estimate)"
     )
     return lines

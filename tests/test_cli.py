@@ -445,3 +445,43 @@ def test_zsh_completion_registers(tmp_path: Path) -> None:
     proc = subprocess.run(["zsh", "-f", "-c", code], capture_output=True, text=True, timeout=30)
     assert proc.returncode == 0 and proc.stderr == "", proc.stderr
     assert "_halosift_complete" in proc.stdout  # zsh's bash layer runs the bash function
+
+
+def _condition_options(parser_name: str) -> set[str]:
+    from halosift.cli import build_parser
+
+    sub = next(a for a in build_parser()._subparsers._group_actions if a.dest == "command").choices[parser_name]
+    group = next(g for g in sub._action_groups if g.title.startswith("conditions"))
+    return {s for action in group._group_actions for s in action.option_strings}
+
+
+def test_browse_takes_the_screen_condition_options(monkeypatch: pytest.MonkeyPatch, tmp_path: Path) -> None:
+    assert _condition_options("browse") == _condition_options("screen") == {"--temp", "--threshold", "--solvent",
+                                                                              "--phase"}
+    seen: dict = {}
+
+    def fake_run(path, **kwargs):  # the app itself is tested in test_tui_sessions.py
+        seen.update(kwargs, path=path)
+        return 0
+
+    monkeypatch.setattr("halosift.tui.app.run", fake_run)
+    library = tmp_path / "lib.csv"
+    library.write_text("id,smiles\nWS-1,CCC\n")
+    assert main(["browse", str(library), "--temp", "br2=60", "--temp", "so2cl2=50", "--phase", "solution",
+                 "--solvent", "benzene=4", "--threshold", "80"]) == 0
+    # Only the fields given: the rest come from the saved session (or the defaults).
+    assert seen["conditions"] == {"br2_temp_c": 60.0, "so2cl2_temp_c": 50.0, "threshold_pct": 80.0,
+                                  "cl2_solvent": "benzene", "cl2_solvent_molar": 4.0, "cl2_phase": "solution"}
+    assert main(["browse", str(library)]) == 0 and seen["conditions"] == {}
+    # A bare temperature sets both screen reagents, as for screen.
+    assert main(["browse", str(library), "--temp", "40"]) == 0
+    assert seen["conditions"] == {"cl2_temp_c": 40.0, "br2_temp_c": 40.0}
+
+
+def test_browse_refuses_bad_conditions_in_one_line_before_the_app(tmp_path: Path) -> None:
+    library = tmp_path / "lib.csv"
+    library.write_text("id,smiles\nWS-1,CCC\n")
+    proc = run("browse", str(library), "--phase", "solution")
+    assert proc.returncode == 2
+    assert proc.stderr.startswith("halosift: ") and "needs a solvent" in proc.stderr
+    assert len(proc.stderr.strip().splitlines()) == 1 and "Traceback" not in proc.stderr

@@ -6,11 +6,12 @@ import json
 import math
 
 import numpy as np
+import pandas as pd
 import pytest
 
 from halosift import engine
 from halosift.engine import parameters as P
-from halosift.engine.polyhalogenation import Split, monohalide, plan, poly_pct_at_ratio, poly_share
+from halosift.engine.polyhalogenation import Split, monohalide, plan
 from halosift.cli import main
 
 
@@ -66,11 +67,17 @@ def test_closed_form_matches_a_numerical_simulation(ratio: float, reagent: str) 
     assert p.poly_pct_of_charge == pytest.approx(100 * poly, abs=0.1)
 
 
+def _poly_share(conversion: float, h: list[int], pct: list[float], f: float) -> float:
+    """Polyhalide fraction of the halogenated product at a conversion (test-local wrapper of Split)."""
+    split = Split(np.zeros(len(h), dtype=np.int64), np.asarray(h, float), np.asarray(pct, float) / 100.0, f, 1)
+    return float(split.poly_fraction(np.array([1.0 - conversion]))[0])
+
+
 def test_deactivation_lowers_polyhalide() -> None:
     split = engine.explain("CCCC")
     h = [p.h_count for p in split.products]
     pct = [p.pct["cl2"] for p in split.products]
-    assert poly_share(0.5, h, pct, f=0.6) < poly_share(0.5, h, pct, f=1.0)
+    assert _poly_share(0.5, h, pct, f=0.6) < _poly_share(0.5, h, pct, f=1.0)
 
 
 def test_one_to_one_identity_and_excess_helps() -> None:
@@ -90,32 +97,41 @@ def test_inverse_cap_is_consistent() -> None:
     pct = [p.pct["cl2"] for p in split.products]
     p = plan("cl2", h, pct, max_poly_pct=10.0)
     f = P.POLY_DEACTIVATION["cl"].value
-    assert poly_share(p.max_conversion_pct / 100, h, pct, f) == pytest.approx(0.10, abs=1e-6)
+    assert _poly_share(p.max_conversion_pct / 100, h, pct, f) == pytest.approx(0.10, abs=1e-6)
     # Charging the minimum excess and using all halogen lands exactly on the cap.
     at_min = plan("cl2", h, pct, ratio=p.min_ratio, max_poly_pct=10.0)
     assert at_min.poly_pct == pytest.approx(10.0, abs=1e-3)
     assert 100 - at_min.unreacted_pct == pytest.approx(p.max_conversion_pct, abs=1e-3)
 
 
-def test_vectorised_column_matches_plan() -> None:
-    smiles = ["CCCC", "C1CCCCC1", "c1ccccc1", "CC(C)C"]
-    p = engine.perceive(smiles)
-    w = engine.weigh(p.sites, engine.Conditions(), len(smiles))
-    col = poly_pct_at_ratio(w["struct"].to_numpy(), w["h_count"].to_numpy(), w["br2_pct"].to_numpy(), "br2", 4)
+@pytest.mark.parametrize("reagent", ["cl2", "br2"])
+def test_screen_column_explain_plan_and_app_detail_give_one_number(reagent: str) -> None:
+    """One polyhalide figure: the screen column, explain's planner and the app's detail text agree."""
+    from halosift.formatting import poly_lines
+    from halosift.tui.detail import poly_text
+
+    smiles = ["CCCC", "C1CCCCC1", "c1ccccc1", "CC(C)C", "CCC(C)CC"]
+    library = engine.load_library(pd.DataFrame({"smiles": smiles}), use_cache=False)
+    frame = library.evaluate(engine.Conditions())
+    col = frame[f"{reagent}_poly_pct"].to_numpy(dtype=float)
     for i, smi in enumerate(smiles):
         e = engine.explain(smi)
         if e.verdict == "inert":
             assert math.isnan(col[i])
             continue
-        ref = plan("br2", [x.h_count for x in e.products], [x.pct["br2"] for x in e.products]).poly_pct
-        assert col[i] == pytest.approx(ref, abs=1e-3)  # the screen column bisects more coarsely
-    summary = engine.summarise(p, engine.Conditions())
-    assert summary["br2_poly_pct"].to_numpy()[:2] == pytest.approx(col[:2])
+        p = plan(reagent, [x.h_count for x in e.products], [x.pct[reagent] for x in e.products])
+        # The same solver: agreement to rounding, not to a looser bisection.
+        assert col[i] == pytest.approx(p.poly_pct_at_ratio, abs=1e-9) and p.poly_pct == p.poly_pct_at_ratio
+        shown = f"{col[i]:.1f} % of the halogenated product"
+        assert shown in "\n".join(poly_lines(p))
+        assert shown in poly_text(library.products(i, engine.Conditions())).plain
 
 
 def test_split_with_nothing_reacting() -> None:
     s = Split(np.zeros(0, dtype=np.int64), np.zeros(0), np.zeros(0), 1.0, 2)
-    assert list(s.left_at_ratio(1.0)) == [1.0, 1.0]
+    assert list(s.reacts) == [False, False]
+    p = plan("cl2", [], [])
+    assert p.unreacted_pct == 100.0 and p.poly_pct_at_ratio == 0.0
 
 
 @pytest.mark.parametrize(
@@ -137,7 +153,7 @@ def test_cli_planner(capsys: pytest.CaptureFixture) -> None:
     assert "estimate" in data["polyhalogenation_model"]
     assert main(["explain", "CCC", "--ratio", "3", "--max-poly", "5"]) == 0
     out = capsys.readouterr().out
-    assert "at 3 : 1 substrate : halogen" in out and "≤ 5 % polyhalide" in out
+    assert "at 3 : 1 substrate : halogen" in out and "polyhalide ≤ 5 % of the halogenated product" in out
     assert main(["explain", "c1ccccc1", "--ratio", "2"]) == 0  # inert: nothing planned
     assert "polyhalide" not in capsys.readouterr().out.replace("polyhalogenated", "")
     assert main(["explain", "CCC", "--ratio", "0"]) == 2

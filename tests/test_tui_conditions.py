@@ -27,7 +27,7 @@ async def open_panel(pilot) -> ConditionsScreen:
 
 async def focus_field(pilot, screen: ConditionsScreen, input_id: str) -> None:
     """Tab to a field, as the chemist would."""
-    for _ in range(12):
+    for _ in range(16):
         if pilot.app.focused is not None and pilot.app.focused.id == input_id:
             return
         await pilot.press("tab")
@@ -105,7 +105,7 @@ async def test_focus_stays_in_the_panel_until_it_closes(tmp_path):
             focused = app.focused
             assert focused is not None and focused.screen is screen, "Tab left the panel"
             seen.append(focused.id)
-        assert {"cond-cl2", "cond-br2", "cond-nbs", "cond-threshold", "cond-solvent"} <= set(seen)
+        assert {"cond-cl2", "cond-phase", "cond-solvent", "cond-br2", "cond-so2cl2", "cond-nbs", "cond-threshold"} <= set(seen)
         # Shift+Tab from the first field wraps to the last.
         await focus_field(pilot, screen, "cond-cl2")
         await pilot.press("shift+tab")
@@ -168,3 +168,70 @@ def test_read_fields_gives_the_engine_conditions():
     proposal = read_fields(texts, "cs2", applied)
     assert proposal.conditions == engine.Conditions(cl2_temp_c=40.0, cl2_solvent="cs2", cl2_solvent_molar=8.0)
     assert set(proposal.pending) == {"cl2_temp_c", "cl2_solvent", "cl2_solvent_molar"}
+
+
+@async_test
+async def test_so2cl2_temperature_and_cl2_phase_in_one_fast_burst(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        before = app.conditions
+        await focus_field(pilot, screen, "cond-cl2")
+        width = len(screen.query_one("#cond-cl2").value)
+        # One burst with no pause: Cl2 to 140 °C, Tab to the phase, choose gas, Tab on through the solvent
+        # and the concentration to Br2 and SO2Cl2, set SO2Cl2 to 60 °C and press Enter.
+        so2cl2_width = len(screen.query_one("#cond-so2cl2").value)
+        keys = ["end", *["backspace"] * width, "1", "4", "0", "tab", "left", "enter", "tab", "tab", "tab",
+                "end", *["backspace"] * so2cl2_width, "6", "0", "enter"]
+        await pilot.press(*keys)
+        await settle(pilot)
+        assert app.focused.id == "cond-so2cl2" and app.focused.screen is screen
+        assert screen.query_one("#cond-so2cl2").value == "60"
+        assert app.conditions == engine.Conditions(cl2_temp_c=140.0, cl2_phase="gas", so2cl2_temp_c=60.0,
+                                                   br2_temp_c=before.br2_temp_c)
+        assert app.frame.attrs["conditions"] == app.conditions
+        settings = plain(app.query_one("#settings"))
+        assert "Cl2 140 °C gas" in settings
+        note = plain(screen.query_one("#cond-note"))
+        assert "Applied: Cl2 140 °C gas · Br2" in note and "SO2Cl2 60 °C" in note
+
+
+@async_test
+async def test_a_phase_that_contradicts_the_solvent_is_refused_with_the_reason(tmp_path):
+    app = HalosiftApp(str(write_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        screen = await open_panel(pilot)
+        await focus_field(pilot, screen, "cond-phase")
+        await pilot.press("right", "enter")  # solution, but no solvent chosen yet
+        await settle(pilot)
+        assert app.conditions == engine.Conditions()
+        assert "needs a solvent" in plain(screen.query_one("#cond-note"))
+        assert screen.query_one("#cond-phase").has_class("-refused")
+        await focus_field(pilot, screen, "cond-solvent")
+        await pilot.press("right", "enter")  # benzene: now the set is whole
+        await focus_field(pilot, screen, "cond-molar")
+        await pilot.press("end", "backspace", "4", "enter")
+        await settle(pilot)
+        assert app.conditions == engine.Conditions(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=4.0)
+        assert not screen.query_one("#cond-phase").has_class("-refused")
+        assert "Cl2 25 °C solution in 4 M benzene" in plain(app.query_one("#settings"))
+        # Gas with a solvent is refused; the applied set stays.
+        await focus_field(pilot, screen, "cond-phase")
+        await pilot.press("left", "left", "enter")
+        await settle(pilot)
+        assert app.conditions.cl2_phase == "solution"
+        assert "not gas" in plain(screen.query_one("#cond-note"))
+        await pilot.press("escape")
+        await pilot.pause()
+        assert isinstance(app.focused, LibraryTable) and app.conditions.cl2_phase == "solution"
+
+
+def test_read_fields_takes_the_phase():
+    applied = engine.Conditions()
+    texts = {"cl2_temp_c": "25", "cl2_solvent_molar": "0", "br2_temp_c": "125", "so2cl2_temp_c": "80",
+             "nbs_temp_c": "77", "threshold_pct": "90"}
+    proposal = read_fields(texts, "none", applied, "gas")
+    assert proposal.conditions == engine.Conditions(cl2_phase="gas", so2cl2_temp_c=80.0)
+    assert "cl2_phase" in proposal.pending
+    refused = read_fields(texts, "benzene", applied, "gas")
+    assert refused.conditions is None and "not gas" in refused.errors["cl2_phase"]

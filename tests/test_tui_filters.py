@@ -7,6 +7,11 @@ import pandas as pd
 import pytest
 
 from halosift.tui.filters import (
+    CONFIDENCE_CHOICES,
+    DUPLICATE_MODES,
+    FLAG_CHOICES,
+    OUTCOME_CHOICES,
+    OUTCOME_VALUES,
     FilterSpec,
     OrderCache,
     SortSpec,
@@ -46,6 +51,14 @@ def frame() -> pd.DataFrame:
                 "",
                 "primary,tertiary",
             ],
+            "flags": ["", "", "bridgehead", "alkene,cyclopropylmethyl", "", "", "alkene"],
+            "cl2_outcome": ["clean", "mixture", "mixture", "ruled-out", "", "ruled-out", "clean"],
+            "br2_outcome": ["clean", "clean", "clean", "ruled-out", "", "ruled-out", "clean"],
+            "so2cl2_outcome": ["clean", "mixture", "mixture", "ruled-out", "", "ruled-out", "mixture"],
+            "nbs_outcome": ["ruled-out", "ruled-out", "clean", "mixture", "", "ruled-out", "ruled-out"],
+            "confidence": ["measured", "measured", "textbook", "", "", "", "estimate"],
+            # As if QX-7 repeated QX-2's structure (hand-written, like the rest).
+            "duplicate_of": pd.array([None, None, None, None, None, None, 2], dtype="Int64"),
         }
     )
 
@@ -101,6 +114,55 @@ def test_text_match_ignores_case_in_ids_but_not_in_smiles():
     assert rows(text_mask(frame(), "o", ["smiles"], ignore_case=False)) == []
 
 
+def test_flag_filters_has_and_lacks():
+    assert rows(filter_mask(frame(), FilterSpec(flags_has=frozenset({"alkene"})), *TEXT)) == [3, 6]
+    both = FilterSpec(flags_has=frozenset({"alkene", "cyclopropylmethyl"}))
+    assert rows(filter_mask(frame(), both, *TEXT)) == [3]
+    assert rows(filter_mask(frame(), FilterSpec(flags_lacks=frozenset({"alkene"})), *TEXT)) == [0, 1, 2, 5]
+    lacks_either = FilterSpec(flags_lacks=frozenset({"alkene", "bridgehead"}))
+    assert rows(filter_mask(frame(), lacks_either, *TEXT)) == [0, 1, 5]
+    mixed = FilterSpec(flags_has=frozenset({"alkene"}), flags_lacks=frozenset({"cyclopropylmethyl"}))
+    assert rows(filter_mask(frame(), mixed, *TEXT)) == [6]
+
+
+def test_outcome_filters_per_reagent():
+    clean_br2 = FilterSpec(outcomes=frozenset({("br2", "clean")}))
+    assert rows(filter_mask(frame(), clean_br2, *TEXT)) == [0, 1, 2, 6]
+    # Two outcomes of one reagent: either; two reagents: both must hold.
+    either = FilterSpec(outcomes=frozenset({("cl2", "clean"), ("cl2", "mixture")}))
+    assert rows(filter_mask(frame(), either, *TEXT)) == [0, 1, 2, 6]
+    two = FilterSpec(outcomes=frozenset({("br2", "clean"), ("nbs", "clean")}))
+    assert rows(filter_mask(frame(), two, *TEXT)) == [2]
+    ruled = FilterSpec(outcomes=frozenset({("so2cl2", "ruled-out")}))
+    assert rows(filter_mask(frame(), ruled, *TEXT)) == [3, 5]
+    assert two.outcomes_for("br2") == {"clean"} and two.outcomes_for("cl2") == frozenset()
+
+
+def test_confidence_filter():
+    assert rows(filter_mask(frame(), FilterSpec(confidence=frozenset({"measured"})), *TEXT)) == [0, 1]
+    weaker = FilterSpec(confidence=frozenset({"textbook", "estimate"}))
+    assert rows(filter_mask(frame(), weaker, *TEXT)) == [2, 6]
+
+
+def test_duplicate_filter_modes():
+    assert rows(filter_mask(frame(), FilterSpec(duplicates="all"), *TEXT)) == [0, 1, 2, 3, 5, 6]
+    assert rows(filter_mask(frame(), FilterSpec(duplicates="hide"), *TEXT)) == [0, 1, 2, 3, 5]
+    assert rows(filter_mask(frame(), FilterSpec(duplicates="only"), *TEXT)) == [6]
+    assert set(DUPLICATE_MODES) == {"all", "hide", "only"}
+
+
+def test_choice_lists_match_the_engine():
+    """tui.filters copies these names to stay import-light; they must not drift from the engine's."""
+    from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES
+    from halosift.engine.special_sites import FLAGS
+    from halosift.engine.weigh import BASES
+
+    assert FLAG_CHOICES == FLAGS
+    assert OUTCOME_CHOICES == OUTCOME_REAGENTS
+    assert OUTCOME_VALUES == OUTCOMES
+    assert CONFIDENCE_CHOICES == tuple(reversed(BASES))
+
+
 def test_filters_combine_with_and():
     spec = FilterSpec(verdicts=frozenset({"selective"}), min_br2_pct=99.0, no_new_stereo=True)
     assert rows(filter_mask(frame(), spec, *TEXT)) == [6]
@@ -127,6 +189,15 @@ def test_describe_and_active():
     for part in ("verdict by-symmetry", "Br2 major ≥ 90 %", "≤ 2 products", "no new stereocentre", "QX"):
         assert part in text
     assert spec.without_text().text == ""
+    assert spec.count == 5
+    more = FilterSpec(flags_has=frozenset({"alkene"}), flags_lacks=frozenset({"cage"}),
+                      outcomes=frozenset({("br2", "clean"), ("br2", "mixture"), ("nbs", "clean")}),
+                      confidence=frozenset({"measured"}), duplicates="hide")
+    assert more.active and more.count == 6
+    text = more.describe()
+    for part in ("flags alkene", "no cage", "br2 clean/mixture", "nbs clean", "confidence measured", "repeats hidden"):
+        assert part in text
+    assert "repeats only" in FilterSpec(duplicates="only").describe()
 
 
 def test_site_choices_and_site_set():
@@ -220,3 +291,69 @@ def test_filters_work_on_a_real_evaluated_library():
     assert rows(filter_mask(evaluated, FilterSpec(max_products=0), *TEXT)) == [3]
     key, missing = sort_key(evaluated["br2_major_pct"])
     assert full_order(key, missing, True).tolist()[:2] == [0, 1]
+
+
+def test_new_filters_on_a_real_evaluated_library():
+    """Flags, outcomes, confidence and duplicates read the columns Library.evaluate writes."""
+    from halosift import engine
+
+    source = pd.DataFrame({
+        "code": ["QX-1", "QX-2", "QX-3", "QX-4", "QX-5"],
+        "smiles": ["CC", "C=CCC", "C(C)", "CC1CC1", "CCC"],
+    })
+    evaluated = engine.load_library(source, use_cache=False).evaluate(engine.Conditions())
+    assert rows(filter_mask(evaluated, FilterSpec(duplicates="only"), *TEXT)) == [2]
+    assert rows(filter_mask(evaluated, FilterSpec(duplicates="hide"), *TEXT)) == [0, 1, 3, 4]
+    assert rows(filter_mask(evaluated, FilterSpec(flags_has=frozenset({"alkene"})), *TEXT)) == [1]
+    assert rows(filter_mask(evaluated, FilterSpec(flags_lacks=frozenset({"alkene", "cyclopropane"})), *TEXT)) == [0, 2, 4]
+    # Cyclopropane opens under Br2 (engine.special_sites): its Br2 outcome is ruled-out.
+    assert 3 in rows(filter_mask(evaluated, FilterSpec(outcomes=frozenset({("br2", "ruled-out")})), *TEXT))
+    measured = filter_mask(evaluated, FilterSpec(confidence=frozenset({"measured"})), *TEXT)
+    assert (evaluated["confidence"][measured] == "measured").all()
+
+
+def test_filter_form_sets_the_new_filters_and_the_view_follows(tmp_path, monkeypatch):
+    """Pilot: tick an outcome and a confidence, pick flag and duplicate choices by keyboard, apply."""
+    import asyncio
+
+    from halosift.tui.app import HalosiftApp
+    from halosift.tui.filter_form import FilterForm
+    from halosift.tui.table import LibraryTable
+    from tui_helpers import settle, write_library
+
+    monkeypatch.setenv("HALOSIFT_SESSION_DIR", str(tmp_path / "sessions"))
+    path = write_library(tmp_path)
+
+    async def run() -> None:
+        app = HalosiftApp(str(path))
+        async with app.run_test(size=(100, 40)) as pilot:
+            await settle(pilot, app)
+            await pilot.press("f")
+            form = app.screen
+            assert isinstance(form, FilterForm)
+            form.query_one("#outcome-br2-clean").focus()
+            await pilot.press("space")
+            form.query_one("#confidence-estimate").focus()
+            await pilot.press("space")  # on
+            await pilot.press("space")  # and off again
+            form.query_one("#flag-alkene").focus()  # RadioSet: arrows move, Enter chooses
+            await pilot.press("right", "right", "enter")
+            form.query_one("#duplicates").focus()
+            await pilot.press("right", "enter")
+            assert form.query_one("#flag-alkene-lacks").value and form.query_one("#dup-hide").value
+            await pilot.press("ctrl+s")
+            await settle(pilot, app)
+            assert app.filters == FilterSpec(outcomes=frozenset({("br2", "clean")}),
+                                             flags_lacks=frozenset({"alkene"}), duplicates="hide")
+            view = app.frame.iloc[app.query_one(LibraryTable).rows]
+            assert len(view) and set(view["br2_outcome"]) == {"clean"}
+            assert not view["flags"].str.contains("alkene").any() and view["duplicate_of"].isna().all()
+            expected = filter_mask(app.frame, app.filters)
+            assert len(view) == int(expected.sum())
+            # Reopening shows what is in force.
+            await pilot.press("f")
+            form = app.screen
+            assert form.query_one("#outcome-br2-clean").value and form.query_one("#flag-alkene-lacks").value
+            assert form.query_one("#dup-hide").value and not form.query_one("#confidence-estimate").value
+
+    asyncio.run(run())

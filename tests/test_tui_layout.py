@@ -70,7 +70,7 @@ async def test_header_lines_keep_whole_phrases_at_80_columns(tmp_path):
         counts = plain(app.query_one("#counts"))
         for line in (settings, counts):
             assert len(line) <= width and not line.endswith("…")
-        assert settings.startswith("Cl2 25 °C · Br2 125 °C · threshold 90 %")
+        assert settings.startswith("Cl2 25 °C liquid · Br2 125 °C · threshold 90 %")
         assert "Br2 % ▼" in settings and "5 filters on" in settings
         assert "0 marked" in counts
 

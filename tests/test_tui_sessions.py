@@ -140,3 +140,57 @@ def test_save_is_atomic_and_leaves_no_temp_file(tmp_path):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["abc.json"]
     assert (sessions.load("abc", tmp_path)[0].marked == saved.marked).all()
     assert path == sessions.path_for("abc", tmp_path)
+
+
+def test_new_filters_round_trip_and_old_files_still_load():
+    marked = np.zeros(3, dtype=bool)
+    spec = FilterSpec(flags_has=frozenset({"alkene"}), flags_lacks=frozenset({"cage", "cyclopropane"}),
+                      outcomes=frozenset({("br2", "clean"), ("nbs", "mixture")}),
+                      confidence=frozenset({"measured", "textbook"}), duplicates="hide")
+    back = sessions.decode(sessions.encode(sessions.Session(3, marked, filters=spec)))
+    assert back.filters == spec
+    # A file written before these filters existed: exactly the old "filters" record.
+    old = (
+        '{"version": 1, "n_rows": 3, "marked": "AA==", "sort": {"column": null, "descending": false},'
+        ' "filters": {"verdicts": ["selective"], "min_br2_pct": null, "max_products": 2, "site_types": [],'
+        ' "site_match": "any", "no_new_stereo": false, "text": ""}, "view": "library",'
+        ' "conditions": {"br2_temp_c": 60.0}, "show_input_columns": false, "show_more_columns": false}'
+    )
+    loaded = sessions.decode(old)
+    assert loaded.filters == FilterSpec(verdicts=frozenset({"selective"}), max_products=2)
+    assert loaded.filters.duplicates == "all" and not loaded.filters.outcomes
+    # The conditions record of an old file has no Cl2 phase: it restores with the default phase.
+    assert sessions.restore_conditions(loaded.conditions) == engine.Conditions(br2_temp_c=60.0)
+    # An unknown duplicate mode is read as "all" rather than failing the whole session.
+    odd = sessions.encode(sessions.Session(3, marked, filters=spec)).replace('"hide"', '"sometimes"')
+    assert sessions.decode(odd).filters.duplicates == "all"
+
+
+def test_initial_conditions_explicit_options_win_field_by_field():
+    saved = sessions.conditions_record(engine.Conditions(br2_temp_c=100.0, cl2_solvent="benzene",
+                                                         cl2_solvent_molar=4.0))
+    cond, note = sessions.initial_conditions(saved, {"br2_temp_c": 60.0})
+    assert cond == engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0) and not note
+    assert sessions.initial_conditions(saved, {})[0].br2_temp_c == 100.0
+    assert sessions.initial_conditions(None, {"threshold_pct": 80.0}) == (engine.Conditions(threshold_pct=80.0), "")
+    # Gas phase does not combine with the saved solvent: the options over the defaults, with a note.
+    cond, note = sessions.initial_conditions(saved, {"cl2_phase": "gas"})
+    assert cond == engine.Conditions(cl2_phase="gas") and "do not combine" in note
+    cond, note = sessions.initial_conditions({"br2_temp_c": -500.0}, {"cl2_temp_c": 30.0})
+    assert cond == engine.Conditions(cl2_temp_c=30.0) and "not usable" in note
+
+
+@async_test
+async def test_command_line_conditions_win_over_the_saved_session(tmp_path, session_dir):
+    path = write_library(tmp_path)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        app.conditions = engine.Conditions(br2_temp_c=100.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
+        await settle(pilot)
+        await pilot.press("q")
+    again = HalosiftApp(str(path), conditions={"br2_temp_c": 60.0, "so2cl2_temp_c": 50.0})
+    async with again.run_test(size=SIZE) as pilot:
+        await settle(pilot)
+        expected = engine.Conditions(br2_temp_c=60.0, so2cl2_temp_c=50.0, cl2_solvent="benzene", cl2_solvent_molar=4.0)
+        assert again.conditions == expected and again.frame.attrs["conditions"] == expected

@@ -12,7 +12,7 @@ import os
 import sys
 import threading
 import time
-from collections.abc import Hashable
+from collections.abc import Hashable, Mapping
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
@@ -88,8 +88,9 @@ MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
     ("flags", "Flags", 20, "text"),
     ("nbs_major", "NBS major", 18, "text"),
     ("nbs_major_pct", "NBS %", 7, "pct"),
-    ("cl2_poly_pct", "Cl2 poly %", 11, "pct"),
-    ("br2_poly_pct", "Br2 poly %", 11, "pct"),
+    # "% prod": percent of the halogenated product (engine.polyhalogenation.POLY_FIGURE), as in the detail.
+    ("cl2_poly_pct", "Cl2 poly % prod", 15, "pct"),
+    ("br2_poly_pct", "Br2 poly % prod", 15, "pct"),
 )
 
 
@@ -169,9 +170,12 @@ class HalosiftApp(App[int]):
         graphics: str | None = None,
         fresh: bool = False,
         sessions: bool = True,
+        conditions: Mapping[str, Any] | None = None,
     ) -> None:
         super().__init__()
         start_process_helpers()
+        self.explicit_conditions: dict[str, Any] = dict(conditions or {})
+        """engine.Conditions fields given on the command line; they win over the saved session's."""
         self.fresh = fresh
         """Ignore (and replace) the session saved for this library."""
         self.sessions = sessions and isinstance(source, (str, os.PathLike))
@@ -275,14 +279,14 @@ class HalosiftApp(App[int]):
                 cancel=cancel,
             )
             session, key, note = self._read_session(len(library.input))
-            conditions = self.conditions or engine.Conditions()
-            if session is not None and session.conditions and self.conditions is None:
-                from halosift.tui.session import restore_conditions
+            conditions = self.conditions
+            if conditions is None:
+                from halosift.tui.session import initial_conditions
 
-                try:
-                    conditions = restore_conditions(session.conditions)
-                except ValueError as exc:
-                    note = f"The saved conditions are not usable ({exc}); default conditions are used."
+                # Saved conditions, with the command line's explicit options winning field by field.
+                conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
+                                                           self.explicit_conditions)
+                note = " ".join(n for n in (note, cond_note) if n)
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -647,7 +651,7 @@ class HalosiftApp(App[int]):
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
-        from halosift.tui.header import Phrase, fit_phrases
+        from halosift.tui.header import Phrase, cl2_forms, fit_phrases
 
         ok, rejected = self._counts
         shown = len(self.query_one(LibraryTable).rows)
@@ -664,21 +668,17 @@ class HalosiftApp(App[int]):
         width = max(20, self.size.width - 2)  # the lines' padding
         self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
-        solvent = f" in {cond.cl2_solvent_molar:g} M {cond.cl2_solvent}" if cond.cl2_solvent != "none" else ""
-        short_solvent = f" ({cond.cl2_solvent})" if cond.cl2_solvent != "none" else ""
+        cl2_long, cl2_short = cl2_forms(cond)
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
         settings = [
-            Phrase((f"Cl2 {cond.cl2_temp_c:g} °C{solvent} · {temps}", f"Cl2 {cond.cl2_temp_c:g} °C{short_solvent} · {temps}"),
-                   keep=4),
+            Phrase((f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
             Phrase((f"sort {sort}", sort), keep=3),
         ]
         if self.view != "library":
             settings.append(Phrase(("filters off here", ""), keep=1))
         elif self.filters.active:
-            f = self.filters
-            n = sum((bool(f.verdicts), f.min_br2_pct is not None, f.max_products is not None, bool(f.site_types),
-                     f.no_new_stereo, bool(f.text)))
+            n = self.filters.count
             settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
                                    keep=2))
         else:
@@ -1019,9 +1019,12 @@ class HalosiftApp(App[int]):
 
 def run(
     path: str | None, *, smiles_column: str | None = None, id_column: str | None = None, images: bool = True,
-    fresh: bool = False,
+    fresh: bool = False, conditions: Mapping[str, Any] | None = None,
 ) -> int:
-    """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code."""
+    """Open a library (the bundled sample when ``path`` is None) in the app; return an exit code.
+
+    ``conditions``: engine.Conditions fields to start with (they win over the saved session's).
+    """
     if path is None:
         try:
             from halosift.sample_libraries import sample_path
@@ -1046,6 +1049,7 @@ def run(
 
     # Ask the terminal about inline images now: once Textual runs, it can no longer be asked.
     graphics = detect_graphics(enabled=images)
-    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh)
+    app = HalosiftApp(path, smiles_column=smiles_column, id_column=id_column, graphics=graphics, fresh=fresh,
+                      conditions=conditions)
     result = app.run()
     return int(result or app.return_code or 0)

@@ -1,4 +1,4 @@
-"""The conditions panel: temperatures, the Cl2 solvent and the selectivity threshold.
+"""The conditions panel: temperatures, the Cl2 phase and solvent, and the selectivity threshold.
 
 A value is applied only when it is complete and the whole set passes the
 engine's own ``Conditions.validate``: on Enter, or on leaving the field (Tab,
@@ -21,8 +21,9 @@ from textual.reactive import reactive
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Input, Label, RadioSet, Static
 
+from halosift.tui.header import cl2_forms
 from halosift.tui.messages import ConditionsProposed
-from halosift.tui.toggles import ChoiceButton
+from halosift.tui.toggles import ChoiceButton, ChoiceSet
 
 
 @dataclass(frozen=True)
@@ -44,11 +45,16 @@ FIELDS: tuple[Field, ...] = (
     Field("cond-cl2", "cl2_temp_c", "Cl2 temperature", "°C"),
     Field("cond-molar", "cl2_solvent_molar", "Cl2 solvent concentration", "M"),
     Field("cond-br2", "br2_temp_c", "Br2 temperature", "°C"),
+    Field("cond-so2cl2", "so2cl2_temp_c", "SO2Cl2 temperature", "°C"),
     Field("cond-nbs", "nbs_temp_c", "NBS temperature", "°C"),
     Field("cond-threshold", "threshold_pct", "threshold", "%"),
 )
 #: Solvents of the Cl2 chlorination offered (engine.solvent.SOLVENTS), with what the chemist reads.
 SOLVENT_LABELS: dict[str, str] = {"none": "none", "benzene": "benzene", "cs2": "CS2"}
+#: Phases of the Cl2 chlorination offered (engine.conditions.CL2_PHASES), with what the chemist reads.
+PHASE_LABELS: dict[str, str] = {"gas": "gas", "liquid": "liquid", "solution": "solution"}
+#: How the choice fields are named in the panel's notes.
+CHOICE_LABELS: dict[str, str] = {"cl2_phase": "Cl2 phase", "cl2_solvent": "Cl2 solvent"}
 
 
 @dataclass(frozen=True)
@@ -68,17 +74,20 @@ def _text(value: float) -> str:
 
 
 def short_description(conditions: Any) -> str:
-    """The conditions the panel edits, in one short line (fits 80 columns)."""
-    solvent = (f" in {conditions.cl2_solvent_molar:g} M {SOLVENT_LABELS.get(conditions.cl2_solvent, conditions.cl2_solvent)}"
-               if conditions.cl2_solvent != "none" else "")
-    return (f"Cl2 {_text(conditions.cl2_temp_c)} °C{solvent} · Br2 {_text(conditions.br2_temp_c)} °C · "
-            f"NBS {_text(conditions.nbs_temp_c)} °C · threshold {_text(conditions.threshold_pct)} %")
+    """The conditions the panel edits, in one short line."""
+    return (f"{cl2_forms(conditions)[0]} · Br2 {_text(conditions.br2_temp_c)} °C · "
+            f"SO2Cl2 {_text(conditions.so2cl2_temp_c)} °C · NBS {_text(conditions.nbs_temp_c)} °C · "
+            f"threshold {_text(conditions.threshold_pct)} %")
 
 
-def read_fields(texts: dict[str, str], solvent: str, applied: Any) -> Proposal:
-    """Parse the fields (field name → text) and check them with the engine, field by field and as a set."""
+def read_fields(texts: dict[str, str], solvent: str, applied: Any, phase: str | None = None) -> Proposal:
+    """Parse the fields (field name → text) and check them with the engine, field by field and as a set.
+
+    ``phase`` is the Cl2 phase chosen (the applied one when None).
+    """
+    phase = applied.cl2_phase if phase is None else phase
     errors: dict[str, str] = {}
-    values: dict[str, Any] = {"cl2_solvent": solvent}
+    values: dict[str, Any] = {"cl2_solvent": solvent, "cl2_phase": phase}
     labels = {f.name: f.label for f in FIELDS}
     for name, text in texts.items():
         text = text.strip()
@@ -97,8 +106,8 @@ def read_fields(texts: dict[str, str], solvent: str, applied: Any) -> Proposal:
         if name in errors or name == "cl2_solvent":
             continue
         one = {name: value}
-        if name == "cl2_solvent_molar":
-            one["cl2_solvent"] = solvent
+        if name in ("cl2_solvent_molar", "cl2_phase"):  # judged with the solvent and phase chosen beside them
+            one.update(cl2_solvent=solvent, cl2_phase=phase)
         try:
             replace(applied, **one).validate()
         except ValueError as exc:
@@ -124,8 +133,13 @@ class ConditionsPanel(Vertical):
         with Horizontal(classes="cond-row"):
             yield Label("Cl2 °C", classes="cond-label")
             yield Input(id="cond-cl2", type="number", compact=True, classes="cond-input")
-            yield Label("solvent", classes="cond-label")
-            with RadioSet(id="cond-solvent", compact=True):
+            yield Label("phase", classes="cond-label")
+            with ChoiceSet(id="cond-phase", classes="cond-choice", compact=True):
+                for key, label in PHASE_LABELS.items():
+                    yield ChoiceButton(label, id=f"cond-phase-{key}", compact=True)
+        with Horizontal(classes="cond-row"):
+            yield Label("Cl2 solvent", classes="cond-label")
+            with ChoiceSet(id="cond-solvent", classes="cond-choice", compact=True):
                 for key, label in SOLVENT_LABELS.items():
                     yield ChoiceButton(label, id=f"cond-solvent-{key}", compact=True)
             yield Label("mol/L", classes="cond-label")
@@ -133,6 +147,8 @@ class ConditionsPanel(Vertical):
         with Horizontal(classes="cond-row"):
             yield Label("Br2 °C", classes="cond-label")
             yield Input(id="cond-br2", type="number", compact=True, classes="cond-input")
+            yield Label("SO2Cl2 °C", classes="cond-label")
+            yield Input(id="cond-so2cl2", type="number", compact=True, classes="cond-input")
             yield Label("NBS °C", classes="cond-label")
             yield Input(id="cond-nbs", type="number", compact=True, classes="cond-input")
             yield Label("threshold %", classes="cond-label")
@@ -178,25 +194,34 @@ class ConditionsScreen(ModalScreen[None]):
             for f in FIELDS:
                 self.query_one(f"#{f.input_id}", Input).value = _text(getattr(conditions, f.name))
             self.query_one(f"#cond-solvent-{conditions.cl2_solvent}", ChoiceButton).value = True
+            self.query_one(f"#cond-phase-{conditions.cl2_phase}", ChoiceButton).value = True
         self._read()
 
-    def _solvent(self) -> str:
-        pressed = self.query_one("#cond-solvent", RadioSet).pressed_button
+    def _choice(self, name: str) -> str:
+        """The button chosen in RadioSet ``cond-<name>`` (the applied value when none is)."""
+        pressed = self.query_one(f"#cond-{name}", RadioSet).pressed_button
         if pressed is None or pressed.id is None:
-            return self.applied.cl2_solvent
-        return pressed.id.removeprefix("cond-solvent-")
+            return getattr(self.applied, f"cl2_{name}")
+        return pressed.id.removeprefix(f"cond-{name}-")
+
+    def _solvent(self) -> str:
+        return self._choice("solvent")
 
     def _read(self) -> Proposal:
         """Read the fields, mark each as pending or invalid, and redraw the note."""
         texts = {f.name: self.query_one(f"#{f.input_id}", Input).value for f in FIELDS}
         solvent = self._solvent()
-        self.proposal = read_fields(texts, solvent, self.applied)
+        self.proposal = read_fields(texts, solvent, self.applied, self._choice("phase"))
         molar = self.query_one("#cond-molar", Input)
         molar.disabled = solvent == "none"
         for f in FIELDS:
             box = self.query_one(f"#{f.input_id}", Input)
             box.set_class(f.name in self.proposal.errors, "-refused")
             box.set_class(f.name in self.proposal.pending, "-pending")
+        for name in ("phase", "solvent"):
+            choice = self.query_one(f"#cond-{name}", RadioSet)
+            choice.set_class(f"cl2_{name}" in self.proposal.errors, "-refused")
+            choice.set_class(f"cl2_{name}" in self.proposal.pending, "-pending")
         self._show()
         return self.proposal
 
@@ -212,14 +237,14 @@ class ConditionsScreen(ModalScreen[None]):
         labels = {f.name: f for f in FIELDS}
         lines = [f"Applied: {short_description(applied)}"]
         if proposal.errors:
-            reasons = "; ".join(proposal.errors.values())
+            reasons = "; ".join(dict.fromkeys(proposal.errors.values()))  # one combination can fault two fields
             lines.append(f"✗ Not applied: {reasons}; the table keeps the applied values")
         elif proposal.pending:
             parts = []
             for name in proposal.pending:
                 value = getattr(proposal.conditions, name)
                 parts.append(f"{labels[name].label} {_text(value)} {labels[name].unit}"
-                             if name in labels else f"{name} {value}")
+                             if name in labels else f"{CHOICE_LABELS.get(name, name)} {value}")
             lines.append("… Pending: " + ", ".join(parts) + " (Enter or leaving the field applies it)")
         if proposal.conditions is not None:
             warnings = proposal.conditions.warnings()
@@ -247,7 +272,7 @@ class ConditionsScreen(ModalScreen[None]):
         self._apply()
 
     @on(RadioSet.Changed)
-    def _solvent_changed(self, event: RadioSet.Changed) -> None:
+    def _choice_changed(self, event: RadioSet.Changed) -> None:
         event.stop()
         self._apply()
 

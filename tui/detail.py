@@ -121,9 +121,37 @@ def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
     return text
 
 
+#: The reagents with an outcome, and how the detail names them (the order of engine.outcomes.OUTCOME_REAGENTS).
+OUTCOME_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", "nbs": "NBS"}
+
+
+def outcomes_text(record: Any, conditions: Any) -> Text:
+    """Per reagent: clean / mixture / ruled-out, the major of its split and why it is ruled out (as explain)."""
+    text = Text()
+    text.append("Outcome per reagent", style="bold")
+    text.append(f" (clean: one monohalide at ≥ {conditions.threshold_pct:g} %; ruled-out: the substitution "
+                "split does not apply)\n")
+    for reagent, label in OUTCOME_LABELS.items():
+        outcome = str(record.get(f"{reagent}_outcome", "") or "")
+        if not outcome:
+            continue
+        major = str(record.get(f"{reagent}_major", "") or "")
+        pct = record.get(f"{reagent}_major_pct", float("nan"))
+        text.append(f"{label:<7}{conditions.temp_c(reagent):>5g} °C  ")
+        text.append(f"{outcome:<9}", style="bold")
+        if major:
+            share = "" if pct != pct else f" {pct:.1f} %"
+            text.append(f"  major {major}{share}")
+        reason = str(record.get(f"{reagent}_reason", "") or "")
+        if reason:
+            text.append(f"  — {reason}")
+        text.append("\n")
+    return text
+
+
 def poly_text(products: pd.DataFrame) -> Text:
     """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap."""
-    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, plan
+    from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, POLY_UNIT, plan
 
     text = Text()
     text.append("\nPolyhalogenation", style="bold")
@@ -132,10 +160,10 @@ def poly_text(products: pd.DataFrame) -> Text:
     for reagent in ("cl2", "br2"):
         p = plan(reagent, h, products[f"{reagent}_pct"].to_numpy(), ratio=DEFAULT_RATIO)
         excess = "no excess suffices" if p.min_ratio == float("inf") else f"≥ {p.min_ratio:.2g} : 1 substrate : halogen"
+        # The table's "poly % prod" column: the same figure, the same unit.
         text.append(
-            f"{reagent}: {p.unreacted_pct:.0f} % left, {p.mono_pct_of_charge:.0f} % mono, "
-            f"{p.poly_pct_of_charge:.0f} % poly; ≤ {DEFAULT_MAX_POLY_PCT:g} % poly needs ≤ "
-            f"{p.max_conversion_pct:.0f} % conversion ({excess})\n"
+            f"{reagent}: {p.poly_pct_at_ratio:.1f} {POLY_UNIT} is polyhalide; ≤ {DEFAULT_MAX_POLY_PCT:g} % "
+            f"needs ≤ {p.max_conversion_pct:.0f} % conversion ({excess})\n"
         )
     return text
 
@@ -240,6 +268,7 @@ class DetailScreen(Screen):
     def compose(self) -> ComposeResult:
         yield Static("", id="detail-head")
         with VerticalScroll(id="detail-body"):
+            yield Static("", id="detail-outcomes")
             yield Static("", id="detail-products")
             yield Vertical(id="detail-structure")
             yield Static("", id="detail-bars")
@@ -319,6 +348,10 @@ class DetailScreen(Screen):
         self._request += 1
         self.result = None
         record = self.frame.iloc[self.row]
+        # Read off the evaluated frame (nothing to work out), so it shows at once.
+        self.query_one("#detail-outcomes", Static).update(
+            outcomes_text(record, self.conditions) if record["status"] == "ok" else ""
+        )
         if record["status"] != "ok":
             self.workers.cancel_group(self, "detail")
             self.working = False

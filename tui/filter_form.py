@@ -9,15 +9,29 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Grid, Horizontal, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, RadioSet, Static
+from textual.widgets import Button, Input, Label, Static
 
-from halosift.tui.filters import NO_NEW_STEREO, FilterSpec, parse_optional_float, parse_optional_int
-from halosift.tui.toggles import ChoiceButton, TickBox
+from halosift.tui.filters import (
+    CONFIDENCE_CHOICES,
+    DUPLICATE_MODES,
+    FLAG_CHOICES,
+    NO_NEW_STEREO,
+    OUTCOME_CHOICES,
+    OUTCOME_VALUES,
+    FilterSpec,
+    parse_optional_float,
+    parse_optional_int,
+)
+from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
 
 from halosift.engine.outcomes import VERDICTS
 
 #: Verdict names in display order (the engine's own order).
 VERDICT_ORDER = VERDICTS
+#: How each reagent is named in the form.
+REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", "nbs": "NBS"}
+#: Short labels of the duplicate modes (tui.filters.DUPLICATE_MODES says what each does).
+DUPLICATE_LABELS: dict[str, str] = {"all": "all rows", "hide": "hide repeats", "only": "only repeats"}
 
 
 class FilterForm(ModalScreen[FilterSpec | None]):
@@ -64,7 +78,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             if self.sites:
                 with Horizontal(classes="filter-row"):
                     yield Label("Site types present:", classes="filter-label")
-                    with RadioSet(id="site-match", compact=True):
+                    with ChoiceSet(id="site-match", compact=True):
                         yield ChoiceButton("any of", spec.site_match == "any", id="match-any", compact=True)
                         yield ChoiceButton("all of", spec.site_match == "all", id="match-all", compact=True)
                 with Grid(id="site-grid"):
@@ -72,6 +86,31 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                         yield TickBox(site, site in spec.site_types, id=f"site-{site}", classes="site-box", compact=True)
             else:
                 yield Label(self.no_sites_reason, id="no-sites", classes="filter-row")
+            yield Label("Outcome per reagent (none ticked: any outcome)")
+            for reagent in OUTCOME_CHOICES:
+                kept = spec.outcomes_for(reagent)
+                with Horizontal(classes="filter-row"):
+                    yield Label(REAGENT_LABELS[reagent], classes="filter-label row-name")
+                    for outcome in OUTCOME_VALUES:
+                        yield TickBox(outcome, outcome in kept, id=f"outcome-{reagent}-{outcome}", compact=True)
+            yield Label("Special-site flags")
+            for flag in FLAG_CHOICES:
+                state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
+                with Horizontal(classes="filter-row"):
+                    yield Label(flag, classes="filter-label row-name")
+                    with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
+                        for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
+                            yield ChoiceButton(label, state == choice, id=f"flag-{flag}-{choice}", compact=True)
+            with Horizontal(classes="filter-row"):
+                yield Label("Confidence (none: any)", classes="filter-label row-name")
+                for level in CONFIDENCE_CHOICES:
+                    yield TickBox(level, level in spec.confidence, id=f"confidence-{level}", compact=True)
+            with Horizontal(classes="filter-row"):
+                yield Label("Duplicate structures", classes="filter-label row-name")
+                with ChoiceSet(id="duplicates", classes="choice-row", compact=True):
+                    for mode in DUPLICATE_MODES:
+                        yield ChoiceButton(DUPLICATE_LABELS[mode], spec.duplicates == mode, id=f"dup-{mode}",
+                                           compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Text in ID or SMILES", classes="filter-label")
                 yield Input(spec.text, id="filter-text", compact=True)
@@ -106,6 +145,14 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             site_match=match,
             no_new_stereo=self.query_one("#no-new-stereo", TickBox).value,
             text=self.query_one("#filter-text", Input).value.strip(),
+            flags_has=frozenset(f for f in FLAG_CHOICES if self.query_one(f"#flag-{f}-has", ChoiceButton).value),
+            flags_lacks=frozenset(f for f in FLAG_CHOICES if self.query_one(f"#flag-{f}-lacks", ChoiceButton).value),
+            outcomes=frozenset(
+                (r, o) for r in OUTCOME_CHOICES for o in OUTCOME_VALUES
+                if self.query_one(f"#outcome-{r}-{o}", TickBox).value
+            ),
+            confidence=frozenset(c for c in CONFIDENCE_CHOICES if self.query_one(f"#confidence-{c}", TickBox).value),
+            duplicates=next((m for m in DUPLICATE_MODES if self.query_one(f"#dup-{m}", ChoiceButton).value), "all"),
         )
 
     def action_apply(self) -> None:

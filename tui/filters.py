@@ -30,6 +30,24 @@ VIEW_DOCS: dict[str, str] = {
 }
 #: Stereo outcome that counts as "no new stereocentre" (of the bromination major product).
 NO_NEW_STEREO = "achiral"
+# The next four copy engine names so the app can import this module (and paint) before
+# the engine has loaded; tests/test_tui_filters.py checks they equal the engine's.
+#: Special-site flags a row can be filtered on (engine.special_sites.FLAGS, same order).
+FLAG_CHOICES: tuple[str, ...] = (
+    "cyclopropylmethyl", "bridgehead", "cage", "cyclopropane", "central_bond", "alkene", "alkyne",
+)
+#: Reagents with an ``<reagent>_outcome`` column (engine.outcomes.OUTCOME_REAGENTS).
+OUTCOME_CHOICES: tuple[str, ...] = ("cl2", "br2", "so2cl2", "nbs")
+#: The outcomes a reagent can take (engine.outcomes.OUTCOMES).
+OUTCOME_VALUES: tuple[str, ...] = ("clean", "mixture", "ruled-out")
+#: Confidence values of the ``confidence`` column, strongest basis first (engine.weigh.BASES reversed).
+CONFIDENCE_CHOICES: tuple[str, ...] = ("measured", "textbook", "estimate")
+#: Duplicate filter modes: every row / first occurrence of each structure only / only rows repeating an earlier one.
+DUPLICATE_MODES: dict[str, str] = {
+    "all": "show every row",
+    "hide": "hide repeats (keep the first row of each structure)",
+    "only": "only repeats (rows whose structure appeared on an earlier row)",
+}
 
 
 @dataclass(frozen=True)
@@ -50,11 +68,34 @@ class FilterSpec:
     """Keep rows whose bromination major product is achiral (no new stereocentre)."""
     text: str = ""
     """Substring looked for in the ID (any case) and SMILES (exact case) columns."""
+    flags_has: frozenset[str] = frozenset()
+    """Special-site flags (``flags`` column) a row must carry, every one of them."""
+    flags_lacks: frozenset[str] = frozenset()
+    """Special-site flags a row must not carry, none of them."""
+    outcomes: frozenset[tuple[str, str]] = frozenset()
+    """(reagent, outcome) pairs kept: for each reagent named, its ``<reagent>_outcome`` must be one listed."""
+    confidence: frozenset[str] = frozenset()
+    """Confidence values to keep; empty keeps every row (also those with no confidence)."""
+    duplicates: str = "all"
+    """One of :data:`DUPLICATE_MODES`: 'all', 'hide' (first of each structure) or 'only' (the repeats)."""
 
     @property
     def active(self) -> bool:
         """True when any filter narrows the rows."""
-        return self != FilterSpec(site_match=self.site_match)
+        return self.count > 0
+
+    @property
+    def count(self) -> int:
+        """How many separate filters narrow the rows."""
+        return sum((
+            bool(self.verdicts), self.min_br2_pct is not None, self.max_products is not None, bool(self.site_types),
+            self.no_new_stereo, bool(self.text), bool(self.flags_has), bool(self.flags_lacks),
+            len({reagent for reagent, _ in self.outcomes}), bool(self.confidence), self.duplicates != "all",
+        ))
+
+    def outcomes_for(self, reagent: str) -> frozenset[str]:
+        """Outcomes kept for one reagent; empty when that reagent is not filtered."""
+        return frozenset(o for r, o in self.outcomes if r == reagent)
 
     def describe(self) -> str:
         """One line naming the active filters ('no filters' when none)."""
@@ -70,6 +111,20 @@ class FilterSpec:
             parts.append("sites " + joiner.join(sorted(self.site_types)))
         if self.no_new_stereo:
             parts.append("no new stereocentre")
+        if self.flags_has:
+            parts.append("flags " + " and ".join(sorted(self.flags_has)))
+        if self.flags_lacks:
+            parts.append("no " + " or ".join(sorted(self.flags_lacks)))
+        for reagent in OUTCOME_CHOICES:
+            kept = self.outcomes_for(reagent)
+            if kept:
+                parts.append(f"{reagent} " + "/".join(o for o in OUTCOME_VALUES if o in kept))
+        if self.confidence:
+            parts.append("confidence " + "/".join(c for c in CONFIDENCE_CHOICES if c in self.confidence))
+        if self.duplicates == "hide":
+            parts.append("repeats hidden")
+        elif self.duplicates == "only":
+            parts.append("repeats only")
         if self.text:
             parts.append(f"text “{self.text}”")
         return "; ".join(parts) if parts else "no filters"
@@ -118,23 +173,21 @@ def parse_optional_int(text: str, *, lo: int, what: str) -> int | None:
 
 
 def _by_unique(series: pd.Series, test) -> np.ndarray:
-    """Evaluate ``test(value) -> bool`` once per distinct value, broadcast to rows.
+    """Evaluate ``test(value) -> bool`` once per distinct value, broadcast to rows (missing values: False).
 
-    The text columns here (verdict, stereo, site_types) hold few distinct
-    values, so this is much faster than a string operation per row.
+    The text columns here (verdict, outcomes, flags, site_types) hold few
+    distinct values, so this is much faster than a string operation per row;
+    unique + isin rather than factorize, which is several times slower on
+    Arrow-backed text (bench_filters.py).
     """
     import pandas as pd
 
-    codes, uniques = pd.factorize(series, use_na_sentinel=True)
-    hits = np.fromiter((bool(test(u)) for u in uniques), dtype=bool, count=len(uniques))
-    out = np.zeros(len(codes), dtype=bool)
-    valid = codes >= 0
-    out[valid] = hits[codes[valid]]
-    return out
+    keep = [u for u in pd.unique(series) if not pd.isna(u) and bool(test(u))]
+    return series.isin(keep).to_numpy(dtype=bool, na_value=False)
 
 
 def site_set(value: object) -> frozenset[str]:
-    """The site classes of one ``site_types`` cell (comma-joined)."""
+    """The names in one comma-joined cell (``site_types`` or ``flags``)."""
     if not isinstance(value, str) or not value:
         return frozenset()
     return frozenset(v.strip() for v in value.split(",") if v.strip())
@@ -195,6 +248,19 @@ def filter_mask(
             mask &= _by_unique(frame["site_types"], lambda v: bool(wanted & site_set(v)))
     if spec.no_new_stereo:
         mask &= _by_unique(frame["stereo"], lambda v: v == NO_NEW_STEREO)
+    if spec.flags_has or spec.flags_lacks:
+        has, lacks = spec.flags_has, spec.flags_lacks
+        mask &= _by_unique(frame["flags"].fillna(""),
+                           lambda v: has <= site_set(v) and not lacks & site_set(v))
+    for reagent in OUTCOME_CHOICES:
+        kept = spec.outcomes_for(reagent)
+        if kept:
+            mask &= _by_unique(frame[f"{reagent}_outcome"], lambda v, kept=kept: v in kept)
+    if spec.confidence:
+        mask &= _by_unique(frame["confidence"], lambda v: v in spec.confidence)
+    if spec.duplicates != "all":
+        repeat = frame["duplicate_of"].notna().to_numpy(dtype=bool)
+        mask &= repeat if spec.duplicates == "only" else ~repeat
     if spec.text:
         found = text_mask(frame, spec.text, id_columns)
         found |= text_mask(frame, spec.text, smiles_columns, ignore_case=False)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Hashable, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 #: Between the phrases of a header line.
 SEPARATOR = " │ "
@@ -52,3 +53,17 @@ def column_title(key: Hashable, known: dict[Hashable, str]) -> str:
             name = reagent.capitalize() + " " + name[len(reagent) + 1:]
     name = name.replace("_pct", " %").replace("_", " ")
     return name[:1].upper() + name[1:]
+
+
+def cl2_forms(conditions: Any) -> tuple[str, str]:
+    """(long, short) description of the Cl2 conditions: temperature, phase and solvent.
+
+    The phase is always named: gas-phase and liquid-phase chlorinations use
+    different rate tables, so the same temperature can give different splits.
+    """
+    temp = f"Cl2 {conditions.cl2_temp_c:g} °C"
+    phase = conditions.cl2_phase
+    if conditions.cl2_solvent != "none":
+        solvent = "CS2" if conditions.cl2_solvent == "cs2" else conditions.cl2_solvent
+        return (f"{temp} {phase} in {conditions.cl2_solvent_molar:g} M {solvent}", f"{temp} {phase} ({solvent})")
+    return f"{temp} {phase}", f"{temp} {phase}"  # liquid without a solvent: the neat hydrocarbon

@@ -99,8 +99,10 @@ def _bindings_table(app) -> Group:
         "Find bar": [("⏎", "back to the table, keeping the text")],
         "Conditions panel": [("⏎", "apply (only a complete, valid set is applied)"),
                              ("tab / shift+tab", "next / previous field; leaving a field applies it too"),
-                             ("← / →", "choose the Cl2 solvent (in the solvent field)")],
-        "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field")],
+                             ("← / →, ⏎", "choose the Cl2 phase or solvent (in those fields)")],
+        "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field"),
+                        ("← / →, ⏎", "choose in a row of ( ) choices: site match, a flag's either / has it / "
+                                     "lacks it, duplicates all / hide repeats / only repeats")],
         "Export form": [("⏎", "write (in the file field)"), ("↑ / ↓, ⏎", "choose shortlist or current view"),
                         ("tab", "next field")],
         "Replace? dialog": [("⏎", "press the focused button (Keep)")],
@@ -199,7 +201,8 @@ class HelpScreen(Screen):
              "(or, for NBS, allylic/benzylic) C–H"),
             ("SO2Cl2 major / %", "major monochloride under SO2Cl2, weighed as Cl· at its own temperature"),
             ("NBS major / %", "major allylic/benzylic bromide under NBS (both allyl termini weighed)"),
-            ("Cl2/Br2 poly %", "polyhalide, percent of halogenated product, at 1 : 1 substrate : halogen (estimate)"),
+            ("Cl2/Br2 poly % prod", "polyhalide, percent of the halogenated product, at 1 : 1 substrate : halogen "
+                                    "with all halogen consumed (estimate; the detail shows the same figure)"),
         ]
         return self._section("More columns (o shows them)", rows)
 

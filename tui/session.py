@@ -14,13 +14,14 @@ import hashlib
 import json
 import os
 import tempfile
-from dataclasses import asdict, dataclass, field, fields
+from collections.abc import Mapping
+from dataclasses import asdict, dataclass, field, fields, replace
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
-from halosift.tui.filters import VIEWS, FilterSpec, SortSpec
+from halosift.tui.filters import DUPLICATE_MODES, VIEWS, FilterSpec, SortSpec
 
 #: Environment variable naming the folder sessions are kept in.
 SESSION_ENV = "HALOSIFT_SESSION_DIR"
@@ -90,6 +91,9 @@ def encode(session: Session) -> str:
             "verdicts": sorted(spec.verdicts), "min_br2_pct": spec.min_br2_pct, "max_products": spec.max_products,
             "site_types": sorted(spec.site_types), "site_match": spec.site_match,
             "no_new_stereo": spec.no_new_stereo, "text": spec.text,
+            "flags_has": sorted(spec.flags_has), "flags_lacks": sorted(spec.flags_lacks),
+            "outcomes": sorted([reagent, outcome] for reagent, outcome in spec.outcomes),
+            "confidence": sorted(spec.confidence), "duplicates": spec.duplicates,
         },
         "view": session.view,
         "conditions": session.conditions,
@@ -122,6 +126,12 @@ def decode(text: str) -> Session:
             site_match=str(f["site_match"]) if f["site_match"] in ("any", "all") else "any",
             no_new_stereo=bool(f["no_new_stereo"]),
             text=str(f["text"]),
+            # Added later: files saved before these filters existed load with them off.
+            flags_has=frozenset(map(str, f.get("flags_has", ()))),
+            flags_lacks=frozenset(map(str, f.get("flags_lacks", ()))),
+            outcomes=frozenset((str(r), str(o)) for r, o in f.get("outcomes", ())),
+            confidence=frozenset(map(str, f.get("confidence", ()))),
+            duplicates=str(f.get("duplicates", "all")) if f.get("duplicates", "all") in DUPLICATE_MODES else "all",
         )
         view = str(data["view"]) if data["view"] in VIEWS else "library"
         conditions = data["conditions"]
@@ -157,6 +167,38 @@ def restore_conditions(record: dict[str, Any]) -> Any:
     except (TypeError, ValueError) as exc:
         raise ValueError(" ".join(str(exc).split())) from None
     return conditions
+
+
+def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]) -> tuple[Any, str]:
+    """(engine.Conditions, one-line note or '') the app opens a library with.
+
+    The saved session's conditions (when usable), with every field given
+    explicitly on the command line (``explicit``) taking precedence. When the
+    explicit fields do not combine with the saved set (e.g. ``--phase gas``
+    over a saved Cl2 solvent), the explicit fields over the defaults are used
+    and the note says so. ``explicit`` alone must be valid (ValueError if not).
+    """
+    from halosift.engine import Conditions
+
+    note = ""
+    base = Conditions()
+    if saved:
+        try:
+            base = restore_conditions(saved)
+        except ValueError as exc:
+            note = f"The saved conditions are not usable ({exc}); default conditions are used."
+    if not explicit:
+        return base, note
+    try:
+        conditions = replace(base, **explicit)
+        conditions.validate()
+        return conditions, note
+    except ValueError as exc:
+        conditions = Conditions(**explicit)
+        conditions.validate()
+        reason = " ".join(str(exc).split())
+        return conditions, (f"The saved conditions do not combine with the options given ({reason}); "
+                            "the options over default conditions are used.")
 
 
 def path_for(key: str, folder: Path | None = None) -> Path:

@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 from textual.content import Content
-from textual.widgets import Checkbox, RadioButton
+from textual import events
+from textual.widgets import Checkbox, RadioButton, RadioSet
 
 
 class TickBox(Checkbox):
@@ -20,3 +21,16 @@ class ChoiceButton(RadioButton):
     @property
     def _button(self) -> Content:
         return Content.assemble(("(•)" if self.value else "( )", self.get_visual_style("toggle--button")))
+
+
+class ChoiceSet(RadioSet):
+    """A radio set whose keyboard highlight starts on the chosen button each time it gets focus.
+
+    Textual's RadioSet highlights its first button at mount and moves the
+    highlight only on a press, so with a later button chosen beforehand an
+    arrow key would step from the wrong place.
+    """
+
+    def _on_focus(self, event: events.Focus) -> None:
+        if self.pressed_index >= 0:
+            self._selected = self.pressed_index

@@ -34,6 +34,11 @@ REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2"
 DUPLICATE_LABELS: dict[str, str] = {"all": "all rows", "hide": "hide repeats", "only": "only repeats"}
 
 
+def _confidence_id(level: str) -> str:
+    """A widget id for a confidence level (ids take no spaces: 'from memory')."""
+    return "confidence-" + level.replace(" ", "-")
+
+
 class FilterForm(ModalScreen[FilterSpec | None]):
     """Edit the filters; Apply returns the new FilterSpec, Esc returns None."""
 
@@ -104,7 +109,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             with Horizontal(classes="filter-row"):
                 yield Label("Confidence (none: any)", classes="filter-label row-name")
                 for level in CONFIDENCE_CHOICES:
-                    yield TickBox(level, level in spec.confidence, id=f"confidence-{level}", compact=True)
+                    yield TickBox(level, level in spec.confidence, id=_confidence_id(level), compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Duplicate structures", classes="filter-label row-name")
                 with ChoiceSet(id="duplicates", classes="choice-row", compact=True):
@@ -151,7 +156,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                 (r, o) for r in OUTCOME_CHOICES for o in OUTCOME_VALUES
                 if self.query_one(f"#outcome-{r}-{o}", TickBox).value
             ),
-            confidence=frozenset(c for c in CONFIDENCE_CHOICES if self.query_one(f"#confidence-{c}", TickBox).value),
+            confidence=frozenset(c for c in CONFIDENCE_CHOICES if self.query_one("#" + _confidence_id(c), TickBox).value),
             duplicates=next((m for m in DUPLICATE_MODES if self.query_one(f"#dup-{m}", ChoiceButton).value), "all"),
         )
 

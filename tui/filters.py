@@ -41,7 +41,7 @@ OUTCOME_CHOICES: tuple[str, ...] = ("cl2", "br2", "so2cl2", "nbs")
 #: The outcomes a reagent can take (engine.outcomes.OUTCOMES).
 OUTCOME_VALUES: tuple[str, ...] = ("clean", "mixture", "ruled-out")
 #: Confidence values of the ``confidence`` column, strongest basis first (engine.weigh.BASES reversed).
-CONFIDENCE_CHOICES: tuple[str, ...] = ("measured", "textbook", "estimate")
+CONFIDENCE_CHOICES: tuple[str, ...] = ("measured", "textbook", "from memory", "estimate")
 #: Duplicate filter modes: every row / first occurrence of each structure only / only rows repeating an earlier one.
 DUPLICATE_MODES: dict[str, str] = {
     "all": "show every row",

@@ -249,7 +249,7 @@ benzylic C–H a second table gives the NBS monobromides (Wohl–Ziegler), both 
 counted as stereoisomers). These shares are of the monohalides only; the further
 halogenation of a monohalide is estimated separately, as the polyhalide share of the halogenated product when
 substrate and halogen are charged 1 : 1 and all the halogen reacts (competitive consecutive kinetics with an
-estimated deactivation by the first halogen; the cl2_poly_pct and br2_poly_pct columns of a screen). A number after the stereo outcome counts the stereoisomers formed.
+estimated deactivation by the first halogen). A number after the stereo outcome counts the stereoisomers formed.
 Flags name risks the percentages do not show, each with its explanation; every flag but bridgehead rules some
 reagents out. SO2Cl2 is weighed as Cl· at its own temperature.</p>
 <p>Verdicts, read off the outcomes of Cl2, Br2, SO2Cl2 and NBS (a reagent is offered only when its outcome is

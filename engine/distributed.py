@@ -115,7 +115,7 @@ def gather_frame(frame: Any) -> pd.DataFrame:
     import dask
 
     out = frame.compute().reset_index(drop=True)
-    if dask.config.get("dataframe.convert-string", True):
+    if dask.config.get("dataframe.convert-string", None) is not False:  # None: Dask's default, on
         text = pd.Series(["x"]).dtype  # what pandas makes of text here
         arrow_text = pd.StringDtype("pyarrow", na_value=pd.NA)
         converted = {c: text for c, t in out.dtypes.items() if t == arrow_text and t != text}

@@ -14,8 +14,11 @@ from __future__ import annotations
 import os
 import sqlite3
 import uuid
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from pathlib import Path
+from typing import TypeVar
+
+_T = TypeVar("_T")
 
 #: Seconds a writer waits for another writer's lock before giving up on the index (then: no index this time).
 BUSY_S = 30.0
@@ -51,9 +54,9 @@ class KeyIndex:
         self.path = path
         """The SQLite file."""
 
-    def _connect(self, path: Path | None = None) -> sqlite3.Connection:
+    def _connect(self) -> sqlite3.Connection:
         # A connection per call: worker processes fork, and a SQLite connection must not cross a fork.
-        con = sqlite3.connect(path or self.path, timeout=BUSY_S, isolation_level=None)
+        con = sqlite3.connect(self.path, timeout=BUSY_S, isolation_level=None)
         try:
             con.executescript(_SCHEMA)
         except BaseException:
@@ -61,13 +64,15 @@ class KeyIndex:
             raise
         return con
 
-    def _run(self, work, path: Path | None = None):  # type: ignore[no-untyped-def]
-        """Run ``work(connection)`` in one transaction; SQLite errors become IndexDamaged/IndexUnavailable."""
+    def _run(self, work: Callable[[sqlite3.Connection], _T], *, write: bool = True) -> _T:
+        """Run ``work(connection)`` (a write: in one transaction); SQLite errors become IndexDamaged/IndexUnavailable."""
         try:
-            con = self._connect(path)
+            con = self._connect()
         except sqlite3.Error as exc:
             raise _classify(exc) from None
         try:
+            if not write:  # readers take no write lock, so lookups run side by side
+                return work(con)
             con.execute("BEGIN IMMEDIATE")
             out = work(con)
             con.execute("COMMIT")
@@ -79,7 +84,8 @@ class KeyIndex:
 
     def complete(self) -> bool:
         """Whether the index was once built from every shard (a new or emptied file was not)."""
-        return bool(self._run(lambda con: con.execute("SELECT 1 FROM meta WHERE name = 'complete'").fetchone()))
+        return bool(self._run(lambda con: con.execute("SELECT 1 FROM meta WHERE name = 'complete'").fetchone(),
+                              write=False))
 
     def find(self, keys: Sequence[str]) -> dict[str, str]:
         """The shard named for each of ``keys`` that the index knows."""
@@ -93,21 +99,11 @@ class KeyIndex:
                 found.update(con.execute(f"SELECT key, shard FROM keys WHERE key IN ({marks})", part).fetchall())
             return found
 
-        # A read needs no write lock; a plain connection without BEGIN IMMEDIATE lets readers run side by side.
-        try:
-            con = self._connect()
-        except sqlite3.Error as exc:
-            raise _classify(exc) from None
-        try:
-            return work(con)
-        except sqlite3.Error as exc:
-            raise _classify(exc) from None
-        finally:
-            con.close()
+        return self._run(work, write=False)
 
     def shards(self) -> set[str]:
         """Names of the shards whose keys are indexed."""
-        return self._run(lambda con: {name for (name,) in con.execute("SELECT name FROM shards")})
+        return self._run(lambda con: {name for (name,) in con.execute("SELECT name FROM shards")}, write=False)
 
     def add(self, entries: Iterable[tuple[str, Sequence[str]]], *, mark_complete: bool = False) -> None:
         """Index each (shard name, its keys); a key already indexed now points at the newer shard."""

@@ -159,3 +159,15 @@ def test_an_earlier_single_big_shard_is_split(tmp_path: Path, base, monkeypatch)
     hit, got = PerceptionCache(tmp_path).lookup(keys)
     assert hit.all()
     _same(got, want)
+
+
+def test_index_of_a_removed_engine_version_is_removed(tmp_path: Path, base) -> None:
+    store = PerceptionCache(tmp_path)
+    store.store(*_synthetic(base, 5, "t"))
+    gone = tmp_path / "perception-2-0123456789abcdef.index.sqlite"  # its folder was deleted as stale
+    gone.write_bytes(b"old index")
+    alive = tmp_path / "perception-2-fedcba9876543210.index.sqlite"  # another version, its folder in use
+    alive.write_bytes(b"in use")
+    (tmp_path / "perception-2-fedcba9876543210").mkdir()
+    hit, _ = PerceptionCache(tmp_path).lookup(["t-0"])
+    assert hit.all() and not gone.exists() and alive.exists() and store.index.path.exists()

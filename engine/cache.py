@@ -13,6 +13,12 @@ links, so a flipped byte, a truncated or replaced file is a miss, never a
 wrong answer. A damaged shard is deleted and its structures perceived
 again. The cache never stops a screen: when it cannot be used, a
 :class:`CacheWarning` says so in one line and the screen goes on without it.
+
+Shards hold at most :data:`SHARD_ROWS` structures and a key index
+(:mod:`halosift.engine.cache_index`) names the shard of each key, so a lookup
+reads only the shards that hold its keys: its cost follows the library, not
+the size of the cache. The index is only a hint (see there): a hit always
+comes from a verified shard holding that very key.
 """
 
 from __future__ import annotations
@@ -35,6 +41,7 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 
+from halosift.engine.cache_index import IndexDamaged, IndexUnavailable, KeyIndex
 from halosift.engine.nbs import frame_from_rows
 from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception
 
@@ -44,8 +51,10 @@ _FINGERPRINTED = (
     "rdkit_log.py", "reagents.py", "shares.py", "site_classes.py", "sites.py", "solvent.py", "special_sites.py",
     "stereo.py",
 )
-#: Merge shards into one when there are more than this many.
+#: Merge the small shards when there are more than this many of them.
 MAX_SHARDS = 8
+#: Most structures in one shard: a lookup reads (and checks) whole shards, so this bounds its cost per hit shard.
+SHARD_ROWS = 2048
 #: Most bytes one engine fingerprint may hold; the least recently used shards go first.
 MAX_BYTES = 4 * 1024**3
 #: Version of the on-disk layout, part of the folder name: another layout is another (stale) folder.
@@ -56,6 +65,7 @@ STALE_TEMP_S = 15 * 60
 STALE_FOLDER_S = 24 * 3600
 _PARTS = ("structures", "sites", "allylic")
 _FOLDER = re.compile(r"perception-[0-9a-z-]+")
+_INDEX_FILE = re.compile(r"perception-[0-9a-z-]+\.index\.sqlite(-journal)?")
 
 
 @cache
@@ -202,6 +212,14 @@ def _shard_bytes(manifest: Path) -> int:
     return total
 
 
+def _manifest_rows(manifest: Path) -> int | None:
+    """Structures a shard holds, as its manifest says; None when the manifest cannot be read."""
+    try:
+        return int(json.loads(manifest.read_bytes())["files"]["structures"]["rows"])
+    except (OSError, ValueError, KeyError, TypeError):
+        return None
+
+
 def _mtime(path: Path) -> float:
     try:
         return path.stat().st_mtime
@@ -217,6 +235,9 @@ class PerceptionCache:
         """The folder holding one subfolder per engine fingerprint (None: no usable place)."""
         self.folder = self.root / f"perception-{CACHE_FORMAT}-{engine_fingerprint()}" if self.root else None
         """This engine's subfolder."""
+        self.index = KeyIndex(self.root / f"perception-{CACHE_FORMAT}-{engine_fingerprint()}.index.sqlite") \
+            if self.root else None
+        """Key → shard index beside the subfolder (outside it: the subfolder holds shards only)."""
         self._unusable_noted = False
 
     # ------------------------------------------------------------------ notes
@@ -237,19 +258,26 @@ class PerceptionCache:
         except OSError:
             return []
 
-    def _read_all(self) -> list[_Shard]:
-        """Every shard that verifies; damaged ones are deleted and reported in one note."""
+    def _read_all(self, manifests: Sequence[Path] | None = None, gone: list[Path] | None = None) -> list[_Shard]:
+        """Every shard (of ``manifests``, default all) that verifies; damaged ones are deleted and reported in one note.
+
+        Shards damaged or vanished meanwhile are appended to ``gone`` when it is given.
+        """
         shards, damaged = [], []
-        for manifest in self._manifests():
+        for manifest in self._manifests() if manifests is None else manifests:
             try:
                 shards.append(_read_shard(manifest))
             except _Damaged as exc:
                 damaged.append(str(exc))
                 _remove_shard(manifest)
+                if gone is not None:
+                    gone.append(manifest)
             except FileNotFoundError:
                 if manifest.exists():  # a data file is gone for good, not merely removed by a compaction
                     damaged.append("a file is missing")
                     _remove_shard(manifest)
+                if gone is not None:
+                    gone.append(manifest)
             except OSError as exc:
                 self._unusable(f"cannot read {manifest.parent} ({exc.strerror or exc})")
         if damaged:
@@ -295,7 +323,11 @@ class PerceptionCache:
             self._unusable("no home folder to keep it in (set HALOSIFT_CACHE_DIR)")
             return np.zeros(len(keys), dtype=bool), None
         self._tidy()
-        shards = self._read_all()
+        if self.folder is None or not self.folder.is_dir():
+            return np.zeros(len(keys), dtype=bool), None
+        shards = self._indexed_shards(keys)
+        if shards is None:  # no usable index now: read every shard, as the cache did before it had one
+            shards = self._read_all()
         joined = self._join(shards)
         if joined is None:
             return np.zeros(len(keys), dtype=bool), None
@@ -310,6 +342,83 @@ class PerceptionCache:
                 pass
         return hit, take(perception, pos[hit])
 
+    # ------------------------------------------------------------------ the key index
+
+    def _manifest_of(self, name: str) -> Path:
+        assert self.folder is not None
+        return self.folder / f"{name}.manifest.json"
+
+    @staticmethod
+    def _name_of(manifest: Path) -> str:
+        return manifest.name.removesuffix(".manifest.json")
+
+    def _index_ready(self) -> KeyIndex | None:
+        """The index, built from the shards first when it is new or damaged; None when it cannot be used now."""
+        index = self.index
+        if index is None:
+            return None
+        try:
+            try:
+                if not index.complete():
+                    self._reconcile(index, complete=True)
+                return index
+            except IndexDamaged:
+                warnings.warn("perception cache: its key index was damaged and is rebuilt from the entries",
+                              CacheWarning, stacklevel=4)
+                index.replace((self._name_of(s.manifest), list(s.structures["key"])) for s in self._read_all())
+                return index
+        except (IndexDamaged, IndexUnavailable):
+            return None
+
+    def _reconcile(self, index: KeyIndex, *, complete: bool = False) -> None:
+        """Index the shards the index does not know (a writer killed before indexing) and forget vanished ones."""
+        on_disk = {self._name_of(m): m for m in self._manifests()}
+        known = index.shards()
+        gone: list[Path] = []
+        fresh = self._read_all([on_disk[n] for n in sorted(on_disk.keys() - known)], gone)
+        index.add(((self._name_of(s.manifest), list(s.structures["key"])) for s in fresh), mark_complete=complete)
+        index.forget((known - on_disk.keys()) | {self._name_of(m) for m in gone})
+
+    def _indexed_shards(self, keys: Sequence[str], *, retry: bool = True) -> list[_Shard] | None:
+        """The verified shards the index names for ``keys``; None when there is no usable index."""
+        index = self._index_ready()
+        if index is None:
+            return None
+        try:
+            names = set(index.find(keys).values())
+            gone: list[Path] = []
+            shards = self._read_all([self._manifest_of(n) for n in sorted(names)], gone)
+            if gone:
+                # Moved by a concurrent compaction, removed, or damaged: bring the index up to date and ask again.
+                index.forget(self._name_of(m) for m in gone)
+                self._reconcile(index)
+                have = {self._name_of(s.manifest) for s in shards}
+                more = set(index.find(keys).values()) - have
+                shards += self._read_all([self._manifest_of(n) for n in sorted(more)])
+            return shards
+        except IndexDamaged:  # damaged under our feet: rebuilt once, then asked again
+            if retry:
+                warnings.warn("perception cache: its key index was damaged and is rebuilt from the entries",
+                              CacheWarning, stacklevel=3)
+                try:
+                    index.replace((self._name_of(s.manifest), list(s.structures["key"])) for s in self._read_all())
+                except (IndexDamaged, IndexUnavailable):
+                    return None
+                return self._indexed_shards(keys, retry=False)
+            return None
+        except IndexUnavailable:
+            return None
+
+    def _index_update(self, added: Sequence[tuple[Path, Sequence[str]]], removed: Sequence[Path] = ()) -> None:
+        """Record written and removed shards in the index; a failure only costs misses until the next reconcile."""
+        if self.index is None:
+            return
+        try:
+            self.index.add((self._name_of(m), list(k)) for m, k in added)
+            self.index.forget(self._name_of(m) for m in removed)
+        except (IndexDamaged, IndexUnavailable):
+            pass  # the next lookup or store rebuilds or reconciles it
+
     # ------------------------------------------------------------------ writing
 
     def store(self, keys: Sequence[str], perception: Perception) -> None:
@@ -321,17 +430,33 @@ class PerceptionCache:
         except OSError as exc:
             self._unusable(f"cannot create {self.folder} ({exc.strerror or exc})")
             return
-        structs = perception.structures.copy()
-        structs.insert(0, "key", pd.array(list(keys), dtype="string"))
         try:
-            self._write_shard(structs, perception.sites, perception.allylic)
-            if len(self._manifests()) > MAX_SHARDS:
-                self._compact()
+            self._write_chunks(list(keys), perception)
+            index = self._index_ready()
+            if index is not None:
+                try:
+                    self._reconcile(index)
+                except (IndexDamaged, IndexUnavailable):
+                    pass
+            self._compact()
             self._trim()
         except OSError as exc:
             self._unusable(f"cannot write in {self.folder} ({exc.strerror or exc})")
         except pa.ArrowException as exc:  # a frame that does not fit the schema is a bug, but never a failed screen
             self._unusable(f"cannot store these entries ({exc})")
+
+    def _write_chunks(self, keys: list[str], perception: Perception) -> list[Path]:
+        """Write ``keys`` as shards of at most :data:`SHARD_ROWS` structures, each indexed once it is visible."""
+        written = []
+        for start in range(0, len(keys), SHARD_ROWS):
+            rows = np.arange(start, min(start + SHARD_ROWS, len(keys)))
+            part = take(perception, rows) if len(rows) < len(keys) else perception
+            structs = part.structures.copy()
+            structs.insert(0, "key", pd.array(keys[start : start + SHARD_ROWS], dtype="string"))
+            manifest = self._write_shard(structs, part.sites, part.allylic)
+            self._index_update([(manifest, keys[start : start + SHARD_ROWS])])
+            written.append(manifest)
+        return written
 
     def _write_shard(self, structs: pd.DataFrame, sites: pd.DataFrame, allylic: pd.DataFrame) -> Path:
         """Write one shard: data files first, the manifest with their digests last (that makes it visible)."""
@@ -371,28 +496,42 @@ class PerceptionCache:
         return final
 
     def _compact(self) -> None:
-        """Merge every shard into one (fewer files to open and verify on every lookup)."""
-        shards = self._read_all()
+        """Merge small shards (fewer files per lookup) and split oversized ones (an earlier layout's single shard).
+
+        Full shards are left alone, so a store's work does not grow with the cache either.
+        """
+        small, oversized = [], []
+        for manifest in self._manifests():
+            rows = _manifest_rows(manifest)
+            if rows is None or rows < SHARD_ROWS // 2:
+                small.append(manifest)  # an unreadable manifest is read (and removed) with the small ones
+            elif rows > SHARD_ROWS:
+                oversized.append(manifest)
+        if len(small) <= MAX_SHARDS and not oversized:
+            return
+        shards = self._read_all(small + oversized)
         joined = self._join(shards)
-        if joined is None or len(shards) < 2:
+        if joined is None or (len(shards) < 2 and not oversized):
             return
         keys, perception, _ = joined
-        structs = perception.structures.copy()
-        structs.insert(0, "key", pd.array(list(keys), dtype="string"))
-        self._write_shard(structs, perception.sites, perception.allylic)
+        self._write_chunks(list(keys), perception)
         for shard in shards:
             _remove_shard(shard.manifest)
+        self._index_update([], [s.manifest for s in shards])
 
     def _trim(self) -> None:
         """Delete the least recently used shards until this fingerprint holds at most :data:`MAX_BYTES`."""
         manifests = sorted(self._manifests(), key=_mtime)
         sizes = [_shard_bytes(m) for m in manifests]
         total = sum(sizes)
+        dropped = []
         for manifest, size in zip(manifests, sizes):
             if total <= MAX_BYTES:
                 break
             _remove_shard(manifest)
+            dropped.append(manifest)
             total -= size
+        self._index_update([], dropped)
 
     # ------------------------------------------------------------------ housekeeping
 
@@ -429,8 +568,21 @@ class PerceptionCache:
                     shutil.rmtree(entry.path, ignore_errors=True)
             except OSError:
                 pass
+        try:
+            indexes = [e for e in os.scandir(self.root) if _INDEX_FILE.fullmatch(e.name)]
+        except OSError:
+            return
+        for entry in indexes:  # indexes of engine versions whose folder is gone
+            if not entry.name.startswith(self.folder.name + ".") and not (
+                    self.root / entry.name.split(".", 1)[0]).is_dir():
+                try:
+                    os.unlink(entry.path)
+                except OSError:
+                    pass
 
     def clear(self) -> None:
         """Remove every entry of this engine fingerprint."""
-        for manifest in self._manifests():
+        manifests = self._manifests()
+        for manifest in manifests:
             _remove_shard(manifest)
+        self._index_update([], manifests)

@@ -310,13 +310,23 @@ def _perceive_with_cache(
     progress: ProgressFn | None,
     cancel: threading.Event | None,
     caller_helps: bool,
+    dask_client: object | None = None,
 ) -> Perception:
     store = PerceptionCache(cache_folder) if use_cache and max_heavy_atoms == DEFAULT_MAX_HEAVY_ATOMS else None
-    if store is None:
+
+    def run(smiles: list[str], progress: ProgressFn | None) -> Perception:
+        if dask_client is not None:  # the cluster perceives; cache, order and weighing stay here
+            from halosift.engine.distributed import perceive_on_cluster
+
+            return perceive_on_cluster(smiles, client=dask_client, max_heavy_atoms=max_heavy_atoms,
+                                       progress=progress, cancel=cancel)
         return perceive_parallel(
-            keys, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False,
+            smiles, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False,
             caller_helps=caller_helps,
         )
+
+    if store is None:
+        return run(keys, progress)
     hit, cached = store.lookup(keys)
     miss_idx = np.flatnonzero(~hit)
     missing = [keys[i] for i in miss_idx]
@@ -326,10 +336,7 @@ def _perceive_with_cache(
         if progress:
             progress(n_hit + done, n_hit + total)
 
-    fresh = perceive_parallel(
-        missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel, detail=False,
-        caller_helps=caller_helps,
-    )
+    fresh = run(missing, shifted)
     store.store(missing, fresh)
     if cached is None:
         return fresh
@@ -353,6 +360,7 @@ def load_library(
     progress: ProgressFn | None = None,
     cancel: threading.Event | None = None,
     caller_helps: bool = False,
+    dask: object | None = None,
 ) -> Library:
     """Read a library file (or DataFrame) and perceive it.
 
@@ -363,7 +371,37 @@ def load_library(
     :class:`halosift.engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
     receives (rows done, rows in all), rows done being estimated from the
     share of distinct structures perceived; it is called from this thread.
+
+    ``dask``: perceive on a Dask cluster instead of local processes: a
+    ``distributed.Client``, a scheduler address or ``local:N``
+    (see :mod:`halosift.engine.distributed`). ``source`` may then also be a Dask
+    DataFrame; given one without ``dask``, the client it already uses perceives.
     """
+    from halosift.engine.distributed import dask_for
+
+    with dask_for(source, dask) as (source, client):
+        return _load_library(
+            source, smiles_column=smiles_column, id_column=id_column, workers=workers, use_cache=use_cache,
+            cache_folder=cache_folder, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel,
+            caller_helps=caller_helps, dask_client=client,
+        )
+
+
+def _load_library(
+    source: str | Path | pd.DataFrame,
+    *,
+    smiles_column: str | None,
+    id_column: str | None,
+    workers: int | None,
+    use_cache: bool,
+    cache_folder: Path | None,
+    max_heavy_atoms: int,
+    progress: ProgressFn | None,
+    cancel: threading.Event | None,
+    caller_helps: bool,
+    dask_client: object | None,
+) -> Library:
+    """:func:`load_library` with the Dask client (or None) settled."""
     from halosift.engine.io import open_frame, open_library
 
     if isinstance(source, pd.DataFrame):
@@ -401,6 +439,7 @@ def load_library(
     perception = _perceive_with_cache(
         keys, workers=workers, use_cache=use_cache, cache_folder=cache_folder,
         max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel, caller_helps=caller_helps,
+        dask_client=dask_client,
     )
     return Library(
         input=frame,

@@ -153,6 +153,9 @@ def build_parser() -> argparse.ArgumentParser:
     _add_screen_conditions(sc)
     _add_library_options(sc)
     _add_run_options(sc)
+    sc.add_argument("--dask", metavar="ADDRESS",
+                    help="perceive on a Dask cluster: its scheduler address (tcp://host:8786), or local:N for N "
+                    "worker processes here (needs pip install 'halosift[dask]')")
     sc.add_argument("--quiet", action="store_true", help="no progress bar and no summary")
 
     rp = sub.add_parser("report", help="write a printable HTML report: summary charts and one drawn entry per substrate")
@@ -319,7 +322,11 @@ def _screen(args: argparse.Namespace) -> int:
         out_format = _stdout_format(args) if to_stdout else None
     except ValueError as exc:
         return _fail(str(exc))
+    from halosift.engine.distributed import DaskError, parse_target
+
     try:
+        if args.dask is not None:
+            parse_target(args.dask)  # a malformed address fails before any file is read
         if out_format is None:
             _check_out_format(args)
             check_output(args.output, force=args.force, protect=_protected(args))
@@ -333,7 +340,7 @@ def _screen(args: argparse.Namespace) -> int:
             else:
                 written = str(write_table(result, args.output, metadata=meta, force=args.force,
                                           protect=_protected(args)))
-    except LibraryError as exc:
+    except (LibraryError, DaskError) as exc:
         return _fail(str(exc))
     except Cancelled:
         return _fail("cancelled")
@@ -497,6 +504,7 @@ def _load(args: argparse.Namespace, path: str, *, quiet: bool):
         return load_library(
             path, smiles_column=args.smiles_column, id_column=args.id_column, workers=args.workers,
             use_cache=not args.no_cache, progress=bar, caller_helps=True,  # no interface to keep free here
+            dask=getattr(args, "dask", None),
         )
     finally:
         bar.close()

@@ -344,8 +344,10 @@ class _Assembler:
         start = time.monotonic()
         if start >= self.next_at:
             self.deliver(self.build())
-            # Delivering (building, and the caller's evaluation) takes at most a third of the time.
-            self.next_at = start + max(self.interval, 3 * (time.monotonic() - start))
+            # Delivering (building, and the caller's evaluation) takes at most a third of the time;
+            # an interval of 0 hands on every chunk.
+            cost = time.monotonic() - start
+            self.next_at = start + max(self.interval, 3 * cost) if self.interval > 0 else start
 
     def build(self) -> Library:
         """The library so far: one pending structure for every string not yet done, then the rest in arrival order."""
@@ -446,7 +448,8 @@ def load_library(
     ``partial``: called from this thread with the library perceived so far
     (:attr:`Library.partial` set; rows not perceived yet have status
     :data:`PENDING`), at once when anything is cached or the first chunk is
-    done, then at most every ``partial_interval`` seconds; the complete library
+    done, then at most every ``partial_interval`` seconds (and spaced so that
+    handing them on takes at most a third of the time; 0: after every chunk); the complete library
     is returned as usual. A cancel keeps what was perceived in the cache.
 
     Raises :class:`halosift.engine.io.LibraryError` for whole-file problems and

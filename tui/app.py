@@ -268,6 +268,7 @@ class HalosiftApp(App[int]):
         here, off the interface thread), the whole library last (ScreeningFinished).
         """
         from halosift import engine
+        from halosift.engine.library import PENDING
 
         last = [0.0]
         start: list[tuple[Any, str | None, str, Conditions]] = []  # (session, key, note, conditions), once known
@@ -298,7 +299,10 @@ class HalosiftApp(App[int]):
                 return
             session, key, note, conditions = begin(len(library.input))
             conditions = self.conditions or conditions  # the chemist may have changed them meanwhile
-            self.post_message(ScreeningPartial(library, library.evaluate(conditions), conditions, session, key, note))
+            frame = library.evaluate(conditions)
+            status = frame["status"].to_numpy()
+            self.post_message(ScreeningPartial(library, frame, conditions, session, key, note,
+                                               int((status == "ok").sum()), int((status == PENDING).sum())))
 
         try:
             library = engine.load_library(
@@ -360,6 +364,9 @@ class HalosiftApp(App[int]):
         )
 
     def on_screening_partial(self, message: ScreeningPartial) -> None:
+        if self.phase in ("screening", "streaming"):
+            n = len(message.frame)
+            self._counts = (message.screened, n - message.screened - message.pending, message.pending)
         self._take_library(message, complete=False)
 
     def on_screening_finished(self, message: ScreeningFinished) -> None:
@@ -812,7 +819,12 @@ class HalosiftApp(App[int]):
     # ------------------------------------------------------------------ table messages
 
     def on_cursor_moved(self, message: CursorMoved) -> None:
-        info = self.query_one("#rowinfo", Static)
+        from textual.css.query import NoMatches
+
+        try:
+            info = self.query_one("#rowinfo", Static)
+        except NoMatches:  # the app is closing (rows may arrive up to the last moment)
+            return
         if message.row < 0 or self.frame is None:
             info.update("no rows in this view" if self.frame is not None else "")
             return

@@ -56,6 +56,10 @@ class ScreeningPartial(Message):
     """As for :class:`ScreeningFinished`."""
     session_note: str = ""
     """As for :class:`ScreeningFinished`."""
+    screened: int = 0
+    """Rows of ``frame`` with status ok."""
+    pending: int = 0
+    """Rows of ``frame`` not perceived yet."""
 
 
 @dataclass

@@ -33,10 +33,23 @@ def _verdict(value: float, target: float) -> str:
     return "met" if value <= target else "MISSED"
 
 
-async def _run_app(path: Path, timeout: float) -> dict[str, float | int | str]:
-    """Open ``path`` in the app and measure until the whole library is shown."""
+async def _run_app(path: Path, timeout: float, stream: bool = True) -> dict[str, float | int | str]:
+    """Open ``path`` in the app and measure until the whole library is shown.
+
+    ``stream=False``: the app as it was, with no rows until the whole library is perceived
+    (the engine is not handed the partial callback), to compare the interface-thread gaps.
+    """
+    from halosift import engine
     from halosift.tui.app import HalosiftApp
     from halosift.tui.table import LibraryTable
+
+    real_load = engine.load_library
+    if not stream:
+        def whole_only(*args, **kwargs):
+            kwargs.pop("partial", None)
+            return real_load(*args, **kwargs)
+
+        engine.load_library = whole_only
 
     t0 = time.perf_counter()
     app = HalosiftApp(str(path), sessions=False)
@@ -67,6 +80,7 @@ async def _run_app(path: Path, timeout: float) -> dict[str, float | int | str]:
             await pilot.pause(0.05)
         figures["rows_final"] = len(app.query_one(LibraryTable).rows)
         figures["rows_in_frame"] = len(app.frame)
+    engine.load_library = real_load
     worst = max(gaps, default=(0.0, 0.0, "", 0))
     figures["ui_block_ms"] = max(0.0, worst[0]) * 1000
     figures["ui_block_cpu_ms"] = worst[1] * 1000
@@ -97,6 +111,7 @@ def _bounds(smiles: list[str], first_chunk: int) -> dict[str, float]:
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--unique", type=int, default=21_800, help="new unique structures (default 21,800)")
+    parser.add_argument("--no-baseline", action="store_true", help="skip the run without streaming")
     parser.add_argument("--timeout", type=float, default=300.0, help="give up after this many seconds")
     args = parser.parse_args()
 
@@ -118,6 +133,12 @@ def main() -> int:
         load_before = os.getloadavg()[0]
         figures = asyncio.run(_run_app(path, args.timeout))
         load_after = os.getloadavg()[0]
+        baseline = None
+        if not args.no_baseline:
+            import shutil
+
+            shutil.rmtree(folder / "cache", ignore_errors=True)  # empty again: the same work
+            baseline = asyncio.run(_run_app(path, args.timeout, stream=False))
         bounds = _bounds(smiles, FIRST_CHUNK)
 
     first = float(figures.get("first_rows_s", float("nan")))
@@ -133,6 +154,10 @@ def main() -> int:
           f"{float(figures['ui_cpu_block_ms']):.0f} ms (at {figures['ui_cpu_block_when']})")
     print(f"    machine load average (1 min) before / after: {load_before:.1f} / {load_after:.1f} on "
           f"{os.cpu_count()} cores")
+    if baseline is not None:
+        print(f"    for comparison, the same screen without streaming (no rows until the end): longest gap "
+              f"{float(baseline['ui_block_ms']):.0f} ms ({float(baseline['ui_block_cpu_ms']):.0f} ms of it computed), "
+              f"total {float(baseline['total_s']):.2f} s")
     print(f"(c) whole library perceived and shown: {float(figures['total_s']):.2f} s "
           f"({figures['rows_final']:,} rows listed of {figures['rows_in_frame']:,})")
     print(f"(d) bounds of (a): one worker process start (spawn + imports) {bounds['spawn_s']:.2f} s, "

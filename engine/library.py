@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import threading
+import time
 from collections.abc import Callable, Hashable, Sequence
 from dataclasses import dataclass, field
+from functools import cache
 from pathlib import Path
 
 import numpy as np
@@ -12,7 +14,7 @@ import pandas as pd
 
 from halosift.engine.cache import PerceptionCache, take
 from halosift.engine.conditions import REAGENTS, Conditions
-from halosift.engine.parallel import perceive_parallel
+from halosift.engine.parallel import Cancelled, perceive_parallel
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.perception import Perception, concat, perceive
 from halosift.engine.site_classes import ABSTRACTABLE
@@ -176,6 +178,9 @@ class Library:
     """The file read, when the library came from a file."""
     replaced: tuple[Hashable, ...] = ()
     """Columns of the input that held an earlier screen's results, replaced by this screen's."""
+    partial: bool = False
+    """True while structures are still being perceived: their rows have status :data:`PENDING`
+    (only the libraries :func:`load_library` hands to its ``partial`` callback)."""
     _summaries: dict = field(default_factory=dict, repr=False, compare=False)
     """Memo of per-structure summaries by conditions (small: the app revisits few)."""
     _parts: dict = field(default_factory=dict, repr=False, compare=False)
@@ -298,6 +303,72 @@ class Library:
 
 
 ProgressFn = Callable[[int, int], None]
+#: Status of a row whose structure is not perceived yet (partial libraries only).
+PENDING = "pending"
+#: Seconds between the partial libraries :func:`load_library` hands on (the first goes at once).
+PARTIAL_INTERVAL = 0.5
+#: Called with the indices (into the distinct strings) of structures just perceived, and their perception.
+PartFn = Callable[[np.ndarray, Perception], None]
+
+
+@cache
+def _pending_structure() -> Perception:
+    """One structure standing for every structure not perceived yet: no sites, status :data:`PENDING`."""
+    empty = perceive([""])  # no RDKit call: an empty string is rejected at once; gives every column its type
+    structures = empty.structures.assign(status=PENDING, reason_code=PENDING, reason="not perceived yet")
+    return Perception(structures, empty.sites, empty.allylic)
+
+
+class _Assembler:
+    """Collects perceived structures as they arrive and builds the partial libraries from them.
+
+    Each partial library extends the one before: its perception is the earlier
+    one with the new chunks appended (the pending structure is structure 0), and
+    every summary the caller had it work out is carried over with only the new
+    chunks weighed (summaries are per structure), so a delivery costs little
+    more than the new rows.
+    """
+
+    def __init__(self, n_keys: int, make: Callable[[np.ndarray, Perception], Library], deliver: Callable[[Library], None],
+                 interval: float) -> None:
+        self.n_keys = n_keys
+        """Distinct strings in the library."""
+        self.make = make
+        """(struct per distinct string, perception) → a Library."""
+        self.deliver = deliver
+        """The caller's ``partial`` callback."""
+        self.interval = interval
+        """Least seconds between two deliveries."""
+        self.struct = np.zeros(n_keys, dtype=np.int32)  # 0: the pending structure
+        self.new: list[tuple[np.ndarray, Perception]] = []  # arrived since the last delivery
+        self.previous: Library | None = None
+        self.next_at = -float("inf")
+
+    def add(self, indices: np.ndarray, part: Perception) -> None:
+        """Take perceived structures; hand on a partial library when the interval has passed (the first at once)."""
+        self.new.append((np.asarray(indices, dtype=np.int64), part))
+        start = time.monotonic()
+        if start >= self.next_at:
+            self.deliver(self.build())
+            # Delivering (building, and the caller's evaluation) takes at most a third of the time;
+            # an interval of 0 hands on every chunk.
+            cost = time.monotonic() - start
+            self.next_at = start + max(self.interval, 3 * cost) if self.interval > 0 else start
+
+    def build(self) -> Library:
+        """The library so far: one pending structure for every string not yet done, then the rest in arrival order."""
+        before = self.previous.perception if self.previous is not None else _pending_structure()
+        offset = len(before)
+        for indices, part in self.new:
+            self.struct[indices] = offset + np.arange(len(part), dtype=np.int32)
+            offset += len(part)
+        fresh = concat([p for _, p in self.new])
+        library = self.make(self.struct.copy(), concat([before, fresh]))
+        if self.previous is not None:
+            for conditions, summary in self.previous._summaries.items():
+                library._summaries[conditions] = pd.concat([summary, summarise(fresh, conditions)], ignore_index=True)
+        self.previous, self.new = library, []
+        return library
 
 
 def _perceive_with_cache(
@@ -311,33 +382,54 @@ def _perceive_with_cache(
     cancel: threading.Event | None,
     caller_helps: bool,
     dask_client: object | None = None,
+    on_part: PartFn | None = None,
 ) -> Perception:
+    """Perceive ``keys`` in order, cached ones from the cache.
+
+    ``on_part`` receives the cached structures first, then each chunk as it is
+    perceived. On :class:`Cancelled` the chunks perceived so far are stored
+    before it propagates, so the next screen of the library resumes.
+    """
     store = PerceptionCache(cache_folder) if use_cache and max_heavy_atoms == DEFAULT_MAX_HEAVY_ATOMS else None
-
-    def run(smiles: list[str], progress: ProgressFn | None) -> Perception:
-        if dask_client is not None:  # the cluster perceives; cache, order and weighing stay here
-            from halosift.engine.distributed import perceive_on_cluster
-
-            return perceive_on_cluster(smiles, client=dask_client, max_heavy_atoms=max_heavy_atoms,
-                                       progress=progress, cancel=cancel)
-        return perceive_parallel(
-            smiles, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel, detail=False,
-            caller_helps=caller_helps,
-        )
-
     if store is None:
-        return run(keys, progress)
-    hit, cached = store.lookup(keys)
+        hit, cached = np.zeros(len(keys), dtype=bool), None
+    else:
+        hit, cached = store.lookup(keys)
     miss_idx = np.flatnonzero(~hit)
     missing = [keys[i] for i in miss_idx]
     n_hit = int(hit.sum())
+    if on_part is not None and cached is not None and n_hit:
+        on_part(np.flatnonzero(hit), cached)
+    received: list[tuple[int, Perception]] = []
+
+    def part_done(start: int, part: Perception) -> None:
+        received.append((start, part))
+        if on_part is not None:
+            on_part(miss_idx[start:start + len(part)], part)
 
     def shifted(done: int, total: int) -> None:
         if progress:
             progress(n_hit + done, n_hit + total)
 
-    fresh = run(missing, shifted)
-    store.store(missing, fresh)
+    try:
+        if dask_client is not None:  # the cluster perceives; cache, order and weighing stay here
+            from halosift.engine.distributed import perceive_on_cluster
+
+            fresh = perceive_on_cluster(missing, client=dask_client, max_heavy_atoms=max_heavy_atoms,
+                                        progress=shifted, cancel=cancel)
+        else:
+            fresh = perceive_parallel(
+                missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel,
+                detail=False, caller_helps=caller_helps,
+                on_part=part_done if (store is not None or on_part is not None) else None,
+            )
+    except Cancelled:
+        if store is not None and received:  # keep what is done: the next screen perceives only the rest
+            store.store([missing[i] for start, part in received for i in range(start, start + len(part))],
+                        concat([part for _, part in received]))
+        raise
+    if store is not None:
+        store.store(missing, fresh)
     if cached is None:
         return fresh
     # Interleave cached and fresh results back into key order.
@@ -361,11 +453,19 @@ def load_library(
     cancel: threading.Event | None = None,
     caller_helps: bool = False,
     dask: object | None = None,
+    partial: Callable[[Library], None] | None = None,
+    partial_interval: float = PARTIAL_INTERVAL,
 ) -> Library:
     """Read a library file (or DataFrame) and perceive it.
 
     ``caller_helps``: this thread perceives too, alongside one worker process
     fewer (batch runs; see :func:`halosift.engine.parallel.perceive_parallel`).
+    ``partial``: called from this thread with the library perceived so far
+    (:attr:`Library.partial` set; rows not perceived yet have status
+    :data:`PENDING`), at once when anything is cached or the first chunk is
+    done, then at most every ``partial_interval`` seconds (and spaced so that
+    handing them on takes at most a third of the time; 0: after every chunk); the complete library
+    is returned as usual. A cancel keeps what was perceived in the cache.
 
     Raises :class:`halosift.engine.io.LibraryError` for whole-file problems and
     :class:`halosift.engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
@@ -383,7 +483,7 @@ def load_library(
         return _load_library(
             source, smiles_column=smiles_column, id_column=id_column, workers=workers, use_cache=use_cache,
             cache_folder=cache_folder, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel,
-            caller_helps=caller_helps, dask_client=client,
+            caller_helps=caller_helps, dask_client=client, partial=partial, partial_interval=partial_interval,
         )
 
 
@@ -400,6 +500,8 @@ def _load_library(
     cancel: threading.Event | None,
     caller_helps: bool,
     dask_client: object | None,
+    partial: Callable[[Library], None] | None = None,
+    partial_interval: float = PARTIAL_INTERVAL,
 ) -> Library:
     """:func:`load_library` with the Dask client (or None) settled."""
     from halosift.engine.io import open_frame, open_library
@@ -436,21 +538,31 @@ def _load_library(
         if progress is not None:
             progress(n_rows if done >= total else int(n_rows * done / max(total, 1)), n_rows)
 
+    read_errors = np.array(errors, dtype=object)
+
+    def make(struct_of_key: np.ndarray, perception: Perception, partial: bool = False) -> Library:
+        return Library(
+            input=frame,
+            smiles_column=src.smiles_column,
+            id_column=src.id_column,
+            row_struct=struct_of_key[codes].astype(np.int32),
+            perception=perception,
+            read_errors=read_errors,
+            source=path,
+            replaced=tuple(replaced),
+            partial=partial,
+        )
+
+    on_part = None
+    if partial is not None:
+        on_part = _Assembler(len(keys), lambda s, p: make(s, p, True), partial, partial_interval).add
     perception = _perceive_with_cache(
         keys, workers=workers, use_cache=use_cache, cache_folder=cache_folder,
         max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel, caller_helps=caller_helps,
         dask_client=dask_client,
+        on_part=on_part,
     )
-    return Library(
-        input=frame,
-        smiles_column=src.smiles_column,
-        id_column=src.id_column,
-        row_struct=codes.astype(np.int32),
-        perception=perception,
-        read_errors=np.array(errors, dtype=object),
-        source=path,
-        replaced=tuple(replaced),
-    )
+    return make(np.arange(len(keys), dtype=np.int32), perception)
 
 
 def screen(

@@ -31,6 +31,9 @@ CHUNK = 2_000
 #: short and no worker waits long for another to finish.
 MIN_CHUNK = 100
 TASKS_PER_WORKER = 4
+#: Most strings in each worker's first task when the caller takes results as they come (``on_part``):
+#: the first rows are on screen within a fraction of a second of the workers starting.
+FIRST_CHUNK = 200
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
 #: Seconds between a worker's checks that the process that started it is still alive.
@@ -157,14 +160,15 @@ def _from_batches(structures: pa.RecordBatch, sites: pa.RecordBatch, allylic: pa
     return Perception(structures.to_pandas(), sites.to_pandas(), frame_from_rows(allylic.to_pandas()))
 
 
-def chunk_bounds(total: int, workers: int) -> list[tuple[int, int]]:
+def chunk_bounds(total: int, workers: int, first: int = 0) -> list[tuple[int, int]]:
     """(start, stop) of each task: up to :data:`CHUNK` strings, shrinking towards the end.
 
     One worker gets full-size tasks. With more, each task takes what is left
     divided by ``workers`` × :data:`TASKS_PER_WORKER` (at least
-    :data:`MIN_CHUNK`, at most :data:`CHUNK`).
+    :data:`MIN_CHUNK`, at most :data:`CHUNK`). ``first`` > 0: each worker's
+    first task holds at most that many strings.
     """
-    bounds = []
+    bounds: list[tuple[int, int]] = []
     start = 0
     while start < total:
         if workers > 1:
@@ -172,6 +176,8 @@ def chunk_bounds(total: int, workers: int) -> list[tuple[int, int]]:
         else:
             size = CHUNK
         size = max(1, min(size, CHUNK))  # a test may shrink CHUNK below MIN_CHUNK
+        if first > 0 and len(bounds) < max(1, workers):
+            size = min(size, first)
         bounds.append((start, min(start + size, total)))
         start += size
     return bounds
@@ -191,6 +197,7 @@ def perceive_parallel(
     cancel: threading.Event | None = None,
     detail: bool = True,
     caller_helps: bool = False,
+    on_part: Callable[[int, Perception], None] | None = None,
 ) -> Perception:
     """Perceive many strings, in worker processes when it pays; order is kept.
 
@@ -200,10 +207,14 @@ def perceive_parallel(
     collecting results, so ``workers`` counts it and one process fewer is
     started (one interpreter and import fewer). For batch runs only: in an
     interactive app the calling process must stay free for the interface.
+    ``on_part(start, part)``: called from this thread as each task's perception
+    arrives (in any order), ``start`` being the position of its first string
+    in ``smiles``; the first tasks are then small (:data:`FIRST_CHUNK`).
     """
     total = len(smiles)
     workers = capped_workers(workers)
-    chunks = [list(smiles[start:stop]) for start, stop in chunk_bounds(total, workers)]
+    bounds = chunk_bounds(total, workers, FIRST_CHUNK if on_part is not None else 0)
+    chunks = [list(smiles[start:stop]) for start, stop in bounds]
     parts: list[Perception | None] = [None] * len(chunks)
     done = 0
     if progress:
@@ -212,8 +223,10 @@ def perceive_parallel(
         for i, chunk in enumerate(chunks):
             if cancel is not None and cancel.is_set():
                 raise Cancelled()
-            parts[i] = perceive(chunk, max_heavy_atoms, detail)
+            parts[i] = part = perceive(chunk, max_heavy_atoms, detail)
             done += len(chunk)
+            if on_part:
+                on_part(bounds[i][0], part)
             if progress:
                 progress(done, total)
         return concat([p for p in parts if p is not None])
@@ -233,6 +246,8 @@ def perceive_parallel(
             nonlocal done
             parts[i] = part
             done += len(chunks[i])
+            if on_part:
+                on_part(bounds[i][0], part)
             if progress:
                 progress(done, total)
 

@@ -40,6 +40,7 @@ from halosift.tui.messages import (
     MarkRequested,
     PanelClosed,
     ScreeningFinished,
+    ScreeningPartial,
     ScreeningProgress,
     ScreeningStopped,
     SearchChanged,
@@ -146,7 +147,8 @@ class HalosiftApp(App[int]):
     ]
 
     phase: reactive[str] = reactive("screening")
-    """screening (worker running), ready (a library is loaded) or stopped (cancelled or failed)."""
+    """screening (worker running, no rows yet), streaming (worker running, the rows perceived so far shown),
+    ready (the whole library is loaded) or stopped (cancelled or failed; rows perceived before stay shown)."""
     view: reactive[str] = reactive("library", init=False)
     """Which rows the table lists: one of :data:`halosift.tui.filters.VIEWS`."""
     filters: reactive[FilterSpec] = reactive(FilterSpec, init=False)
@@ -207,7 +209,7 @@ class HalosiftApp(App[int]):
         self._applied_generation = 0
         self._site_choices: tuple[Any, list[str]] = (None, [])
         self._orders = OrderCache()
-        self._counts = (0, 0)
+        self._counts = (0, 0, 0)
         self._to_top = False
         self._undo: list[MarksUndo] = []
         self._titles: dict[Hashable, str] = {key: label for key, label, _, _ in MORE_COLUMNS}
@@ -217,6 +219,9 @@ class HalosiftApp(App[int]):
         self._session_lock = threading.Lock()
         self._session_seq = 0
         self._session_written = 0
+        self._run_taken = False  # the current screen has delivered rows
+        self._stop_note = ""  # why a screen stopped with part of the library shown
+        self._keep_place_generation = -1  # the view request made for newly perceived rows
 
     # ------------------------------------------------------------------ layout
 
@@ -250,7 +255,10 @@ class HalosiftApp(App[int]):
 
     def _start_screening(self) -> None:
         self._cancel = threading.Event()
-        self.phase = "screening"
+        self._run_taken = False
+        self._stop_note = ""
+        # Resuming a stopped screen: the rows perceived before stay on screen (and come back from the cache).
+        self.phase = "streaming" if self.library is not None and self.library.partial else "screening"
         bar = self.query_one("#screening-progress", ProgressBar)
         bar.update(total=None, progress=0)
         self.query_one("#screening-label", Label).update(f"Screening {self.source_name}…")
@@ -258,16 +266,47 @@ class HalosiftApp(App[int]):
 
     @work(thread=True, exclusive=True, group="screen", exit_on_error=False)
     def _screen(self, cancel: threading.Event) -> None:
-        """Read and perceive the library, then evaluate it under default conditions."""
+        """Read and perceive the library, then evaluate it under default conditions.
+
+        The rows perceived so far go up as they come (ScreeningPartial, evaluated
+        here, off the interface thread), the whole library last (ScreeningFinished).
+        """
         from halosift import engine
+        from halosift.engine.library import PENDING
 
         last = [0.0]
+        start: list[tuple[Any, str | None, str, Conditions]] = []  # (session, key, note, conditions), once known
 
         def progress(done: int, total: int | None) -> None:
             now = time.monotonic()
             if now - last[0] >= PROGRESS_INTERVAL or (total is not None and done >= total):
                 last[0] = now
                 self.post_message(ScreeningProgress(done, total))
+
+        def begin(n_rows: int) -> tuple[Any, str | None, str, Conditions]:
+            """The session and conditions to start from (read once the row count is known)."""
+            if not start:
+                session, key, note = self._read_session(n_rows)
+                conditions = self.conditions
+                if conditions is None:
+                    from halosift.tui.session import initial_conditions
+
+                    # Saved conditions, with the command line's explicit options winning field by field.
+                    conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
+                                                               self.explicit_conditions)
+                    note = " ".join(n for n in (note, cond_note) if n)
+                start.append((session, key, note, conditions))
+            return start[0]
+
+        def partial(library: Library) -> None:
+            if cancel.is_set():
+                return
+            session, key, note, conditions = begin(len(library.input))
+            conditions = self.conditions or conditions  # the chemist may have changed them meanwhile
+            frame = library.evaluate(conditions)
+            status = frame["status"].to_numpy()
+            self.post_message(ScreeningPartial(library, frame, conditions, session, key, note,
+                                               int((status == "ok").sum()), int((status == PENDING).sum())))
 
         try:
             library = engine.load_library(
@@ -277,16 +316,10 @@ class HalosiftApp(App[int]):
                 use_cache=self.use_cache,
                 progress=progress,
                 cancel=cancel,
+                partial=partial,
             )
-            session, key, note = self._read_session(len(library.input))
-            conditions = self.conditions
-            if conditions is None:
-                from halosift.tui.session import initial_conditions
-
-                # Saved conditions, with the command line's explicit options winning field by field.
-                conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
-                                                           self.explicit_conditions)
-                note = " ".join(n for n in (note, cond_note) if n)
+            session, key, note, conditions = begin(len(library.input))
+            conditions = self.conditions or conditions
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -334,23 +367,41 @@ class HalosiftApp(App[int]):
             f"Screening {self.source_name}: {_count(message.done)}{total} structures perceived"
         )
 
+    def on_screening_partial(self, message: ScreeningPartial) -> None:
+        if self.phase in ("screening", "streaming"):
+            n = len(message.frame)
+            self._counts = (message.screened, n - message.screened - message.pending, message.pending)
+        self._take_library(message, complete=False)
+
     def on_screening_finished(self, message: ScreeningFinished) -> None:
+        self._take_library(message, complete=True)
+
+    def _take_library(self, message: ScreeningPartial | ScreeningFinished, complete: bool) -> None:
+        """Show a (partial or whole) library; the first of a screen also sets marks, conditions and the session."""
+        if self.phase not in ("screening", "streaming"):
+            return  # the screen stopped meanwhile
+        first = not self._run_taken
+        self._run_taken = True
         self.library = message.library
         self.frame = message.frame
         self.frame_conditions = message.conditions
-        self.marked = np.zeros(len(message.frame), dtype=bool)
-        self._undo = []
-        self._orders = OrderCache()  # sort orders of an earlier load do not apply
-        self.set_reactive(HalosiftApp.conditions, message.conditions)
-        if message.session_key is not None:
-            self.session_key = message.session_key
-        if message.session is not None and not self._session_restored:
-            self._restore_session(message.session)
-        self._session_restored = True
-        if message.session_note:
-            self.notify(message.session_note, title="Session", severity="warning", timeout=10)
-        self.phase = "ready"
+        self._orders = OrderCache()  # sort orders of other rows do not apply
+        if first:
+            if len(self.marked) != len(message.frame):  # a resumed screen keeps the marks made meanwhile
+                self.marked = np.zeros(len(message.frame), dtype=bool)
+                self._undo = []
+            self.set_reactive(HalosiftApp.conditions, message.conditions)
+            if message.session_key is not None:
+                self.session_key = message.session_key
+            if message.session is not None and not self._session_restored:
+                self._restore_session(message.session)
+            self._session_restored = True
+            if message.session_note:
+                self.notify(message.session_note, title="Session", severity="warning", timeout=10)
+        self.phase = "ready" if complete else "streaming"
         self._request_view()
+        if not first:
+            self._keep_place_generation = self._generation  # new rows: the cursor's row stays where it is on screen
 
     def _restore_session(self, saved: Any) -> None:
         """Take marks, sort, filters, view and column choices from a saved session (conditions came with the frame)."""
@@ -452,16 +503,28 @@ class HalosiftApp(App[int]):
 
     def on_screening_stopped(self, message: ScreeningStopped) -> None:
         self.phase = "stopped"
+        if self.library is not None and self.library.partial:
+            # The rows perceived so far stay usable (and are cached); r perceives only the rest.
+            self._stop_note = "stopped" if message.cancelled else message.message
+            self._update_status()
+            return
         hint = "Press r to screen again, q to quit." if message.cancelled else "Press r to try again, q to quit."
         self.query_one("#counts", Static).update(message.message)
         self.query_one("#settings", Static).update(hint)
 
+    @property
+    def rows_shown(self) -> bool:
+        """True while the table lists rows: the whole library, or the part perceived so far."""
+        return self.phase == "ready" or (self.phase in ("streaming", "stopped") and self.library is not None)
+
     def watch_phase(self, phase: str) -> None:
+        shown = self.rows_shown
         self.query_one("#screening").display = phase == "screening"
-        self.query_one("#table").display = phase == "ready"
-        self.query_one("#rowinfo").display = phase == "ready"
-        if phase == "ready":
-            self.query_one(LibraryTable).focus()
+        self.query_one("#table").display = shown
+        self.query_one("#rowinfo").display = shown
+        if shown:
+            if self.focused is None and len(self.screen_stack) == 1:  # never taken from a field being typed in
+                self.query_one(LibraryTable).focus()
         else:
             self.set_focus(None)  # nothing to type into or move through until a library is loaded
         if phase == "screening":
@@ -477,22 +540,25 @@ class HalosiftApp(App[int]):
         if action in ("leave", "help"):
             return not typing
         if action == "cancel_screening":
-            return self.phase == "screening"
+            return self.phase in ("screening", "streaming")
         if action == "rescreen":
             return self.phase == "stopped"
         if action not in TABLE_ACTIONS:
             return True  # Textual's own actions (focus next/previous, ...) are never restricted
         # Table commands act on the main screen only (not under detail, help or a dialog).
-        if not (self.phase == "ready" and len(self.screen_stack) == 1 and not typing):
+        if not (self.rows_shown and len(self.screen_stack) == 1 and not typing):
             return False
-        if action == "export" and self.busy:
-            return None  # shown greyed: the table is about to change, export what it will show
+        if action == "export" and (self.busy or (self.library is not None and self.library.partial)):
+            return None  # shown greyed: the table is about to change, or not every row is perceived yet
         return True
 
     def action_cancel_screening(self) -> None:
         """Stop the screening worker (it stops at the next batch)."""
         self._cancel.set()
         self.query_one("#screening-label", Label).update("Cancelling…")
+        if self.phase == "streaming":
+            self._stop_note = "stopping"
+            self._update_status()
 
     def action_rescreen(self) -> None:
         """Start screening again after a cancel or a failure."""
@@ -547,6 +613,7 @@ class HalosiftApp(App[int]):
         text_columns: tuple[list[Hashable], list[Hashable]],
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
+        from halosift.engine.library import PENDING
         from halosift.tui.filters import ordered_rows, view_mask
 
         worker = get_current_worker()
@@ -556,13 +623,16 @@ class HalosiftApp(App[int]):
             if worker.is_cancelled:
                 return
             mask = view_mask(frame, view, spec, marked, *text_columns)
+            status = frame["status"].to_numpy()
+            pending = status == PENDING
+            mask = mask & ~pending  # not perceived yet: in no view until it is (the header counts it)
             rows = ordered_rows(mask, self._sort_order(library, conditions, frame, sort))
-            screened = int((frame["status"] == "ok").sum())
+            screened = int((status == "ok").sum())
         except Exception as exc:  # a bug: report it in one line
             self.post_message(ViewFailed(generation, f"{type(exc).__name__}: {one_line(exc)}"))
             return
         if not worker.is_cancelled:
-            self.post_message(ViewComputed(generation, conditions, frame, rows, screened))
+            self.post_message(ViewComputed(generation, conditions, frame, rows, screened, int(pending.sum())))
 
     def _sort_order(
         self, library: Library, conditions: Conditions, frame: pd.DataFrame, sort: SortSpec
@@ -586,10 +656,15 @@ class HalosiftApp(App[int]):
         self._applied_generation = message.generation
         self.frame = message.frame
         self.frame_conditions = message.conditions
-        self._counts = (message.screened, len(message.frame) - message.screened)
+        self._counts = (message.screened, len(message.frame) - message.screened - message.pending, message.pending)
         table = self.query_one(LibraryTable)
+        before, place = table.cursor_row, table.cursor - int(table.scroll_offset.y)
         table.show(message.frame, message.rows, self._columns(message.frame),
                    sort=(self.sort.column, self.sort.descending), marked=self.marked, top=self._to_top)
+        if message.generation == self._keep_place_generation and not self._to_top and before >= 0 \
+                and table.cursor_row == before:
+            # Rows arrived above the cursor's: scroll with them, so the row read stays put on screen.
+            table.scroll_to(y=max(0, table.cursor - place), animate=False, force=True)
         self._to_top = False
         self._update_status()
         self.refresh_bindings()
@@ -597,7 +672,7 @@ class HalosiftApp(App[int]):
     @property
     def busy(self) -> bool:
         """True while screening, or while a requested table update has not arrived yet."""
-        return self.phase == "screening" or self._applied_generation != self._generation
+        return self.phase in ("screening", "streaming") or self._applied_generation != self._generation
 
     def on_view_failed(self, message: ViewFailed) -> None:
         if message.generation == self._generation:
@@ -653,17 +728,29 @@ class HalosiftApp(App[int]):
             return
         from halosift.tui.header import Phrase, cl2_forms, fit_phrases
 
-        ok, rejected = self._counts
+        ok, rejected, pending = self._counts
         shown = len(self.query_one(LibraryTable).rows)
         total = len(self.frame)
         marked = _count(int(self.marked.sum()))
-        counts = [
-            Phrase((f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected)",
-                    f"{_count(total)} rows ({_count(rejected)} rejected)", f"{_count(total)} rows"), keep=1),
+        if pending or self.phase == "streaming":
+            done = f"{_count(total - pending)} of {_count(total)}"
+            counts = [Phrase((f"{done} rows perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
+                              f"{done} rows perceived", f"{done} perceived"), keep=6)]
+            if self.phase == "streaming" and not self._stop_note:
+                counts.append(Phrase(("Esc stops, keeps what is done", "Esc stops", ""), keep=0))
+            elif self.phase == "streaming":
+                counts.append(Phrase((f"{self._stop_note}…",), keep=5))
+            elif self.phase == "stopped":
+                note = f"{self._stop_note}, done rows kept · r resumes"
+                counts.append(Phrase((note, f"{self._stop_note} · r resumes", "r resumes"), keep=5))
+        else:
+            counts = [Phrase((f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected)",
+                              f"{_count(total)} rows ({_count(rejected)} rejected)", f"{_count(total)} rows"), keep=1)]
+        counts += [
             Phrase((f"view {self.view}: {_count(shown)} shown", f"{self.view}: {_count(shown)} shown"), keep=3),
             Phrase((f"{marked} marked",), keep=4),
         ]
-        if self.busy:
+        if self._applied_generation != self._generation or self.phase == "screening":
             counts.append(Phrase(("updating…",), keep=5))
         width = max(20, self.size.width - 2)  # the lines' padding
         self.query_one("#counts", Static).update(fit_phrases(counts, width))
@@ -733,7 +820,12 @@ class HalosiftApp(App[int]):
     # ------------------------------------------------------------------ table messages
 
     def on_cursor_moved(self, message: CursorMoved) -> None:
-        info = self.query_one("#rowinfo", Static)
+        from textual.css.query import NoMatches
+
+        try:
+            info = self.query_one("#rowinfo", Static)
+        except NoMatches:  # the app is closing (rows may arrive up to the last moment)
+            return
         if message.row < 0 or self.frame is None:
             info.update("no rows in this view" if self.frame is not None else "")
             return

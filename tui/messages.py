@@ -41,6 +41,28 @@ class ScreeningFinished(Message):
 
 
 @dataclass
+class ScreeningPartial(Message):
+    """Part of the library is perceived; ``frame`` evaluates it, rows not perceived yet have status pending."""
+
+    library: Any
+    """The engine.Library so far (``partial`` set)."""
+    frame: Any
+    """Library.evaluate(conditions), a pandas DataFrame with every input row."""
+    conditions: Any
+    """The engine.Conditions ``frame`` was evaluated under."""
+    session: Any = None
+    """As for :class:`ScreeningFinished`: restored from the first message of a screen."""
+    session_key: str | None = None
+    """As for :class:`ScreeningFinished`."""
+    session_note: str = ""
+    """As for :class:`ScreeningFinished`."""
+    screened: int = 0
+    """Rows of ``frame`` with status ok."""
+    pending: int = 0
+    """Rows of ``frame`` not perceived yet."""
+
+
+@dataclass
 class ScreeningStopped(Message):
     """Screening ended without a library: cancelled by the chemist, or failed."""
 
@@ -64,6 +86,8 @@ class ViewComputed(Message):
     """numpy array of row positions to show, in display order."""
     screened: int
     """Rows of ``frame`` with status ok."""
+    pending: int = 0
+    """Rows of ``frame`` whose structure is not perceived yet (status pending)."""
 
 
 @dataclass

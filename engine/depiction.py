@@ -66,7 +66,7 @@ def depict(smiles: str) -> Depiction:
         mol = Chem.MolFromSmiles(smiles)
         if mol is None:
             raise ValueError(f"cannot lay out {smiles!r}")
-        kekule = Chem.Mol(mol)
+        kekule: Chem.Mol | None = Chem.Mol(mol)
         try:
             Chem.Kekulize(kekule, clearAromaticFlags=True)
         except Exception:  # noqa: BLE001 - an unkekulisable ring still draws, with single bonds

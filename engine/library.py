@@ -232,7 +232,7 @@ class Library:
         added["flags"] = np.where(status == "ok", flags, "")
         canonical = structs["canonical_smiles"].to_numpy(dtype=object)[rows]
         added["canonical_smiles"] = np.where(status == "ok", canonical, "")
-        added["duplicate_of"] = self._duplicates(added["canonical_smiles"], status)
+        added["duplicate_of"] = self._duplicates(np.asarray(added["canonical_smiles"]), status)
         result = pd.DataFrame(added, index=self.input.index)
         if not len(result):  # nothing to infer text from: give the columns the type rows would give them
             result = result.astype({c: _TEXT_DTYPE for c in result.columns if result[c].dtype == object})

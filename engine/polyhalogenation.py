@@ -238,7 +238,7 @@ class _Block:
         out.near_phi = None if self.near_phi is None else self.near_phi[keep]
         return out
 
-    def evaluate(self, left: np.ndarray, derivatives: bool = True) -> tuple[np.ndarray, ...]:
+    def evaluate(self, left: np.ndarray, derivatives: bool = True) -> tuple[np.ndarray, np.ndarray | None, np.ndarray | None]:
         """ΣB_i per structure at substrate left ``left``, with its first and second derivatives in A."""
         safe = np.maximum(left, 1e-300)  # as Split.mono: A^κ → 0 at A = 0 for κ > 0, 1 for κ = 0
         x = np.multiply(self.kappa, np.log(safe))
@@ -303,6 +303,7 @@ def left_and_mono_at_ratio(
     live = np.ones(n, dtype=bool)
     for step in range(_SCREEN_STEPS + 1):
         mono, slope, curv = block.evaluate(left)
+        assert slope is not None and curv is not None  # derivatives were asked for
         excess = 2.0 * (1.0 - left) - mono - available  # halogen used minus halogen charged; falls as A rises
         done = live & (np.abs(excess) <= (_SETTLED if step < _SCREEN_STEPS else _ACCEPTED))
         if done.any():

@@ -34,7 +34,7 @@ def quiet_rdkit() -> Iterator[None]:
     with _LOCK:
         if _depth == 0:
             _saved = _enabled_channels()
-            RDLogger.DisableLog("rdApp.*")
+            RDLogger.DisableLog("rdApp.*")  # type: ignore[attr-defined]  # absent from RDKit's stubs
         _depth += 1
     try:
         yield
@@ -43,5 +43,5 @@ def quiet_rdkit() -> Iterator[None]:
             _depth -= 1
             if _depth == 0:
                 for channel in _saved:
-                    RDLogger.EnableLog(channel)
+                    RDLogger.EnableLog(channel)  # type: ignore[attr-defined]
                 _saved = []

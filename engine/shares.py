@@ -65,4 +65,4 @@ def cast_checked(frame: pd.DataFrame, types: Mapping[str, object]) -> pd.DataFra
             if low < info.min or high > info.max:
                 worst = high if high > info.max else low
                 raise OverflowError(f"{column} holds {worst}, beyond {target}")
-    return frame.astype(dict(types))
+    return frame.astype({column: kind for column, kind in types.items()})  # type: ignore[misc]

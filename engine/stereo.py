@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import itertools
+from typing import Any
 import math
 import operator
 from collections import Counter
@@ -182,9 +183,10 @@ def _ring_coordinates(fragment_smiles: str) -> tuple[tuple[float, float, float],
     # starts for dodecahedranes, which random starts do not embed within a few tries.
     for random_start, attempts in ((True, EMBED_ATTEMPTS), (False, 4 * EMBED_ATTEMPTS)):
         params = rdDistGeom.ETKDGv3()
-        params.randomSeed = 0xC0FFEE
-        params.maxIterations = attempts
-        params.useRandomCoords = random_start
+        # RDKit's stubs type these attributes as EmbedParameters; they are an int, an int and a bool.
+        params.randomSeed = 0xC0FFEE  # type: ignore[assignment]
+        params.maxIterations = attempts  # type: ignore[assignment]
+        params.useRandomCoords = random_start  # type: ignore[assignment]
         if rdDistGeom.EmbedMolecule(mol_h, params) >= 0:
             break
     else:
@@ -309,7 +311,7 @@ class Skeleton:
 
 def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[tuple[tuple[int, ...], Chem.Mol]]:
     """Every combination of the open elements' configurations, with its choice vector."""
-    choices = []
+    choices: list[list[tuple[Any, ...]]] = []  # ("atom", index, tag) or ("bond", index, stereo, ends)
     for e in open_elements:
         if e.type == _TETRAHEDRAL:
             choices.append([("atom", e.centeredOn, _CW), ("atom", e.centeredOn, _CCW)])

@@ -443,7 +443,8 @@ def _reagent_tasks(
     }
     slices = sorted((piece for block in static["blocks"] for piece in block.slices()), key=lambda p: -p.code.size)
     shares = [slices[i::tasks] for i in range(tasks)]  # largest first, dealt round: about even work
-    return part, [lambda share=share: _weigh_slices(part, share, conditions, reagent) for share in shares if share]
+    jobs: list[Callable[[], None]] = [partial(_weigh_slices, part, share, conditions, reagent) for share in shares if share]
+    return part, jobs
 
 
 def _reagent_text(perception: Perception, part: dict, reagent: str) -> dict:

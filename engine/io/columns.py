@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from collections.abc import Hashable, Sequence
+from typing import TypeVar
 
 from .errors import LibraryError
 
@@ -28,6 +29,9 @@ ID_NAMES: tuple[str, ...] = (
 )
 """Column names taken to hold compound identifiers, in order of preference (case-insensitive)."""
 
+Name = TypeVar("Name", bound=Hashable)
+"""A column name: str for text files, any hashable for a DataFrame's columns."""
+
 _LISTED = 20  # columns named in an error message before "and N more"
 
 
@@ -36,7 +40,7 @@ def _key(name: Hashable) -> str:
     return str(name).strip().lower()
 
 
-def detect(columns: Sequence[Hashable], preferred: Sequence[str], skip: Hashable | None = None) -> Hashable | None:
+def detect(columns: Sequence[Name], preferred: Sequence[str], skip: Hashable | None = None) -> Name | None:
     """First column (by preference order, then file order) whose name matches preferred."""
     keys = [_key(c) for c in columns]
     for wanted in preferred:
@@ -46,7 +50,7 @@ def detect(columns: Sequence[Hashable], preferred: Sequence[str], skip: Hashable
     return None
 
 
-def resolve(columns: Sequence[Hashable], given: str, where: str) -> Hashable:
+def resolve(columns: Sequence[Name], given: str, where: str) -> Name:
     """The column the user named: exact match, else a unique case-insensitive match."""
     for column in columns:
         if column == given or str(column) == given:
@@ -72,13 +76,14 @@ def describe(columns: Sequence[Hashable]) -> str:
 
 
 def choose(
-    columns: Sequence[Hashable],
+    columns: Sequence[Name],
     where: str,
     smiles_column: str | None,
     id_column: str | None,
     hint: str = "use --smiles-column",
-) -> tuple[Hashable, Hashable | None]:
+) -> tuple[Name, Name | None]:
     """(smiles column, id column or None) for a table, raising LibraryError when no SMILES column fits."""
+    smiles: Name | None
     if smiles_column is not None:
         smiles = resolve(columns, smiles_column, where)
     else:
@@ -87,6 +92,7 @@ def choose(
             raise LibraryError(
                 f"no SMILES column in {where}; columns found: {describe(columns)} ({hint})"
             )
+    ident: Name | None
     if id_column is not None:
         ident = resolve(columns, id_column, where)
     else:

@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
+
 import math
-from collections.abc import Callable, Iterable, Iterator
+from collections.abc import Callable, Hashable, Iterable, Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -49,14 +50,14 @@ class LibrarySource:
     format: str
     """"csv", "tsv", "parquet", "smi", "sdf", or "frame" for a DataFrame."""
 
-    columns: tuple[str, ...]
-    """Input columns in file order. For SDF these come from the first record; a property
+    columns: tuple[Hashable, ...]
+    """Input columns in file order (str for files; a DataFrame's own labels). For SDF these come from the first record; a property
     first seen later is appended as a new column in the batches from then on."""
 
-    smiles_column: str
+    smiles_column: Hashable
     """The column the structure text is taken from."""
 
-    id_column: str | None
+    id_column: Hashable | None
     """The column of compound identifiers, or None when there is none."""
 
     total_rows: int | None

@@ -25,7 +25,7 @@ _SURROGATE = re.compile("[\ud800-\udfff]")
 
 def open_binary(path: Path, gzipped: bool) -> BinaryIO:
     """The file's bytes, decompressed when gzipped."""
-    return gzip.open(path, "rb") if gzipped else open(path, "rb")
+    return gzip.open(path, "rb") if gzipped else open(path, "rb")  # type: ignore[return-value]  # both are binary streams
 
 
 def open_text(path: Path, gzipped: bool, encoding: str, newline: str | None) -> TextIO:

@@ -38,7 +38,7 @@ def test_forced_unicode_mode(monkeypatch: pytest.MonkeyPatch) -> None:
 
 def test_marks_follow_the_products(propane_products) -> None:
     marks = sv.marks_for(propane_products)
-    assert [m.letter for m in marks] == ["a", "b"]
+    assert [m.letter for m in marks] == ["P1", "P2"]
     assert {m.site for m in marks} == {"primary", "secondary"}
 
 
@@ -47,6 +47,59 @@ def test_png_drawing_is_a_png(propane_products) -> None:
 
     png = structure_png("CCC", sv.marks_for(propane_products))
     assert png[:8] == b"\x89PNG\r\n\x1a\n" and len(png) > 1000
+
+
+#: Structures whose image labels are checked: a branch, a ring with a branch, a bridged ring, an arene side chain.
+LABELLED = ["CC(C)CC", "CC1CCCCC1", "C1CC2CCC1C2", "CCc1ccccc1"]
+
+
+def _table_and_layout(smiles: str):
+    """The products table's first column, the products and the image drawing's layout for one structure."""
+    import io
+
+    import pandas as pd
+    from rich.console import Console
+
+    from halosift.report.drawing import png_layout
+    from halosift.tui.detail import products_table
+
+    library = engine.load_library(pd.DataFrame({"smiles": [smiles]}), use_cache=False)
+    canonical = str(library.evaluate()["canonical_smiles"].iloc[0])
+    products = library.products(0)
+    console = Console(width=200, file=io.StringIO(), record=True, color_system=None)
+    console.print(products_table(products))
+    first_column = [line.split()[0] for line in console.export_text().splitlines()[1:] if line.strip()]
+    return canonical, products, first_column, png_layout(canonical, sv.marks_for(products))
+
+
+@pytest.mark.parametrize("smiles", LABELLED)
+def test_image_labels_are_the_products_table_names(smiles: str) -> None:
+    # The image path once lettered sites a, b, c … while the table said P1, P2 …: the drawn labels must be the table's.
+    _, products, first_column, layout = _table_and_layout(smiles)
+    assert len(products) >= 3
+    assert [spot.letter for spot in layout.spots] == first_column
+    marks = sv.marks_for(products)
+    assert [m.atom for m in marks] == [int(a) for a in products["atom"]]  # one label per site, on its own carbon
+    assert len({m.atom for m in marks}) == len(marks)
+    # Labels never cover each other, and each found a spot clear of bonds and atoms.
+    assert all(spot.clear for spot in layout.spots)
+    for i, a in enumerate(layout.spots):
+        for b in layout.spots[i + 1:]:
+            assert not a.box.overlaps(b.box), (smiles, a.letter, b.letter)
+    width, height = layout.size
+    assert all(0 <= s.box.x0 and s.box.x1 <= width and 0 <= s.box.y0 and s.box.y1 <= height for s in layout.spots)
+
+
+@pytest.mark.parametrize("smiles", LABELLED)
+def test_image_and_text_drawings_carry_the_same_labels(smiles: str) -> None:
+    from halosift.engine.depiction import depict
+    from halosift.tui.text_structure import draw_structure
+
+    canonical, products, _, layout = _table_and_layout(smiles)
+    text = draw_structure(depict(canonical), sv.site_labels(products), 60, 16)
+    assert sorted((p.atom, p.text) for p in text.labels) == sorted(
+        (m.atom, s.letter) for m, s in zip(sv.marks_for(products), layout.spots)
+    )
 
 
 class _Host(App):

@@ -44,6 +44,7 @@ def products_table(products: pd.DataFrame, smiles_width: int | None = None) -> T
     (:func:`halosift.tui.text_structure.smiles_lines`) to that many cells;
     0 leaves the column out (:func:`products_view` lists them below instead).
     """
+    from halosift.tui.structure_view import product_label
     from halosift.tui.text_structure import smiles_lines
 
     table = Table(box=None, padding=(0, 1), pad_edge=False, header_style="bold underline", expand=False)
@@ -60,7 +61,7 @@ def products_table(products: pd.DataFrame, smiles_width: int | None = None) -> T
         stereo = p.stereo or "—"  # empty for C–H that is not abstracted
         if int(p.n_stereoisomers) > 1:
             stereo = f"{stereo} ({int(p.n_stereoisomers)})"
-        cells = [f"P{i}", p.site, str(int(p.h_count)), f"{p.bde:.1f}", f"{p.dh_cl:+.1f}", f"{p.dh_br:+.1f}", stereo]
+        cells = [product_label(i), p.site, str(int(p.h_count)), f"{p.bde:.1f}", f"{p.dh_cl:+.1f}", f"{p.dh_br:+.1f}", stereo]
         if smiles_width:
             cells.append("\n".join(smiles_lines(str(p.product), smiles_width)))
         elif smiles_width is None:
@@ -79,11 +80,12 @@ def products_view(products: pd.DataFrame, width: int) -> Group:
     When the other columns leave too little room, the monochlorides are listed
     below the table, one P-numbered block each.
     """
+    from halosift.tui.structure_view import product_label
     from halosift.tui.text_structure import smiles_block
 
     # Cells of the columns before the SMILES: their longest text, plus two cells between columns.
     texts = [
-        [f"P{len(products)}", "P"], [*products["site"].astype(str), "site"], [*products["h_count"].astype(int).astype(str)],
+        [product_label(len(products)), "P"], [*products["site"].astype(str), "site"], [*products["h_count"].astype(int).astype(str)],
         ["000.0", "BDE"], ["+00.0", "ΔH Cl·"], ["+00.0", "ΔH Br·"],
         [*(f"{s or '—'} ({int(n)})" if int(n) > 1 else (s or "—")
            for s, n in zip(products["stereo"], products["n_stereoisomers"])), "stereo"],
@@ -94,7 +96,7 @@ def products_view(products: pd.DataFrame, width: int) -> Group:
     if room >= min(MIN_SMILES_COLUMN, longest):
         return Group(Text("Products", style="bold"), products_table(products, smiles_width=room))
     below = Text("\n".join(
-        smiles_block(f"P{i:<3}", str(p.product), width) for i, p in enumerate(products.itertuples(index=False), start=1)
+        smiles_block(f"{product_label(i):<4}", str(p.product), width) for i, p in enumerate(products.itertuples(index=False), start=1)
     ))
     return Group(Text("Products", style="bold"), products_table(products, smiles_width=0),
                  Text("\nmonochloride", style="bold underline"), below)
@@ -170,6 +172,8 @@ def poly_text(products: pd.DataFrame) -> Text:
 
 def bars_text(products: pd.DataFrame, conditions: Any, width: int) -> Text:
     """Percent under chlorination and bromination, side by side, one line per product."""
+    from halosift.tui.structure_view import product_label
+
     # Per line: "P1  " + bar + " 100.0 %" + gap + bar + " 100.0 %".
     bar_width = max(8, (width - 4 - 2 * 8 - 2) // 2)
     text = Text()
@@ -177,7 +181,7 @@ def bars_text(products: pd.DataFrame, conditions: Any, width: int) -> Text:
     br_head = f"Br2 at {conditions.br2_temp_c:g} °C"
     text.append("    " + cl_head.ljust(bar_width + 8) + "  " + br_head + "\n", style="bold")
     for i, p in enumerate(products.itertuples(index=False), start=1):
-        text.append(f"P{i:<3}")
+        text.append(f"{product_label(i):<4}")
         text.append(bar(p.cl2_pct, bar_width))
         text.append(f" {p.cl2_pct:5.1f} %")
         text.append("  ")

@@ -182,10 +182,10 @@ class HelpScreen(Screen):
         rows.append(("conditions", "t opens the panel; a value applies on Enter or on leaving its field, and only "
                      "when every field is complete and valid; refused and pending values are named"))
         mode = getattr(self.app, "graphics", None)
-        rows.append(("drawings", "the site detail draws the structure with each site's split where the terminal "
-                     "shows inline images (Sixel or Kitty graphics; now: " + (mode or "off") + "); "
-                     "elsewhere, and with halosift browse --no-images or HALOSIFT_IMAGES=off, it draws it in "
-                     "text (braille dots, sites P1 … as in the products table)"))
+        rows.append(("drawings", "the site detail draws the structure, sites labelled P1 … as in the products "
+                     "table, as an image where the terminal shows inline images (Sixel or Kitty graphics; now: "
+                     + (mode or "off") + "); elsewhere, and with halosift browse --no-images or "
+                     "HALOSIFT_IMAGES=off, in text (braille dots)"))
         return self._section("Views (v cycles them), marks and sessions", rows)
 
     def _columns(self) -> Table:

@@ -1,10 +1,10 @@
 """Structure drawings in the site detail, where the terminal can show images.
 
 Terminals that speak an inline-image protocol (Sixel, or the Kitty graphics
-protocol) get the RDKit drawing with every site labelled by its predicted
-split; every other terminal (and --no-images / HALOSIFT_IMAGES=off) gets a
-text drawing in braille dots with the sites labelled P1, P2 … as in the
-products table (:mod:`halosift.tui.text_structure`). Detection has to happen
+protocol) get the RDKit drawing; every other terminal (and --no-images /
+HALOSIFT_IMAGES=off) gets a text drawing in braille dots
+(:mod:`halosift.tui.text_structure`). Both label the sites P1, P2 … exactly as
+the products table names them (:func:`product_label`). Detection has to happen
 before Textual takes over the terminal, so :func:`detect_graphics` is called
 from :func:`halosift.tui.app.run`.
 """
@@ -65,21 +65,28 @@ def detect_graphics(enabled: bool = True) -> str | None:
     return mode
 
 
-def marks_for(products: pd.DataFrame):
-    """Site marks (a, b, c …) for the abstractable products of one substrate, as in the report."""
-    from halosift.report.drawing import SiteMark
+def product_label(position: int) -> str:
+    """The app's name for the product in row ``position`` (1-based) of a products table: P1, P2 …
 
-    shown = products[(products["cl2_pct"] > 0) | (products["br2_pct"] > 0)]
-    letters = "abcdefghijklmnopqrstuvwxyz"
-    return [
-        SiteMark(int(p.atom), letters[i % 26] + ("" if i < 26 else str(i // 26)), str(p.site), float(p.cl2_pct), float(p.br2_pct))
-        for i, p in enumerate(shown.itertuples(index=False))
-    ]
+    The one place the name is made: the products table, the bars, the text
+    drawing and the image drawing all use it, so they always agree.
+    """
+    return f"P{position}"
 
 
 def site_labels(products: pd.DataFrame) -> dict[int, str]:
     """Label of each product's carbon, exactly as the detail's products table names the product (P1, P2 …)."""
-    return {int(p.atom): f"P{i}" for i, p in enumerate(products.itertuples(index=False), start=1)}
+    return {int(p.atom): product_label(i) for i, p in enumerate(products.itertuples(index=False), start=1)}
+
+
+def marks_for(products: pd.DataFrame):
+    """Site marks for the image drawing: one per product row, labelled as the products table (:func:`product_label`)."""
+    from halosift.report.drawing import SiteMark
+
+    return [
+        SiteMark(int(p.atom), product_label(i), str(p.site), float(p.cl2_pct), float(p.br2_pct))
+        for i, p in enumerate(products.itertuples(index=False), start=1)
+    ]
 
 
 @dataclass(frozen=True)

@@ -28,11 +28,6 @@ SITE_COLOURS: dict[str, tuple[float, float, float]] = {
 }
 FALLBACK_COLOUR = (0.80, 0.80, 0.80)
 
-#: Drawing size in pixels (CSS may scale it down for print).
-WIDTH = 340
-HEIGHT = 250
-
-
 @dataclass(frozen=True)
 class SiteMark:
     """One distinct abstractable site as it is marked on the drawing."""
@@ -40,7 +35,7 @@ class SiteMark:
     atom: int
     """Representative carbon: index in the canonical-SMILES atom order."""
     letter: str
-    """Short tag shared by the drawing and the products table (a, b, c, …)."""
+    """Short tag shared by the drawing and its products table (a, b, c, … in the report; P1, P2, … in the app)."""
     site: str
     """Site class, e.g. secondary or benzylic-primary."""
     cl2_pct: float
@@ -61,7 +56,7 @@ def pct_text(value: float) -> str:
 
 
 def site_note(mark: SiteMark) -> str:
-    """A site's shares in short, e.g. 'a: Cl 45 / Br 3': beside its carbon in the app's PNG, in the SVG's <desc>."""
+    """A site's shares in short, e.g. 'a: Cl 45 / Br 3', for the SVG's <desc>."""
     return f"{mark.letter}: Cl {pct_text(mark.cl2_pct)} / Br {pct_text(mark.br2_pct)}"
 
 
@@ -92,19 +87,6 @@ def _drawable(canonical_smiles: str, marks: Sequence[SiteMark]):
         notes.append(f"{note} ({mark.site})")
         colours[mark.atom] = SITE_COLOURS.get(mark.site, FALLBACK_COLOUR)
     return mol, colours, notes
-
-
-def _draw(drawer, mol, colours) -> None:
-    from rdkit.Chem.Draw import rdMolDraw2D
-
-    options = drawer.drawOptions()
-    options.annotationFontScale = 0.7
-    options.clearBackground = True
-    options.padding = 0.12  # room for notes on atoms at the edge
-    rdMolDraw2D.PrepareAndDrawMolecule(
-        drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
-    )
-    drawer.FinishDrawing()
 
 
 #: Bond length of report drawings in SVG user units (CSS px at natural size): every molecule is drawn at this
@@ -338,11 +320,82 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     return svg.replace("<svg ", f'<svg class="structure" role="img" aria-label="{label}" ', 1)
 
 
-def structure_png(canonical_smiles: str, marks: Sequence[SiteMark], *, width: int = WIDTH, height: int = HEIGHT) -> bytes:
-    """The same drawing as :func:`structure_svg`, as PNG bytes (for terminals that show images)."""
+@dataclass(frozen=True)
+class PngLayout:
+    """The app's image drawing before its labels are written: the molecule, and where each label goes."""
+
+    png: bytes
+    """The molecule drawn with its sites tinted, no labels yet (PNG)."""
+    size: tuple[int, int]
+    """Width and height of the drawing, pixels."""
+    spots: tuple[LabelSpot, ...]
+    """Where each mark's label goes, in marks order (:func:`place_labels`), pixels."""
+    anchors: tuple[tuple[float, float], ...]
+    """Centre of each mark's carbon, in marks order, pixels (where a leader line starts)."""
+    font_px: float
+    """Label font size, pixels."""
+
+
+def png_layout(canonical_smiles: str, marks: Sequence[SiteMark]) -> PngLayout:
+    """The molecule as a PNG at the report's scale, with a spot for each mark's label clear of bonds and other labels.
+
+    Placement is the report's (:func:`place_labels`), so labels never overlap
+    each other; the labels are each mark's :attr:`SiteMark.letter` (the app
+    passes its products table's names). Raises ValueError as :func:`structure_svg`.
+    """
+    from rdkit.Chem import rdDepictor
     from rdkit.Chem.Draw import rdMolDraw2D
 
     mol, colours, _ = _drawable(canonical_smiles, marks)
+    for atom in mol.GetAtoms():
+        atom.ClearProp("atomNote")  # labels are written afterwards, on spots clear of the bonds
+    rdDepictor.Compute2DCoords(mol)
+    width, height = _canvas(mol)
     drawer = rdMolDraw2D.MolDraw2DCairo(width, height)
-    _draw(drawer, mol, colours)
-    return drawer.GetDrawingText()
+    options = drawer.drawOptions()
+    options.clearBackground = True
+    options.fixedBondLength = BOND_PX / DEPICTION_BOND
+    options.padding = 0.0
+    rdMolDraw2D.PrepareAndDrawMolecule(
+        drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
+    )
+    drawer.FinishDrawing()
+    points = [(drawer.GetDrawCoords(i).x, drawer.GetDrawCoords(i).y) for i in range(mol.GetNumAtoms())]
+    bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx()) for b in mol.GetBonds()]
+    lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
+    bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX
+    font_px = LABEL_FONT_PX * max(1.0, width / COLUMN_PX)
+    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px, font_px)
+    return PngLayout(drawer.GetDrawingText(), (width, height), tuple(spots),
+                     tuple(points[m.atom] for m in marks), font_px)
+
+
+def _label_font(font_px: float):
+    """A bold sans font at ``font_px`` (DejaVu Sans Bold, whose glyphs fit :func:`label_box`; else Pillow's own)."""
+    from PIL import ImageFont
+
+    try:
+        return ImageFont.truetype("DejaVuSans-Bold.ttf", round(font_px))
+    except OSError:
+        return ImageFont.load_default(size=round(font_px))
+
+
+def structure_png(canonical_smiles: str, marks: Sequence[SiteMark]) -> bytes:
+    """The app's drawing as PNG bytes: :func:`png_layout` with each label written on its spot (for image terminals)."""
+    from io import BytesIO
+
+    from PIL import Image, ImageDraw
+
+    layout = png_layout(canonical_smiles, marks)
+    picture = Image.open(BytesIO(layout.png)).convert("RGB")
+    pen = ImageDraw.Draw(picture)
+    font = _label_font(layout.font_px)
+    for spot, anchor in zip(layout.spots, layout.anchors):
+        if spot.leader:
+            pen.line([anchor, (spot.x, spot.y)], fill=(119, 119, 119), width=1)
+    for spot in layout.spots:
+        pen.text((spot.x, spot.y), spot.letter, font=font, anchor="mm", fill=(17, 17, 17),
+                 stroke_width=2, stroke_fill=(255, 255, 255))
+    out = BytesIO()
+    picture.save(out, format="PNG")
+    return out.getvalue()

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import asdict, dataclass, field
+from typing import TYPE_CHECKING
 
 import math
 
@@ -17,6 +18,9 @@ from halosift.engine.reagents import RADICAL_OF
 from halosift.engine.site_classes import SITE_CLASSES, SITE_CODE, site_bde
 from halosift.engine.special_sites import FlagNote, flag_notes
 from halosift.engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh
+
+if TYPE_CHECKING:
+    import pandas as pd
 
 #: Notes shown whenever a reagent is part of an explanation.
 REAGENT_NOTES: dict[str, str] = {"so2cl2": SO2CL2_NOTE, NBS: NBS_NOTE}
@@ -291,7 +295,7 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
 _SOURCE_OF_REASON = {p.reason: p.source for p in PATHWAYS}
 
 
-def _outcome(summary, reagent: str, conditions: Conditions) -> ReagentOutcome:
+def _outcome(summary: pd.Series, reagent: str, conditions: Conditions) -> ReagentOutcome:
     """One reagent's outcome from a summary row (engine.weigh.summarise)."""
     reason = str(summary[f"{reagent}_reason"])
     pct = summary[f"{reagent}_major_pct"]

@@ -42,12 +42,12 @@ def _k(p: Arrhenius, temp_k: float) -> float:
 
 def _times(base: Arrhenius, factor: float, temp_k: float, basis: str, source: str) -> Arrhenius:
     """``base`` made ``factor`` times faster at ``temp_k`` through Ea alone (equal A)."""
-    return Arrhenius(base.a_per_h, base.ea - _RT * temp_k * math.log(factor), basis, source)  # type: ignore[arg-type]
+    return Arrhenius(base.a_per_h, base.ea - _RT * temp_k * math.log(factor), basis, source)
 
 
 def _a_times(base: Arrhenius, factor: float, basis: str, source: str) -> Arrhenius:
     """``base`` made ``factor`` times faster at every temperature (through A alone)."""
-    return Arrhenius(base.a_per_h * factor, base.ea, basis, source)  # type: ignore[arg-type]
+    return Arrhenius(base.a_per_h * factor, base.ea, basis, source)
 
 
 def _two_point(prim: Arrhenius, r1: float, t1: float, r2: float, t2: float, source: str) -> Arrhenius:

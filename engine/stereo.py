@@ -82,7 +82,7 @@ def potential_stereo(mol: Chem.Mol) -> list:
     return [found[i] for i in range(len(found))]
 
 
-def _controlling(element) -> tuple[int, ...]:
+def _controlling(element: Chem.StereoInfo) -> tuple[int, ...]:
     """A double bond's four controlling atoms (empty for other elements, which do not need them)."""
     if element.type != _DOUBLE_BOND:
         return ()

@@ -77,7 +77,7 @@ def _winners(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray, vertices: list[tupl
     return set(np.flatnonzero((scores >= best - tol).any(axis=0)).tolist())
 
 
-def _cone_vertices(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray) -> list[tuple[float, float]]:
+def _cone_vertices_reference(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray) -> list[tuple[float, float]]:
     """The apex, pairwise ties on each edge of the cone, and three-way ties inside it."""
     out = [(0.0, 0.0)]
     m = len(ln_h)
@@ -120,7 +120,7 @@ def _split_terms(phase: str) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.nda
     return a[base], e[base], a - a[base], e - e[base]
 
 
-def _liquid_winners(ln_h: np.ndarray, alpha: np.ndarray, eps: np.ndarray, beta: np.ndarray,
+def _liquid_winners_reference(ln_h: np.ndarray, alpha: np.ndarray, eps: np.ndarray, beta: np.ndarray,
                     phi: np.ndarray) -> set[int]:
     """Indices that win somewhere in x ≥ 0, z ≥ z0, y ≥ z0·x (see the module docstring)."""
     m = len(ln_h)
@@ -140,6 +140,13 @@ def _liquid_winners(ln_h: np.ndarray, alpha: np.ndarray, eps: np.ndarray, beta: 
                 normals.append(np.array([r[0] for r in rows]))
                 rhs.append(np.array([r[1] for r in rows]))
     n_arr, d_arr = np.array(normals), np.array(rhs)
+    return _liquid_argmax(n_arr, d_arr, c, alpha, eps, phi)
+
+
+def _liquid_argmax(n_arr: np.ndarray, d_arr: np.ndarray, c: np.ndarray, alpha: np.ndarray, eps: np.ndarray,
+                   phi: np.ndarray) -> set[int]:
+    """Indices reaching the maximum score at any solution of the stacked 3×3 systems that lies in the polyhedron."""
+    z0 = _INVERSE_T_MAX
     ok = np.abs(np.linalg.det(n_arr)) > 1e-14
     pts = np.linalg.solve(n_arr[ok], d_arr[ok][..., None])[..., 0]
     tol = 1e-9
@@ -154,8 +161,99 @@ def _liquid_winners(ln_h: np.ndarray, alpha: np.ndarray, eps: np.ndarray, beta: 
     return set(np.flatnonzero(won).tolist())
 
 
-@lru_cache(maxsize=65536)
+@lru_cache(maxsize=64)
+def _index_combinations(m: int, size: int) -> np.ndarray:
+    """Every ``size``-subset of range(m) as rows, in itertools order (shape (n, size))."""
+    combos = list(itertools.combinations(range(m), size))
+    return np.array(combos, dtype=np.intp).reshape(len(combos), size)
+
+
+def _cone_vertices(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray) -> np.ndarray:
+    """:func:`_cone_vertices_reference` as one array of (x, y) rows, computed over all pairs and triples at once.
+
+    The same IEEE operations on the same operands (and per-matrix LAPACK calls in the batched
+    det/solve), so the vertices are bit-for-bit those of the loop; only their order differs,
+    which the winner test ignores.
+    """
+    m = len(ln_h)
+    slope = _INVERSE_T_MAX
+    parts = [np.zeros((1, 2))]
+    if m >= 2:
+        i, j = _index_combinations(m, 2).T
+        dh, da, de = ln_h[i] - ln_h[j], a[i] - a[j], e[i] - e[j]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            y = dh / de
+            run = da - de * slope
+            t = -dh / run
+        on_axis = (de != 0) & (y >= 0)
+        parts.append(np.column_stack([np.zeros(int(on_axis.sum())), y[on_axis]]))
+        on_edge = (run != 0) & (t >= 0)
+        parts.append(np.column_stack([t[on_edge], t[on_edge] * slope]))
+    if m >= 3:
+        i, j, k = _index_combinations(m, 3).T
+        m2 = np.empty((len(i), 2, 2))
+        m2[:, 0, 0], m2[:, 0, 1] = a[i] - a[j], -(e[i] - e[j])
+        m2[:, 1, 0], m2[:, 1, 1] = a[i] - a[k], -(e[i] - e[k])
+        rhs = np.column_stack([ln_h[j] - ln_h[i], ln_h[k] - ln_h[i]])
+        ok = ~(np.abs(np.linalg.det(m2)) < 1e-12)
+        if ok.any():
+            xy = np.linalg.solve(m2[ok], rhs[ok][..., None])[..., 0]
+            x, y = xy[:, 0], xy[:, 1]
+            keep = (x >= -TIE) & (y >= x * slope - TIE)
+            x, y = x[keep], y[keep]
+            parts.append(np.column_stack([np.maximum(x, 0.0), np.maximum(y, x * slope)]))
+    return np.concatenate(parts)
+
+
+#: The three facets of the liquid polyhedron as (normal, rhs) (see :func:`_liquid_winners`).
+_FACET_NORMALS = np.array([[1.0, 0.0, 0.0], [0.0, 0.0, 1.0], [-_INVERSE_T_MAX, 1.0, 0.0]])
+_FACET_RHS = np.array([0.0, _INVERSE_T_MAX, 0.0])
+
+
+def _liquid_winners(ln_h: np.ndarray, alpha: np.ndarray, eps: np.ndarray, beta: np.ndarray,
+                    phi: np.ndarray) -> set[int]:
+    """:func:`_liquid_winners_reference` with its 3×3 systems built by array indexing instead of loops.
+
+    Every matrix entry is the same subtraction of the same operands and the systems are solved
+    in the same order, so the winners are identical.
+    """
+    m = len(ln_h)
+    c = ln_h + beta
+    normals, rhs = [], []
+    for size in range(1, 5):
+        if size > m:
+            break
+        members = _index_combinations(m, size)
+        w, others = members[:, 0], members[:, 1:]
+        tie_n = np.stack([alpha[w][:, None] - alpha[others], -(eps[w][:, None] - eps[others]),
+                          -(phi[w][:, None] - phi[others])], axis=-1)  # (n, size-1, 3)
+        tie_d = c[others] - c[w][:, None]  # (n, size-1)
+        chosen = _index_combinations(3, 4 - size)  # (f, 4-size)
+        n, f = len(members), len(chosen)
+        block_n = np.empty((n, f, 3, 3))
+        block_d = np.empty((n, f, 3))
+        block_n[:, :, : size - 1] = tie_n[:, None]
+        block_d[:, :, : size - 1] = tie_d[:, None]
+        block_n[:, :, size - 1:] = _FACET_NORMALS[chosen][None]
+        block_d[:, :, size - 1:] = _FACET_RHS[chosen][None]
+        normals.append(block_n.reshape(n * f, 3, 3))
+        rhs.append(block_d.reshape(n * f, 3))
+    n_arr, d_arr = np.concatenate(normals), np.concatenate(rhs)
+    return _liquid_argmax(n_arr, d_arr, c, alpha, eps, phi)
+
+
+#: When True, :func:`contending_classes` runs the loop-by-loop reference vertex builders
+#: (``*_reference``); the differential tests compare both (see :func:`halosift.engine.perception.reference_mode`).
+use_reference = False
+
+
 def contending_classes(classes: tuple[tuple[int, int], ...], radical: str) -> frozenset[int]:
+    """:func:`_contending_classes` by the array builders, or the reference loops under :data:`use_reference`."""
+    return _contending_classes(classes, radical, use_reference)
+
+
+@lru_cache(maxsize=65536)
+def _contending_classes(classes: tuple[tuple[int, int], ...], radical: str, reference: bool) -> frozenset[int]:
     """Site codes whose largest group can be the major product toward ``radical`` ('cl' or 'br').
 
     ``classes``: (site code, H count of that class's largest group) for every
@@ -173,8 +271,10 @@ def contending_classes(classes: tuple[tuple[int, int], ...], radical: str) -> fr
     if radical == "cl":
         # Gas phase: no solvent, one exponent (the cone is a superset); liquid: the solvent's split terms.
         a, e = (t[codes] for t in _class_terms("cl", "gas"))
-        won |= _winners(ln_h, a, e, _cone_vertices(ln_h, a, e))
-        won |= _liquid_winners(ln_h, *(t[codes] for t in _split_terms("liquid")))
+        cone, liquid = (_cone_vertices_reference, _liquid_winners_reference) if reference else (
+            _cone_vertices, _liquid_winners)
+        won |= _winners(ln_h, a, e, cone(ln_h, a, e))
+        won |= liquid(ln_h, *(t[codes] for t in _split_terms("liquid")))
     else:
         a, e = (t[codes] for t in _class_terms(radical, "liquid"))
         won |= _winners(ln_h, a, e, _ray_vertices(ln_h, a, e))

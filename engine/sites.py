@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from collections import defaultdict
-from collections.abc import Iterable
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -191,7 +191,13 @@ def automorphisms(mol: Chem.Mol) -> list[tuple[int, ...]] | None:
     return None if len(perms) >= MAX_AUTOMORPHISMS else list(perms)
 
 
-def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | None = None) -> list[SiteGroup]:
+def site_groups(
+    mol: Chem.Mol,
+    has_stereo: bool,
+    bridgeheads: frozenset[int] | None = None,
+    h_counts: Sequence[int] | None = None,
+    classes_of: Callable[[list[int]], list[str]] | None = None,
+) -> list[SiteGroup]:
     """Group H-bearing carbons into constitutional monohalides, exactly.
 
     Canonical ranks without tie-breaking are a colour refinement: they never
@@ -203,11 +209,14 @@ def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | N
     when there are too many automorphisms to list, by the canonical SMILES of
     each member's monochloride, a complete invariant.
     ``bridgeheads``: :func:`halosift.engine.special_sites.small_bridgeheads` of ``mol``
-    when the caller has it already.
+    when the caller has it already; ``h_counts`` (hydrogens per atom) likewise, and
+    ``classes_of`` the site classes of a list of atoms (default :func:`site_classes`; the batch
+    kernels pass their own).
     """
     ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     by_rank: dict[int, list[int]] = defaultdict(list)
-    h_counts = [mol.GetAtomWithIdx(i).GetTotalNumHs() for i in range(mol.GetNumAtoms())]  # indexing beats GetAtoms()
+    if h_counts is None:
+        h_counts = [mol.GetAtomWithIdx(i).GetTotalNumHs() for i in range(mol.GetNumAtoms())]  # indexing beats GetAtoms()
     for idx, h in enumerate(h_counts):
         if h:
             by_rank[ranks[idx]].append(idx)
@@ -240,9 +249,12 @@ def site_groups(mol: Chem.Mol, has_stereo: bool, bridgeheads: frozenset[int] | N
         else:
             parts = [(members, None)]
         pending.extend(parts)
-    if bridgeheads is None:
-        bridgeheads = small_bridgeheads(mol)
-    classes = site_classes(mol, [idxs[0] for idxs, _ in pending], bridgeheads)
+    if classes_of is None:
+        if bridgeheads is None:
+            bridgeheads = small_bridgeheads(mol)
+        classes = site_classes(mol, [idxs[0] for idxs, _ in pending], bridgeheads)
+    else:
+        classes = classes_of([idxs[0] for idxs, _ in pending])
     for (idxs, known), site in zip(pending, classes):
         groups.append(
             SiteGroup(

@@ -215,6 +215,24 @@ def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) ->
     return tuple(f for f in FLAGS if f in found)
 
 
+def kernel_flags(mol: Chem.Mol, bridgeheads: frozenset[int], patterns: dict[str, bool], small_ring: bool) -> tuple[str, ...]:
+    """:func:`structure_flags` from the batch kernel's pattern flags (:class:`halosift.engine.kernels.BatchSites`).
+
+    ``patterns``: cyclopropylmethyl, cyclopropane, alkene, alkyne as the kernel found them;
+    ``small_ring``: some ring of at most :data:`CAGE_MAX_RING` atoms, which gates the cage and
+    central-bond walks exactly as in :func:`structure_flags`.
+    """
+    found = {name for name, hit in patterns.items() if hit}
+    if bridgeheads:
+        found.add("bridgehead")
+    if small_ring:
+        if sum(c >= 3 for c in _small_ring_counts(mol)) >= CAGE_MIN_ATOMS:
+            found.add("cage")
+        if has_central_bond(mol):
+            found.add("central_bond")
+    return tuple(f for f in FLAGS if f in found)
+
+
 def flag_notes(flags: str) -> tuple[FlagNote, ...]:
     """The notes for a comma-joined ``flags`` cell (empty string: none)."""
     return tuple(FLAG_NOTES[f] for f in flags.split(",") if f)

@@ -218,8 +218,8 @@ def test_comb_row_in_a_worker_batch() -> None:
 def _sabotaged(real: Callable, how: str) -> Callable:
     """``_perceive_one`` that misbehaves for ethane only, in the way ``how`` names."""
 
-    def one(smiles: object, max_heavy: int, detail: bool):
-        srow, rows, nbs = real(smiles, max_heavy, detail)
+    def one(smiles: object, max_heavy: int, detail: bool, *prepared: object):
+        srow, rows, nbs = real(smiles, max_heavy, detail, *prepared)
         if smiles != "CC":
             return srow, rows, nbs
         if how == "raises":

@@ -39,9 +39,10 @@ async def _run_app(path: Path, timeout: float, stream: bool = True) -> dict[str,
     ``stream=False``: the app as it was, with no rows until the whole library is perceived
     (the engine is not handed the partial callback), to compare the interface-thread gaps.
     """
-    from halosift import engine
     from halosift.tui.app import HalosiftApp
     from halosift.tui.table import LibraryTable
+
+    from halosift import engine
 
     real_load = engine.load_library
     if not stream:
@@ -94,8 +95,8 @@ async def _run_app(path: Path, timeout: float, stream: bool = True) -> dict[str,
 
 def _bounds(smiles: list[str], first_chunk: int) -> dict[str, float]:
     """Start-up of one worker process and the perception of a first chunk, each measured alone."""
-    from halosift.engine.parallel import perceive_batch, worker_pool
     import pyarrow as pa
+    from halosift.engine.parallel import perceive_batch, worker_pool
 
     batch = pa.record_batch([pa.array(smiles[:first_chunk], type=pa.string())], names=["smiles"])
     t = time.perf_counter()
@@ -115,8 +116,8 @@ def main() -> int:
     parser.add_argument("--timeout", type=float, default=300.0, help="give up after this many seconds")
     args = parser.parse_args()
 
-    from library_gen import make_library
     import pandas as pd
+    from library_gen import make_library
 
     with tempfile.TemporaryDirectory(prefix="halosift-bench-stream-") as tmp:
         folder = Path(tmp)
@@ -125,8 +126,8 @@ def main() -> int:
         smiles = make_library(args.unique, seed=11)
         path = folder / "wrenfield_new.csv"
         pd.DataFrame({"id": [f"WS-{i:06d}" for i in range(len(smiles))], "smiles": smiles}).to_csv(path, index=False)
-        from halosift.engine.parallel import FIRST_CHUNK
         from halosift.engine.cores import capped_workers
+        from halosift.engine.parallel import FIRST_CHUNK
 
         print(f"library: {len(smiles):,} new unique hydrocarbons, {capped_workers(None)} worker processes, "
               f"first chunk {FIRST_CHUNK} structures per worker")

@@ -23,9 +23,9 @@ import warnings
 from pathlib import Path
 
 import numpy as np
+from halosift.engine.cache import PerceptionCache, take
 
 from halosift import engine
-from halosift.engine.cache import PerceptionCache, take
 
 SHAPES = ["CCCC", "CC(C)C", "C1CCCCC1", "C=CCC", "Cc1ccccc1", "CC(C)CC", "CCC(C)(C)C", "C1CCC1", "CC1CCCC1",
           "CCC=C(C)C"]

@@ -16,9 +16,9 @@ import statistics
 import time
 
 import pandas as pd
+from halosift.tui.filters import FilterSpec, filter_mask
 
 from halosift import engine
-from halosift.tui.filters import FilterSpec, filter_mask
 
 SMILES = ["CCC", "CC(C)C", "CCCC", "C1CCCCC1", "CC1CC1", "CC1=CCCCC1", "CCc1ccccc1", "CCC(C)CC", "C(C)C", "O"]
 

@@ -27,11 +27,11 @@ sys.path.insert(0, str(HERE.parent))
 sys.path.insert(0, str(HERE.parent / "tests"))
 
 from alkanes import alkanes  # noqa: E402
+from halosift.engine.perception import reference_mode  # noqa: E402
+from halosift.engine.rdkit_log import quiet_rdkit  # noqa: E402
 from library_gen import make_library  # noqa: E402
 
 from halosift import engine  # noqa: E402
-from halosift.engine.perception import reference_mode  # noqa: E402
-from halosift.engine.rdkit_log import quiet_rdkit  # noqa: E402
 
 #: Perception within this many times single-core parsing (issue #15).
 TARGET_B_OVER_A = 4.0

@@ -30,13 +30,13 @@ HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
 sys.path.insert(0, str(HERE.parent))
 
-from library_gen import make_library  # noqa: E402
 from bench_kernels import all_alkanes  # noqa: E402
-
-from halosift import engine  # noqa: E402
 from halosift.engine.cache import take  # noqa: E402
 from halosift.engine.parallel import default_workers  # noqa: E402
 from halosift.engine.perception import Perception  # noqa: E402
+from library_gen import make_library  # noqa: E402
+
+from halosift import engine  # noqa: E402
 
 TARGETS = {"b/a": 4.0, "c/a": 3.0, "speed-up": 1.8, "million_s": 120.0, "reweigh_s": 1.0, "peak_gb": 2.0, "reopen_s": 5.0}
 

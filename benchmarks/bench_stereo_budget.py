@@ -18,8 +18,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from halosift import engine  # noqa: E402
 from halosift.engine.stereo import NOT_COUNTED, STEREO_WORK_BUDGET  # noqa: E402
+
+from halosift import engine  # noqa: E402
 
 #: Target for one structure's whole perception with every product's stereo worked out.
 TARGET_S = 1.0

@@ -34,8 +34,8 @@ def main() -> None:
     for name, smiles in STRUCTURES.items():
         mol = depict(smiles)
         labels = {a.index: f"P{a.index + 1}" for a in mol.atoms}
-        layout = timed(lambda: depict(smiles))
-        draw = timed(lambda: draw_structure(mol, labels, 76, 12))
+        layout = timed(lambda smiles=smiles: depict(smiles))
+        draw = timed(lambda mol=mol, labels=labels: draw_structure(mol, labels, 76, 12))
         print(f"{name:<20} {len(mol.atoms):>5} {layout:>10.2f} {draw:>8.2f}")
 
 

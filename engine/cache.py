@@ -40,7 +40,6 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
-
 from halosift.engine.cache_index import IndexDamaged, IndexUnavailable, KeyIndex
 from halosift.engine.nbs import frame_from_rows
 from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception

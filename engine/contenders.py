@@ -42,10 +42,9 @@ from __future__ import annotations
 import itertools
 import math
 from collections.abc import Sequence
-from functools import lru_cache
+from functools import cache, lru_cache
 
 import numpy as np
-
 from halosift.engine.conditions import MAX_TEMP_C
 from halosift.engine.parameters import KELVIN, R_KCAL
 from halosift.engine.rates import rate_table
@@ -59,7 +58,7 @@ _PRIMARY = ABSTRACTABLE.index("primary")
 _INVERSE_T_MAX = 1.0 / (MAX_TEMP_C + KELVIN)
 
 
-@lru_cache(maxsize=None)
+@cache
 def _class_terms(radical: str, phase: str) -> tuple[np.ndarray, np.ndarray]:
     """Per abstractable site code: (ln A − ln A_primary, (E − E_primary)/R) toward ``radical`` in ``phase``."""
     params = rate_table(radical, phase).params
@@ -68,7 +67,7 @@ def _class_terms(radical: str, phase: str) -> tuple[np.ndarray, np.ndarray]:
     return ln_a - ln_a[_PRIMARY], (ea - ea[_PRIMARY]) / R_KCAL
 
 
-def _winners(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray, vertices: list[tuple[float, float]]) -> set[int]:
+def _winners(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray, vertices: list[tuple[float, float]] | np.ndarray) -> set[int]:
     """Indices that reach the maximum score at any of ``vertices``."""
     pts = np.array(vertices, dtype=np.float64)
     scores = ln_h[None, :] + pts[:, :1] * a[None, :] - pts[:, 1:] * e[None, :]
@@ -112,7 +111,7 @@ def _ray_vertices(ln_h: np.ndarray, a: np.ndarray, e: np.ndarray) -> list[tuple[
     return out
 
 
-@lru_cache(maxsize=None)
+@cache
 def _split_terms(phase: str) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Per abstractable code toward Cl· in ``phase``: the solvent-scaled part (α, ε) and the kept excess (β, φ)."""
     a, e = _class_terms("cl", phase)

@@ -24,7 +24,6 @@ from typing import Any
 
 import pandas as pd
 import pyarrow as pa
-
 from halosift.engine.parallel import Cancelled, _from_batches, chunk_bounds, perceive_batch
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.perception import Perception, concat

@@ -2,19 +2,17 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import asdict, dataclass, field
 from typing import TYPE_CHECKING
-
-import math
 
 from halosift.engine.conditions import EXPLAIN_REAGENTS, REAGENTS, Conditions
 from halosift.engine.nbs import nbs_products
 from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from halosift.engine.parameters import NBS_NOTE, SO2CL2_NOTE
 from halosift.engine.perception import perceive
-from halosift.engine.reagents import NBS, check_reagent
 from halosift.engine.rates import enthalpy_of_abstraction, exo_fraction
-from halosift.engine.reagents import RADICAL_OF
+from halosift.engine.reagents import NBS, RADICAL_OF, check_reagent
 from halosift.engine.site_classes import SITE_CLASSES, SITE_CODE, site_bde
 from halosift.engine.special_sites import FlagNote, flag_notes
 from halosift.engine.weigh import BASES, CONFIDENCE_MIN_PCT, summarise, weigh

@@ -14,9 +14,8 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from rdkit import Chem
-
 from halosift.engine.site_classes import SITE_CLASSES, SITE_CODE
+from rdkit import Chem
 
 #: Bond orders as :func:`rdkit.Chem.GetAdjacencyMatrix` writes them with ``useBO=True``.
 _SINGLE, _AROMATIC, _DOUBLE, _TRIPLE = 1.0, 1.5, 2.0, 3.0

@@ -11,16 +11,15 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-
 from halosift.engine.cache import PerceptionCache, take
 from halosift.engine.conditions import REAGENTS, Conditions
+from halosift.engine.nbs import nbs_products
+from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from halosift.engine.parallel import Cancelled, perceive_parallel
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.perception import Perception, concat, perceive
-from halosift.engine.site_classes import ABSTRACTABLE
-from halosift.engine.nbs import nbs_products
-from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS
 from halosift.engine.rates import enthalpy_of_abstraction
+from halosift.engine.site_classes import ABSTRACTABLE
 from halosift.engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
 _HOT_ALKENE = (

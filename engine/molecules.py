@@ -4,11 +4,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from rdkit import Chem
-from rdkit.Chem import rdmolops
-
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.rdkit_log import quiet_rdkit
+from rdkit import Chem
+from rdkit.Chem import rdmolops
 
 _ELEMENT_NAMES = {
     "N": "nitrogen", "O": "oxygen", "S": "sulfur", "P": "phosphorus", "F": "fluorine",

@@ -23,13 +23,12 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pyarrow as pa
-from rdkit import Chem
-
 from halosift.engine import parameters as P
 from halosift.engine.shares import cast_checked, percent_of_structure
 from halosift.engine.site_classes import SITE_CODE
 from halosift.engine.sites import substitute
 from halosift.engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, canonical, potential_stereo, stereo_outcome
+from rdkit import Chem
 
 _SINGLE = Chem.BondType.SINGLE
 _DOUBLE = Chem.BondType.DOUBLE

@@ -24,7 +24,6 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 import numpy as np
-
 from halosift.engine import parameters as P
 from halosift.engine.conditions import Conditions
 

@@ -18,10 +18,9 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 from contextlib import contextmanager
 
 import pyarrow as pa
-
 from halosift.engine.cores import capped_workers, usable_cores
-from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.nbs import frame_from_rows
+from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SCHEMA, Perception, concat, perceive
 
 #: Most strings per task: big enough to amortise the hand-off, small enough for a smooth progress bar.

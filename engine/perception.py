@@ -13,8 +13,6 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 import pyarrow as pa
-from rdkit import Chem
-
 from halosift.engine import contenders as contenders_module
 from halosift.engine.contenders import contenders
 from halosift.engine.kernels import BatchSites, MolArrays, classify, mol_arrays, site_names
@@ -25,9 +23,14 @@ from halosift.engine.shares import cast_checked
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
 from halosift.engine.sites import has_specified_stereo, norbornane_positions, site_groups, substitute
 from halosift.engine.special_sites import (
-    CAGE_MAX_RING, is_small_bridgehead, kernel_flags, small_bridgeheads, structure_flags,
+    CAGE_MAX_RING,
+    is_small_bridgehead,
+    kernel_flags,
+    small_bridgeheads,
+    structure_flags,
 )
 from halosift.engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome, work_share
+from rdkit import Chem
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
 
@@ -177,7 +180,7 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
             outcomes[i] = _perceive_one(smiles[i], max_heavy, detail, prepared)
         except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
             outcomes[i] = _internal("perception failed", exc)
-    return outcomes  # type: ignore[return-value]  (every slot is filled above)
+    return outcomes  # type: ignore[return-value]  # every slot is filled above
 
 
 def _finish(
@@ -206,7 +209,7 @@ def _finish(
             st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
             st = NOT_ANALYSED  # never formed (vinyl/aryl/alkynyl C–H), or not a possible Br2 major
-        shown = named is None or g in named or g in stereo_wanted
+        shown = named is None or g in named or (stereo_wanted is not None and g in stereo_wanted)
         outcomes.append(st)
         rows.append(
             (
@@ -260,8 +263,8 @@ def perceive(
     except Exception:
         # Some row's values do not fit the typed tables (say a count beyond int32): that row
         # alone is rejected, so no single structure can fail the batch it came in.
-        for i, exc in _unfit(outcomes, 0, len(outcomes)):
-            outcomes[i] = _internal("its results do not fit the result tables", exc)
+        for i, error in _unfit(outcomes, 0, len(outcomes)):
+            outcomes[i] = _internal("its results do not fit the result tables", error)
         return _tables(outcomes)
 
 

@@ -35,7 +35,6 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-
 from halosift.engine import parameters as P
 from halosift.engine.reagents import RADICAL_OF
 

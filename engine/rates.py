@@ -15,7 +15,6 @@ from dataclasses import dataclass
 from functools import cache
 
 import numpy as np
-
 from halosift.engine import parameters as P
 from halosift.engine.parameters import Arrhenius
 from halosift.engine.site_classes import (

@@ -7,10 +7,9 @@ from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 from functools import cached_property
 
-from rdkit import Chem
-
 from halosift.engine.special_sites import small_bridgeheads
 from halosift.engine.stereo import canonical
+from rdkit import Chem
 
 _SINGLE = Chem.BondType.SINGLE
 _DEGREE_NAMES = {1: "primary", 2: "secondary", 3: "tertiary"}

@@ -33,7 +33,6 @@ import math
 from functools import cache
 
 import numpy as np
-
 from halosift.engine import parameters as P
 from halosift.engine.site_classes import SITE_CLASSES, SOLVENT_BASE
 
@@ -64,7 +63,7 @@ def _points(solvent: str) -> list[tuple[float, float]]:
 def measured_ratio(solvent: str, molar: float) -> float:
     """Per-H tertiary : primary of 2,3-dimethylbutane at 25 °C, interpolated log-linearly in molarity."""
     pts = _points(solvent)
-    for (c0, r0), (c1, r1) in zip(pts, pts[1:]):
+    for (c0, r0), (c1, r1) in zip(pts, pts[1:]):  # noqa: B007 - the segment found is used after the loop
         if molar <= c1:
             break
     # (c0, r0)–(c1, r1) is now the segment holding molar, or the last one (extrapolation)

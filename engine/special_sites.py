@@ -12,9 +12,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from rdkit import Chem
-
 from halosift.engine import parameters as P
+from rdkit import Chem
 
 _DOUBLE = Chem.BondType.DOUBLE
 

@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import itertools
-from typing import Any
 import math
 import operator
 from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import lru_cache
-
+from typing import Any
 
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom

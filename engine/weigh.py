@@ -30,15 +30,22 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 import pyarrow.compute as pc
-
 from halosift.engine.conditions import REAGENTS, Conditions
 from halosift.engine.cores import usable_cores
 from halosift.engine.nbs import NBS_SITES, nbs_majors, nbs_percent
 from halosift.engine.outcomes import (
-    FEATURES, OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, SITE_REAGENTS, VERDICTS, pathway_applies, reagent_outcomes,
+    FEATURES,
+    OUTCOME_REAGENTS,
+    OUTCOMES,
+    PATHWAYS,
+    REASONS,
+    SITE_REAGENTS,
+    VERDICTS,
+    pathway_applies,
+    reagent_outcomes,
 )
-from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
 from halosift.engine.perception import Perception
+from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
 from halosift.engine.rates import CONFIDENCE_BASES
 from halosift.engine.shares import blocks_by_length, percent_of_structure
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
@@ -535,7 +542,6 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     or of the threshold recomputes only what it affects.
     """
     structures = perception.structures
-    n = len(structures)
     keys = {r: conditions.reagent_key(r) for r in ("nbs", *SITE_REAGENTS)}
     pool = _pool(perception)
     try:

@@ -32,9 +32,15 @@ if not _os.path.isdir(_os.path.join(_here, "engine")):
         __path__.append(_root)  # noqa: F821  (a package's __path__)
 
 if TYPE_CHECKING:
-    from halosift.engine import (
-        CAUTION, Conditions, Explanation, Library, LibraryError, UnsupportedReagent, explain, load_library, screen,
-    )
+    from halosift.engine import CAUTION as CAUTION
+    from halosift.engine import Conditions as Conditions
+    from halosift.engine import Explanation as Explanation
+    from halosift.engine import Library as Library
+    from halosift.engine import LibraryError as LibraryError
+    from halosift.engine import UnsupportedReagent as UnsupportedReagent
+    from halosift.engine import explain as explain
+    from halosift.engine import load_library as load_library
+    from halosift.engine import screen as screen
 
 _API = {
     "Conditions": "halosift.engine.conditions",

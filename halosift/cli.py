@@ -243,9 +243,8 @@ def _condition_fields(args: argparse.Namespace, reagents: Sequence[str]) -> dict
 
 def _explain(args: argparse.Namespace) -> int:
     from halosift.engine import CAUTION, explain
-    from halosift.formatting import explanation_table
-
     from halosift.engine.reagents import UnsupportedReagent, check_reagent
+    from halosift.formatting import explanation_table
 
     try:
         reagents = tuple(dict.fromkeys(check_reagent(r) for r in (args.reagent or ("cl2", "br2"))))

@@ -5,9 +5,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from halosift.engine.conditions import REAGENT_LABELS
-from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS
 from halosift.engine.explain import REAGENT_NOTES, Explanation
 from halosift.engine.polyhalogenation import POLY_UNIT, PolyPlan
+from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS
 from halosift.engine.safety import CAUTION
 from halosift.engine.stereo import count_text
 

@@ -12,10 +12,10 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import cache as cache_mod
 from halosift.engine.cache import CacheWarning, PerceptionCache, take
+
+from halosift import engine
 
 ROOT = Path(__file__).resolve().parents[1]
 SMILES = ["CCCC", "CC(C)C", "C1CCCCC1", "C=CCC", "Cc1ccccc1", "CC(C)CC", "CCC(C)(C)C", "C1CCC1"]
@@ -128,7 +128,7 @@ for round in range(10):
     hit, _ = PerceptionCache(sys.argv[1]).lookup(keys)
     assert hit.all(), (round, hit)
 print("ok")
-""" % (SMILES,)
+""" % (SMILES,)  # noqa: UP031 - the braces of the code inside would need doubling
 
 
 def test_concurrent_writers_keep_one_index(tmp_path: Path, base) -> None:

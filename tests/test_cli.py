@@ -12,9 +12,9 @@ from pathlib import Path
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
+from halosift.sample_libraries import sample_path
 
 from halosift.cli import main
-from halosift.sample_libraries import sample_path
 
 
 def run(*args: str) -> subprocess.CompletedProcess:
@@ -328,8 +328,9 @@ def test_bad_arguments_are_one_line(args: list[str]) -> None:
 
 
 def test_cli_format_lists_match_the_engine() -> None:
-    from halosift import cli
     from halosift.engine.io import INPUT_FORMATS, OUTPUT_FORMATS
+
+    from halosift import cli
 
     assert cli.IN_FORMATS == INPUT_FORMATS and cli.OUT_FORMATS == OUTPUT_FORMATS
 

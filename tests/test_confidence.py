@@ -11,14 +11,14 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import Conditions
 from halosift.engine import parameters as P
 from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
 from halosift.engine.rates import CONFIDENCE_BASES, TABLES, product_basis, rate_table, stated_basis
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.engine.weigh import BASES, basis_rank, ranks_at_cutoff
+
+from halosift import engine
 
 SMILES = ["CCC", "CC(C)C", "CCc1ccccc1", "C", "CC1CC1", "c1ccccc1", "CCO", "C=CC", "CC(C)CC"]
 GAS = Conditions(cl2_phase="gas")

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-
 from halosift.engine.conditions import MAX_TEMP_C
 from halosift.engine.contenders import contending_classes
 from halosift.engine.parameters import KELVIN

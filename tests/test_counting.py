@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 import pytest
+from alkanes import alkanes
 
 from halosift import engine
-from alkanes import alkanes
 
 # OEIS A000602: number of alkane isomers CnH2n+2 (n = 1..10).
 A000602 = [1, 1, 1, 2, 3, 5, 9, 18, 35, 75]

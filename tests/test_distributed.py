@@ -13,9 +13,10 @@ import pytest
 distributed = pytest.importorskip("distributed")
 dd = pytest.importorskip("dask.dataframe")
 
+from halosift.engine import distributed as hs_dask  # noqa: E402
+
 import halosift as hs  # noqa: E402
 from halosift.cli import main  # noqa: E402
-from halosift.engine import distributed as hs_dask  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 #: Distinct generated structures: enough for several perceive_batch tasks on two workers.

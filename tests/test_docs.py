@@ -137,9 +137,10 @@ def test_readme_python_example_calls_match_the_code() -> None:
     import ast
     import inspect
 
-    import halosift as hs
     from halosift.engine.explain import Explanation
     from halosift.engine.library import Library
+
+    import halosift as hs
 
     block = re.search(r"### Python\n\n```python\n(.+?)\n```", README.read_text(encoding="utf-8"), flags=re.S)
     assert block, "README has a Python example"
@@ -192,9 +193,9 @@ def test_documented_conditions_fields_and_defaults_match_the_dataclass() -> None
 
 def test_readme_column_table_is_the_screens_output_and_its_docs() -> None:
     import pandas as pd
+    from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
 
     import halosift as hs
-    from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
 
     table = re.findall(r"^\| `([a-z0-9_]+)` \| (.*) \|$", README.read_text(encoding="utf-8"), flags=re.M)
     inputs = pd.DataFrame({"smiles": ["CCC", "CCO"], "catalog_id": ["WS-1", "WS-2"]})

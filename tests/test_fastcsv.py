@@ -6,10 +6,9 @@ import gzip
 import random
 from pathlib import Path
 
+import halosift.engine.io.delimited as delimited
 import pandas as pd
 import pytest
-
-import halosift.engine.io.delimited as delimited
 from halosift.engine.io import open_library
 from halosift.engine.io.fastcsv import read_fast
 from halosift.engine.io.source import concat_batches

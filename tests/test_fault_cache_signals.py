@@ -22,12 +22,12 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
-
-from halosift import engine
 from halosift.engine import cache as cache_mod
 from halosift.engine import parallel
 from halosift.engine.cache import CacheWarning, PerceptionCache
 from halosift.engine.cores import capped_workers, usable_cores
+
+from halosift import engine
 from halosift.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]

@@ -20,10 +20,10 @@ import pandas as pd
 import pyarrow as pa
 import pyarrow.parquet as pq
 import pytest
+from tui_helpers import async_test, settle
 
 from halosift import engine
 from halosift.cli import main
-from tui_helpers import async_test, settle
 
 REPO = Path(__file__).resolve().parents[1]
 #: A 150-carbon comb: within the size limit, but with ~10^22 stereoisomers per product.

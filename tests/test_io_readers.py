@@ -10,11 +10,10 @@ from pathlib import Path
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
-from rdkit import Chem, RDLogger, rdBase
-
 from halosift.engine.io import LibraryError, RawBatch, open_frame, open_library, write_table
-from halosift.engine.rdkit_log import quiet_rdkit as rdkit_quiet
 from halosift.engine.io.coerce import settle_types
+from halosift.engine.rdkit_log import quiet_rdkit as rdkit_quiet
+from rdkit import Chem, RDLogger, rdBase
 
 # An invented supplier's catalogue: IDs chosen to trip naive NA handling.
 IDS = ["NA", "null", "QX-0007", "QX-0008", "N/A"]

@@ -7,15 +7,14 @@ import os
 import stat
 from pathlib import Path
 
+import halosift.engine.io.writers as writers
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
-from rdkit import Chem
-
-import halosift.engine.io.writers as writers
 from halosift.engine.io import LibraryError, about_path, atomic_path, open_library, output_format, write_table
 from halosift.engine.io.delimited import FORMULA_RULE
 from halosift.engine.io.metadata import PCT_PRECISION, file_metadata
+from rdkit import Chem
 
 META = {"tool": "halosift", "caution": "Invented caution line one.\nInvented caution line two."}
 
@@ -403,7 +402,7 @@ def test_result_percentages_are_rounded_to_a_tenth_in_every_format(tmp_path: Pat
 
 
 def test_a_screen_result_keeps_no_unrounded_percentage(tmp_path: Path) -> None:
-    from halosift.engine import Conditions, screen
+    from halosift.engine import screen
     from halosift.engine.io.metadata import percent_columns
     from halosift.engine.library import RESULT_COLUMNS
 

@@ -14,18 +14,22 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from rdkit import Chem
-
-from halosift import engine
 from halosift.engine import contenders as contenders_module
 from halosift.engine.kernels import classify, mol_arrays, site_names
 from halosift.engine.perception import reference_mode
 from halosift.engine.site_classes import ABSTRACTABLE
 from halosift.engine.sites import norbornane_positions, site_classes
 from halosift.engine.special_sites import (
-    CAGE_MAX_RING, is_small_bridgehead, kernel_flags, small_bridgeheads, structure_flags,
+    CAGE_MAX_RING,
+    is_small_bridgehead,
+    kernel_flags,
+    small_bridgeheads,
+    structure_flags,
 )
 from halosift.sample_libraries import sample_path
+from rdkit import Chem
+
+from halosift import engine
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))

@@ -2,15 +2,15 @@
 
 from __future__ import annotations
 
+import halosift.engine.parallel as parallel
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
-import halosift.engine.parallel as parallel
 from halosift.engine import Conditions
 from halosift.engine.library import RESULT_COLUMNS
 from halosift.sample_libraries import sample_path
+
+from halosift import engine
 
 MIXED = [
     ("g1", "CCC"),

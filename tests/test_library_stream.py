@@ -8,11 +8,11 @@ from dataclasses import replace
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import parallel
 from halosift.engine.cache import PerceptionCache
 from halosift.engine.library import PENDING
+
+from halosift import engine
 
 #: Invented supplier rows: alkanes, arenes, an alkene, a duplicate, a heteroatom and a broken SMILES.
 SMILES = ["CCC", "CC(C)C", "Cc1ccccc1", "C1CCCCC1", "CC1=CCCCC1", "CCC", "O", "CCCC", "C(C)(C)C",

@@ -8,12 +8,12 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import parameters as P
 from halosift.engine.cache import PerceptionCache, take
 from halosift.engine.rates import rate_table
 from halosift.engine.site_classes import SITE_CLASSES
+
+from halosift import engine
 from halosift.cli import main
 
 
@@ -147,7 +147,6 @@ def test_nbs_majors_match_a_per_structure_loop(shuffled: bool) -> None:
     from pathlib import Path
 
     import numpy as np
-
     from halosift.engine.nbs import nbs_majors, nbs_percent
 
     sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))

@@ -9,12 +9,12 @@ all marked there.
 from __future__ import annotations
 
 import pytest
-from rdkit import Chem
-
-from halosift import engine
 from halosift.engine.nbs import radical_class
 from halosift.engine.perception import perceive
 from halosift.engine.site_classes import SITE_CODE
+from rdkit import Chem
+
+from halosift import engine
 
 
 def nbs_split(smiles: str) -> dict[str, float]:

@@ -23,14 +23,13 @@ import re
 from pathlib import Path
 
 import pytest
-from rdkit import Chem
-
-from halosift import engine
 from halosift.engine import parameters as P
 from halosift.engine.rates import rate_table
 from halosift.engine.site_classes import SITE_CODE
-
+from rdkit import Chem
 from test_published_distributions import CHECKS
+
+from halosift import engine
 
 #: Non-methyl carbon neighbours of the class constant's own site (propane CH3; propane CH2; isobutane CH).
 _REFERENCE_NEIGHBOURS = {"primary": 1, "secondary": 0, "tertiary": 0}

@@ -8,16 +8,16 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
-from hypothesis import HealthCheck, assume, given, settings
-from hypothesis import strategies as st
-from rdkit import Chem
-
-from halosift import engine
 from halosift.engine import Conditions
 from halosift.engine import parameters as P
 from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS
 from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES, PATHWAYS, REASONS, VERDICTS
 from halosift.engine.stereo import OUTCOMES as STEREO_OUTCOMES
+from hypothesis import HealthCheck, assume, given, settings
+from hypothesis import strategies as st
+from rdkit import Chem
+
+from halosift import engine
 from halosift.cli import main
 
 C, M, X = "clean", "mixture", "ruled-out"

@@ -6,8 +6,9 @@ import ast
 import json
 import subprocess
 import sys
-import pytest
 from pathlib import Path
+
+import pytest
 
 tomllib = pytest.importorskip("tomllib")  # Python 3.11+
 

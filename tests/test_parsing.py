@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 import pytest
+from halosift.engine.molecules import parse_hydrocarbon
 
 from halosift import engine
-from halosift.engine.molecules import parse_hydrocarbon
 
 REJECTIONS = [
     ("", "empty"),

@@ -6,11 +6,11 @@ import math
 
 import numpy as np
 import pytest
-
-from halosift import engine
 from halosift.engine import polyhalogenation as ph
 from halosift.engine.polyhalogenation import Split, left_and_mono_at_ratio, plan, poly_pct_of_block
 from halosift.engine.shares import blocks_by_length
+
+from halosift import engine
 
 
 def _mono(left: float, phi: list[float], kappa: list[float]) -> float:

@@ -8,10 +8,10 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import parameters as P
 from halosift.engine.polyhalogenation import Split, monohalide, plan
+
+from halosift import engine
 from halosift.cli import main
 
 
@@ -107,8 +107,9 @@ def test_inverse_cap_is_consistent() -> None:
 @pytest.mark.parametrize("reagent", ["cl2", "br2"])
 def test_screen_column_explain_plan_and_app_detail_give_one_number(reagent: str) -> None:
     """One polyhalide figure: the screen column, explain's planner and the app's detail text agree."""
-    from halosift.formatting import poly_lines
     from halosift.tui.detail import poly_text
+
+    from halosift.formatting import poly_lines
 
     smiles = ["CCCC", "C1CCCCC1", "c1ccccc1", "CC(C)C", "CCC(C)CC"]
     library = engine.load_library(pd.DataFrame({"smiles": smiles}), use_cache=False)

@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import pytest
+from halosift.engine.site_classes import ABSTRACTABLE
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from rdkit import Chem
 
 from halosift import engine
-from halosift.engine.site_classes import ABSTRACTABLE
 
 
 @st.composite

@@ -16,10 +16,10 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
+from halosift.engine import Conditions
 from rdkit import Chem
 
 from halosift import engine
-from halosift.engine import Conditions
 
 
 @dataclass(frozen=True)

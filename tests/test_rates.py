@@ -10,7 +10,6 @@ from __future__ import annotations
 import math
 
 import pytest
-
 from halosift.engine import parameters as P
 from halosift.engine.rates import TABLES, br_activation_energy, enthalpy_of_abstraction, rate_table
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES

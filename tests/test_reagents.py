@@ -7,10 +7,10 @@ import subprocess
 import sys
 
 import pytest
-
-from halosift import engine
 from halosift.engine import parameters as P
 from halosift.engine.reagents import NOT_PREDICTED, UnsupportedReagent, check_reagent
+
+from halosift import engine
 from halosift.cli import main
 
 

@@ -3,19 +3,19 @@
 from __future__ import annotations
 
 import html
-from collections import Counter
 import re
 import subprocess
 import sys
 import xml.etree.ElementTree as ET
+from collections import Counter
 from html.parser import HTMLParser
 from pathlib import Path
 
 import pandas as pd
 import pytest
+from halosift.engine.provenance import MODEL_SOURCES
 
 from halosift import engine
-from halosift.engine.provenance import MODEL_SOURCES
 from halosift.cli import main
 from halosift.report import render_report
 from halosift.report.charts import histogram, nice_ticks
@@ -469,9 +469,10 @@ def test_norbornane_entry_gives_the_exo_endo_split_its_flag_promises(tmp_path: P
 def test_site_letters_placed_clear_at_one_size_without_a_browser() -> None:
     # The same molecules as the browser test (5 to 20 carbons): every letter finds a clear spot, the drawn bond
     # length stays the fixed one (the canvas grows instead), and the letter size never changes.
+    from test_report_browser import LABEL_ROWS
+
     from halosift.report import drawing
     from halosift.report.html import _letters
-    from test_report_browser import LABEL_ROWS
 
     spots_seen: list[list[drawing.LabelSpot]] = []
     original = drawing.place_labels

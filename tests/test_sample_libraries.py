@@ -8,10 +8,10 @@ from pathlib import Path
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
+from halosift.sample_libraries import build_catalogue
 from rdkit import Chem, RDLogger
 
 from halosift import sample_libraries
-from halosift.sample_libraries import build_catalogue
 
 COLUMNS = list(build_catalogue.COLUMNS)
 REJECTION_KINDS = {"unparsable", "empty", "heteroatom", "charged", "radical",

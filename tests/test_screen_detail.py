@@ -13,9 +13,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from rdkit import Chem
-
-from halosift import engine
 from halosift.engine import Conditions
 from halosift.engine.conditions import MAX_TEMP_C
 from halosift.engine.contenders import contending_classes
@@ -23,6 +20,9 @@ from halosift.engine.parameters import KELVIN
 from halosift.engine.perception import perceive
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.sample_libraries import sample_path
+from rdkit import Chem
+
+from halosift import engine
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
 from library_gen import make_library  # noqa: E402

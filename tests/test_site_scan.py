@@ -12,13 +12,17 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from rdkit import Chem
-
 from halosift.engine.sites import site_classes
 from halosift.engine.special_sites import (
-    CAGE_MAX_RING, CAGE_MIN_ATOMS, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags,
+    CAGE_MAX_RING,
+    CAGE_MIN_ATOMS,
+    FLAGS,
+    is_small_bridgehead,
+    small_bridgeheads,
+    structure_flags,
 )
 from halosift.sample_libraries import sample_path
+from rdkit import Chem
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
 from library_gen import make_library  # noqa: E402

@@ -11,10 +11,10 @@ from __future__ import annotations
 import math
 
 import pytest
-
-from halosift import engine
 from halosift.engine import Conditions
 from halosift.engine.solvent import measured_ratio, selectivity_exponent
+
+from halosift import engine
 from halosift.cli import main
 
 

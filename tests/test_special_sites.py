@@ -6,15 +6,14 @@ from pathlib import Path
 
 import pandas as pd
 import pytest
-from rdkit import Chem
-
-from halosift import engine
-
 from halosift.engine import parameters as P
 from halosift.engine.perception import STRUCTURE_SCHEMA
 from halosift.engine.rates import rate_table
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, site_bde
 from halosift.engine.special_sites import FLAG_NOTES, FLAGS, is_small_bridgehead, small_bridgeheads, structure_flags
+from rdkit import Chem
+
+from halosift import engine
 
 
 def flags(smiles: str) -> tuple[str, ...]:

@@ -71,9 +71,8 @@ def test_input_stereo_is_kept_in_products() -> None:
 )
 def test_tags_from_positions_follow_rdkit_convention(smiles: str) -> None:
     # Our geometry-to-tag rule against RDKit's own 3D perception on the same coordinates.
-    from rdkit.Chem import rdDistGeom
-
     from halosift.engine.stereo import _tag_from_positions
+    from rdkit.Chem import rdDistGeom
 
     mol = Chem.MolFromSmiles(smiles)
     mol_h = Chem.AddHs(mol)
@@ -134,12 +133,11 @@ def test_orbit_count_agrees_with_enumeration_where_smiles_are_reliable() -> None
     from pathlib import Path
 
     sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
-    from library_gen import make_library
-
     from halosift.engine.molecules import parse_hydrocarbon
     from halosift.engine.site_classes import ABSTRACTABLE
     from halosift.engine.sites import site_groups
     from halosift.engine.stereo import Skeleton, stereo_outcome
+    from library_gen import make_library
 
     compared = with_elements = 0
     for smiles in make_library(1500, seed=23):

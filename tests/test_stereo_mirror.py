@@ -251,7 +251,6 @@ def test_count_beyond_the_cap_is_capped_and_marked() -> None:
 
 def test_count_columns_are_int64_and_never_negative() -> None:
     import pyarrow as pa
-
     from halosift.engine.perception import SITE_SCHEMA
 
     perception = engine.perceive([_chain(k) for k in (31, 45, 60)])
@@ -286,7 +285,6 @@ def test_budget_is_the_same_in_screen_explain_and_detail() -> None:
     # The share depends only on the structure, so a screen (stereo for possible Br2 majors),
     # explain, and the detail the app and the report ask the library for agree row by row.
     import pandas as pd
-
     from halosift.engine.stereo import NOT_COUNTED
 
     lean = engine.perceive([BUDGET_SUBSTRATE], detail=False).sites

@@ -10,8 +10,6 @@ import numpy as np
 import pandas as pd
 import pyarrow.parquet as pq
 import pytest
-
-from halosift import engine
 from halosift.tui.app import HalosiftApp, run
 from halosift.tui.conditions import ConditionsScreen
 from halosift.tui.detail import DetailScreen, bar
@@ -20,6 +18,8 @@ from halosift.tui.filter_form import FilterForm
 from halosift.tui.help import HelpScreen
 from halosift.tui.table import ROW_KEY, LibraryTable
 from tui_helpers import QX_ROWS, async_test, plain, settle
+
+from halosift import engine
 
 SIZE = (120, 40)
 
@@ -289,8 +289,9 @@ async def test_shortlist_exports_as_html_report(tmp_path):
 
 @async_test
 async def test_html_export_shows_progress_until_written(tmp_path, monkeypatch):
-    from halosift import engine
     from halosift.tui import export as export_module
+
+    from halosift import engine
 
     seen: list[tuple[int, int, bool]] = []
     original = export_module.ExportProgress.update_progress
@@ -302,7 +303,7 @@ async def test_html_export_shows_progress_until_written(tmp_path, monkeypatch):
     monkeypatch.setattr(export_module.ExportProgress, "update_progress", record)
     monkeypatch.setattr(export_module, "PROGRESS_INTERVAL_S", 0.0)  # every step reaches the bar
     source = tmp_path / "many.csv"
-    chains = [("MN-%03d" % i, "C" * (3 + i % 12) + "C(C)C" * (i % 3)) for i in range(30)]
+    chains = [(f"MN-{i:03d}", "C" * (3 + i % 12) + "C(C)C" * (i % 3)) for i in range(30)]
     pd.DataFrame(chains, columns=["id", "smiles"]).to_csv(source, index=False)
     app = HalosiftApp(str(source))
     async with app.run_test(size=SIZE) as pilot:
@@ -518,9 +519,9 @@ async def test_mouse_picks_rows_and_columns(tmp_path):
 async def test_screening_in_worker_processes_works_inside_the_app(tmp_path, monkeypatch):
     """Inside a running Textual app sys.stderr has no file descriptor; spawning the engine's
     process pool must still work (the app starts multiprocessing's helper before it runs)."""
-    import halosift.engine.parallel
-    from halosift import engine
     from multiprocessing import resource_tracker
+
+    from halosift import engine
 
     resource_tracker._resource_tracker._stop()  # as in a fresh process: no helper running yet
     monkeypatch.setattr(engine.parallel, "MIN_PARALLEL", 4)

@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-
 import pytest
-
-from halosift import engine
 from halosift.tui.app import HalosiftApp
 from halosift.tui.conditions import ConditionsScreen, read_fields
 from halosift.tui.table import LibraryTable
 from tui_helpers import async_test, plain, settle, write_library
+
+from halosift import engine
 
 SIZE = (100, 30)
 

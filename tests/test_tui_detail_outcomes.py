@@ -4,11 +4,11 @@ from __future__ import annotations
 
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.tui.app import HalosiftApp
 from halosift.tui.detail import OUTCOME_LABELS, DetailScreen, outcomes_text
 from tui_helpers import async_test, plain, settle, write_library
+
+from halosift import engine
 
 #: Substrates chosen for different outcomes: selective, by symmetry, a cyclopropane (Br2 ruled out),
 #: an alkene (addition at room temperature), a benzylic one (NBS clean or mixture).

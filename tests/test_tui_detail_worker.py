@@ -5,7 +5,6 @@ from __future__ import annotations
 import threading
 
 import numpy as np
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.detail import WORKING_NOTE, DetailScreen
 from halosift.tui.table import LibraryTable

@@ -5,7 +5,6 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
-
 from halosift.tui.filters import (
     CONFIDENCE_CHOICES,
     DUPLICATE_MODES,

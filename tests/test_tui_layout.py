@@ -2,15 +2,11 @@
 
 from __future__ import annotations
 
-
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import FilterSpec, SortSpec
 from halosift.tui.header import Phrase, column_title, fit_phrases
 from halosift.tui.table import _GUTTER, LibraryTable, fit
 from tui_helpers import async_test, plain, settle, write_library
-
-
 
 
 @async_test

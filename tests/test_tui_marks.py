@@ -7,7 +7,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.export import ExportScreen
 from halosift.tui.id_list import IdListScreen, match_ids, read_ids

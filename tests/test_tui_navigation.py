@@ -5,7 +5,6 @@ from __future__ import annotations
 from pathlib import Path
 
 import pandas as pd
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.detail import DetailScreen
 from halosift.tui.table import LibraryTable

@@ -11,7 +11,6 @@ import threading
 from pathlib import Path
 
 import numpy as np
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.table import LibraryTable
 from tui_helpers import settle, write_library

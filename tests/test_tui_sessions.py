@@ -8,12 +8,12 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.tui import session as sessions
 from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import FilterSpec, SortSpec
 from tui_helpers import QX_ROWS, async_test, settle, write_library
+
+from halosift import engine
 
 SIZE = (120, 40)
 

@@ -10,10 +10,10 @@ from __future__ import annotations
 from pathlib import Path
 
 import numpy as np
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.table import LibraryTable
 from tui_helpers import settle, write_library
+
 
 def make_app(folder: Path) -> HalosiftApp:
     return HalosiftApp(str(write_library(folder)))

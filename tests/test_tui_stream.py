@@ -6,9 +6,7 @@ import threading
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 import pytest
-
 from halosift.engine import parallel
 from halosift.engine.cache import PerceptionCache
 from halosift.tui.app import HalosiftApp

@@ -5,11 +5,11 @@ from __future__ import annotations
 import asyncio
 
 import pytest
+from halosift.tui import structure_view as sv
 from textual.app import App, ComposeResult
 from textual.widgets import Static
 
 from halosift import engine
-from halosift.tui import structure_view as sv
 
 
 @pytest.fixture
@@ -58,10 +58,10 @@ def _table_and_layout(smiles: str):
     import io
 
     import pandas as pd
+    from halosift.tui.detail import products_table
     from rich.console import Console
 
     from halosift.report.drawing import png_layout
-    from halosift.tui.detail import products_table
 
     library = engine.load_library(pd.DataFrame({"smiles": [smiles]}), use_cache=False)
     canonical = str(library.evaluate()["canonical_smiles"].iloc[0])
@@ -135,9 +135,8 @@ def test_site_labels_are_the_products_table_names() -> None:
     # The drawing's labels must read exactly as the first column of the detail's products table.
     import io
 
-    from rich.console import Console
-
     from halosift.tui.detail import products_table
+    from rich.console import Console
 
     library = engine.load_library(__import__("pandas").DataFrame({"smiles": ["CC(C)Cc1ccccc1"]}), use_cache=False)
     products = library.products(0)
@@ -164,7 +163,6 @@ def test_image_widget_mounts_and_renders(propane_products) -> None:
 def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
     # The app's detail screen mounts the image widget in image mode and the note otherwise.
     import pandas as pd
-
     from halosift.tui.app import HalosiftApp
 
     lib = tmp_path / "lib.csv"
@@ -197,7 +195,6 @@ def test_detail_screen_shows_drawing_or_note(tmp_path) -> None:
 
 def test_detail_head_wraps_a_long_smiles_at_sensible_points(tmp_path) -> None:
     import pandas as pd
-
     from halosift.tui.app import HalosiftApp
     from halosift.tui.detail import DetailScreen
     from tui_helpers import plain, settle
@@ -237,9 +234,8 @@ def test_products_view_keeps_every_monochloride_whole_and_inside(width: int) -> 
     import io
     import re
 
-    from rich.console import Console
-
     from halosift.tui.detail import products_view
+    from rich.console import Console
 
     smiles = "CC(C)CC1CCC(CC1)C(C)(C)Cc1ccc2cc(CC)ccc2c1C(C)C1CCCCC1CCCCCCCC"
     products = engine.load_library(__import__("pandas").DataFrame({"smiles": [smiles]}), use_cache=False).products(0)

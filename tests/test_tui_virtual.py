@@ -6,7 +6,6 @@ import gc
 
 import numpy as np
 import pandas as pd
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import FilterSpec
 from halosift.tui.table import LibraryTable, fit, format_values

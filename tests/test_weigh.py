@@ -11,8 +11,6 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-
-from halosift import engine
 from halosift.engine import Conditions
 from halosift.engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
 from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
@@ -20,6 +18,8 @@ from halosift.engine.perception import Perception
 from halosift.engine.polyhalogenation import deactivation
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.engine.weigh import BASES, CONFIDENCE_MIN_PCT, SERVES_ORDER, SUMMARY_COLUMNS, summarise
+
+from halosift import engine
 
 ALKENE_RULE = next(p for p in PATHWAYS if p.feature == "alkene")
 

@@ -18,15 +18,6 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
-from textual import on, work
-from textual.app import App, ComposeResult
-from textual.binding import Binding, BindingType
-from textual.containers import Vertical
-from textual.reactive import reactive
-from textual.timer import Timer
-from textual.widgets import Footer, Input, Label, ProgressBar, Static
-from textual.worker import get_current_worker
-
 from halosift.tui.conditions import ConditionsScreen
 from halosift.tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
 from halosift.tui.messages import (
@@ -50,10 +41,17 @@ from halosift.tui.messages import (
 )
 from halosift.tui.search import SearchBar
 from halosift.tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
+from textual import on, work
+from textual.app import App, ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Vertical
+from textual.reactive import reactive
+from textual.timer import Timer
+from textual.widgets import Footer, Input, Label, ProgressBar, Static
+from textual.worker import get_current_worker
 
 if TYPE_CHECKING:
     import pandas as pd
-
     from halosift.engine import Conditions, Library
     from halosift.tui.export import ExportChoice
 
@@ -271,8 +269,9 @@ class HalosiftApp(App[int]):
         The rows perceived so far go up as they come (ScreeningPartial, evaluated
         here, off the interface thread), the whole library last (ScreeningFinished).
         """
-        from halosift import engine
         from halosift.engine.library import PENDING
+
+        from halosift import engine
 
         last = [0.0]
         start: list[tuple[Any, str | None, str, Conditions]] = []  # (session, key, note, conditions), once known
@@ -980,8 +979,8 @@ class HalosiftApp(App[int]):
 
     def action_filters(self) -> None:
         """Open the filter form."""
-        from halosift.tui.filters import site_choices
         from halosift.tui.filter_form import FilterForm
+        from halosift.tui.filters import site_choices
 
         def done(spec: FilterSpec | None) -> None:
             if spec is not None:
@@ -1059,11 +1058,11 @@ class HalosiftApp(App[int]):
         ``rows`` are the view's rows as shown; for the shortlist they are None and
         the ``marked`` rows are put in ``sort`` order here, off the interface thread.
         """
+        from halosift.engine.io import about_path, output_format, write_table
         from halosift.tui.export import ReportProgress, export_frame, export_metadata, write_report_export
         from halosift.tui.filters import ordered_rows
 
         from halosift import engine
-        from halosift.engine.io import about_path, output_format, write_table
         from halosift.report import is_report_path
 
         try:

@@ -13,6 +13,9 @@ from __future__ import annotations
 from dataclasses import dataclass, replace
 from typing import Any, ClassVar
 
+from halosift.tui.header import cl2_forms
+from halosift.tui.messages import ConditionsProposed
+from halosift.tui.toggles import ChoiceButton, ChoiceSet
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
@@ -20,10 +23,6 @@ from textual.containers import Horizontal, Vertical
 from textual.reactive import reactive
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Input, Label, RadioSet, Static
-
-from halosift.tui.header import cl2_forms
-from halosift.tui.messages import ConditionsProposed
-from halosift.tui.toggles import ChoiceButton, ChoiceSet
 
 
 @dataclass(frozen=True)

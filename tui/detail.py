@@ -7,6 +7,8 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
+from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
+from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
@@ -18,9 +20,6 @@ from textual.reactive import reactive
 from textual.screen import Screen
 from textual.widgets import Footer, Static
 from textual.worker import get_current_worker
-
-from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
-from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 
 if TYPE_CHECKING:
     import pandas as pd

@@ -10,14 +10,13 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
+from halosift.tui.toggles import ChoiceButton
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, ProgressBar, RadioSet, Static
-
-from halosift.tui.toggles import ChoiceButton
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -49,6 +48,7 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
     be one of ``protected`` (the library being screened).
     """
     from halosift.engine.io import LibraryError, output_format
+
     from halosift.report import is_report_path
 
     text = text.strip()

@@ -4,13 +4,7 @@ from __future__ import annotations
 
 from typing import ClassVar
 
-from textual import on
-from textual.app import ComposeResult
-from textual.binding import Binding, BindingType
-from textual.containers import Grid, Horizontal, VerticalScroll
-from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, Static
-
+from halosift.engine.outcomes import VERDICTS
 from halosift.tui.filters import (
     CONFIDENCE_CHOICES,
     DUPLICATE_MODES,
@@ -23,8 +17,12 @@ from halosift.tui.filters import (
     parse_optional_int,
 )
 from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
-
-from halosift.engine.outcomes import VERDICTS
+from textual import on
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Grid, Horizontal, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, Static
 
 #: Verdict names in display order (the engine's own order).
 VERDICT_ORDER = VERDICTS

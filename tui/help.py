@@ -4,6 +4,9 @@ from __future__ import annotations
 
 from typing import ClassVar
 
+from halosift.engine.outcomes import OUTCOME_DOCS
+from halosift.engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
+from halosift.tui.filters import NO_NEW_STEREO, VIEW_DOCS
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
@@ -12,11 +15,6 @@ from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.screen import Screen
 from textual.widgets import Footer, Static
-
-from halosift.tui.filters import NO_NEW_STEREO, VIEW_DOCS
-
-from halosift.engine.outcomes import OUTCOME_DOCS
-from halosift.engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
 
 #: What each verdict means ({threshold} is filled in with the current threshold); the engine words them.
 VERDICT_DOCS: dict[str, str] = {

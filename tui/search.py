@@ -4,11 +4,10 @@ from __future__ import annotations
 
 from typing import ClassVar
 
+from halosift.tui.messages import PanelClosed, SearchChanged
 from textual.binding import Binding, BindingType
 from textual.timer import Timer
 from textual.widgets import Input
-
-from halosift.tui.messages import PanelClosed, SearchChanged
 
 #: Seconds of quiet typing before the filter is applied (each keystroke would
 #: otherwise start a scan of a possibly million-row table).

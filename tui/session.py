@@ -20,7 +20,6 @@ from pathlib import Path
 from typing import Any
 
 import numpy as np
-
 from halosift.tui.filters import DUPLICATE_MODES, VIEWS, FilterSpec, SortSpec
 
 #: Environment variable naming the folder sessions are kept in.

@@ -116,11 +116,10 @@ def structure_picture(graphics: str | None, canonical_smiles: str, products: pd.
     if graphics is None or not canonical_smiles:
         return text_picture(canonical_smiles, products)
     try:
+        from halosift.engine import quiet_rdkit
         from PIL import Image as PILImage
 
         from halosift.report.drawing import structure_png
-
-        from halosift.engine import quiet_rdkit
 
         with quiet_rdkit():
             png = structure_png(canonical_smiles, marks_for(products))

@@ -13,6 +13,7 @@ from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
+from halosift.tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
 from rich.segment import Segment
 from rich.style import Style
 from textual import events
@@ -21,8 +22,6 @@ from textual.geometry import Region, Size
 from textual.reactive import reactive
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
-
-from halosift.tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -549,7 +548,7 @@ class LibraryTable(ScrollView, can_focus=True):
             f"library-table--verdict-{self._window_verdict.get(position, 'rejected')}", default=Style()
         )
         styles = []
-        for col, text in zip(self._columns, cells):
+        for col in self._columns[: len(cells)]:
             style = line + verdict_style if col.kind == "verdict" and not at_cursor else line
             styles.append(style)
         gutter = (POINTER if at_cursor else " ") + (MARK if marked else " ")

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from textual.content import Content
 from textual import events
+from textual.content import Content
 from textual.widgets import Checkbox, RadioButton, RadioSet
 
 

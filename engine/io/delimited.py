@@ -14,8 +14,8 @@ from pandas.api.types import is_object_dtype, is_string_dtype
 
 from .columns import choose, unique_names
 from .errors import LibraryError
-from .source import LibrarySource, RawBatch
 from .fastcsv import read_fast
+from .source import LibrarySource, RawBatch
 from .textfile import (
     _PROBE_BYTES,
     UNDECODABLE,

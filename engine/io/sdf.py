@@ -8,10 +8,10 @@ from collections.abc import Hashable, Iterator, Mapping
 from pathlib import Path
 
 import pandas as pd
+from halosift.engine.rdkit_log import quiet_rdkit
 from rdkit import Chem
 from rdkit.Chem import rdDepictor
 
-from halosift.engine.rdkit_log import quiet_rdkit
 from .columns import ID_NAMES, SMILES_NAMES, choose, detect
 from .errors import LibraryError
 from .metadata import METADATA_PREFIX

@@ -330,7 +330,7 @@ def _exo_endo(site: str) -> str:
     from halosift.engine.rates import exo_fraction
 
     splits = []
-    for reagent, radical, name in (("cl2", "cl", "Cl2"), ("br2", "br", "Br2")):
+    for radical, name in (("cl", "Cl2"), ("br", "Br2")):
         f = exo_fraction(site, radical)
         if f is not None:
             splits.append(f"{100 * f:.0f}:{100 * (1 - f):.0f} {name}")

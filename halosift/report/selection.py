@@ -29,7 +29,6 @@ def read_ids(path: str | os.PathLike[str]) -> list[str]:
     Raises engine.LibraryError (one line) when the file cannot be read or holds no IDs.
     """
     from halosift.engine.io import LibraryError
-
     from halosift.engine.io.readers import not_regular
 
     path = Path(path)

@@ -23,13 +23,13 @@ class ScreeningProgress(Message):
 
 
 @dataclass
-class ScreeningFinished(Message):
-    """The library was read and perceived; ``frame`` is its first evaluation."""
+class _LibraryEvaluated(Message):
+    """A library (whole or in part) and its evaluation; the two messages below share these fields."""
 
     library: Any
-    """The engine.Library that was loaded."""
+    """The engine.Library that was loaded (``partial`` set while perceiving)."""
     frame: Any
-    """Library.evaluate(conditions), a pandas DataFrame."""
+    """Library.evaluate(conditions), a pandas DataFrame with every input row."""
     conditions: Any
     """The engine.Conditions ``frame`` was evaluated under."""
     session: Any = None
@@ -41,21 +41,14 @@ class ScreeningFinished(Message):
 
 
 @dataclass
-class ScreeningPartial(Message):
-    """Part of the library is perceived; ``frame`` evaluates it, rows not perceived yet have status pending."""
+class ScreeningFinished(_LibraryEvaluated):
+    """The library was read and perceived; ``frame`` is its first evaluation."""
 
-    library: Any
-    """The engine.Library so far (``partial`` set)."""
-    frame: Any
-    """Library.evaluate(conditions), a pandas DataFrame with every input row."""
-    conditions: Any
-    """The engine.Conditions ``frame`` was evaluated under."""
-    session: Any = None
-    """As for :class:`ScreeningFinished`: restored from the first message of a screen."""
-    session_key: str | None = None
-    """As for :class:`ScreeningFinished`."""
-    session_note: str = ""
-    """As for :class:`ScreeningFinished`."""
+
+@dataclass
+class ScreeningPartial(_LibraryEvaluated):
+    """Part of the library is perceived; rows of ``frame`` not perceived yet have status pending."""
+
     screened: int = 0
     """Rows of ``frame`` with status ok."""
     pending: int = 0

@@ -265,25 +265,35 @@ def _canvas(mol) -> tuple[int, int]:
     return width, height
 
 
-def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
-    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and lettered (a, b, …).
+@dataclass(frozen=True)
+class _Placed:
+    """A molecule drawn at the report's scale, with its label spots (shared by the SVG and the PNG)."""
 
-    The letters match the products table, where the percentages are; each is
-    placed clear of bonds, atoms and the other letters (:func:`place_labels`)
-    and written as SVG text at a fixed size, the canvas growing with the molecule.
-    ``canonical_smiles`` must be the engine's canonical SMILES: parsing it numbers
-    the atoms in the same order as :attr:`SiteMark.atom`. Raises ValueError when
-    it does not parse (it always should, coming from the engine).
-    """
+    drawing: str | bytes
+    """RDKit's drawing text (SVG) or bytes (PNG), without labels."""
+    size: tuple[int, int]
+    """Width and height, pixels."""
+    points: list[tuple[float, float]]
+    """Each atom's centre as drawn, pixels."""
+    spots: tuple[LabelSpot, ...]
+    """Where each mark's label goes, in marks order."""
+    font_px: float
+    """Label font size, pixels."""
+    notes: list[str]
+    """The marks' notes, for the SVG's description."""
+
+
+def _draw_and_place(canonical_smiles: str, marks: Sequence[SiteMark], *, vector: bool) -> _Placed:
+    """Draw the molecule tinted by site class at a fixed bond length, then place each mark's label."""
     from rdkit.Chem import rdDepictor
     from rdkit.Chem.Draw import rdMolDraw2D
 
     mol, colours, notes = _drawable(canonical_smiles, marks)
     for atom in mol.GetAtoms():
-        atom.ClearProp("atomNote")  # letters are drawn below, as text placed off the bonds
+        atom.ClearProp("atomNote")  # labels are written afterwards, on spots clear of the bonds
     rdDepictor.Compute2DCoords(mol)
     width, height = _canvas(mol)
-    drawer = rdMolDraw2D.MolDraw2DSVG(width, height)
+    drawer = rdMolDraw2D.MolDraw2DSVG(width, height) if vector else rdMolDraw2D.MolDraw2DCairo(width, height)
     options = drawer.drawOptions()
     options.clearBackground = True
     options.fixedBondLength = BOND_PX / DEPICTION_BOND  # pixels per coordinate unit
@@ -298,6 +308,21 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
     bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX  # as drawn (RDKit shrinks what does not fit)
     font_px = LABEL_FONT_PX * max(1.0, width / COLUMN_PX)
     spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px, font_px)
+    return _Placed(drawer.GetDrawingText(), (width, height), points, tuple(spots), font_px, list(notes))
+
+
+def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
+    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and lettered (a, b, …).
+
+    The letters match the products table, where the percentages are; each is
+    placed clear of bonds, atoms and the other letters (:func:`place_labels`)
+    and written as SVG text at a fixed size, the canvas growing with the molecule.
+    ``canonical_smiles`` must be the engine's canonical SMILES: parsing it numbers
+    the atoms in the same order as :attr:`SiteMark.atom`. Raises ValueError when
+    it does not parse (it always should, coming from the engine).
+    """
+    drawn = _draw_and_place(canonical_smiles, marks, vector=True)
+    points, spots, font_px, notes = drawn.points, drawn.spots, drawn.font_px, drawn.notes
     leaders = "".join(
         f'<line class="label-leader" x1="{points[m.atom][0]:.1f}" y1="{points[m.atom][1]:.1f}" '
         f'x2="{s.x:.1f}" y2="{s.y:.1f}" stroke="#777" stroke-width="0.8" stroke-dasharray="2 2"/>'
@@ -310,7 +335,7 @@ def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: st
         f'paint-order="stroke">{escape(m.letter)}</text>'
         for m, s in zip(marks, spots)
     )
-    svg = _PROLOG.sub("", drawer.GetDrawingText(), count=1).strip()
+    svg = _PROLOG.sub("", str(drawn.drawing), count=1).strip()
     svg = svg.replace("</svg>", f"{texts}</svg>", 1) if texts else svg
     label = escape(title or f"structure of {canonical_smiles}", quote=True)
     # RDKit draws atom symbols as paths; a <desc> keeps the notes readable to screen readers and searches.
@@ -343,31 +368,9 @@ def png_layout(canonical_smiles: str, marks: Sequence[SiteMark]) -> PngLayout:
     each other; the labels are each mark's :attr:`SiteMark.letter` (the app
     passes its products table's names). Raises ValueError as :func:`structure_svg`.
     """
-    from rdkit.Chem import rdDepictor
-    from rdkit.Chem.Draw import rdMolDraw2D
-
-    mol, colours, _ = _drawable(canonical_smiles, marks)
-    for atom in mol.GetAtoms():
-        atom.ClearProp("atomNote")  # labels are written afterwards, on spots clear of the bonds
-    rdDepictor.Compute2DCoords(mol)
-    width, height = _canvas(mol)
-    drawer = rdMolDraw2D.MolDraw2DCairo(width, height)
-    options = drawer.drawOptions()
-    options.clearBackground = True
-    options.fixedBondLength = BOND_PX / DEPICTION_BOND
-    options.padding = 0.0
-    rdMolDraw2D.PrepareAndDrawMolecule(
-        drawer, mol, highlightAtoms=list(colours), highlightAtomColors=colours, highlightBonds=[],
-    )
-    drawer.FinishDrawing()
-    points = [(drawer.GetDrawCoords(i).x, drawer.GetDrawCoords(i).y) for i in range(mol.GetNumAtoms())]
-    bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx()) for b in mol.GetBonds()]
-    lengths = sorted(math.dist(points[i], points[j]) for i, j in bonds)
-    bond_px = lengths[len(lengths) // 2] if lengths else BOND_PX
-    font_px = LABEL_FONT_PX * max(1.0, width / COLUMN_PX)
-    spots = place_labels(points, bonds, [(m.atom, m.letter) for m in marks], (width, height), bond_px, font_px)
-    return PngLayout(drawer.GetDrawingText(), (width, height), tuple(spots),
-                     tuple(points[m.atom] for m in marks), font_px)
+    drawn = _draw_and_place(canonical_smiles, marks, vector=False)
+    return PngLayout(bytes(drawn.drawing), drawn.size, drawn.spots,
+                     tuple(drawn.points[m.atom] for m in marks), drawn.font_px)
 
 
 def _label_font(font_px: float):

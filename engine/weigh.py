@@ -9,7 +9,9 @@ stands for it as a candidate major and for the confidence cut-off, and in the
 polyhalide estimate it is one term (terms of equal κ add). Runs are laid out
 in blocks of structures with equally many (:func:`halosift.engine.shares.blocks_by_length`),
 so per-structure sums are whole-array passes; text is gathered only for the
-structures' majors. Large libraries weigh the NBS split and the two reagents on
+structures' majors. The layout (runs, blocks, slices) is :mod:`halosift.engine.run_layout`,
+the bulk text gathering :mod:`halosift.engine.text_columns`; this module keeps the
+weighing rules and puts the summary together. Large libraries weigh the NBS split and the two reagents on
 threads (numpy and Arrow release the GIL in their loops).
 
 SO2Cl2 is weighed as Cl· at its own temperature (its part is read off Cl2's
@@ -22,14 +24,12 @@ from __future__ import annotations
 
 from collections.abc import Callable, Sequence
 from concurrent.futures import ThreadPoolExecutor
-from dataclasses import dataclass
 from functools import partial, reduce
 from typing import Any
 
 import numpy as np
 import pandas as pd
 import pyarrow as pa
-import pyarrow.compute as pc
 from halosift.engine.conditions import REAGENTS, Conditions
 from halosift.engine.cores import usable_cores
 from halosift.engine.nbs import NBS_SITES, nbs_majors, nbs_percent
@@ -47,8 +47,10 @@ from halosift.engine.outcomes import (
 from halosift.engine.perception import Perception
 from halosift.engine.polyhalogenation import deactivation, poly_pct_of_block
 from halosift.engine.rates import CONFIDENCE_BASES
+from halosift.engine.run_layout import Block, chunk_bounds, run_starts, runs
 from halosift.engine.shares import blocks_by_length, percent_of_structure
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE
+from halosift.engine.text_columns import ARROW_TEXT, TEXT_DTYPE, gather_text, labels_column, site_type_names
 
 SUMMARY_COLUMNS = (
     "n_products", "verdict", "cl2_major", "cl2_major_pct", "br2_major", "br2_major_pct", "stereo", "site_types",
@@ -68,9 +70,6 @@ CONFIDENCE_MIN_PCT = 5.0
 #: Shares this close to a structure's largest count as tied for major (the first met wins).
 _TIE_PCT = 1e-9
 
-#: The column type pandas gives a column of Python strings (Arrow-backed ``str`` from pandas 3 on, else object).
-_TEXT_DTYPE = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
-_ARROW_TEXT = isinstance(_TEXT_DTYPE, pd.StringDtype) and _TEXT_DTYPE.storage == "pyarrow"
 #: Bit of each site code in a structure's site-type mask.
 _CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int32))
 
@@ -79,12 +78,8 @@ _CODE_BIT = np.left_shift(np.int32(1), np.arange(len(SITE_CLASSES), dtype=np.int
 _THREADED_MIN_ROWS = 100_000
 #: Shares each reagent's weighing is cut into when threaded (two cores keep busy while one share runs late).
 _TASKS_PER_REAGENT = 2
-#: Site rows per pass of the run finder, and runs per slice of a block in the per-reagent pass: sized
-#: so that the temporaries of a pass stay in cache and are reused from one pass to the next.
+#: Site rows per pass of the run finder: its temporaries stay in cache and are reused pass to pass.
 _CHUNK_ROWS = 1 << 20
-_SLICE_RUNS = 1 << 18
-#: Bytes per pass of the Cl→Br rewrite: its temporaries stay small and are reused pass to pass.
-_SWAP_CHUNK = 1 << 20
 
 
 def site_weights(sites: pd.DataFrame, conditions: Conditions, reagent: str) -> np.ndarray:
@@ -123,113 +118,12 @@ def weigh(
     return out
 
 
-def _segments(struct: np.ndarray) -> np.ndarray:
-    """Start index of each run of equal ``struct`` (sites are grouped by structure)."""
-    if len(struct) == 0:
-        return np.zeros(0, dtype=np.int64)
-    return np.flatnonzero(np.r_[True, struct[1:] != struct[:-1]])
-
-
-def _site_type_names(masks: np.ndarray) -> tuple[list[str], np.ndarray]:
-    """Distinct comma-joined site-class names of bit ``masks`` and, per mask, the index of its name."""
-    present = np.flatnonzero(np.bincount(masks)) if len(masks) else np.zeros(0, dtype=np.int64)
-    names = [",".join(sorted(SITE_CLASSES[i] for i in range(len(SITE_CLASSES)) if int(m) >> i & 1)) for m in present]
-    index = np.zeros(int(present[-1]) + 1 if len(present) else 1, dtype=np.int32)
-    index[present] = np.arange(len(present), dtype=np.int32)
-    return names, index[masks]
-
-
 def _has_flags(flags: pd.Series, names: Sequence[str]) -> dict[str, np.ndarray]:
     """Per name, per row: whether the comma-joined ``flags`` include it (decided once per distinct value)."""
     codes, uniques = pd.factorize(flags)
     parts = [set(str(u).split(",")) for u in uniques]
     # A missing value (code −1) takes the trailing False.
     return {name: np.array([name in p for p in parts] + [False], dtype=bool)[codes] for name in names}
-
-
-def _labels_column(labels: Sequence[str], codes: np.ndarray) -> object:
-    """``labels[codes]`` as a text column, without building a Python string per row."""
-    if _ARROW_TEXT:
-        return pd.array(pc.take(pa.array(list(labels), type=pa.large_string()), pa.array(codes)), dtype=_TEXT_DTYPE)
-    return np.array(list(labels), dtype=object)[codes]
-
-
-def _arrow_owned(nbytes: int) -> tuple[pa.Buffer, np.ndarray]:
-    """A writable buffer from Arrow's memory pool and a uint8 view of it.
-
-    Output text is built here rather than in numpy memory: Arrow's pool reuses what
-    earlier Arrow results freed, where a fresh numpy array of this size is new memory.
-    """
-    buf = pa.allocate_buffer(nbytes)
-    return buf, np.frombuffer(buf, dtype=np.uint8)
-
-
-def _swap_pair(data: np.ndarray, offsets: np.ndarray, old: str, new: str) -> pa.Buffer:
-    """UTF-8 bytes ``data`` of strings bounded by ``offsets`` with every ``old`` replaced by ``new``, as a new buffer.
-
-    Only for two ASCII strings of two characters whose first and last differ: no UTF-8
-    continuation byte can match, lengths stay put, and such a pattern cannot overlap
-    itself, so this equals ``str.replace`` string by string.
-    """
-    buf, out = _arrow_owned(len(data))
-    out[:] = data
-    first, second = ord(old[0]), ord(old[1])
-    lo, hi = int(offsets[0]), int(offsets[-1])
-    for start in range(lo, hi, _SWAP_CHUNK):
-        stop = min(start + _SWAP_CHUNK, hi)
-        # A match may start on this piece's last byte and end on the next piece's first.
-        match = data[start:stop] == first
-        match[:-1] &= data[start + 1 : stop] == second
-        match[-1] &= stop < hi and data[stop] == second
-        # A match from one string's last byte into the next's first is none.
-        bounds = offsets[np.searchsorted(offsets, start + 1) : np.searchsorted(offsets, stop, side="right")]
-        match[bounds - 1 - start] = False
-        hits = np.flatnonzero(match) + start
-        out[hits], out[hits + 1] = ord(new[0]), ord(new[1])
-    return buf
-
-
-def _expand(text: pa.LargeStringArray, has: np.ndarray) -> pa.LargeStringArray:
-    """``text`` (one string per set entry of ``has``) spread over ``len(has)`` entries, '' where unset.
-
-    The strings' bytes are shared; only new offsets are written (in Arrow's pool).
-    """
-    _, offsets_buf, data_buf = text.buffers()
-    offsets = np.frombuffer(offsets_buf, dtype=np.int64)[text.offset : text.offset + len(text) + 1]
-    buf, raw = _arrow_owned(8 * (len(has) + 1))
-    out = raw.view(np.int64)
-    out[0] = offsets[0]
-    lengths = out[1:]
-    lengths[:] = 0
-    lengths[has] = np.diff(offsets)
-    np.cumsum(lengths, out=lengths)
-    lengths += offsets[0]
-    return pa.LargeStringArray.from_buffers(len(has), buf, data_buf)
-
-
-def _gather_text(column: pd.Series, rows: np.ndarray, swap: tuple[str, str] | None = None) -> object:
-    """``column`` at ``rows`` ('' where a row is −1), with substring ``swap[0]`` → ``swap[1]``, as a text column."""
-    has = rows >= 0
-    arrow = getattr(column.array, "__arrow_array__", None)
-    if _ARROW_TEXT and arrow is not None:
-        taken = pc.take(arrow(), pa.array(rows if has.all() else rows[has]))
-        taken = (taken.combine_chunks() if taken.num_chunks != 1 else taken.chunk(0)).cast(pa.large_string())
-        swappable = swap is not None and all(len(x) == 2 and x.isascii() and x[0] != x[1] for x in swap)
-        if taken.null_count or (swap is not None and not swappable):  # not met in perceptions: the general way
-            out = pc.fill_null(pc.take(arrow(), pa.array(rows, mask=~has)), "")
-            return pd.array(pc.replace_substring(out, *swap) if swap else out, dtype=_TEXT_DTYPE)
-        if swap is not None and taken.buffers()[2] is not None:
-            _, offsets_buf, data_buf = taken.buffers()
-            offsets = np.frombuffer(offsets_buf, dtype=np.int64)[taken.offset : taken.offset + len(taken) + 1]
-            swapped = _swap_pair(np.frombuffer(data_buf, dtype=np.uint8), offsets, *swap)
-            taken = pa.LargeStringArray.from_buffers(len(taken), offsets_buf, swapped, None, 0, taken.offset)
-        return pd.array(taken if has.all() else _expand(taken, has), dtype=_TEXT_DTYPE)
-    values = column.to_numpy(dtype=object)
-    out = np.full(len(rows), "", dtype=object)
-    out[has] = values[rows[has]]
-    if swap is not None:
-        out = np.array([s.replace(*swap) for s in out], dtype=object)
-    return out
 
 
 def _memo(memo: dict | None, key: tuple, compute: Callable[[], Any]) -> Any:
@@ -274,57 +168,6 @@ def _pool(perception: Perception) -> ThreadPoolExecutor | None:
     return ThreadPoolExecutor(3) if usable_cores() > 1 and len(perception.sites) >= _THREADED_MIN_ROWS else None
 
 
-@dataclass(frozen=True)
-class _Block:
-    """Structures with equally many runs: one column per structure, one row per run (in site-table order)."""
-
-    struct: np.ndarray
-    """Structure rows, one per column."""
-    code: np.ndarray
-    """Site code of each run."""
-    h: np.ndarray
-    """H count of each product of the run."""
-    count: np.ndarray
-    """Products in the run."""
-    first: np.ndarray
-    """Site-table row of the run's first product."""
-
-    def slices(self) -> list[_Block]:
-        """Column slices of about :data:`_SLICE_RUNS` runs each (views)."""
-        width, m = self.code.shape
-        step = max(1, _SLICE_RUNS // width)
-        return [
-            _Block(self.struct[i : i + step], self.code[:, i : i + step], self.h[:, i : i + step],
-                   self.count[:, i : i + step], self.first[:, i : i + step])
-            for i in range(0, m, step)
-        ]
-
-
-def _runs(struct: np.ndarray, codes: np.ndarray, h: np.ndarray) -> np.ndarray:
-    """First row of each run of rows with equal structure, site code and H count."""
-    if len(struct) == 0:
-        return np.zeros(0, dtype=np.int64)
-    change = np.empty(len(struct), dtype=bool)
-    change[0] = True
-    np.not_equal(struct[1:], struct[:-1], out=change[1:])
-    change[1:] |= codes[1:] != codes[:-1]
-    change[1:] |= h[1:] != h[:-1]
-    return np.flatnonzero(change)
-
-
-def _chunk_bounds(struct: np.ndarray, size: int) -> list[int]:
-    """Row bounds of consecutive chunks of about ``size`` rows, each cut between two structures."""
-    bounds = [0]
-    while bounds[-1] + size < len(struct):
-        cut = bounds[-1] + size
-        while cut < len(struct) and struct[cut] == struct[cut - 1]:
-            cut += 1
-        bounds.append(cut)
-    if bounds[-1] < len(struct):
-        bounds.append(len(struct))
-    return bounds
-
-
 def _static(perception: Perception) -> dict:
     """What does not depend on conditions: runs in blocks, product counts, site types, features and ok rows."""
     structures, sites = perception.structures, perception.sites
@@ -335,10 +178,10 @@ def _static(perception: Perception) -> dict:
     row_type = np.int32 if len(struct) < 2**31 else np.int64
     n_products = np.zeros(n, dtype=np.int32)
     masks = np.zeros(n, dtype=np.int32)
-    pieces: dict[int, list[_Block]] = {}
-    bounds = _chunk_bounds(struct, _CHUNK_ROWS)
+    pieces: dict[int, list[Block]] = {}
+    bounds = chunk_bounds(struct, _CHUNK_ROWS)
     for lo, hi in zip(bounds[:-1], bounds[1:]):
-        start = _runs(struct[lo:hi], codes[lo:hi], h[lo:hi]) + lo
+        start = runs(struct[lo:hi], codes[lo:hi], h[lo:hi]) + lo
         # Every abstractable class has k > 0 at any temperature, so which runs count is the same under all conditions.
         term = codes[start] < len(ABSTRACTABLE)  # site codes number the abstractable classes first
         count = np.diff(np.append(start, hi))[term]
@@ -348,18 +191,18 @@ def _static(perception: Perception) -> dict:
         small = np.int16 if len(first) == 0 or max(int(run_h.max()), int(count.max())) < 2**15 else np.int32
         run_struct, run_code = struct[first], codes[first]
         run_h, count, first = run_h.astype(small), count.astype(small), first.astype(row_type)
-        seg = _segments(run_struct)
+        seg = run_starts(run_struct)
         for segments, index in blocks_by_length(seg, np.diff(np.append(seg, len(first)))):
-            piece = _Block(run_struct[seg[segments]], run_code[index], run_h[index], count[index], first[index])
+            piece = Block(run_struct[seg[segments]], run_code[index], run_h[index], count[index], first[index])
             n_products[piece.struct] = piece.count.sum(axis=0)
             masks[piece.struct] = np.bitwise_or.reduce(_CODE_BIT[piece.code], axis=0)
             pieces.setdefault(index.shape[0], []).append(piece)
     blocks = [
-        _Block(*(np.concatenate([getattr(p, f) for p in group], axis=-1) for f in _Block.__dataclass_fields__))
+        Block(*(np.concatenate([getattr(p, f) for p in group], axis=-1) for f in Block.__dataclass_fields__))
         if len(group) > 1 else group[0]
         for _, group in sorted(pieces.items())
     ]
-    type_names, type_codes = _site_type_names(masks)
+    type_names, type_codes = site_type_names(masks)
     # NBS products per structure: perception numbers them from 0 within each structure.
     nbs_count = np.zeros(n, dtype=np.int32)
     allylic = perception.allylic
@@ -369,7 +212,7 @@ def _static(perception: Perception) -> dict:
     features = _has_flags(structures["flags"], [f for f in FEATURES if f not in ("no_ch", "no_nbs_site")])
     features |= {"no_ch": n_products == 0, "no_nbs_site": nbs_count == 0}
     return {
-        "blocks": blocks, "n_products": n_products, "site_types": _labels_column(type_names, type_codes),
+        "blocks": blocks, "n_products": n_products, "site_types": labels_column(type_names, type_codes),
         "features": features, "nbs_count": nbs_count, "ok": (structures["status"] == "ok").to_numpy(),
     }
 
@@ -379,8 +222,8 @@ def _nbs_part(perception: Perception, conditions: Conditions) -> tuple[object, n
     confidence rank under NBS (weakest basis among NBS products at or above the cut-off)."""
     n = len(perception.structures)
     major, pct = nbs_majors(perception.allylic, conditions.per_h("nbs"), n)
-    if _ARROW_TEXT:
-        major = pd.array(pa.array(major, type=pa.large_string()), dtype=_TEXT_DTYPE)
+    if ARROW_TEXT:
+        major = pd.array(pa.array(major, type=pa.large_string()), dtype=TEXT_DTYPE)
     return major, pct, _nbs_worst(perception.allylic, conditions, n)
 
 
@@ -403,7 +246,7 @@ def _nbs_worst(allylic: pd.DataFrame, conditions: Conditions, n: int) -> np.ndar
     return worst
 
 
-def _weigh_slices(part: dict, slices: list[_Block], conditions: Conditions, reagent: str) -> None:
+def _weigh_slices(part: dict, slices: list[Block], conditions: Conditions, reagent: str) -> None:
     """Fill ``part`` (see :func:`_reagent_tasks`) for the structures of ``slices``, and no others.
 
     ``part["poly"]`` is None for a reagent without a polyhalide column (so2cl2): that solve is skipped.
@@ -458,8 +301,8 @@ def _reagent_text(perception: Perception, part: dict, reagent: str) -> dict:
     """A reagent's part with its text: the major product (and, for br2, the major's stereo)."""
     sites = perception.sites
     # The site table holds monochlorides; a monobromide is the same SMILES with Br for Cl.
-    major = _gather_text(sites["product"], part["rows"], ("Cl", "Br") if reagent == "br2" else None)
-    stereo = _gather_text(sites["stereo"], part["rows"]) if reagent == "br2" else None
+    major = gather_text(sites["product"], part["rows"], ("Cl", "Br") if reagent == "br2" else None)
+    stereo = gather_text(sites["stereo"], part["rows"]) if reagent == "br2" else None
     return {"major": major, "major_pct": part["major_pct"], "stereo": stereo, "poly": part["poly"],
             "worst": part["worst"]}
 
@@ -598,23 +441,23 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     for code, r in enumerate(OUTCOME_REAGENTS, start=1):
         counts = result.outcome[r] != ruled if r != "so2cl2" else result.serves == code
         ranks.append(np.where(counts, worst[r], len(BASES)).astype(np.int8))
-    confidence = _labels_column((*BASES, ""), reduce(np.minimum, ranks))
+    confidence = labels_column((*BASES, ""), reduce(np.minimum, ranks))
     out = {
         "n_products": n_products,
-        "verdict": _labels_column(("", *VERDICTS), result.verdict),
+        "verdict": labels_column(("", *VERDICTS), result.verdict),
         "cl2_major": parts["cl2"]["major"], "cl2_major_pct": parts["cl2"]["major_pct"],
         "br2_major": parts["br2"]["major"], "br2_major_pct": parts["br2"]["major_pct"],
         "stereo": parts["br2"]["stereo"],
         "site_types": static["site_types"],
         "confidence": confidence,
         "nbs_major": nbs_major, "nbs_major_pct": nbs_major_pct,
-        "serves": _labels_column(("", *SERVES_ORDER), result.serves),
+        "serves": labels_column(("", *SERVES_ORDER), result.serves),
         "cl2_poly_pct": parts["cl2"]["poly"], "br2_poly_pct": parts["br2"]["poly"],
         "so2cl2_major": parts["so2cl2"]["major"], "so2cl2_major_pct": parts["so2cl2"]["major_pct"],
     }
     for r in OUTCOME_REAGENTS:
-        out[f"{r}_outcome"] = _labels_column(("", *OUTCOMES), result.outcome[r])
-        out[f"{r}_reason"] = _labels_column(("", *REASONS), result.reason[r])
+        out[f"{r}_outcome"] = labels_column(("", *OUTCOMES), result.outcome[r])
+        out[f"{r}_reason"] = labels_column(("", *REASONS), result.reason[r])
     if memo is not None:  # the frame must not share arrays with what the memo hands to later frames
         out = {c: v.copy() if isinstance(v, np.ndarray) else v for c, v in out.items()}
     # so2cl2 borrowed from cl2 shares its arrays: the frame gets its own.

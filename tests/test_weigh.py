@@ -11,7 +11,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from halosift.engine import Conditions
+from halosift.engine import Conditions, run_layout, text_columns
 from halosift.engine.nbs import NBS_SITES, empty_frame, nbs_majors, nbs_percent
 from halosift.engine.outcomes import OUTCOME_REAGENTS, PATHWAYS, pathway_applies
 from halosift.engine.perception import Perception
@@ -281,16 +281,15 @@ def test_empty_perception() -> None:
 
 @pytest.mark.parametrize("chunk", [1, 2, 3, 7, 1 << 20])
 def test_cl_to_br_rewrite_equals_str_replace(monkeypatch: pytest.MonkeyPatch, chunk: int) -> None:
-    weigh = importlib.import_module("halosift.engine.weigh")  # the module: engine.weigh is also a function's name
-    monkeypatch.setattr(weigh, "_SWAP_CHUNK", chunk)  # pieces of every size, so matches straddle their edges
+    monkeypatch.setattr(text_columns, "_SWAP_CHUNK", chunk)  # pieces of every size, so matches straddle their edges
     rng = np.random.default_rng(chunk)
     parts = ["C", "l", "Cl", "lC", "é", "→", "(", ")", "Br", "c"]
     strings = ["".join(rng.choice(parts, size=rng.integers(0, 6))) for _ in range(400)]
     column = pd.Series(strings, dtype=TEXT)
     rows = rng.integers(-1, len(strings), size=600)
-    got = weigh._gather_text(column, rows, ("Cl", "Br"))
+    got = text_columns.gather_text(column, rows, ("Cl", "Br"))
     assert list(got) == ["" if r < 0 else strings[r].replace("Cl", "Br") for r in rows]
-    assert list(weigh._gather_text(column.astype(object), rows, ("Cl", "Br"))) == list(got)
+    assert list(text_columns.gather_text(column.astype(object), rows, ("Cl", "Br"))) == list(got)
 
 
 def test_long_runs_of_many_hydrogens() -> None:
@@ -308,6 +307,6 @@ def test_long_runs_of_many_hydrogens() -> None:
 def test_pass_sizes_change_nothing(monkeypatch: pytest.MonkeyPatch, chunk_rows: int, slice_runs: int) -> None:
     weigh = importlib.import_module("halosift.engine.weigh")
     monkeypatch.setattr(weigh, "_CHUNK_ROWS", chunk_rows)  # run finder cut into many passes between structures
-    monkeypatch.setattr(weigh, "_SLICE_RUNS", slice_runs)  # blocks weighed in many column slices
+    monkeypatch.setattr(run_layout, "_SLICE_RUNS", slice_runs)  # blocks weighed in many column slices
     p = _synthetic(6, False)
     assert_matches(summarise(p, CONDITIONS[1]), reference(p, CONDITIONS[1]))

@@ -107,9 +107,9 @@ class ReagentOutcome:
     source: str
     """Where the rule that rules it out comes from; empty when clean or mixture."""
     major: str
-    """SMILES of the major monohalide of the substitution split (shown even when ruled out); '' without one."""
+    """SMILES of the major monohalide of the substitution split; '' when ruled out or without one."""
     major_pct: float
-    """Its share, percent (NaN without one)."""
+    """Its share, percent (NaN when ruled out or without one)."""
     temp_c: float
     """The reagent's temperature, °C."""
 

@@ -24,7 +24,8 @@ from halosift.engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
 _HOT_ALKENE = (
     "; a C=C substrate above the temperature at which substitution wins is judged on the split with each allyl "
-    "radical's share divided between its two ends, as under NBS (the major columns stay per site)"
+    "radical's share divided between its two ends, as under NBS (the major and percent columns give the per-site "
+    "split, each allyl radical's share at the carbon abstracted, not this terminus split)"
 )
 #: Columns :meth:`Library.evaluate` adds after the input's own, in order.
 RESULT_COLUMNS: tuple[str, ...] = ("status", "reason", *SUMMARY_COLUMNS, "flags", "canonical_smiles", "duplicate_of")
@@ -39,17 +40,18 @@ RESULT_DOCS: dict[str, str] = {
         "(every reagent takes another pathway or is not modelled) / inert (no abstractable C–H); read off the "
         "per-reagent outcomes only; empty when rejected"
     ),
-    "cl2_major": "SMILES of the major monochloride under Cl2",
-    "cl2_major_pct": "its share of the monochlorides, percent",
+    "cl2_major": "SMILES of the major monochloride under Cl2; empty when cl2_outcome is ruled-out",
+    "cl2_major_pct": "its share of the monochlorides, percent; empty when cl2_outcome is ruled-out",
     "br2_major": (
         "SMILES of the major monobromide under Br2 (written on the chloride's canonical SMILES with Br for Cl; "
-        "not re-canonicalised)"
+        "not re-canonicalised); empty when br2_outcome is ruled-out"
     ),
-    "br2_major_pct": "its share of the monobromides, percent",
+    "br2_major_pct": "its share of the monobromides, percent; empty when br2_outcome is ruled-out",
     "stereo": (
         "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "
         "configuration fixed by the input) / racemate / diastereomers / not counted (too many open stereo "
-        "elements for the per-structure budget; the count shown is an upper bound)"
+        "elements for the per-structure budget; the count shown is an upper bound); empty when br2_outcome is "
+        "ruled-out"
     ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (
@@ -64,9 +66,9 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "nbs_major": (
         "SMILES of the major monobromide under NBS (Wohl–Ziegler: allylic/benzylic C–H only, allylic "
-        "transposition included); empty when the substrate has no allylic or benzylic C–H"
+        "transposition included); empty when nbs_outcome is ruled-out (no allylic or benzylic C–H among others)"
     ),
-    "nbs_major_pct": "its share of the NBS monobromides, percent; empty when there is no allylic or benzylic C–H",
+    "nbs_major_pct": "its share of the NBS monobromides, percent; empty when nbs_outcome is ruled-out",
     "serves": (
         "the reagent offered: the first of cl2, br2, so2cl2, nbs whose outcome is clean (plainest first, a rule "
         "of this program); a reagent whose outcome is mixture or ruled-out is never offered; empty when none is "
@@ -75,11 +77,11 @@ RESULT_DOCS: dict[str, str] = {
     "cl2_poly_pct": (
         "polyhalide, percent of the chlorinated product, when substrate and Cl2 are charged 1 : 1 and all Cl2 "
         "reacts (competitive consecutive kinetics with a Cl deactivation estimate; engine.polyhalogenation); "
-        "empty when inert or rejected"
+        "empty when cl2_outcome is ruled-out (another pathway, so no substitution split applies), inert or rejected"
     ),
     "br2_poly_pct": (
         "polyhalide, percent of the brominated product, at 1 : 1 substrate : Br2, all Br2 reacted (as "
-        "cl2_poly_pct); empty when inert or rejected"
+        "cl2_poly_pct); empty when br2_outcome is ruled-out, inert or rejected"
     ),
     "flags": (
         "special-site warnings, comma-separated: cyclopropylmethyl (ring opening of the radical), bridgehead "
@@ -90,8 +92,8 @@ RESULT_DOCS: dict[str, str] = {
     ),
     **{f"{r}_outcome": (
         f"{label}: clean (substitution weighed, one monohalide at or above the threshold) / mixture (weighed, "
-        "none reaches it) / ruled-out (the substitution percentages do not apply; see "
-        f"{r}_reason){extra}; empty when rejected"
+        "none reaches it) / ruled-out (the substitution percentages do not apply, so "
+        f"the columns read off {r}'s split are empty; see {r}_reason){extra}; empty when rejected"
     ) for r, label, extra in (
         ("cl2", "Cl2 with light", _HOT_ALKENE), ("br2", "Br2 with light", _HOT_ALKENE),
         ("so2cl2", "SO2Cl2 with initiator, weighed as Cl· at its own temperature", _HOT_ALKENE),
@@ -104,8 +106,11 @@ RESULT_DOCS: dict[str, str] = {
         + " (engine.outcomes.PATHWAYS; C=C addition applies below the temperature at which allylic substitution "
         "wins, engine.parameters); empty when clean, mixture or rejected"
     ) for r in OUTCOME_REAGENTS},
-    "so2cl2_major": "SMILES of the major monochloride under SO2Cl2 (Cl· at so2cl2's temperature)",
-    "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent",
+    "so2cl2_major": (
+        "SMILES of the major monochloride under SO2Cl2 (Cl· at so2cl2's temperature); empty when so2cl2_outcome "
+        "is ruled-out"
+    ),
+    "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent; empty when so2cl2_outcome is ruled-out",
     "canonical_smiles": "RDKit canonical SMILES of the substrate",
     "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
 }

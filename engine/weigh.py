@@ -428,7 +428,7 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     for r in SITE_REAGENTS:
         if alkene.any() and not pathway_applies(_ALKENE_RULE, r, conditions):
             # Hot enough that a C=C substrate substitutes: its allylic radicals give both termini, so its
-            # outcome is judged on that split (the major columns stay per site).
+            # outcome is judged on that split (the major and percent columns give the per-site split).
             pct, count = _transposed_split(perception, conditions, r, alkene & ok)
             majors[r] = np.where(alkene & ok, pct, majors[r])
             one_product[r] = np.where(alkene, count == 1, one_product[r])
@@ -464,5 +464,36 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
     if out["so2cl2_major_pct"] is out["cl2_major_pct"]:
         out["so2cl2_major_pct"] = out["so2cl2_major_pct"].copy()
         out["so2cl2_major"] = out["so2cl2_major"].copy()
+    _blank_ruled_out(out, result.outcome, ruled)
     # Not copied again (nor consolidated into 2-D blocks): every array above is this frame's own.
     return pd.DataFrame({c: out[c] for c in SUMMARY_COLUMNS}, index=structures.index, copy=False)
+
+
+#: Per reagent, the summary columns read off its substitution split: blank where its outcome is ruled-out.
+SPLIT_COLUMNS: dict[str, tuple[str, ...]] = {
+    "cl2": ("cl2_major", "cl2_major_pct", "cl2_poly_pct"),
+    "br2": ("br2_major", "br2_major_pct", "stereo", "br2_poly_pct"),
+    "so2cl2": ("so2cl2_major", "so2cl2_major_pct"),
+    "nbs": ("nbs_major", "nbs_major_pct"),
+}
+
+
+def _blank_ruled_out(out: dict, outcome: dict[str, np.ndarray], ruled: int) -> None:
+    """Empty every column of ``SPLIT_COLUMNS`` (NaN, or '' for text) where that reagent's outcome is ruled-out.
+
+    A ruled-out reagent takes another pathway, so no number of its substitution split
+    applies; blanking here, once, keeps every consumer (files, app, report, explain) from
+    showing one. New arrays are made, so nothing shared with the memo is changed.
+    """
+    for r, columns in SPLIT_COLUMNS.items():
+        off = outcome[r] == ruled
+        if not off.any():
+            continue
+        for c in columns:
+            v = out[c]
+            if isinstance(v, np.ndarray) and v.dtype.kind == "f":
+                out[c] = np.where(off, np.nan, v)
+            else:
+                text = pd.Series(v, copy=True)
+                text[off] = ""
+                out[c] = text.array

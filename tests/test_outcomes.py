@@ -306,3 +306,53 @@ def test_report_only_option_names_every_verdict_and_refuses_others(capsys: pytes
     assert all(v in only.help for v in VERDICTS)
     assert main(["report", "sample_libraries/catalogue.csv", "-o", "never.html", "--only", "single"]) == 2
     assert "--only takes a verdict" in capsys.readouterr().err
+
+
+#: Written here, not imported from the engine: per reagent, every result column read off its substitution split.
+SPLIT_COLUMNS = {
+    "cl2": ("cl2_major", "cl2_major_pct", "cl2_poly_pct"),
+    "br2": ("br2_major", "br2_major_pct", "stereo", "br2_poly_pct"),
+    "so2cl2": ("so2cl2_major", "so2cl2_major_pct"),
+    "nbs": ("nbs_major", "nbs_major_pct"),
+}
+_NUMERIC = {c for cols in SPLIT_COLUMNS.values() for c in cols if c.endswith("_pct")}
+
+
+def _blank(value: object) -> bool:
+    return value is None or value == "" or (isinstance(value, float) and math.isnan(value))
+
+
+def assert_split_only_where_it_applies(table: pd.DataFrame) -> None:
+    """Ruled-out ⇒ every column of that reagent's split is empty; clean or mixture ⇒ every one is filled."""
+    for i, row in enumerate(table.to_dict("records")):
+        for r, columns in SPLIT_COLUMNS.items():
+            outcome = row[f"{r}_outcome"]
+            for c in columns:
+                if outcome == X:
+                    assert _blank(row[c]), (i, row["canonical_smiles"], r, c, row[c])
+                elif outcome in (C, M) and c in _NUMERIC | {f"{r}_major"}:
+                    assert not _blank(row[c]), (i, row["canonical_smiles"], r, c)
+
+
+def test_catalogue_shows_no_split_for_a_ruled_out_reagent() -> None:
+    # The sample catalogue at default conditions, and hot (450 °C, where C=C substrates substitute: Groll &
+    # Hearne 1939 for propene + Cl2), so both directions of the rule are met for every reagent.
+    from halosift.sample_libraries import sample_path
+
+    library = engine.load_library(sample_path())
+    for conditions in (Conditions(), Conditions(cl2_temp_c=450, br2_temp_c=450, so2cl2_temp_c=450)):
+        table = library.evaluate(conditions)
+        assert_split_only_where_it_applies(table)
+        for r in OUTCOME_REAGENTS:  # the rule is met both ways, not vacuously
+            assert (table[f"{r}_outcome"] == X).any() and table[f"{r}_outcome"].isin([C, M]).any(), r
+    hexene = library.evaluate()[lambda t: t["canonical_smiles"] == "C=CCCCC"].iloc[0]
+    assert hexene["br2_outcome"] == X and math.isnan(hexene["br2_major_pct"]) and math.isnan(hexene["br2_poly_pct"])
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.lists(strained(), min_size=1, max_size=6), st.sampled_from([25.0, 450.0]))
+def test_generated_structures_show_no_split_for_a_ruled_out_reagent(smiles: list[str], temp: float) -> None:
+    perceived = engine.perceive(smiles)
+    table = engine.summarise(perceived, Conditions(cl2_temp_c=temp, br2_temp_c=temp, so2cl2_temp_c=temp))
+    table["canonical_smiles"] = smiles
+    assert_split_only_where_it_applies(table)

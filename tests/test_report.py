@@ -176,8 +176,10 @@ def test_products_table_and_drawing_marks_agree_with_the_engine(tmp_path: Path) 
     main_table = main_table[: main_table.index("</table>")]
     cells = [c.replace("<wbr>", "") for c in re.findall(r'<td class="smiles">(.*?)</td>', main_table)]
     assert cells == products["product"].tolist()
+    # KV-110 has a C=C: Cl2 and Br2 add to it at 25/125 °C, so their columns show no shares (ruled out).
+    assert "% Cl2 (ruled out)" in main_table and "% Br2 (ruled out)" in main_table
     for p in products.itertuples():
-        assert f">{p.cl2_pct:.1f}<" in main_table or p.cl2_pct < 0.05
+        assert f">{p.cl2_pct:.1f}<" not in main_table
     # The drawing carries one letter per site, at that site's atom, in table order; the shares are in the table.
     labels = re.findall(r'<text class="site-label" data-atom="(\d+)"[^>]*>([a-z]+)</text>', drawing)
     assert labels == [(str(a), chr(ord("a") + i)) for i, a in enumerate(products["atom"])]
@@ -426,8 +428,14 @@ def test_flags_come_with_their_text_and_polyhalide_estimate(tmp_path: Path) -> N
         section = section[: section.index("</section>")]
         for flag in screened["flags"].iloc[row].split(","):
             assert f"{flag}: {FLAG_NOTES[flag].note}" in re.sub(r"</?strong>", "", section)
-        poly = re.search(r'<p class="meta poly">(.*?)</p>', section).group(1)
-        assert f"Cl2 {screened['cl2_poly_pct'].iloc[row]:.1f} %" in poly
+        poly = re.search(r'<p class="meta poly">(.*?)</p>', section)
+        outcomes = {r: screened[f"{r}_outcome"].iloc[row] for r in ("cl2", "br2")}
+        if set(outcomes.values()) == {"ruled-out"}:  # no split applies: no polyhalide line, the outcomes say why
+            assert poly is None and "Cl2: ruled out (" in section
+        elif outcomes["cl2"] == "ruled-out":
+            assert "Cl2 ruled out" in poly.group(1)
+        else:
+            assert f"Cl2 {screened['cl2_poly_pct'].iloc[row]:.1f} %" in poly.group(1)
 
 
 def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
@@ -511,3 +519,29 @@ def test_site_letters_placed_clear_at_one_size_without_a_browser() -> None:
     for spots in spots_seen:
         for i, a in enumerate(spots):
             assert not any(a.box.overlaps(b.box) for b in spots[i + 1:])
+
+
+def test_ruled_out_reagents_show_no_numbers_and_charts_count_only_where_they_apply(tmp_path: Path) -> None:
+    from halosift.sample_libraries import sample_path
+
+    ids = tmp_path / "ids.txt"
+    ids.write_text("WRS-35108\n", encoding="utf-8")  # 1-hexene: Cl2, Br2 and SO2Cl2 add to its C=C at 25–125 °C
+    out = tmp_path / "report.html"
+    assert main(["report", str(sample_path()), "-o", str(out), "--force", "--ids", str(ids)]) == 0
+    page = out.read_text(encoding="utf-8")
+    section = page[page.index('<section class="substrate"'):]
+    section = section[: section.index("</section>")]
+    assert "Cl2: ruled out (" in section and "Br2: ruled out (" in section
+    assert "Major under Br2" not in section and "99.2" not in section and "Polyhalide" not in section
+    assert "% Br2 (ruled out)" in section and "Major under NBS" in section  # NBS substitutes: its share stays
+    # The selectivity chart counts only rows where Br2 applies, and its caption says how many were left out.
+    screened = engine.screen(sample_path())
+    has_h = (screened["status"] == "ok") & (screened["n_products"] > 0)
+    applies = has_h & (screened["br2_outcome"] != "ruled-out")
+    left_out = int((has_h & ~applies).sum())
+    assert left_out > 0
+    assert (f"where Br2 applies ({int(applies.sum()):,}; {left_out:,} with Br2 ruled out are not counted)"
+            in html.unescape(page))
+    chart = next(s for s in svgs(page) if "Bromination selectivity" in s)
+    bars = [int(v.replace(",", "")) for v in re.findall(r"<title>[^<]*–[^<]*: ([\d,]+)</title>", chart)]
+    assert len(bars) == 10 and sum(bars) == int(applies.sum())

@@ -555,8 +555,10 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         for p in app.library.nbs_products(row, app.conditions).itertuples():
             assert p.product in nbs and f"{p.nbs_pct:5.1f} %" in nbs
         assert "allylic shift" in nbs and "no share" in nbs
-        poly = plain(screen.query_one("#detail-poly"))
-        assert "cl2:" in poly and "br2:" in poly and "1 : 1" in poly
+        # Cl2 and Br2 add to its C=C at 25/125 °C: no polyhalide figures, the bars say ruled out instead.
+        assert plain(screen.query_one("#detail-poly")).strip() == ""
+        bars = plain(screen.query_one("#detail-bars"))
+        assert "Cl2 at 25 °C  ruled out: adds to C=C" in bars and "Br2 at 125 °C  ruled out" in bars
         # A substrate without allylic/benzylic C–H says so.
         await pilot.press("escape")
         row = int(np.flatnonzero(app.frame["smiles"].to_numpy() == "C1CCCCC1")[0])
@@ -564,6 +566,9 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         await pilot.press("enter")
         await settle(pilot, app)
         assert "No allylic or benzylic C–H" in plain(app.screen.query_one("#detail-nbs"))
+        # Cyclohexane substitutes under both: polyhalide figures for each.
+        poly = plain(app.screen.query_one("#detail-poly"))
+        assert "cl2:" in poly and "br2:" in poly and "1 : 1" in poly and "ruled out" not in poly
 
 
 @async_test

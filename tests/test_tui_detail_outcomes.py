@@ -59,3 +59,56 @@ async def test_detail_screen_shows_the_outcomes_at_once(tmp_path):
         record = app.frame.iloc[screen.row]
         for reagent, label in OUTCOME_LABELS.items():
             assert any(line.startswith(label) and record[f"{reagent}_outcome"] in line for line in shown.splitlines())
+
+
+#: 1-hexene (Cl2, Br2, SO2Cl2 add to its C=C; NBS substitutes), 4-cyclopropyltoluene (Br2 and NBS ruled out:
+#: Br· opens the ring, though NBS has a benzylic CH3), propane and isobutane (every reagent but NBS weighed).
+RULED_ROWS = [("WX-1", "CCC"), ("WX-2", "C=CCCCC"), ("WX-3", "Cc1ccc(cc1)C1CC1"), ("WX-4", "CC(C)C")]
+
+
+@async_test
+async def test_ruled_out_reagents_show_no_share_in_table_or_detail(tmp_path):
+    import numpy as np
+    from halosift.tui.table import LibraryTable
+
+    path = tmp_path / "wx.csv"
+    pd.DataFrame(RULED_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    app = HalosiftApp(str(path))
+    async with app.run_test(size=(160, 40)) as pilot:
+        await settle(pilot)
+        table = app.query_one(LibraryTable)
+        frame = app.frame
+        hexene = int(np.flatnonzero(frame["smiles"].to_numpy() == "C=CCCCC")[0])
+        assert frame["br2_outcome"].iloc[hexene] == "ruled-out"
+        lines = [table.render_line(y).text for y in range(table.size.height)]
+        line = next(x for x in lines if "WX-2" in x)
+        assert "99.2" not in line and "63.7" not in line  # what Br2 and Cl2 would give if they substituted
+        # Sorting on Br2 %: the blank (ruled-out) cells come last, whichever way.
+        keys = [c.key for c in table.columns]
+        table.picked = keys.index("br2_major_pct")
+        for _ in range(2):
+            await pilot.press("s")
+            await settle(pilot)
+            ruled = set(np.flatnonzero((frame["br2_outcome"] == "ruled-out").to_numpy()).tolist())
+            assert set(table.rows[-len(ruled):].tolist()) == ruled
+        # The detail: a ruled-out line instead of the reagent's bars, and no polyhalide figures for it.
+        for smiles, off, kept in (("C=CCCCC", ("Cl2", "Br2"), ()), ("Cc1ccc(cc1)C1CC1", ("Br2", "NBS"), ("Cl2",))):
+            table.cursor = int(np.flatnonzero(table.rows == int(np.flatnonzero(frame["smiles"] == smiles)[0]))[0])
+            await pilot.press("enter")
+            await settle(pilot)
+            screen = app.screen
+            assert isinstance(screen, DetailScreen)
+            bars = plain(screen.query_one("#detail-bars"))
+            nbs = plain(screen.query_one("#detail-nbs"))
+            poly = plain(screen.query_one("#detail-poly"))
+            for label in off:
+                shown = bars if label != "NBS" else nbs
+                assert any(x.startswith(label) and "ruled out" in x for x in shown.splitlines()), (smiles, shown)
+                assert f"{label.lower()}:" not in poly
+            for label in kept:
+                assert f"{label} at" in bars and "%" in bars and f"{label.lower()}:" in poly
+            if not kept:
+                assert "%" not in bars and poly.strip() == ""
+            assert "99.2" not in bars
+            await pilot.press("escape")
+            await settle(pilot)

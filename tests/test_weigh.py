@@ -41,6 +41,13 @@ CONDITIONS = [
 TEXT = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype
 TEXT_COLUMNS = ("verdict", "cl2_major", "br2_major", "stereo", "site_types", "confidence", "nbs_major", "serves",
                 "so2cl2_major", *(f"{r}_outcome" for r in OUTCOME_REAGENTS), *(f"{r}_reason" for r in OUTCOME_REAGENTS))
+#: Written here, not imported: per reagent, the columns read off its substitution split.
+RULED_OUT_BLANKS = {
+    "cl2": ("cl2_major", "cl2_major_pct", "cl2_poly_pct"),
+    "br2": ("br2_major", "br2_major_pct", "stereo", "br2_poly_pct"),
+    "so2cl2": ("so2cl2_major", "so2cl2_major_pct"),
+    "nbs": ("nbs_major", "nbs_major_pct"),
+}
 
 
 def _poly_pct(h: list[int], pct: list[float], f: float) -> float:
@@ -177,6 +184,11 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
         counted = [r for r in ("cl2", "br2", "nbs") if outcome[r] in ("clean", "mixture")]
         counted += ["so2cl2"] if serve == "so2cl2" else []
         out["confidence"].append((*BASES, "")[min([worst[r] for r in counted], default=len(BASES))])
+        # A ruled-out reagent's split does not apply: every column read off it is empty.
+        for r, columns in RULED_OUT_BLANKS.items():
+            if outcome[r] == "ruled-out":
+                for c in columns:
+                    out[c][-1] = "" if c in TEXT_COLUMNS else math.nan
     return pd.DataFrame(out, index=structures.index)
 
 

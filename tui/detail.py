@@ -101,11 +101,17 @@ def products_view(products: pd.DataFrame, width: int) -> Group:
                  Text("\nmonochloride", style="bold underline"), below)
 
 
-def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int) -> Text:
-    """NBS monobromides (allylic/benzylic only): one bar per product, with where the Br ends up and stereo."""
+def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int, ruled_reason: str | None = None) -> Text:
+    """NBS monobromides (allylic/benzylic only): one bar per product, with where the Br ends up and stereo.
+
+    ``ruled_reason`` (not None when NBS's outcome is ruled-out): a "ruled out" line replaces the bars.
+    """
     text = Text()
     text.append(f"\nNBS at {conditions.nbs_temp_c:g} °C", style="bold")
     text.append(" — allylic/benzylic C–H only; every other C–H gets no share\n")
+    if ruled_reason is not None and not nbs.empty:
+        text.append(ruled_out_line("nbs", ruled_reason))
+        return text
     if nbs.empty:
         text.append("No allylic or benzylic C–H: NBS gives no substitution product.\n")
         return text
@@ -150,15 +156,35 @@ def outcomes_text(record: Any, conditions: Any) -> Text:
     return text
 
 
-def poly_text(products: pd.DataFrame) -> Text:
-    """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap."""
+def ruled_out(record: Any) -> dict[str, str]:
+    """Reagents whose outcome is ruled-out in a screen row, each with its reason (their split does not apply)."""
+    return {
+        r: str(record.get(f"{r}_reason", "") or "")
+        for r in OUTCOME_LABELS if record.get(f"{r}_outcome", "") == "ruled-out"
+    }
+
+
+def ruled_out_line(reagent: str, reason: str) -> str:
+    """'Br2 ruled out: reason' — what the detail shows instead of a ruled-out reagent's shares."""
+    return f"{OUTCOME_LABELS[reagent]} ruled out" + (f": {reason}" if reason else "") + "\n"
+
+
+def poly_text(products: pd.DataFrame, ruled: dict[str, str] | None = None) -> Text:
+    """Polyhalide expected at 1 : 1 substrate : halogen, and what keeps it under the default cap.
+
+    A reagent in ``ruled`` (outcome ruled-out) does not substitute: it gets a ruled-out line, no figures.
+    """
     from halosift.engine.polyhalogenation import DEFAULT_MAX_POLY_PCT, DEFAULT_RATIO, POLY_UNIT, plan
 
+    ruled = ruled or {}
     text = Text()
     text.append("\nPolyhalogenation", style="bold")
     text.append(f" (estimate; {DEFAULT_RATIO:g} : 1 substrate : halogen, all halogen used)\n")
     h = products["h_count"].to_numpy()
     for reagent in ("cl2", "br2"):
+        if reagent in ruled:
+            text.append(ruled_out_line(reagent, ruled[reagent]))
+            continue
         p = plan(reagent, h, products[f"{reagent}_pct"].to_numpy(), ratio=DEFAULT_RATIO)
         excess = "no excess suffices" if p.min_ratio == float("inf") else f"≥ {p.min_ratio:.2g} : 1 substrate : halogen"
         # The table's "poly % prod" column: the same figure, the same unit.
@@ -169,23 +195,34 @@ def poly_text(products: pd.DataFrame) -> Text:
     return text
 
 
-def bars_text(products: pd.DataFrame, conditions: Any, width: int) -> Text:
-    """Percent under chlorination and bromination, side by side, one line per product."""
+def bars_text(products: pd.DataFrame, conditions: Any, width: int, ruled: dict[str, str] | None = None) -> Text:
+    """Percent under chlorination and bromination, side by side, one line per product.
+
+    A reagent in ``ruled`` (outcome ruled-out) has no split: a "ruled out: reason" line replaces its bars.
+    """
     from halosift.tui.structure_view import product_label
 
-    # Per line: "P1  " + bar + " 100.0 %" + gap + bar + " 100.0 %".
-    bar_width = max(8, (width - 4 - 2 * 8 - 2) // 2)
+    ruled = ruled or {}
+    shown = [r for r in ("cl2", "br2") if r not in ruled]
     text = Text()
-    cl_head = f"Cl2 at {conditions.cl2_temp_c:g} °C"
-    br_head = f"Br2 at {conditions.br2_temp_c:g} °C"
-    text.append("    " + cl_head.ljust(bar_width + 8) + "  " + br_head + "\n", style="bold")
+    for r in ("cl2", "br2"):
+        if r in ruled:
+            text.append(f"{OUTCOME_LABELS[r]} at {conditions.temp_c(r):g} °C  ", style="bold")
+            text.append("ruled out" + (f": {ruled[r]}" if ruled[r] else "") + "\n")
+    if not shown:
+        return text
+    # Per line: "P1  " + bar + " 100.0 %", per reagent shown, two cells between.
+    bar_width = max(8, (width - 4 - len(shown) * 8 - 2 * (len(shown) - 1)) // len(shown))
+    heads = [f"{OUTCOME_LABELS[r]} at {conditions.temp_c(r):g} °C" for r in shown]
+    text.append("    " + "  ".join(h.ljust(bar_width + 8) for h in heads).rstrip() + "\n", style="bold")
     for i, p in enumerate(products.itertuples(index=False), start=1):
         text.append(f"{product_label(i):<4}")
-        text.append(bar(p.cl2_pct, bar_width))
-        text.append(f" {p.cl2_pct:5.1f} %")
-        text.append("  ")
-        text.append(bar(p.br2_pct, bar_width))
-        text.append(f" {p.br2_pct:5.1f} %\n")
+        for j, r in enumerate(shown):
+            pct = float(getattr(p, f"{r}_pct"))
+            text.append("  " if j else "")
+            text.append(bar(pct, bar_width))
+            text.append(f" {pct:5.1f} %")
+        text.append("\n")
     return text
 
 
@@ -430,12 +467,15 @@ class DetailScreen(Screen):
             box = self.query_one("#detail-structure", Vertical)
             box.remove_children()
             box.mount(picture_widget(getattr(self.app, "graphics", None), result.picture))
+        # Reagents ruled out in the screen row: their shares do not apply, so lines say so instead of bars.
+        ruled = ruled_out(record)
         self.query_one("#detail-bars", Static).update(
-            Group(Text("\nShare of the monohalides", style="bold"), bars_text(products, self.conditions, width))
+            Group(Text("\nShare of the monohalides", style="bold"), bars_text(products, self.conditions, width, ruled))
         )
-        self.query_one("#detail-nbs", Static).update(nbs_text(result.nbs, self.conditions, width))
+        self.query_one("#detail-nbs", Static).update(nbs_text(result.nbs, self.conditions, width, ruled.get("nbs")))
         poly_box = self.query_one("#detail-poly", Static)
-        poly_box.update(poly_text(products) if (products["cl2_pct"] > 0).any() else "")
+        weighed = (products["cl2_pct"] > 0).any() and not {"cl2", "br2"} <= set(ruled)
+        poly_box.update(poly_text(products, ruled) if weighed else "")
         stereo = sorted(s for s in set(products["stereo"]) if s)
         notes = Text()
         notes.append(

@@ -158,7 +158,8 @@ class HelpScreen(Screen):
         rows.append(("Serves", "the reagent offered: first of cl2, br2, so2cl2, nbs whose outcome is clean; a "
                      "mixture or ruled-out reagent is never offered"))
         rows.append(("outcomes", "Cl2, Br2, SO2Cl2 and NBS columns: what each reagent does; the verdict and "
-                     "Serves are read off them only, and a reagent is offered only when it is clean"))
+                     "Serves are read off them only, and a reagent is offered only when it is clean; a ruled-out "
+                     "reagent's major, % and polyhalide cells are blank (they sort last)"))
         rows += [(f"  {k}", v.format(threshold=shown)) for k, v in OUTCOME_DOCS.items()]
         rows.append(("Br2 stereo", f"stereo outcome of bromination's major product; "
                      f"“no new stereocentre” filter keeps {NO_NEW_STEREO} only"))

@@ -39,9 +39,9 @@ class SiteMark:
     site: str
     """Site class, e.g. secondary or benzylic-primary."""
     cl2_pct: float
-    """Predicted share of this monochloride under Cl2, percent."""
+    """Predicted share of this monochloride under Cl2, percent; NaN when Cl2 is ruled out."""
     br2_pct: float
-    """Predicted share of this monobromide under Br2, percent."""
+    """Predicted share of this monobromide under Br2, percent; NaN when Br2 is ruled out."""
 
 
 def pct_text(value: float) -> str:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import re
 from collections import Counter
 from collections.abc import Callable, Sequence
@@ -194,8 +195,10 @@ def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> 
         title="Rows by verdict", x_label="verdict",
     )
     has_h = ok & (result["n_products"].fillna(0).to_numpy(dtype=np.int64) > 0)
+    # Only rows where Br2 substitutes: a ruled-out row has no split (its share column is empty).
+    br2_applies = has_h & (result["br2_outcome"] != "ruled-out").to_numpy() if "br2_outcome" in result else has_h
     selectivity = histogram(
-        result.loc[has_h, "br2_major_pct"].to_numpy(dtype=float).tolist(),
+        result.loc[br2_applies, "br2_major_pct"].to_numpy(dtype=float).tolist(),
         title="Bromination selectivity", x_label="share of the major monobromide under Br2, %",
     )
     n_products = result.loc[ok, "n_products"].fillna(0).to_numpy(dtype=np.int64)
@@ -213,7 +216,8 @@ def _summary(result: pd.DataFrame, kinds: list[str], conditions: Conditions) -> 
         rejected_chart = '<p class="note">No rows were rejected.</p>'
     figures = [
         (verdict_chart, "Modelled rows by verdict, and rejected rows."),
-        (selectivity, f"Modelled rows with abstractable C–H ({int(has_h.sum()):,}), "
+        (selectivity, f"Modelled rows with abstractable C–H where Br2 applies ({int(br2_applies.sum()):,}; "
+                      f"{int((has_h & ~br2_applies).sum()):,} with Br2 ruled out are not counted), "
                       "by the share of their major monobromide, in 10-point bins."),
         (products_chart, "Modelled rows by how many distinct monohalides can form."),
         (rejected_chart, "Rejected rows by the kind of problem."),
@@ -262,7 +266,8 @@ clean):</p>
 # ---------------------------------------------------------------------------- substrate sections
 
 
-def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
+def _products_table(products: pd.DataFrame, letters: list[str], ruled: frozenset[str] = frozenset()) -> str:
+    """The per-site monohalides; a reagent in ``ruled`` (outcome ruled-out) has no split: its column is blank."""
     if products.empty:
         return "<p>No abstractable C–H: no monohalide forms by radical abstraction.</p>"
     from halosift.engine.stereo import count_text
@@ -274,11 +279,26 @@ def _products_table(products: pd.DataFrame, letters: list[str]) -> str:
         body.append(
             f"<tr><td>{_e(letter)}</td><td class=\"smiles\">{smiles_html(p.product)}</td><td>{_e(p.site)}</td>"
             f'<td class="num">{int(p.h_count)}</td><td>{_e(stereo)}</td>'
-            f'<td class="num">{_pct(float(p.cl2_pct))}</td><td class="num">{_pct(float(p.br2_pct))}</td></tr>'
+            + "".join(f'<td class="num">{"–" if r in ruled else _pct(float(getattr(p, f"{r}_pct")))}</td>'
+                      for r in ("cl2", "br2"))
+            + "</tr>"
         )
+    heads = "".join(f'<th class="num">% {name}{" (ruled out)" if r in ruled else ""}</th>'
+                    for r, name in (("cl2", "Cl2"), ("br2", "Br2")))
     return ('<table class="products"><thead><tr><th>site</th><th>monochloride</th>'
-            '<th>class</th><th class="num">H</th><th>stereo outcome</th><th class="num">% Cl2</th>'
-            '<th class="num">% Br2</th></tr></thead><tbody>' + "".join(body) + "</tbody></table>")
+            f'<th>class</th><th class="num">H</th><th>stereo outcome</th>{heads}'
+            "</tr></thead><tbody>" + "".join(body) + "</tbody></table>")
+
+
+def _major_html(result_row: pd.Series, reagent: str, name: str) -> str:
+    """"Major under X: SMILES (share %)", or "X: ruled out (reason)" when the reagent's split does not apply."""
+    if result_row.get(f"{reagent}_outcome") == "ruled-out":
+        why = result_row.get(f"{reagent}_reason", "")
+        return f"{name}: ruled out" + (f" ({_e(why)})" if isinstance(why, str) and why else "")
+    stereo = result_row.get("stereo", "") if reagent == "br2" else ""
+    tail = f", {_e(stereo)}" if isinstance(stereo, str) and stereo else ""
+    return (f'Major under {name}: <span class="smiles">{smiles_html(result_row[f"{reagent}_major"])}</span> '
+            f"({_pct(float(result_row[f'{reagent}_major_pct']))} %{tail})")
 
 
 def _poly_line(result_row: pd.Series) -> str:
@@ -286,8 +306,12 @@ def _poly_line(result_row: pd.Series) -> str:
     parts = []
     for reagent, name in (("cl2", "Cl2"), ("br2", "Br2")):
         value = result_row.get(f"{reagent}_poly_pct")
-        if value is not None and not pd.isna(value):
+        if result_row.get(f"{reagent}_outcome") == "ruled-out":
+            parts.append(f"{name} ruled out")
+        elif value is not None and not pd.isna(value):
             parts.append(f"{name} {_pct(float(value))} %")
+    if all(p.endswith("ruled out") for p in parts):  # nothing weighed: the outcomes line already says why
+        return ""
     if not parts:
         return ""
     return (f'<p class="meta poly">Polyhalide at 1 : 1 substrate : halogen, all halogen consumed: '
@@ -352,8 +376,11 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
     products = library.products(row, conditions)
     products = products[products["site"].isin(ABSTRACTABLE)].reset_index(drop=True)
     letters = [_letters(i) for i in range(len(products))]
+    # A reagent ruled out has no split: its shares are left out of the table and the drawing's description.
+    ruled = frozenset(r for r in ("cl2", "br2") if result_row.get(f"{r}_outcome") == "ruled-out")
     marks = [
-        SiteMark(int(p.atom), letter, str(p.site), float(p.cl2_pct), float(p.br2_pct))
+        SiteMark(int(p.atom), letter, str(p.site), *(math.nan if r in ruled else float(getattr(p, f"{r}_pct"))
+                                                     for r in ("cl2", "br2")))
         for letter, p in zip(letters, products.itertuples(index=False))
     ]
     canonical = str(result_row["canonical_smiles"])
@@ -369,12 +396,8 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
     if not pd.isna(dup):
         lines.append(f'<p class="meta">Same structure as input row {int(dup)}.</p>')
     if len(products):
-        lines.append(
-            f'<p class="meta">Major under Cl2: <span class="smiles">{smiles_html(result_row["cl2_major"])}</span> '
-            f"({_pct(float(result_row['cl2_major_pct']))} %) · major under Br2: "
-            f'<span class="smiles">{smiles_html(result_row["br2_major"])}</span> ({_pct(float(result_row["br2_major_pct"]))} %,'
-            f" {_e(result_row['stereo'])})</p>"
-        )
+        majors = [_major_html(result_row, "cl2", "Cl2"), _major_html(result_row, "br2", "Br2")]
+        lines.append(f'<p class="meta">{" · ".join(majors)}</p>')
     outcomes = []
     for r in ("cl2", "br2", "so2cl2", "nbs"):
         outcome = result_row.get(f"{r}_outcome", "")
@@ -390,8 +413,7 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
             extras.append(f"{label}: {_e(value)}")
     nbs_major = result_row.get("nbs_major", "")
     if isinstance(nbs_major, str) and nbs_major:
-        extras.append(f'Major under NBS: <span class="smiles">{smiles_html(nbs_major)}</span> '
-                      f'({_pct(float(result_row["nbs_major_pct"]))} %)')
+        extras.append(_major_html(result_row, "nbs", "NBS"))
     if extras:
         lines.append(f'<p class="meta">{" · ".join(extras)}</p>')
     poly = _poly_line(result_row)
@@ -406,7 +428,7 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
         f'<h3>{_e(row_id)} <span class="verdict verdict-{_e(verdict)}">verdict: {_e(verdict)}</span></h3>'
         + "".join(lines)
         + f'<div class="substrate-body"><figure>{drawing}{_legend([m.site for m in marks])}</figure>'
-        f"<div>{_products_table(products, letters)}{_nbs_table(library, row, conditions)}</div></div>"
+        f"<div>{_products_table(products, letters, ruled)}{_nbs_table(library, row, conditions)}</div></div>"
         f"{flags}{warn}</section>"
     )
 

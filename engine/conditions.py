@@ -5,7 +5,13 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from halosift.engine.parameters import DEFAULT_TEMP_C, DEFAULT_THRESHOLD_PCT, KELVIN
+from halosift.engine.parameters import (
+    DEFAULT_TEMP_C,
+    DEFAULT_THRESHOLD_PCT,
+    KELVIN,
+    MAX_LIQUID_TEMP_C,
+    MAX_NBS_TEMP_C,
+)
 from halosift.engine.rates import RateTable, product_basis, rate_table
 from halosift.engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
@@ -18,6 +24,8 @@ __all__ = ["CL2_PHASES", "Conditions", "EXPLAIN_REAGENTS", "MAX_TEMP_C", "REAGEN
 CL2_PHASES = ("gas", "liquid", "solution")
 
 #: Highest temperature accepted, °C (a limit of this program: beyond it no rate here means anything).
+#: Gas-phase Cl2 and Br2 keep this range (vapour-phase halogenation, an alkene's allylic substitution at
+#: 400 °C and above); condensed phases are bounded lower (:meth:`Conditions.max_temp_c`).
 MAX_TEMP_C = 1500.0
 
 
@@ -94,23 +102,47 @@ class Conditions:
             out[i] = "estimate" if assumed else product_basis(table, site)
         return out
 
+    def max_temp_c(self, reagent: str) -> tuple[float, str]:
+        """Highest temperature accepted for one reagent, °C, and what sets it.
+
+        Cl2 in the gas phase and Br2 (whose substitution of a C=C substrate at 400 °C and above is a
+        vapour-phase process; the engine has one Br· table) keep :data:`MAX_TEMP_C`; Cl2 as a neat liquid or
+        in solution and SO2Cl2 stop at :data:`~halosift.engine.parameters.MAX_LIQUID_TEMP_C`, NBS at
+        :data:`~halosift.engine.parameters.MAX_NBS_TEMP_C`.
+        """
+        if reagent == "nbs":
+            return MAX_NBS_TEMP_C.value, "an NBS bromination is a solvent reflux"
+        if reagent == "so2cl2":
+            return MAX_LIQUID_TEMP_C.value, "SO2Cl2 with an initiator is a liquid-phase reaction"
+        if reagent == "cl2" and self.cl2_phase != "gas":
+            state = "a solution" if self.cl2_phase == "solution" or self.cl2_solvent != "none" else "a neat liquid"
+            return MAX_LIQUID_TEMP_C.value, f"{state} is not a real condition above it; use phase gas"
+        return MAX_TEMP_C, "beyond any model here"
+
     def validate(self) -> None:
         """Raise ValueError (one line) for values no experiment can have."""
         for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
             if not t == t or t <= -KELVIN:
                 raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
-            if t > MAX_TEMP_C:
-                raise ValueError(f"{reagent} temperature {t} °C is beyond any model here (max {MAX_TEMP_C:g} °C)")
+        if self.cl2_phase not in CL2_PHASES:
+            raise ValueError(f"unknown cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")
+        for reagent in RADICAL_OF:
+            t = self.temp_c(reagent)
+            top, why = self.max_temp_c(reagent)
+            if t > top:
+                raise ValueError(f"{reagent} temperature {t:g} °C is above the {top:g} °C accepted ({why})")
         if not 0 <= self.threshold_pct <= 100:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
         check_solvent(self.cl2_solvent, self.cl2_solvent_molar)
-        if self.cl2_phase not in CL2_PHASES:
-            raise ValueError(f"unknown cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")
         if self.cl2_phase == "gas" and self.cl2_solvent != "none":
             raise ValueError("a cl2 solvent needs phase solution (or liquid), not gas")
         if self.cl2_phase == "solution" and self.cl2_solvent == "none":
             raise ValueError("cl2 phase solution needs a solvent (benzene or cs2)")
+        if self.cl2_phase == "solution" and not self.cl2_solvent_molar > 0:
+            # 0 M is Russell's neat-liquid point: a "solution" in no solvent is the neat liquid, phase liquid
+            raise ValueError(f"a solution needs a {self.cl2_solvent} concentration above 0 M (0 M is the neat "
+                             "liquid: use phase liquid)")
 
     def warnings(self, reagents: tuple[str, ...] = (*REAGENTS, "nbs")) -> list[str]:
         """Temperatures outside the range the rate data were measured over, and solvent extrapolation."""

@@ -316,6 +316,15 @@ CL_CYCLOPROPANE_H = 6
 #: such as PhCF3 are run at similar temperatures).
 DEFAULT_TEMP_C: dict[str, float] = {"cl2": 25.0, "br2": 125.0, "so2cl2": 70.0, "nbs": 77.0}
 DEFAULT_THRESHOLD_PCT = 90.0
+#: Highest temperature a condensed-phase (neat liquid or solution) radical chlorination is accepted at, °C:
+#: liquid-phase side-chain chlorinations are run up to about 200 °C (toluene to benzotrichloride is finished
+#: near 200 °C, from memory); SO2Cl2 with an initiator is a liquid-phase reagent, bounded alike. Above it a neat
+#: liquid or a solution is not a real condition, so Conditions.validate refuses it (common practice).
+MAX_LIQUID_TEMP_C = Value(200.0, "estimate", "liquid-phase radical chlorination up to ≈ 200 °C (common practice)")
+#: Highest NBS temperature accepted, °C: a Wohl–Ziegler bromination is a reflux in CCl4 (77 °C) or a higher-boiling
+#: solvent (PhCF3 102 °C, chlorobenzene 132 °C); NBS itself decomposes near its melting point, ≈ 175 °C (from
+#: memory). 150 °C bounds every such reflux (common practice).
+MAX_NBS_TEMP_C = Value(150.0, "estimate", "Wohl–Ziegler reflux, 77–132 °C; NBS decomposes ≈ 175 °C (common practice)")
 DEFAULT_MAX_HEAVY_ATOMS = 150
 
 # ---------------------------------------------------------------------------

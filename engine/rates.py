@@ -49,6 +49,11 @@ def _a_times(base: Arrhenius, factor: float, basis: str, source: str) -> Arrheni
     return Arrhenius(base.a_per_h * factor, base.ea, basis, source)
 
 
+def _through(a: float, k_t: float, temp_k: float, basis: str, source: str) -> Arrhenius:
+    """Parameters with A per H ``a`` whose rate constant at ``temp_k`` is ``k_t``."""
+    return Arrhenius(a, -_RT * temp_k * math.log(k_t / a), basis, source)
+
+
 def _two_point(prim: Arrhenius, r1: float, t1: float, r2: float, t2: float, source: str) -> Arrhenius:
     """Arrhenius parameters whose ratio to ``prim`` is r1 at t1 and r2 at t2."""
     dea = -_RT * math.log(r1 / r2) / (1.0 / t1 - 1.0 / t2)
@@ -120,23 +125,24 @@ def _cl_delocalised(table: dict[str, Arrhenius], phase: str) -> dict[str, Arrhen
     t = P.CL_ETHYLBENZENE_T_K
     pct = P.CL_ETHYLBENZENE_ALPHA_PCT.value
     per_h = (pct / 2) / ((100 - pct) / 3)
-    dea = P.CL_ETHYLBENZENE_DEA.value
-    prim = table["primary"]
-    a = prim.a_per_h * per_h * math.exp(dea / (_RT * t))
-    sec = Arrhenius(a, prim.ea + dea, "measured",
-                    f"{P.CL_ETHYLBENZENE_ALPHA_PCT.source}, i.e. {per_h:.1f} × the β CH3 per H at 25 °C; "
-                    f"{P.CL_ETHYLBENZENE_DEA.source}")
+    # A weaker C–H never gets a smaller A than a stronger one: every π-activated class takes the largest A of
+    # the saturated classes (tertiary's), and its Ea is set so the 25 °C split is kept. The measured
+    # Eα − Eβ (CL_ETHYLBENZENE_DEA) with the same split would give A(α)/A(β) = 0.07 per H, which inverts the
+    # order above ≈ 150 °C (the high-temperature limit of a per-H ratio is the ratio of A factors).
+    a_top = max(p.a_per_h for p in table.values())
+    k_sec = _k(table["primary"], t) * per_h  # ethylbenzene α per H at 25 °C
     for kind in DELOCALISED:
         for degree in DEGREES:
-            if (kind, degree) == ("benzylic", "secondary"):
-                out[f"{kind}-{degree}"] = sec
-                continue
-            base = table[degree]
-            ratio_a = base.a_per_h / table["secondary"].a_per_h
-            out[f"{kind}-{degree}"] = Arrhenius(
-                sec.a_per_h * ratio_a, sec.ea + base.ea - table["secondary"].ea, "estimate",
-                f"benzylic-secondary (ethylbenzene α, liquid) × the liquid {degree}/secondary alkyl ratio"
-                + ("" if kind == "benzylic" else f", carried over to the {kind} class") + " (additivity estimate)",
+            k_t = k_sec * _k(table[degree], t) / _k(table["secondary"], t)
+            measured = (kind, degree) == ("benzylic", "secondary")
+            out[f"{kind}-{degree}"] = _through(
+                a_top, k_t, t, "measured" if measured else "estimate",
+                (f"{P.CL_ETHYLBENZENE_ALPHA_PCT.source}, i.e. {per_h:.1f} × the β CH3 per H at 25 °C"
+                 if measured else
+                 f"benzylic-secondary (ethylbenzene α, liquid) × the liquid {degree}/secondary alkyl ratio at 25 °C"
+                 + ("" if kind == "benzylic" else f", carried over to the {kind} class") + " (additivity estimate)")
+                + "; A per H = the largest saturated-class A, so no stronger C–H overtakes it when hot "
+                "(estimate; the measured Eα − Eβ is not used, see engine.rates)",
             )
     return out
 
@@ -157,35 +163,51 @@ def _bicyclic(table: dict[str, Arrhenius], radical: str) -> dict[str, Arrhenius]
         t = P.NORBORNANE_T_K
         f7 = (src["norbornyl-7"].value / h["norbornyl-7"]) / per_h_c2
         fb = (src["bridgehead"].value / h["bridgehead"]) / per_h_c2
-        for degree in ("secondary", "tertiary"):
-            out[f"norbornyl-7-{degree}"] = _times(
-                table[degree], f7, t, "estimate",
-                f"{f7:.3f} × an open-chain {degree} C–H per H at 25 °C, from {src['norbornyl-7'].source} "
-                "(the 2-position taken as ordinary; equal A: estimate)",
-            )
-        out["bridgehead"] = _times(
-            table["secondary"], fb, t, "estimate",
-            f"{fb:.3f} × a secondary C–H per H at 25 °C, from {src['bridgehead'].source} (equal A: estimate; "
-            "one factor for every small bicycle)",
+        # A stronger C–H never gets a larger A than a weaker one: C7 (secondary) and the bridgehead are stronger
+        # than a primary C–H (site_bde), so they take primary's A, with Ea set by the 25 °C factor.
+        a_prim = table["primary"].a_per_h
+        out["norbornyl-7-secondary"] = _through(
+            a_prim, f7 * _k(table["secondary"], t), t, "estimate",
+            f"{f7:.3f} × an open-chain secondary C–H per H at 25 °C, from {src['norbornyl-7'].source} "
+            "(the 2-position taken as ordinary; A per H = primary's, the C7–H being the stronger: estimate)",
+        )
+        # The open-chain tertiary × f7 would fall below a primary C–H at 25 °C although the C–H is estimated
+        # weaker (site_bde); its rate is put at the floor that bond strength allows, a primary C–H's.
+        prim = table["primary"]
+        out["norbornyl-7-tertiary"] = Arrhenius(
+            prim.a_per_h, prim.ea, "estimate",
+            "as a primary C–H: tertiary × the C7 factor of norbornane would be slower than a primary C–H, "
+            "which this C–H (estimated weaker) must not be (estimate)",
+        )
+        out["bridgehead"] = _through(
+            a_prim, fb * _k(table["secondary"], t), t, "estimate",
+            f"{fb:.3f} × a secondary C–H per H at 25 °C, from {src['bridgehead'].source} (A per H = primary's, "
+            "the bridgehead C–H being the stronger: estimate; one factor for every small bicycle)",
         )
         return out
+    for site in ("norbornyl-7-secondary", "norbornyl-7-tertiary", "bridgehead"):
+        out[site] = _br_bep(table, site)
+    return out
+
+
+def _br_bep(table: dict[str, Arrhenius], site: str) -> Arrhenius:
+    """A saturated C–H without data of its own toward Br·, by Evans–Polanyi from the nearest weaker alkyl class.
+
+    The anchor is the alkyl class (methane, primary, secondary, tertiary) whose C–H is the strongest not
+    stronger than the site's: with its A and a higher Ea the site is never faster than any weaker class,
+    and never slower than a stronger one (the alkyl classes are in bond order by construction).
+    """
     alpha = P.BEP_ALPHA_SATURATED_BR.value
-    for degree in ("secondary", "tertiary"):
-        gap = P.NORBORNYL7_EXTRA_BDE.value
-        b = table[degree]
-        out[f"norbornyl-7-{degree}"] = Arrhenius(
-            b.a_per_h, b.ea + alpha * gap, "estimate",
-            f"BEP from {degree}, α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source}), ΔBDE +{gap:g} "
-            f"({P.NORBORNYL7_EXTRA_BDE.source})",
-        )
-    gap = P.BDE_BRIDGEHEAD.value - P.BDE["tertiary"].value
-    b = table["tertiary"]
-    out["bridgehead"] = Arrhenius(
+    bde = site_bde(site)
+    anchor = max((c for c in ("methane", *DEGREES) if site_bde(c).value <= bde.value),
+                 key=lambda c: site_bde(c).value)
+    gap = bde.value - site_bde(anchor).value
+    b = table[anchor]
+    return Arrhenius(
         b.a_per_h, b.ea + alpha * gap, "estimate",
-        f"BEP from tertiary with ΔBDE {gap:+.1f} kcal/mol (bridgehead bond enthalpy is an estimate), "
+        f"BEP from {anchor} (the nearest weaker alkyl C–H) with ΔBDE {gap:+.1f} kcal/mol ({bde.source}), "
         f"α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source})",
     )
-    return out
 
 
 # --- Br· -------------------------------------------------------------------
@@ -214,21 +236,19 @@ def _br_table() -> dict[str, Arrhenius]:
         f"Ea = ΔH + Ea(CH3 + HBr) = {ea['methane']:.2f} kcal/mol ({P.BR_REVERSE_EA['methane'].source}); "
         "A per H taken as the primary one (estimate)",
     )
-    alpha = P.BEP_ALPHA_SATURATED_BR.value
-    gap = P.BDE["cyclopropyl"].value - P.BDE["secondary"].value
-    sec = out["secondary"]
-    out["cyclopropyl"] = Arrhenius(
-        sec.a_per_h, sec.ea + alpha * gap, "estimate",
-        f"BEP from secondary with ΔBDE {gap:+.1f} kcal/mol, α = {alpha} ({P.BEP_ALPHA_SATURATED_BR.source})",
-    )
+    out["cyclopropyl"] = _br_bep(out, "cyclopropyl")
     alpha_d = P.BEP_ALPHA_DELOCALISED_BR.value
     t_b = P.BR_BENZYLIC_T_K
     prim = out["primary"]
+    # A weaker C–H never gets a smaller A than a stronger one: the π-activated classes take the largest alkyl
+    # A per H (tertiary's), so no alkyl C–H overtakes them when hot; Ea is the BEP value from primary.
+    a_top = max(out[d].a_per_h for d in DEGREES)
     for kind in DELOCALISED:
         shift = delocalisation_shift(kind)
         first = Arrhenius(
-            prim.a_per_h, prim.ea + alpha_d * shift, "estimate",
-            f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol, α = {alpha_d} ({P.BEP_ALPHA_DELOCALISED_BR.source})",
+            a_top, prim.ea + alpha_d * shift, "estimate",
+            f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol, α = {alpha_d} ({P.BEP_ALPHA_DELOCALISED_BR.source}); "
+            "A per H the largest alkyl one (tertiary's; estimate)",
         )
         for degree in DEGREES:
             factor = P.BR_BENZYLIC_RATIOS[degree]
@@ -239,7 +259,7 @@ def _br_table() -> dict[str, Arrhenius]:
             )
     shift = site_bde("conjugated").value - P.BDE["primary"].value
     out["conjugated"] = Arrhenius(
-        prim.a_per_h, prim.ea + alpha_d * shift, "estimate",
+        a_top, prim.ea + alpha_d * shift, "estimate",
         f"BEP from primary with ΔBDE {shift:+.1f} kcal/mol ({site_bde('conjugated').source}), α = {alpha_d}",
     )
     return out
@@ -280,9 +300,10 @@ def _derive(radical: str, phase: str) -> RateTable:
         valid = (max(lo, valid[0]), hi)
     params |= _cl_delocalised(params, phase)
     params |= _bicyclic(params, "cl")
-    b = params["benzylic-primary"]
+    b = params["benzylic-tertiary"]  # the fastest π-activated class: a weaker C–H is never slower
     params["conjugated"] = Arrhenius(b.a_per_h, b.ea, "estimate",
-                                     "as a primary benzylic C–H (estimate; Cl· barely tells radicals apart)")
+                                     "as a tertiary benzylic C–H, the fastest π-activated class (estimate; "
+                                     "Cl· barely tells radicals apart)")
     missing = set(ABSTRACTABLE) - set(params)
     assert not missing, missing  # every class has a rate: a new class must be derived here
     return RateTable("cl", phase, params, valid)

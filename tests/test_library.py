@@ -126,7 +126,7 @@ def test_reweigh_without_reperceiving(mixed_frame: pd.DataFrame, monkeypatch: py
     import halosift.engine.perception as perceive_module
 
     monkeypatch.setattr(perceive_module, "_perceive_one", forbidden)
-    hot = library.evaluate(Conditions(cl2_temp_c=300.0))
+    hot = library.evaluate(Conditions(cl2_temp_c=300.0, cl2_phase="gas"))
     g1 = cold["id"] == "g1"
     assert float(hot.loc[g1, "cl2_major_pct"].iloc[0]) != pytest.approx(float(cold.loc[g1, "cl2_major_pct"].iloc[0]))
 

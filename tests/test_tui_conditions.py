@@ -234,3 +234,17 @@ def test_read_fields_takes_the_phase():
     assert "cl2_phase" in proposal.pending
     refused = read_fields(texts, "benzene", applied, "gas")
     assert refused.conditions is None and "not gas" in refused.errors["cl2_phase"]
+
+
+def test_read_fields_refuses_a_hot_liquid_and_an_empty_solution_with_the_engine_reason():
+    # Conditions.validate's bounds (engine.conditions): a neat liquid above 200 °C, a solution at 0 M.
+    applied = engine.Conditions()
+    texts = {"cl2_temp_c": "1000", "cl2_solvent_molar": "0", "br2_temp_c": "125", "so2cl2_temp_c": "70",
+             "nbs_temp_c": "77", "threshold_pct": "90"}
+    hot = read_fields(texts, "none", applied)
+    assert hot.conditions is None and "neat liquid" in hot.errors["cl2_temp_c"]
+    assert read_fields(texts, "none", applied, "gas").conditions == engine.Conditions(cl2_temp_c=1000.0, cl2_phase="gas")
+    empty = read_fields({**texts, "cl2_temp_c": "25"}, "benzene", applied, "solution")
+    assert empty.conditions is None and any("above 0 M" in e for e in empty.errors.values())
+    nbs = read_fields({**texts, "cl2_temp_c": "25", "nbs_temp_c": "400"}, "none", applied)
+    assert nbs.conditions is None and "NBS" in nbs.errors["nbs_temp_c"]

@@ -105,8 +105,10 @@ def read_fields(texts: dict[str, str], solvent: str, applied: Any, phase: str | 
         if name in errors or name == "cl2_solvent":
             continue
         one = {name: value}
-        if name in ("cl2_solvent_molar", "cl2_phase"):  # judged with the solvent and phase chosen beside them
+        if name in ("cl2_solvent_molar", "cl2_phase", "cl2_temp_c"):  # judged with the solvent and phase chosen
             one.update(cl2_solvent=solvent, cl2_phase=phase)
+            if "cl2_solvent_molar" in values and "cl2_solvent_molar" not in errors:  # a solution needs > 0 M
+                one["cl2_solvent_molar"] = values["cl2_solvent_molar"]
         try:
             replace(applied, **one).validate()
         except ValueError as exc:

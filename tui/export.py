@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.tui.toggles import ChoiceButton
+from halosift.tui.wording import counted
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
@@ -264,9 +265,9 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         with Vertical(id="export-box"):
             yield Static("Export", id="export-title")
             with RadioSet(id="export-what", compact=True):
-                yield ChoiceButton(f"shortlist: {self.n_marked:,} marked rows", start == "shortlist",
+                yield ChoiceButton(f"shortlist: {counted(self.n_marked, 'marked row')}", start == "shortlist",
                                   id="what-shortlist", compact=True)
-                yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, filtered as shown",
+                yield ChoiceButton(f"current view ({self.view}): {counted(self.n_view, 'row')}, filtered as shown",
                                   start == "view", id="what-view", compact=True)
             yield Static(f"Rows are written in the table's order: {self.order}.", id="export-order")
             yield Static("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")

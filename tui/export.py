@@ -17,7 +17,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, ProgressBar, RadioSet, Static
+from textual.widgets import Button, Footer, Input, Label, ProgressBar, RadioSet, Static
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -98,13 +98,16 @@ def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, s
     from halosift.engine.provenance import export_metadata as provenance
 
     warnings = conditions.warnings()
-    return provenance(
+    meta = provenance(
         conditions,
         condition_warnings="; ".join(warnings) if warnings else "none",
         selection=selection,
         source=source,
         written_by="halosift app (browse)",
     )
+    # The app's exports carry one column more than a screen's: say what it is with the others.
+    meta["columns"] = f"{ROW_COLUMN}: 1-based number of the input data row (the header not counted)\n" + meta["columns"]
+    return meta
 
 
 def write_report_export(
@@ -218,6 +221,7 @@ class ConfirmScreen(ModalScreen[bool]):
             with Horizontal(id="confirm-buttons"):
                 yield Button("Replace (y)", id="confirm-yes", variant="warning", compact=True)
                 yield Button("Keep (n)", id="confirm-no", compact=True)
+        yield Footer(compact=True)  # the dialog's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         self.query_one("#confirm-no", Button).focus()
@@ -277,6 +281,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             with Horizontal(id="export-buttons"):
                 yield Button("Write", id="export-write", variant="primary", compact=True)
                 yield Button("Cancel", id="export-cancel", compact=True)
+        yield Footer(compact=True)  # the dialog's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         path = self.query_one("#export-path", Input)

@@ -479,7 +479,8 @@ def _report(args: argparse.Namespace) -> int:
     if chosen.missing_ids:
         some = "1 ID" if len(chosen.missing_ids) == 1 else f"{len(chosen.missing_ids):,} IDs"
         print(f"warning: {some} from {args.ids} not in the library", file=sys.stderr)
-    left = f"; {report.n_left_out:,} more left out by --max-pages" if report.n_left_out else ""
+    left = (f"; {report.n_left_out:,} more beyond --max-pages, one line each in the appendix"
+            if report.n_left_out else "")
     print(f"wrote {written} ({report.n_sections:,} substrate entries{left}; summary of {report.n_rows:,} rows)",
           file=sys.stderr)
     return EXIT_OK

@@ -353,7 +353,7 @@ class HalosiftApp(App[int]):
             return None, key, ""
         saved, note = sessions.load(key)
         if saved is not None and saved.n_rows != n_rows:
-            return None, key, (f"The saved session is for {saved.n_rows:,} rows, not {n_rows:,}, "
+            return None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not {n_rows:,}, "
                                "and is ignored; this one starts fresh.")
         return saved, key, note
 

@@ -152,7 +152,7 @@ class ExportProgress(Horizontal):
         """Show ``done`` of ``total`` entries drawn."""
         self.query_one("#export-progress-bar", ProgressBar).update(total=total, progress=done)
         self.query_one("#export-progress-label", Label).update(
-            f"Writing report {self.file_name}: {min(done, total):,} of {total:,} steps")
+            f"Writing report {self.file_name}: {min(done, total):,} of {counted(total, 'step')}")
 
 
 def _show_progress(app: App, name: str) -> Any:

@@ -112,7 +112,9 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "so2cl2_major_pct": "its share of the monochlorides under SO2Cl2, percent; empty when so2cl2_outcome is ruled-out",
     "canonical_smiles": "RDKit canonical SMILES of the substrate",
-    "duplicate_of": "1-based row number of the first row with the same structure; empty when first",
+    "duplicate_of": "the first row with the same structure (canonical SMILES), as its 1-based number among the "
+    "input's data rows (the header not counted; the app's input_row); empty on that first row and on rows with "
+    "no repeat",
 }
 
 

@@ -417,8 +417,8 @@ ALKENE_SUBSTITUTION_T_C = Value(
     "measured",
     "propene + Cl2 in the gas phase at 400 °C and above gives allyl chloride rather than "
     "1,2-dichloropropane, the industrial allyl chloride process (Groll & Hearne, Ind. Eng. Chem. 1939, "
-    "31, 1530, as cited by Hearne, Evans, Yale & Hoff, J. Am. Chem. Soc. 1953, 75, on the high-temperature "
-    "chlorination of chloropropenes; 400 °C gas phase as in the standard organic textbooks)",
+    "31, 1530, as cited by Hearne, Evans, Yale & Hoff, J. Am. Chem. Soc. 1953, vol. 75 (page not verified), on the "
+    "high-temperature chlorination of chloropropenes; 400 °C gas phase as in the standard organic textbooks)",
 )
 BR_ALKENE_SUBSTITUTION_T_C = Value(
     400.0,
@@ -564,6 +564,6 @@ CAGE_NOTE = (
 #: Cyclopropylmethyl radicals open faster than many halogen transfers: ring-opened halides form.
 CYCLOPROPYLMETHYL_NOTE = (
     "a cyclopropylmethyl radical opens to but-3-enyl at ≈ 1e8 s⁻¹ (see K_CYCLOPROPYLMETHYL_OPENING), "
-    "comparable to its capture by the halogen, so ring-opened halides the percentages do not include form "
-    "(rule of this program: every reagent is ruled out when any such C–H is present)"
+    "comparable to its capture by the halogen, so ring-opened halides form as well, and the substitution "
+    "percentages do not include them (rule of this program: every reagent is ruled out when any such C–H is present)"
 )

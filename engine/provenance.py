@@ -19,6 +19,16 @@ MODEL_SOURCES = (
 )
 
 
+def result_columns_text() -> str:
+    """What every result column holds, one ``name: meaning`` line each (engine.library.RESULT_DOCS)."""
+    from halosift.engine.library import RESULT_COLUMNS, RESULT_DOCS  # library imports much; only when exporting
+
+    lines = [f"{name}: {RESULT_DOCS[name]}" for name in RESULT_COLUMNS]
+    lines.append("other columns: the input's own, as read (an input column named like a result column is "
+                 "renamed input_<name>)")
+    return "\n".join(lines)
+
+
 def export_metadata(conditions: Conditions, **extra: str) -> dict[str, str]:
     """Key/value provenance for an export; the file writers namespace the keys (halosift.engine.io.metadata)."""
     from halosift.engine import __version__
@@ -37,6 +47,7 @@ def export_metadata(conditions: Conditions, **extra: str) -> dict[str, str]:
         "outcomes": "per reagent (cl2_outcome, br2_outcome, so2cl2_outcome, nbs_outcome): " + "; ".join(
             f"{k}: {v.format(threshold=f'{conditions.threshold_pct:g}')}" for k, v in OUTCOME_DOCS.items()),
         "stereo_outcomes": " / ".join(STEREO_OUTCOMES),
+        "columns": result_columns_text(),
         "model_sources": MODEL_SOURCES,
         "caution": CAUTION,
     }

@@ -61,10 +61,12 @@ def _add_condition_options(p: argparse.ArgumentParser, what: str) -> None:
         type=_temp_arg,
         action="append",
         metavar="[REAGENT=]°C",
-        help=f"temperature in °C: a bare number applies to {what}; or cl2=°C / br2=°C / nbs=°C "
-        "(repeatable; defaults cl2 25, br2 125, nbs 77)",
+        help=f"temperature in °C: a bare number applies to {what}; or cl2=°C / br2=°C / so2cl2=°C / nbs=°C "
+        "(repeatable; defaults cl2 25, br2 125, so2cl2 70, nbs 77)",
     )
-    p.add_argument("--threshold", type=float, metavar="PCT", help="bromination share that counts as selective (default 90)")
+    p.add_argument("--threshold", type=float, metavar="PCT",
+                   help="share of the major monohalide (percent) at which a reagent's outcome is clean rather than "
+                   "mixture, for every reagent (default 90)")
 
 
 def _solvent_arg(text: str) -> tuple[str, float]:
@@ -96,16 +98,28 @@ def _add_phase_option(p: argparse.ArgumentParser) -> None:
         "--phase",
         choices=["gas", "liquid", "solution"],
         help="Cl2 phase: liquid (the neat hydrocarbon, default), gas (vapour-phase kinetics) or solution "
-        "(needs --solvent, where offered)",
+        "(needs --solvent)",
     )
 
 
-def _add_screen_conditions(p: argparse.ArgumentParser, note: str = "") -> None:
-    """The condition options of `screen` (and of `browse`, which sets the app's starting conditions)."""
+def _add_conditions(p: argparse.ArgumentParser, what: str = "Cl2 and Br2", note: str = "") -> None:
+    """The condition options, one set for every command that weighs (explain, screen, report, browse)."""
     group = p.add_argument_group("conditions" + note)
-    _add_condition_options(group, "both reagents")
+    _add_condition_options(group, what)
     _add_solvent_option(group)
     _add_phase_option(group)
+
+
+def _ratio_arg(text: str) -> float:
+    """'2:1' (substrate : halogen, as the planner shows it) or a bare number (the same quotient, '2')."""
+    substrate, sep, halogen = text.partition(":")
+    try:
+        value = float(substrate) / float(halogen) if sep else float(text)
+    except (ValueError, ZeroDivisionError):
+        raise argparse.ArgumentTypeError(
+            f"expected substrate:halogen (e.g. 2:1) or one number, got {text!r}"
+        ) from None
+    return value
 
 
 def _reagent_arg(text: str) -> str:
@@ -130,12 +144,10 @@ def build_parser() -> argparse.ArgumentParser:
         "--temp REAGENT=°C; nbs lists allylic/benzylic bromides, allylic shift included); "
         "f2 and i2 are explained, not predicted",
     )
-    _add_condition_options(ex, "the reagents given")
-    _add_solvent_option(ex)
-    _add_phase_option(ex)
-    ex.add_argument("--ratio", type=float, metavar="S:X",
-                    help="polyhalogenation planner: substrate : halogen charged, mol/mol, all halogen consumed "
-                    "(default 1)")
+    _add_conditions(ex, "the reagents given")
+    ex.add_argument("--ratio", type=_ratio_arg, metavar="S:X",
+                    help="polyhalogenation planner: substrate : halogen charged, mol/mol, as S:X (2:1) or one number (2); "
+                    "all halogen consumed (default 1:1)")
     ex.add_argument("--conversion", type=float, metavar="PCT",
                     help="also give the polyhalide share at this substrate conversion (percent)")
     ex.add_argument("--max-poly", type=float, metavar="PCT",
@@ -150,7 +162,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_in_format_option(sc)
     sc.add_argument("--out-format", choices=OUT_FORMATS,
                     help="format for -o - (default csv); Parquet is never written to a terminal")
-    _add_screen_conditions(sc)
+    _add_conditions(sc)
     _add_library_options(sc)
     _add_run_options(sc)
     sc.add_argument("--dask", metavar="ADDRESS",
@@ -163,8 +175,7 @@ def build_parser() -> argparse.ArgumentParser:
                     "standard input")
     rp.add_argument("-o", "--output", required=True, help="the report file (.html)")
     _add_in_format_option(rp)
-    _add_condition_options(rp, "both reagents")
-    _add_phase_option(rp)
+    _add_conditions(rp)
     _add_library_options(rp)
     # Checked in _report, not by choices=: naming the verdicts here would import the engine for --help.
     rp.add_argument("--only", action="append", metavar="VERDICT",
@@ -185,7 +196,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     br = sub.add_parser("browse", help="open a library in the terminal app")
     br.add_argument("input", nargs="?", help="library file (default: the bundled sample catalogue)")
-    _add_screen_conditions(br, " (the app starts with them; they win over the conditions saved in the session)")
+    _add_conditions(br, note=" (the app starts with them; they win over the conditions saved in the session)")
     _add_library_options(br)
     br.add_argument(
         "--no-images", action="store_true",
@@ -233,10 +244,9 @@ def _condition_fields(args: argparse.Namespace, reagents: Sequence[str]) -> dict
             kwargs[f"{r}_temp_c"] = value
     if args.threshold is not None:
         kwargs["threshold_pct"] = args.threshold
-    solvent = getattr(args, "solvent", None)  # only explain and screen offer --solvent
-    if solvent is not None:
-        kwargs["cl2_solvent"], kwargs["cl2_solvent_molar"] = solvent
-    if getattr(args, "phase", None) is not None:
+    if args.solvent is not None:
+        kwargs["cl2_solvent"], kwargs["cl2_solvent_molar"] = args.solvent
+    if args.phase is not None:
         kwargs["cl2_phase"] = args.phase
     return kwargs
 
@@ -469,7 +479,8 @@ def _report(args: argparse.Namespace) -> int:
     if chosen.missing_ids:
         some = "1 ID" if len(chosen.missing_ids) == 1 else f"{len(chosen.missing_ids):,} IDs"
         print(f"warning: {some} from {args.ids} not in the library", file=sys.stderr)
-    left = f"; {report.n_left_out:,} more left out by --max-pages" if report.n_left_out else ""
+    left = (f"; {report.n_left_out:,} more beyond --max-pages, one line each in the appendix"
+            if report.n_left_out else "")
     print(f"wrote {written} ({report.n_sections:,} substrate entries{left}; summary of {report.n_rows:,} rows)",
           file=sys.stderr)
     return EXIT_OK

@@ -487,3 +487,64 @@ def test_browse_refuses_bad_conditions_in_one_line_before_the_app(tmp_path: Path
     assert proc.returncode == 2
     assert proc.stderr.startswith("halosift: ") and "needs a solvent" in proc.stderr
     assert len(proc.stderr.strip().splitlines()) == 1 and "Traceback" not in proc.stderr
+
+
+#: The options that set engine.Conditions; every command that weighs offers all of them.
+CONDITION_OPTIONS = {"--temp", "--threshold", "--solvent", "--phase"}
+
+
+def _subcommand_options(name: str) -> set[str]:
+    from halosift.cli import build_parser
+
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    return {s for action in sub.choices[name]._actions for s in action.option_strings}
+
+
+def test_every_weighing_command_offers_the_same_condition_options() -> None:
+    from halosift.engine import Conditions
+
+    offered = {name: _subcommand_options(name) & CONDITION_OPTIONS for name in ("explain", "screen", "report", "browse")}
+    assert all(options == CONDITION_OPTIONS for options in offered.values()), offered
+    # And the option set covers every condition the engine has: a new field must get an option here.
+    from dataclasses import fields
+
+    covered = {"cl2_temp_c", "br2_temp_c", "so2cl2_temp_c", "nbs_temp_c", "threshold_pct", "cl2_solvent",
+               "cl2_solvent_molar", "cl2_phase"}
+    assert {f.name for f in fields(Conditions)} == covered
+
+
+def test_report_takes_a_solvent_for_a_solution_phase(tmp_path: Path) -> None:
+    source = tmp_path / "lib.csv"
+    pd.DataFrame({"id": ["WR-1", "WR-2"], "smiles": ["CCC", "CC(C)C"]}).to_csv(source, index=False)
+    out = tmp_path / "r.html"
+    assert main(["report", str(source), "-o", str(out), "--phase", "solution", "--solvent", "benzene=4", "--quiet"]) == 0
+    assert "benzene" in out.read_text(encoding="utf-8")
+
+
+def test_ratio_takes_s_to_x_or_a_number(capsys: pytest.CaptureFixture) -> None:
+    plans = {}
+    for ratio in ("2:1", "2", "4:2"):
+        assert main(["explain", "CC(C)C", "--json", "--ratio", ratio]) == 0
+        plans[ratio] = json.loads(capsys.readouterr().out)["polyhalogenation"]
+    assert plans["2:1"] == plans["2"] == plans["4:2"]
+    assert plans["2:1"]["cl2"]["ratio"] == 2
+
+
+@pytest.mark.parametrize("ratio", ["2:x", "2:0", "a", "1:2:3", ":"])
+def test_bad_ratio_is_one_line(ratio: str) -> None:
+    proc = run("explain", "CC(C)C", "--ratio", ratio)
+    assert proc.returncode == 2
+    assert proc.stderr.strip().count("\n") == 0 and "Traceback" not in proc.stderr
+    assert "substrate:halogen" in proc.stderr
+
+
+def test_condition_help_names_every_reagent_and_what_the_threshold_governs() -> None:
+    from halosift.cli import build_parser
+
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    for name in ("explain", "screen", "report", "browse"):
+        text = " ".join(sub.choices[name].format_help().split())
+        assert all(f"{r}=°C" in text for r in ("cl2", "br2", "so2cl2", "nbs")), name
+        assert "bromination share" not in text and "every reagent" in text, name

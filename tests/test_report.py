@@ -545,3 +545,44 @@ def test_ruled_out_reagents_show_no_numbers_and_charts_count_only_where_they_app
     chart = next(s for s in svgs(page) if "Bromination selectivity" in s)
     bars = [int(v.replace(",", "")) for v in re.findall(r"<title>[^<]*–[^<]*: ([\d,]+)</title>", chart)]
     assert len(bars) == 10 and sum(bars) == int(applies.sum())
+
+
+def _rows_in(page: str, section: str) -> list[int]:
+    """1-based input rows listed in the <section class="{section}"> of the page (one per table row)."""
+    found = re.search(rf'<section class="{section}"[^>]*>(.*?)</section>', page, flags=re.DOTALL)
+    if found is None:
+        return []
+    return [int(r) for r in re.findall(r'<tr[^>]*>\s*<td class="num">(\d+)</td>', found.group(1))]
+
+
+@pytest.mark.parametrize("cap", [0, 2, 5])
+def test_every_input_row_appears_beyond_the_entry_cap(tmp_path: Path, monkeypatch: pytest.MonkeyPatch,
+                                                      cap: int) -> None:
+    # A library larger than the cap, and a rejected table shorter than its rejections: nothing may drop out.
+    import halosift.report.html as report_html
+
+    monkeypatch.setattr(report_html, "REJECTED_LISTED", 1)
+    page = report(tmp_path, "--max-pages", str(cap))
+    entries, appendix, rejected = section_rows(page), _rows_in(page, "appendix"), _rows_in(page, "rejected")
+    assert len(entries) == cap
+    listed = entries + appendix + rejected
+    assert sorted(listed) == list(range(1, len(ROWS) + 1))  # every row once, none twice
+    screened = engine.screen(tmp_path / "kv_catalogue.csv")
+    section = re.search(r'<section class="appendix".*?</section>', page, flags=re.DOTALL).group(0)
+    for r in appendix:  # each line: ID, verdict and serves, or status and reason
+        row = screened.iloc[r - 1]
+        line = re.search(rf'<tr data-row="{r}">(.*?)</tr>', section).group(1)
+        assert f"<td>{html.escape(ROWS[r - 1][0])}</td>" in line
+        if row["status"] == "ok":
+            assert f"<td>{row['verdict']}</td><td>{row['serves'] or 'none'}</td>" in line
+        else:
+            assert f"<td>rejected</td><td>{html.escape(row['reason'])}</td>" in line
+    # Grouped as the entries are: the appendix's modelled rows follow the verdict groups in order.
+    groups = re.findall(r'<h3 data-verdict="([\w-]+)">', section)
+    assert groups == sorted(groups, key=lambda v: (GROUP_ORDER + ("rejected",)).index(v))
+
+
+def test_report_names_the_appendix_on_the_command_line(tmp_path: Path, capsys: pytest.CaptureFixture) -> None:
+    report(tmp_path, "--max-pages", "2")
+    err = capsys.readouterr().err
+    assert "one line each in the appendix" in err and "left out" not in err

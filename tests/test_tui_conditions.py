@@ -67,7 +67,7 @@ async def test_values_apply_only_when_complete_and_valid(tmp_path):
         await settle(pilot)
         assert app.conditions == before
         note = plain(screen.query_one("#cond-note"))
-        assert "Pending: threshold 80 %" in note and f"threshold {before.threshold_pct:g} %" in note
+        assert "Pending: clean threshold 80 %" in note and f"threshold {before.threshold_pct:g} %" in note
         assert threshold.has_class("-pending")
         # Cleared and 101 typed: refused, the header and the table keep the applied threshold.
         await pilot.press("end", "backspace", "backspace", "1", "0", "1", "enter")

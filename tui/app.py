@@ -41,6 +41,7 @@ from halosift.tui.messages import (
 )
 from halosift.tui.search import SearchBar
 from halosift.tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
+from halosift.tui.wording import counted
 from textual import on, work
 from textual.app import App, ComposeResult
 from textual.binding import Binding, BindingType
@@ -352,7 +353,7 @@ class HalosiftApp(App[int]):
             return None, key, ""
         saved, note = sessions.load(key)
         if saved is not None and saved.n_rows != n_rows:
-            return None, key, (f"The saved session is for {saved.n_rows:,} rows, not {n_rows:,}, "
+            return None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not {n_rows:,}, "
                                "and is ignored; this one starts fresh.")
         return saved, key, note
 
@@ -483,7 +484,7 @@ class HalosiftApp(App[int]):
         from halosift.engine import Conditions
 
         if self.marked.any():
-            self._undo.append(MarksUndo(f"start fresh (cleared {int(self.marked.sum()):,} marks)", self.marked.copy()))
+            self._undo.append(MarksUndo(f"start fresh (cleared {counted(int(self.marked.sum()), 'mark')})", self.marked.copy()))
             del self._undo[:-UNDO_DEPTH]
             self.marked[:] = False
             self.query_one(LibraryTable).set_marked(self.marked)
@@ -733,8 +734,8 @@ class HalosiftApp(App[int]):
         marked = _count(int(self.marked.sum()))
         if pending or self.phase == "streaming":
             done = f"{_count(total - pending)} of {_count(total)}"
-            counts = [Phrase((f"{done} rows perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
-                              f"{done} rows perceived", f"{done} perceived"), keep=6)]
+            counts = [Phrase((f"{done} {'row' if total == 1 else 'rows'} perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
+                              f"{done} {'row' if total == 1 else 'rows'} perceived", f"{done} perceived"), keep=6)]
             if self.phase == "streaming" and not self._stop_note:
                 counts.append(Phrase(("Esc stops, keeps what is done", "Esc stops", ""), keep=0))
             elif self.phase == "streaming":
@@ -743,8 +744,8 @@ class HalosiftApp(App[int]):
                 note = f"{self._stop_note}, done rows kept · r resumes"
                 counts.append(Phrase((note, f"{self._stop_note} · r resumes", "r resumes"), keep=5))
         else:
-            counts = [Phrase((f"{_count(total)} rows ({_count(ok)} screened, {_count(rejected)} rejected)",
-                              f"{_count(total)} rows ({_count(rejected)} rejected)", f"{_count(total)} rows"), keep=1)]
+            counts = [Phrase((f"{counted(total, 'row')} ({_count(ok)} screened, {_count(rejected)} rejected)",
+                              f"{counted(total, 'row')} ({_count(rejected)} rejected)", counted(total, 'row')), keep=1)]
         counts += [
             Phrase((f"view {self.view}: {_count(shown)} shown", f"{self.view}: {_count(shown)} shown"), keep=3),
             Phrase((f"{marked} marked",), keep=4),
@@ -901,14 +902,14 @@ class HalosiftApp(App[int]):
         """Mark every row the current view shows."""
         rows = self.query_one(LibraryTable).rows
         changed = self.set_marks(rows, True, f"mark all {len(rows):,} shown")
-        self.notify(f"Marked {changed:,} more rows (all {len(rows):,} shown) · z undoes" if changed
+        self.notify(f"Marked {counted(changed, 'more row')} (all {len(rows):,} shown) · z undoes" if changed
                     else "Every shown row was already marked", title="Marks")
 
     def action_unmark_shown(self) -> None:
         """Unmark every row the current view shows."""
         rows = self.query_one(LibraryTable).rows
         changed = self.set_marks(rows, False, f"unmark all {len(rows):,} shown")
-        self.notify(f"Unmarked {changed:,} rows · z undoes" if changed else "No shown row was marked", title="Marks")
+        self.notify(f"Unmarked {counted(changed, 'row')} · z undoes" if changed else "No shown row was marked", title="Marks")
 
     def action_undo_marks(self) -> None:
         """Undo the last mark-all, unmark-all or marks-from-file step."""
@@ -918,7 +919,7 @@ class HalosiftApp(App[int]):
         step = self._undo.pop()
         self.marked[:] = step.marked
         self._marks_changed()
-        self.notify(f"Undone: {step.what}; {int(self.marked.sum()):,} rows marked", title="Marks")
+        self.notify(f"Undone: {step.what}; {counted(int(self.marked.sum()), 'row')} marked", title="Marks")
 
     def action_mark_from_file(self) -> None:
         """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
@@ -953,13 +954,14 @@ class HalosiftApp(App[int]):
         if message.rows is None:
             self.notify(f"Cannot read {name}: {message.error}", title="Marks", severity="error", timeout=10)
             return
-        changed = self.set_marks(message.rows, True, f"mark {len(message.rows):,} rows listed in {name}")
+        changed = self.set_marks(message.rows, True, f"mark {counted(len(message.rows), 'row')} listed in {name}")
         missing = ""
         if message.missing:
             few = ", ".join(message.missing[:3]) + (" …" if len(message.missing) > 3 else "")
             missing = f"; {len(message.missing):,} not in this library ({few})"
         self.notify(
-            f"{message.n_ids:,} IDs read from {name}: {len(message.rows):,} rows found, {changed:,} newly marked"
+            f"{counted(message.n_ids, 'ID')} read from {name}: {counted(len(message.rows), 'row')} found, "
+            f"{changed:,} newly marked"
             f"{missing}" + (" · z undoes" if changed else ""),
             title="Marks", timeout=10,
         )
@@ -1040,12 +1042,12 @@ class HalosiftApp(App[int]):
         if choice.what == "shortlist":
             marked = self.marked.copy()
             rows = None  # put in the table's order by the export worker
-            selection = f"shortlist: {int(marked.sum()):,} marked rows; order: {order}"
+            selection = f"shortlist: {counted(int(marked.sum()), 'marked row')}; order: {order}"
         else:
             marked = None
             rows = self.query_one(LibraryTable).rows.copy()
             filters = self.filters.describe() if self.view == "library" else "no filters"
-            selection = f"{self.view} view: {len(rows):,} rows; {filters}; order: {order}"
+            selection = f"{self.view} view: {counted(len(rows), 'row')}; {filters}; order: {order}"
         self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
 
     @work(thread=True, exclusive=True, group="export", exit_on_error=False)
@@ -1102,7 +1104,7 @@ class HalosiftApp(App[int]):
         self.last_export = Path(message.path)
         where = f"{message.path}"
         extra = f"; conditions and caution in {message.sidecar}" if message.sidecar else "; conditions and caution inside"
-        self.notify(f"Wrote {message.rows:,} rows to {where}{extra}", title="Exported", timeout=10)
+        self.notify(f"Wrote {counted(message.rows, 'row')} to {where}{extra}", title="Exported", timeout=10)
 
     def on_export_failed(self, message: ExportFailed) -> None:
         self.notify(message.message, title="Export failed", severity="error", timeout=10)

@@ -1,4 +1,4 @@
-"""The conditions panel: temperatures, the Cl2 phase and solvent, and the selectivity threshold.
+"""The conditions panel: temperatures, the Cl2 phase and solvent, and the clean threshold (one share for every reagent).
 
 A value is applied only when it is complete and the whole set passes the
 engine's own ``Conditions.validate``: on Enter, or on leaving the field (Tab,
@@ -46,7 +46,7 @@ FIELDS: tuple[Field, ...] = (
     Field("cond-br2", "br2_temp_c", "Br2 temperature", "°C"),
     Field("cond-so2cl2", "so2cl2_temp_c", "SO2Cl2 temperature", "°C"),
     Field("cond-nbs", "nbs_temp_c", "NBS temperature", "°C"),
-    Field("cond-threshold", "threshold_pct", "threshold", "%"),
+    Field("cond-threshold", "threshold_pct", "clean threshold", "%"),
 )
 #: Solvents of the Cl2 chlorination offered (engine.solvent.SOLVENTS), with what the chemist reads.
 SOLVENT_LABELS: dict[str, str] = {"none": "none", "benzene": "benzene", "cs2": "CS2"}
@@ -152,7 +152,7 @@ class ConditionsPanel(Vertical):
             yield Input(id="cond-so2cl2", type="number", compact=True, classes="cond-input")
             yield Label("NBS °C", classes="cond-label")
             yield Input(id="cond-nbs", type="number", compact=True, classes="cond-input")
-            yield Label("threshold %", classes="cond-label")
+            yield Label("clean at %", classes="cond-label")
             yield Input(id="cond-threshold", type="number", compact=True, classes="cond-input")
         yield Static("", id="cond-note")
 

@@ -24,6 +24,13 @@ from textual.worker import get_current_worker
 if TYPE_CHECKING:
     import pandas as pd
 
+def _missing(value: Any) -> bool:
+    """True for an empty result cell (None, NaN or pandas' NA)."""
+    import pandas
+
+    return bool(pandas.isna(value))
+
+
 _EIGHTHS = " ▏▎▍▌▋▊▉"
 
 
@@ -372,6 +379,10 @@ class DetailScreen(Screen):
             head.append(str(record.get("confidence", "")) or "—")
             head.append("  Flags: ", style="bold")
             head.append(str(record.get("flags", "")) or "none")
+            first = record.get("duplicate_of")
+            if first is not None and not _missing(first):  # as the report says: a repeat is no new candidate
+                head.append("\nRepeat: ", style="bold")
+                head.append(f"same structure as input row {int(first)}")
         head.append(f"\n{self.conditions.describe()}")
         for warning in self.conditions.warnings():
             head.append(f"\n! {warning}")

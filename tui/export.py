@@ -11,12 +11,13 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.tui.toggles import ChoiceButton
+from halosift.tui.wording import counted
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, ProgressBar, RadioSet, Static
+from textual.widgets import Button, Footer, Input, Label, ProgressBar, RadioSet, Static
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -97,13 +98,16 @@ def export_metadata(conditions: Any, selection: str, source: str) -> dict[str, s
     from halosift.engine.provenance import export_metadata as provenance
 
     warnings = conditions.warnings()
-    return provenance(
+    meta = provenance(
         conditions,
         condition_warnings="; ".join(warnings) if warnings else "none",
         selection=selection,
         source=source,
         written_by="halosift app (browse)",
     )
+    # The app's exports carry one column more than a screen's: say what it is with the others.
+    meta["columns"] = f"{ROW_COLUMN}: 1-based number of the input data row (the header not counted)\n" + meta["columns"]
+    return meta
 
 
 def write_report_export(
@@ -148,7 +152,7 @@ class ExportProgress(Horizontal):
         """Show ``done`` of ``total`` entries drawn."""
         self.query_one("#export-progress-bar", ProgressBar).update(total=total, progress=done)
         self.query_one("#export-progress-label", Label).update(
-            f"Writing report {self.file_name}: {min(done, total):,} of {total:,} steps")
+            f"Writing report {self.file_name}: {min(done, total):,} of {counted(total, 'step')}")
 
 
 def _show_progress(app: App, name: str) -> Any:
@@ -217,6 +221,7 @@ class ConfirmScreen(ModalScreen[bool]):
             with Horizontal(id="confirm-buttons"):
                 yield Button("Replace (y)", id="confirm-yes", variant="warning", compact=True)
                 yield Button("Keep (n)", id="confirm-no", compact=True)
+        yield Footer(compact=True)  # the dialog's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         self.query_one("#confirm-no", Button).focus()
@@ -264,9 +269,9 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         with Vertical(id="export-box"):
             yield Static("Export", id="export-title")
             with RadioSet(id="export-what", compact=True):
-                yield ChoiceButton(f"shortlist: {self.n_marked:,} marked rows", start == "shortlist",
+                yield ChoiceButton(f"shortlist: {counted(self.n_marked, 'marked row')}", start == "shortlist",
                                   id="what-shortlist", compact=True)
-                yield ChoiceButton(f"current view ({self.view}): {self.n_view:,} rows, filtered as shown",
+                yield ChoiceButton(f"current view ({self.view}): {counted(self.n_view, 'row')}, filtered as shown",
                                   start == "view", id="what-view", compact=True)
             yield Static(f"Rows are written in the table's order: {self.order}.", id="export-order")
             yield Static("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
@@ -276,6 +281,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             with Horizontal(id="export-buttons"):
                 yield Button("Write", id="export-write", variant="primary", compact=True)
                 yield Button("Cancel", id="export-cancel", compact=True)
+        yield Footer(compact=True)  # the dialog's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         path = self.query_one("#export-path", Input)

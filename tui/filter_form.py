@@ -9,6 +9,7 @@ from halosift.tui.filters import (
     CONFIDENCE_CHOICES,
     DUPLICATE_MODES,
     FLAG_CHOICES,
+    FLAG_LABELS,
     NO_NEW_STEREO,
     OUTCOME_CHOICES,
     OUTCOME_VALUES,
@@ -22,7 +23,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Grid, Horizontal, VerticalScroll
 from textual.screen import ModalScreen
-from textual.widgets import Button, Input, Label, Static
+from textual.widgets import Button, Footer, Input, Label, Static
 
 #: Verdict names in display order (the engine's own order).
 VERDICT_ORDER = VERDICTS
@@ -100,7 +101,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             for flag in FLAG_CHOICES:
                 state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
                 with Horizontal(classes="filter-row"):
-                    yield Label(flag, classes="filter-label row-name")
+                    yield Label(FLAG_LABELS[flag], classes="filter-label row-name")
                     with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
                         for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
                             yield ChoiceButton(label, state == choice, id=f"flag-{flag}-{choice}", compact=True)
@@ -122,6 +123,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                 yield Button("Apply", id="filter-apply", variant="primary", compact=True)
                 yield Button("Clear all", id="filter-clear", compact=True)
                 yield Button("Cancel", id="filter-cancel", compact=True)
+        yield Footer(compact=True)  # the form's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         self.query_one(f"#verdict-{VERDICT_ORDER[0]}", TickBox).focus()

@@ -36,6 +36,11 @@ NO_NEW_STEREO = "achiral"
 FLAG_CHOICES: tuple[str, ...] = (
     "cyclopropylmethyl", "bridgehead", "cage", "cyclopropane", "central_bond", "alkene", "alkyne",
 )
+#: What the chemist reads for each flag in the filter form (the stored id, e.g. central_bond, is not for display).
+FLAG_LABELS: dict[str, str] = {
+    "cyclopropylmethyl": "cyclopropylmethyl", "bridgehead": "bridgehead", "cage": "cage",
+    "cyclopropane": "cyclopropane", "central_bond": "central C–C bond", "alkene": "alkene", "alkyne": "alkyne",
+}
 #: Reagents with an ``<reagent>_outcome`` column (engine.outcomes.OUTCOME_REAGENTS).
 OUTCOME_CHOICES: tuple[str, ...] = ("cl2", "br2", "so2cl2", "nbs")
 #: The outcomes a reagent can take (engine.outcomes.OUTCOMES).

@@ -97,7 +97,9 @@ def _bindings_table(app) -> Group:
         "Find bar": [("⏎", "back to the table, keeping the text")],
         "Conditions panel": [("⏎", "apply (only a complete, valid set is applied)"),
                              ("tab / shift+tab", "next / previous field; leaving a field applies it too"),
-                             ("← / →, ⏎", "choose the Cl2 phase or solvent (in those fields)")],
+                             ("← / →, ⏎", "choose the Cl2 phase or solvent (in those fields)"),
+                             ("clean at %", "the threshold: the share of the major monohalide at which a reagent's "
+                                            "outcome is clean rather than mixture, for every reagent")],
         "Filter form": [("⏎", "apply (in a text field)"), ("space", "tick / untick"), ("tab", "next field"),
                         ("← / →, ⏎", "choose in a row of ( ) choices: site match, a flag's either / has it / "
                                      "lacks it, duplicates all / hide repeats / only repeats")],

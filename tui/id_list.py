@@ -12,7 +12,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Input, Static
+from textual.widgets import Footer, Input, Static
 
 if TYPE_CHECKING:
     import pandas as pd
@@ -103,6 +103,7 @@ class IdListScreen(ModalScreen[Path | None]):
             yield Static("", id="ids-check")
             yield Static("Listed rows are added to the shortlist; z undoes it. Enter reads · Esc cancels",
                          id="ids-note")
+        yield Footer(compact=True)  # the dialog's own keys, not the table's behind it
 
     def on_mount(self) -> None:
         box = self.query_one("#ids-path", Input)

@@ -445,11 +445,60 @@ def _rejected_table(library: Library, rows: np.ndarray, ids: list[str], result: 
     )
     more = ""
     if len(rows) > len(shown):
-        more = (f'<p class="note cap-note">{len(rows) - len(shown):,} more rejected rows are counted in the summary '
-                f"but not listed here.</p>")
+        more = (f'<p class="note cap-note">{len(rows) - len(shown):,} more rejected rows are listed in the '
+                f'<a href="#appendix">appendix</a>.</p>')
     return (f'<section class="rejected"><h2>Rejected rows in this report ({len(rows):,})</h2>'
             '<table><thead><tr><th class="num">row</th><th>ID</th><th>input SMILES</th><th>reason</th></tr></thead>'
             f"<tbody>{body}</tbody></table>{more}</section>")
+
+
+def _appendix(library: Library, left: Sequence[tuple[str, np.ndarray]], rejected: np.ndarray, ids: list[str],
+              result: pd.DataFrame) -> str:
+    """Every selected row without an entry, one compact line each, so the report leaves no row out.
+
+    ``left`` holds the modelled rows the page cap left out, per verdict group in
+    :data:`GROUPS` order and in the entries' order (best first); ``rejected`` the
+    rejected rows the rejected table does not list. Each line gives the input row
+    (1-based), ID, input SMILES, verdict and the reagent offered, or for a
+    rejected row its status and reason.
+    """
+    n_left = sum(len(rows) for _, rows in left)
+    if not n_left and not len(rejected):
+        return ""
+    raw = library.input[library.smiles_column]
+    verdicts = result["verdict"].to_numpy(dtype=object)
+    serves = result["serves"].to_numpy(dtype=object)
+    status = result["status"].to_numpy(dtype=object)
+    reasons = result["reason"].to_numpy(dtype=object)
+    headings = dict(GROUPS)
+    head = ('<table class="appendix"><thead><tr><th class="num">row</th><th>ID</th><th>input SMILES</th>'
+            "<th>{}</th><th>{}</th></tr></thead><tbody>")
+    parts = [f'<section class="appendix" id="appendix"><h2>Appendix: rows without an entry '
+             f"({n_left + len(rejected):,})</h2>"
+             '<p class="note">One line per selected row that has no entry above, grouped and ordered as the '
+             "entries are; the summary counts them all.</p>"]
+    for verdict, rows in left:
+        if not len(rows):
+            continue
+        lines = "".join(
+            f'<tr data-row="{r + 1}"><td class="num">{r + 1}</td><td>{_e(ids[r])}</td>'
+            f'<td class="smiles">{smiles_html(raw.iloc[r])}</td><td>{_e(verdicts[r])}</td>'
+            f"<td>{_e(serves[r] or 'none')}</td></tr>"
+            for r in rows
+        )
+        parts.append(f'<h3 data-verdict="{_e(verdict)}">{_e(headings[verdict])} ({len(rows):,})</h3>'
+                     + head.format("verdict", "serves") + lines + "</tbody></table>")
+    if len(rejected):
+        lines = "".join(
+            f'<tr data-row="{r + 1}"><td class="num">{r + 1}</td><td>{_e(ids[r])}</td>'
+            f'<td class="smiles">{smiles_html(raw.iloc[r])}</td><td>{_e(status[r])}</td>'
+            f"<td>{_e(reasons[r])}</td></tr>"
+            for r in rejected
+        )
+        parts.append(f'<h3 data-verdict="rejected">Rejected rows beyond the table above ({len(rejected):,})</h3>'
+                     + head.format("status", "reason") + lines + "</tbody></table>")
+    parts.append("</section>")
+    return "".join(parts)
 
 
 # ---------------------------------------------------------------------------- the page
@@ -578,7 +627,8 @@ def render_report(
         per_group = "; ".join(f"{n:,} {v}" for v, _, n in kept if n)
         cap = (f'<p class="note cap-note">{len(shown):,} of {len(modelled):,} selected substrates are shown; '
                f"{left_out:,} more were left out by the limit of {max_pages:,} substrate entries ({per_group}). "
-               "Entries are grouped by verdict, best candidates first, and the limit applies after grouping.</p>")
+               "Entries are grouped by verdict, best candidates first, and the limit applies after grouping; "
+               'every row left out has one line in the <a href="#appendix">appendix</a>.</p>')
     headings = dict(GROUPS)
     parts: list[str] = []
     done = 0
@@ -596,7 +646,8 @@ def render_report(
                 progress(done, total)
         if missed:
             parts.append(f'<p class="note group-cap">{missed:,} more {_e(verdict)} '
-                         f'{"entry was" if missed == 1 else "entries were"} left out by the page limit.</p>')
+                         f'{"entry was" if missed == 1 else "entries were"} left out by the page limit '
+                         '(listed in the <a href="#appendix">appendix</a>).</p>')
     sections = "\n".join(parts)
     title = f"halosift report: {name}" if name else "halosift report"
     html = f"""<!DOCTYPE html>
@@ -618,6 +669,8 @@ def render_report(
 {sections}
 {cap}
 {_rejected_table(library, rejected, ids, result)}
+{_appendix(library, [(v, members[len(take):]) for (v, members), (_, take, _) in zip(groups, kept)],
+           rejected[REJECTED_LISTED:], ids, result)}
 </main>
 <footer><p>{_e(meta["caution"])}</p><p>Written by halosift {_e(meta["version"])} on
 {_e(meta["created_utc"])}; {_e(meta["conditions"])}.</p></footer>

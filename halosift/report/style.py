@@ -73,6 +73,9 @@ h2.group { margin-top: 1.6rem; }
 .swatch { display: inline-block; width: 0.9em; height: 0.9em; border: 1px solid #777; vertical-align: -0.1em; margin-right: 0.25em; }
 .meta { color: var(--muted); font-size: 0.9rem; margin: 0.1rem 0; }
 footer { margin-top: 1.5rem; border-top: 1px solid var(--rule); padding-top: 0.5rem; font-size: 0.85rem; color: var(--muted); }
+table.appendix { font-size: 0.8rem; margin: 0.2rem 0 0.6rem; }
+table.appendix td, table.appendix th { padding: 0 0.4rem; }
+.appendix h3 { font-size: 0.95rem; margin: 0.6rem 0 0.2rem; }
 @media print {
   html { font-size: 9.5pt; }
   body { max-width: none; padding: 0; }

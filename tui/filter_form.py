@@ -127,7 +127,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             reagent_width = _name_width(REAGENT_LABELS[r] for r in OUTCOME_CHOICES)
             for reagent in OUTCOME_CHOICES:
                 kept = spec.outcomes_for(reagent)
-                with Horizontal(classes="filter-row"):
+                with Horizontal(classes="filter-row name-row"):
                     yield _row_name(REAGENT_LABELS[reagent], reagent_width)
                     for outcome in OUTCOME_VALUES:
                         yield TickBox(outcome, outcome in kept, id=f"outcome-{reagent}-{outcome}", compact=True)
@@ -135,7 +135,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             flag_width = _name_width(FLAG_CHOICES)
             for flag in FLAG_CHOICES:
                 state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
-                with Horizontal(classes="filter-row"):
+                with Horizontal(classes="filter-row name-row"):
                     yield _row_name(flag, flag_width)
                     with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
                         for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
@@ -153,7 +153,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                                            compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Text in ID or SMILES", classes="filter-label")
-                yield Input(spec.text, id="filter-text", compact=True)
+                yield Input(spec.text, id="filter-text", compact=True, placeholder="any")
             yield Static("", id="filter-error")
             with Horizontal(id="filter-buttons"):
                 yield Button("Apply", id="filter-apply", variant="primary", compact=True)

@@ -76,6 +76,50 @@ def test_filter_form_80x24(snap_compare, tmp_path):
     assert snap_compare(make_app(tmp_path), terminal_size=(80, 24), run_before=open_filters)
 
 
+#: Invented rows (Wrenfield Saturates, IDs made up) whose sites have the longest names the form offers.
+LONG_SITE_ROWS = [
+    ("WRS-F0001", "C1CC2CCC1C2"),
+    ("WRS-F0002", "CC1CC2CCC1C2"),
+    ("WRS-F0003", "CCC#C"),
+    ("WRS-F0004", "CC(C)C#C"),
+    ("WRS-F0005", "CC#CC"),
+    ("WRS-F0006", "C=CC(C)CC1CC1"),
+    ("WRS-F0007", "CC(C)Cc1ccccc1"),
+]
+
+
+def long_site_app(folder: Path) -> HalosiftApp:
+    import pandas as pd
+
+    path = folder / "long_sites.csv"
+    pd.DataFrame(LONG_SITE_ROWS, columns=["id", "smiles"]).to_csv(path, index=False)
+    return HalosiftApp(str(path))
+
+
+def test_filter_form_long_site_names_80x24(snap_compare, tmp_path):
+    """Site names up to 'propargylic-secondary' flow onto more lines instead of being cut."""
+
+    async def open_filters(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("f")
+        await pilot.pause()
+
+    assert snap_compare(long_site_app(tmp_path), terminal_size=(80, 24), run_before=open_filters)
+
+
+def test_filter_form_end_80x24(snap_compare, tmp_path):
+    """The foot of the form: flags, confidence levels and duplicate modes, every label whole."""
+
+    async def open_filters_at_end(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("f")
+        await pilot.pause()
+        pilot.app.screen.query_one("#filter-box").scroll_end(animate=False, immediate=True)
+        await pilot.pause()
+
+    assert snap_compare(long_site_app(tmp_path), terminal_size=(80, 24), run_before=open_filters_at_end)
+
+
 def test_rejected_view_80x24(snap_compare, tmp_path):
     async def rejected(pilot) -> None:
         await settle(pilot)

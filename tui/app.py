@@ -692,7 +692,8 @@ class HalosiftApp(App[int]):
         smiles = names[lib.smiles_column]
         cols.append(Column(smiles, "SMILES", 20, grow_to=self._text_width(frame, smiles, "SMILES", 120)))
         if self.view == "rejected":
-            cols.append(Column("reason", "Reason", 56))
+            # Grows on a wide terminal to the longest reason; cut ones end in "…" and the status line has them whole.
+            cols.append(Column("reason", "Reason", 56, grow_to=self._text_width(frame, "reason", "Reason", 160)))
         else:
             cols += [
                 Column("verdict", "Verdict", 12, "verdict"),

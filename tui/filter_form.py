@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from typing import ClassVar
 
 from halosift.engine.outcomes import VERDICTS
@@ -18,11 +19,12 @@ from halosift.tui.filters import (
     parse_optional_int,
 )
 from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Grid, Horizontal, VerticalScroll
 from textual.screen import ModalScreen
+from textual.widget import Widget
 from textual.widgets import Button, Footer, Input, Label, Static
 
 #: Verdict names in display order (the engine's own order).
@@ -31,6 +33,40 @@ VERDICT_ORDER = VERDICTS
 REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", "nbs": "NBS"}
 #: Short labels of the duplicate modes (tui.filters.DUPLICATE_MODES says what each does).
 DUPLICATE_LABELS: dict[str, str] = {"all": "all rows", "hide": "hide repeats", "only": "only repeats"}
+
+
+#: Cells a compact tick box or choice button draws before its label: "[ ] " / "( ) ".
+TOGGLE_CELLS = 4
+#: Blank cells between two cells of a :class:`FlowGrid`.
+FLOW_GUTTER = 1
+
+
+def toggle_width(labels: Iterable[str]) -> int:
+    """Cells the widest of these tick boxes needs, so that every label shows whole."""
+    return TOGGLE_CELLS + max((len(label) for label in labels), default=0)
+
+
+class FlowGrid(Grid):
+    """A grid that flows its cells onto as many lines as the width needs: no label is ever cut.
+
+    Textual's grid has a fixed column count; this one sets it on each resize
+    from the widest cell (``cell_width``), so at 80 columns three long site
+    names share a line only when all three fit whole.
+    """
+
+    def __init__(self, *children: Widget, cell_width: int, id: str | None = None, classes: str | None = None) -> None:
+        super().__init__(*children, id=id, classes=classes)
+        self.cell_width = cell_width
+        """Cells the widest child needs."""
+
+    def columns_for(self, width: int) -> int:
+        """How many cells fit whole side by side in ``width`` cells."""
+        return max(1, (width + FLOW_GUTTER) // (self.cell_width + FLOW_GUTTER))
+
+    def on_resize(self, event: events.Resize) -> None:
+        columns = self.columns_for(event.size.width)
+        if self.styles.grid_size_columns != columns:
+            self.styles.grid_size_columns = columns
 
 
 def _confidence_id(level: str) -> str:
@@ -60,11 +96,9 @@ class FilterForm(ModalScreen[FilterSpec | None]):
         with VerticalScroll(id="filter-box"):
             yield Static("Filters for the library view (all must hold)", id="filter-title")
             yield Label("Verdict (none ticked: any verdict)")
-            # Three to a row, so five verdicts fit an 80-column terminal.
-            for start in range(0, len(VERDICT_ORDER), 3):
-                with Horizontal(classes="filter-row"):
-                    for verdict in VERDICT_ORDER[start : start + 3]:
-                        yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
+            with FlowGrid(cell_width=toggle_width(VERDICT_ORDER), classes="flow-grid"):
+                for verdict in VERDICT_ORDER:
+                    yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Br2 major product at least", classes="filter-label")
                 yield Input(_text(spec.min_br2_pct), id="min-br2", type="number", compact=True, placeholder="any")
@@ -85,39 +119,42 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                     with ChoiceSet(id="site-match", compact=True):
                         yield ChoiceButton("any of", spec.site_match == "any", id="match-any", compact=True)
                         yield ChoiceButton("all of", spec.site_match == "all", id="match-all", compact=True)
-                with Grid(id="site-grid"):
+                with FlowGrid(cell_width=toggle_width(self.sites), id="site-grid", classes="flow-grid"):
                     for site in self.sites:
                         yield TickBox(site, site in spec.site_types, id=f"site-{site}", classes="site-box", compact=True)
             else:
                 yield Label(self.no_sites_reason, id="no-sites", classes="filter-row")
             yield Label("Outcome per reagent (none ticked: any outcome)")
+            reagent_width = _name_width(REAGENT_LABELS[r] for r in OUTCOME_CHOICES)
             for reagent in OUTCOME_CHOICES:
                 kept = spec.outcomes_for(reagent)
-                with Horizontal(classes="filter-row"):
-                    yield Label(REAGENT_LABELS[reagent], classes="filter-label row-name")
+                with Horizontal(classes="filter-row name-row"):
+                    yield _row_name(REAGENT_LABELS[reagent], reagent_width)
                     for outcome in OUTCOME_VALUES:
                         yield TickBox(outcome, outcome in kept, id=f"outcome-{reagent}-{outcome}", compact=True)
             yield Label("Special-site flags")
+            flag_width = _name_width([FLAG_LABELS[f] for f in FLAG_CHOICES])
             for flag in FLAG_CHOICES:
                 state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
-                with Horizontal(classes="filter-row"):
-                    yield Label(FLAG_LABELS[flag], classes="filter-label row-name")
+                with Horizontal(classes="filter-row name-row"):
+                    yield _row_name(FLAG_LABELS[flag], flag_width)
                     with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
                         for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
                             yield ChoiceButton(label, state == choice, id=f"flag-{flag}-{choice}", compact=True)
-            with Horizontal(classes="filter-row"):
-                yield Label("Confidence (none: any)", classes="filter-label row-name")
+            # Group names on their own line, choices flowing below: at 80 columns nothing is cut.
+            yield Label("Confidence of the rates (none ticked: any)")
+            with FlowGrid(cell_width=toggle_width(CONFIDENCE_CHOICES), classes="flow-grid"):
                 for level in CONFIDENCE_CHOICES:
                     yield TickBox(level, level in spec.confidence, id=_confidence_id(level), compact=True)
+            yield Label("Duplicate structures")
             with Horizontal(classes="filter-row"):
-                yield Label("Duplicate structures", classes="filter-label row-name")
                 with ChoiceSet(id="duplicates", classes="choice-row", compact=True):
                     for mode in DUPLICATE_MODES:
                         yield ChoiceButton(DUPLICATE_LABELS[mode], spec.duplicates == mode, id=f"dup-{mode}",
                                            compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Text in ID or SMILES", classes="filter-label")
-                yield Input(spec.text, id="filter-text", compact=True)
+                yield Input(spec.text, id="filter-text", compact=True, placeholder="any")
             yield Static("", id="filter-error")
             with Horizontal(id="filter-buttons"):
                 yield Button("Apply", id="filter-apply", variant="primary", compact=True)
@@ -188,6 +225,22 @@ class FilterForm(ModalScreen[FilterSpec | None]):
     @on(Button.Pressed, "#filter-clear")
     def _clear(self) -> None:
         self.dismiss(FilterSpec())
+
+
+#: Widest a row name may be before it wraps onto a second line (between words, never cut).
+ROW_NAME_MAX = 30
+
+
+def _name_width(names: Iterable[str]) -> int:
+    """Width of a column of row names: the longest name and a blank cell, at most :data:`ROW_NAME_MAX`."""
+    return min(ROW_NAME_MAX, max((len(n) for n in names), default=0) + 1)
+
+
+def _row_name(text: str, width: int) -> Label:
+    """A row's name in a column ``width`` cells wide; a longer name wraps between words."""
+    label = Label(text, classes="filter-label row-name")
+    label.styles.width = width
+    return label
 
 
 def _text(value: float | int | None) -> str:

@@ -115,10 +115,29 @@ def grown(columns: Sequence[Column], table_width: int) -> list[Column]:
     return out
 
 
+#: A cut falls back to a word boundary only when that keeps at least this share of the room.
+_WORD_CUT_SHARE = 0.5
+
+
+def clip(text: str, width: int) -> str:
+    """``text`` cut to at most ``width`` cells, ending in '…' (at a word boundary when one is near)."""
+    if len(text) <= width:
+        return text
+    if width <= 0:
+        return ""
+    room = width - 1
+    head = text[:room]
+    if text[room] != " ":
+        # Prose (a reason, a flag list) is cut between words; a SMILES has no spaces and is cut anywhere.
+        space = head.rfind(" ")
+        if space >= room * _WORD_CUT_SHARE:
+            head = head[:space]
+    return head.rstrip(" ,;:") + "…"
+
+
 def fit(text: str, width: int, right: bool = False) -> str:
     """Pad or cut ``text`` to exactly ``width`` cells (cut text ends in '…')."""
-    if len(text) > width:
-        return text[: max(0, width - 1)] + "…" if width > 0 else ""
+    text = clip(text, width)
     return text.rjust(width) if right else text.ljust(width)
 
 
@@ -244,7 +263,7 @@ class LibraryTable(ScrollView, can_focus=True):
         self._frame = frame
         self._rows = np.asarray(rows, dtype=np.int64)
         self._given_columns = list(columns)
-        self._columns = grown(self._given_columns, self.size.width)
+        self._columns = grown(self._given_columns, self.view_width)
         self._layout()
         self._sort = sort
         if marked is not None:
@@ -288,6 +307,15 @@ class LibraryTable(ScrollView, can_focus=True):
     def display_order(self) -> list[int]:
         """Column indices left to right as drawn: pinned key columns first."""
         return self._pinned + self._scrolling
+
+    @property
+    def view_width(self) -> int:
+        """Cells a line has on screen: the content width less a vertical scrollbar.
+
+        Lines are fitted to this, not to ``size.width``: the scrollbar is drawn over
+        the last cells, which would hide a cut cell's '…' or a number's last digits.
+        """
+        return self.scrollable_content_region.width
 
     @property
     def page_height(self) -> int:
@@ -339,7 +367,7 @@ class LibraryTable(ScrollView, can_focus=True):
 
     def on_resize(self, event: events.Resize) -> None:
         self._window_key = None
-        columns = grown(self._given_columns, event.size.width)
+        columns = grown(self._given_columns, self.view_width)
         if columns != self._columns:  # a growing column (SMILES) follows the terminal's width
             self._columns = columns
             self._set_virtual_size()
@@ -483,7 +511,7 @@ class LibraryTable(ScrollView, can_focus=True):
         :func:`cut` (text ends in '…', a number is left out), so no number is
         ever shown with digits missing.
         """
-        width = self.size.width
+        width = self.view_width
         fixed: list[Segment] = [Segment(gutter, base)]
         for i in self._pinned:
             col = self._columns[i]
@@ -521,7 +549,7 @@ class LibraryTable(ScrollView, can_focus=True):
     def render_line(self, y: int) -> Strip:
         base = self.rich_style
         if not self._columns:
-            return Strip.blank(self.size.width, base)
+            return Strip.blank(self.view_width, base)
         if y == 0:
             header = self.get_component_rich_style("library-table--header")
             picked = self.get_component_rich_style("library-table--picked")
@@ -529,13 +557,13 @@ class LibraryTable(ScrollView, can_focus=True):
             return self._line(self._header_cells(), styles, " " * _GUTTER, base + header)
         position = int(self.scroll_offset.y) + y - 1
         if not 0 <= position < len(self._rows):
-            return Strip.blank(self.size.width, base)
+            return Strip.blank(self.view_width, base)
         cells = self._window.get(position)
         if cells is None:  # scrolled since the window was filled
             self._fill_window()
             cells = self._window.get(position)
         if cells is None:
-            return Strip.blank(self.size.width, base)
+            return Strip.blank(self.view_width, base)
         row = int(self._rows[position])
         marked = bool(self._marked[row]) if row < len(self._marked) else False
         line = base

@@ -601,8 +601,11 @@ def _stop_on_signals() -> Iterator[None]:
     main_thread = threading.main_thread().ident
     assert main_thread is not None
 
+    acknowledged = threading.Event()
+
     def woken(signum: int, frame: object) -> None:
-        if caught:
+        if caught and not acknowledged.is_set():  # repeats of the wake-up are ignored
+            acknowledged.set()
             handler(caught[0], frame)
 
     signal.signal(wake, woken)
@@ -617,7 +620,11 @@ def _stop_on_signals() -> Iterator[None]:
             if caught:
                 os._exit(128 + info.si_signo)  # second signal: no more clean-up
             caught.append(info.si_signo)
+            # A wake-up landing just before the main thread enters a blocking call (a sleep) is
+            # only seen when the call returns, so repeat it until the main thread has taken it.
             signal.pthread_kill(main_thread, wake)
+            while not acknowledged.wait(0.05) and not stop.is_set():
+                signal.pthread_kill(main_thread, wake)
 
     watcher = threading.Thread(target=watch, name="halosift-signals", daemon=True)
     watcher.start()

@@ -340,7 +340,9 @@ def test_catalogue_shows_no_split_for_a_ruled_out_reagent() -> None:
     from halosift.sample_libraries import sample_path
 
     library = engine.load_library(sample_path())
-    for conditions in (Conditions(), Conditions(cl2_temp_c=450, br2_temp_c=450, so2cl2_temp_c=450)):
+    # Hot Cl2 is a vapour-phase reaction; SO2Cl2 is a liquid-phase reagent, taken to its 200 °C bound.
+    hot = Conditions(cl2_temp_c=450, cl2_phase="gas", br2_temp_c=450, so2cl2_temp_c=200)
+    for conditions in (Conditions(), hot):
         table = library.evaluate(conditions)
         assert_split_only_where_it_applies(table)
         for r in OUTCOME_REAGENTS:  # the rule is met both ways, not vacuously

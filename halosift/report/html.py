@@ -477,24 +477,19 @@ def _appendix(library: Library, left: Sequence[tuple[str, np.ndarray]], rejected
              f"({n_left + len(rejected):,})</h2>"
              '<p class="note">One line per selected row that has no entry above, grouped and ordered as the '
              "entries are; the summary counts them all.</p>"]
+    def line(r: int, first: str, second: str) -> str:
+        """One appendix line: input row, ID, SMILES and two words (verdict and serves, or status and reason)."""
+        return (f'<tr data-row="{r + 1}"><td class="num">{r + 1}</td><td>{_e(ids[r])}</td>'
+                f'<td class="smiles">{smiles_html(raw.iloc[r])}</td><td>{_e(first)}</td><td>{_e(second)}</td></tr>')
+
     for verdict, rows in left:
         if not len(rows):
             continue
-        lines = "".join(
-            f'<tr data-row="{r + 1}"><td class="num">{r + 1}</td><td>{_e(ids[r])}</td>'
-            f'<td class="smiles">{smiles_html(raw.iloc[r])}</td><td>{_e(verdicts[r])}</td>'
-            f"<td>{_e(serves[r] or 'none')}</td></tr>"
-            for r in rows
-        )
+        lines = "".join(line(r, verdicts[r], serves[r] or "none") for r in rows)
         parts.append(f'<h3 data-verdict="{_e(verdict)}">{_e(headings[verdict])} ({len(rows):,})</h3>'
                      + head.format("verdict", "serves") + lines + "</tbody></table>")
     if len(rejected):
-        lines = "".join(
-            f'<tr data-row="{r + 1}"><td class="num">{r + 1}</td><td>{_e(ids[r])}</td>'
-            f'<td class="smiles">{smiles_html(raw.iloc[r])}</td><td>{_e(status[r])}</td>'
-            f"<td>{_e(reasons[r])}</td></tr>"
-            for r in rejected
-        )
+        lines = "".join(line(r, status[r], reasons[r]) for r in rejected)
         parts.append(f'<h3 data-verdict="rejected">Rejected rows beyond the table above ({len(rejected):,})</h3>'
                      + head.format("status", "reason") + lines + "</tbody></table>")
     parts.append("</section>")

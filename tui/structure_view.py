@@ -155,7 +155,7 @@ TEXT_CAPTION = "Structure (sites P1 … as in the table; `halosift report` draws
 MAX_DRAWING_ROWS = 16
 SCREEN_ROWS_KEPT = 12
 MIN_DRAWING_ROWS = 6
-#: Style of each kind of span of a text drawing (reverse video reads without colour too).
+#: Style of each kind of span of a text drawing (swapped foreground and background read without colour too).
 SPAN_STYLES = {"label": "bold reverse", "atom": "bold"}
 
 

@@ -16,10 +16,11 @@ Also here: :func:`smiles_lines`, which wraps a long SMILES at sensible points.
 from __future__ import annotations
 
 import math
-import re
 from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
+
+from halosift.engine.smiles_text import break_quality, smiles_tokens
 
 if TYPE_CHECKING:
     from halosift.engine.depiction import DepictedBond, Depiction
@@ -303,22 +304,6 @@ def _best_place(
 
 # ---------------------------------------------------------------------- SMILES wrapping
 
-_TOKEN = re.compile(r"\[[^\]]*\]|Br|Cl|%\d\d|.", re.DOTALL)
-
-
-def _break_quality(tokens: list[str], k: int) -> int:
-    """How good a line break after tokens[k] is: 2 good, 1 acceptable, 0 never (inside an atom's notation)."""
-    here = tokens[k]
-    after = tokens[k + 1] if k + 1 < len(tokens) else ""
-    if re.fullmatch(r"\d|%\d\d", after):
-        return 0  # a ring-closure digit belongs to the atom before it
-    if here in ("(", "=", "#", "/", "\\", "-", ":", "$"):
-        return 0  # a branch or bond symbol belongs with the atom after it
-    if here == "." or here == ")" or re.fullmatch(r"\d|%\d\d", here) or after == "(":
-        return 2
-    return 1
-
-
 def smiles_lines(smiles: str, width: int, first_width: int | None = None) -> list[str]:
     """``smiles`` cut into lines of at most ``width`` characters (the first at most ``first_width``).
 
@@ -327,7 +312,7 @@ def smiles_lines(smiles: str, width: int, first_width: int | None = None) -> lis
     symbol or bracket atom, nor between an atom and its ring-closure digits
     (only a token longer than a whole line is cut).
     """
-    tokens = _TOKEN.findall(smiles)
+    tokens = smiles_tokens(smiles)
     lines: list[str] = []
     start = 0
     while start < len(tokens):
@@ -337,7 +322,7 @@ def smiles_lines(smiles: str, width: int, first_width: int | None = None) -> lis
         k = start
         while k < len(tokens) and total + len(tokens[k]) <= room:
             total += len(tokens[k])
-            quality = _break_quality(tokens, k) if k + 1 < len(tokens) else 2
+            quality = break_quality(tokens, k) if k + 1 < len(tokens) else 2
             if quality == 2:
                 good = (k, total)
             elif quality == 1:

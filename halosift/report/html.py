@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import math
-import re
 from collections import Counter
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
@@ -13,6 +12,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from halosift.engine.smiles_text import break_quality, smiles_tokens
 from halosift.report.charts import bar_chart, hbar_chart, histogram
 from halosift.report.drawing import SiteMark, colour_hex, structure_svg
 from halosift.report.style import STYLESHEET
@@ -58,28 +58,15 @@ def _e(value: object) -> str:
 
 #: SMILES tokens: bracket atoms, two-letter elements, one-letter and aromatic atoms, %nn and single ring digits,
 #: bonds and branches. A line may break only between tokens, never inside one (Cl, Br, [C@@H]).
-_SMILES_TOKEN = re.compile(r"\[[^\]]*\]|Cl|Br|%\d\d|[A-Za-z]|\d|[()=#$:/\\.+-]|.", re.DOTALL)
-_ATOM = re.compile(r"\[|Cl$|Br$|[A-Za-z]$")
-_RING = re.compile(r"%\d\d$|\d$")
-
-
-def smiles_tokens(smiles: str) -> list[str]:
-    """The SMILES split into tokens (atoms, ring closures, bonds, branches); joined they give the string back."""
-    return _SMILES_TOKEN.findall(smiles)
-
-
 def smiles_html(smiles: object) -> str:
-    """Escaped SMILES with <wbr> break points after ')', after ring-closure digits and between atoms only."""
+    """Escaped SMILES with <wbr> at the break points of :func:`halosift.engine.smiles_text.break_quality`."""
     if smiles is None or (isinstance(smiles, float) and smiles != smiles):
         return ""
     tokens = smiles_tokens(str(smiles))
     out: list[str] = []
-    for i, token in enumerate(tokens):
+    for k, token in enumerate(tokens):
         out.append(_e(token))
-        nxt = tokens[i + 1] if i + 1 < len(tokens) else ""
-        if not nxt:
-            continue
-        if token == ")" or _RING.match(token) or (_ATOM.match(token) and (_ATOM.match(nxt) or nxt == "(")):
+        if k + 1 < len(tokens) and break_quality(tokens, k):
             out.append("<wbr>")
     return "".join(out)
 

@@ -121,12 +121,16 @@ def test_alkene_substitution_temperature() -> None:
 
 def test_hot_alkene_counts_both_allyl_termini() -> None:
     # 1,5-hexadiene has one kind of allylic CH2, but its radical takes the halogen at either end (allylic
-    # transposition, as under NBS): at 450 °C Cl2 cannot give one product.
-    hot = Conditions(cl2_temp_c=450, br2_temp_c=450, so2cl2_temp_c=450)
+    # transposition, as under NBS): at 450 °C Cl2 cannot give one product. Hot Cl2 is a vapour-phase reaction;
+    # SO2Cl2 is a liquid-phase reagent, taken to its 200 °C bound (conditions that validate).
+    hot = Conditions(cl2_temp_c=450, cl2_phase="gas", br2_temp_c=450, so2cl2_temp_c=200)
+    hot.validate()
     row = engine.summarise(engine.perceive(["C=CCCC=C"]), hot).iloc[0]
     assert row["n_products"] == 1 and row["cl2_outcome"] == M and row["verdict"] == "mixture"
     # The split is NBS's (same radical, same terminus weights): clean at a threshold below its major share only.
-    low = engine.summarise(engine.perceive(["C=CCCC=C"]), Conditions(cl2_temp_c=450, threshold_pct=80)).iloc[0]
+    low_conditions = Conditions(cl2_temp_c=450, cl2_phase="gas", threshold_pct=80)
+    low_conditions.validate()
+    low = engine.summarise(engine.perceive(["C=CCCC=C"]), low_conditions).iloc[0]
     assert row["nbs_major_pct"] >= 80 and low["cl2_outcome"] == C and low["verdict"] == "selective"
 
 
@@ -355,6 +359,10 @@ def test_catalogue_shows_no_split_for_a_ruled_out_reagent() -> None:
 @given(st.lists(strained(), min_size=1, max_size=6), st.sampled_from([25.0, 450.0]))
 def test_generated_structures_show_no_split_for_a_ruled_out_reagent(smiles: list[str], temp: float) -> None:
     perceived = engine.perceive(smiles)
-    table = engine.summarise(perceived, Conditions(cl2_temp_c=temp, br2_temp_c=temp, so2cl2_temp_c=temp))
+    # Hot Cl2 runs in the gas phase and SO2Cl2 stops at its liquid-phase bound: conditions that validate.
+    conditions = Conditions(cl2_temp_c=temp, cl2_phase="gas" if temp > P.MAX_LIQUID_TEMP_C.value else "liquid",
+                            br2_temp_c=temp, so2cl2_temp_c=min(temp, P.MAX_LIQUID_TEMP_C.value))
+    conditions.validate()
+    table = engine.summarise(perceived, conditions)
     table["canonical_smiles"] = smiles
     assert_split_only_where_it_applies(table)

@@ -17,6 +17,7 @@ from pathlib import Path
 
 import pytest
 from halosift.engine import Conditions
+from halosift.engine.parameters import MAX_LIQUID_TEMP_C
 from rdkit import Chem
 
 from halosift import engine
@@ -152,8 +153,12 @@ def test_propane_rules_of_thumb() -> None:
 @pytest.mark.parametrize("phase", ["gas", "liquid"])
 def test_chlorine_becomes_less_selective_when_hot(phase: str) -> None:
     # Common practice: selectivity falls with temperature, towards the statistical split.
-    cold = predicted(Check("", "CCC", "cl2", Conditions(cl2_temp_c=25.0, cl2_phase=phase), {"CCCCl": 0}, 0, ""))
-    hot = predicted(Check("", "CCC", "cl2", Conditions(cl2_temp_c=450.0, cl2_phase=phase), {"CCCCl": 0}, 0, ""))
+    # Hot is 450 °C in the gas phase and the 200 °C bound of a neat liquid (conditions that validate).
+    hot_c = 450.0 if phase == "gas" else MAX_LIQUID_TEMP_C.value
+    cold_conditions, hot_conditions = (Conditions(cl2_temp_c=t, cl2_phase=phase) for t in (25.0, hot_c))
+    hot_conditions.validate()
+    cold = predicted(Check("", "CCC", "cl2", cold_conditions, {"CCCCl": 0}, 0, ""))
+    hot = predicted(Check("", "CCC", "cl2", hot_conditions, {"CCCCl": 0}, 0, ""))
     assert hot["CCCCl"] > cold["CCCCl"]
 
 

@@ -181,12 +181,12 @@ def test_products_table_and_drawing_marks_agree_with_the_engine(tmp_path: Path) 
     for p in products.itertuples():
         assert f">{p.cl2_pct:.1f}<" not in main_table
     # The drawing carries one letter per site, at that site's atom, in table order; the shares are in the table.
-    labels = re.findall(r'<text class="site-label" data-atom="(\d+)"[^>]*>([a-z]+)</text>', drawing)
-    assert labels == [(str(a), chr(ord("a") + i)) for i, a in enumerate(products["atom"])]
-    assert [c for c in re.findall(r"<tr><td>([a-z]+)</td>", main_table)] == [b for _, b in labels]
+    labels = re.findall(r'<text class="site-label" data-atom="(\d+)"[^>]*>(P\d+)</text>', drawing)
+    assert labels == [(str(a), f"P{i}") for i, a in enumerate(products["atom"], start=1)]
+    assert [c for c in re.findall(r"<tr><td>(P\d+)</td>", main_table)] == [b for _, b in labels]
     assert "%" not in "".join(re.findall(r"<text[^>]*>(.*?)</text>", drawing))
     desc = re.search(r"<desc>(.*?)</desc>", drawing).group(1)
-    assert desc.count("Cl ") == len(products) and "a: Cl" in desc
+    assert desc.count("Cl ") == len(products) and "P1: Cl" in desc
     # The NBS split of this allylic substrate: its own table, one row per NBS monobromide.
     nbs = library.nbs_products(9)
     nbs_table = section[section.index('<table class="products nbs">'):]
@@ -445,7 +445,7 @@ def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
     # Contradictions fixed once must not come back: the report gives polyhalide estimates and NBS splits.
     assert "not modelled" not in guide.replace("or is not modelled (strained cage)", "")
     assert "polyhalide" in guide and "NBS monobromides" in guide
-    assert "a: Cl 45" not in guide  # the drawing carries letters only; the shares are in the table
+    assert "P1: Cl 45" not in guide  # the drawing carries labels only; the shares are in the table
     assert "column" not in guide  # a report has entries, not the screen's columns
     for meaning in engine.outcomes.verdict_docs(engine.Conditions().threshold_pct).values():
         assert meaning in guide
@@ -586,3 +586,12 @@ def test_report_names_the_appendix_on_the_command_line(tmp_path: Path, capsys: p
     report(tmp_path, "--max-pages", "2")
     err = capsys.readouterr().err
     assert "one line each in the appendix" in err and "left out" not in err
+
+
+def test_report_labels_products_as_the_app_does() -> None:
+    # One naming scheme for a product in the report and in the app's detail: P1, P2 … by products-table row.
+    from halosift.tui.structure_view import product_label as app_label
+
+    from halosift.report.html import _letters
+
+    assert [_letters(i) for i in range(30)] == [app_label(i) for i in range(1, 31)]

@@ -312,7 +312,7 @@ def _draw_and_place(canonical_smiles: str, marks: Sequence[SiteMark], *, vector:
 
 
 def structure_svg(canonical_smiles: str, marks: Sequence[SiteMark], *, title: str = "") -> str:
-    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and lettered (a, b, …).
+    """An inline SVG drawing of the molecule, each mark's carbon tinted by class and labelled (P1, P2 …).
 
     The letters match the products table, where the percentages are; each is
     placed clear of bonds, atoms and the other letters (:func:`place_labels`)

@@ -72,13 +72,10 @@ def smiles_html(smiles: object) -> str:
 
 
 def _letters(i: int) -> str:
-    """a, b, …, z, aa, ab, … for site i (0-based)."""
-    out = ""
-    i += 1
-    while i:
-        i, r = divmod(i - 1, 26)
-        out = chr(ord("a") + r) + out
-    return out
+    """Label of site i (0-based): P1, P2 …, the app's names for the same products (engine.labels)."""
+    from halosift.engine.labels import product_label
+
+    return product_label(i + 1)
 
 
 def _pct(value: float) -> str:
@@ -230,7 +227,7 @@ reagent named, then mixtures, ruled-out and inert substrates; within a group the
 monohalide (of the reagent offered; for a mixture, of the best reagent not ruled out) comes first. A page limit
 applies after this grouping, and the page says how many entries of each group it left out.</p>
 <p>Each entry draws the substrate and marks every distinct abstractable C–H site (one representative carbon per
-set of equivalent carbons) with a tint for its site class and a letter; the letter leads the site's row in the
+set of equivalent carbons) with a tint for its site class and a label (P1, P2 …, as in the app); the label leads the site's row in the
 products table, which gives the predicted shares: % Cl2 is the site's share of the monochlorides under Cl2,
 % Br2 its share of the monobromides under Br2. Tables name the monochloride; the monobromide is the same SMILES
 with Br in place of Cl. The site class is also named in the legend and the table. C–H bonds on sp2 and sp

@@ -48,6 +48,11 @@ class Check:
 
 
 GAS25 = Conditions(cl2_temp_c=25.0, cl2_phase="gas")
+GAS195 = Conditions(cl2_temp_c=195.0 - 273.15, cl2_phase="gas")
+#: Laser flash photolysis with IR detection of HCl; branching from normal and selectively deuterated substrates
+#: (numbers checked against the paper's indexed abstract, PubMed 16751875).
+_CHOI = ("Choi, Pilling, Seakins & Wang, Phys. Chem. Chem. Phys. 2006, 8, 2172–2178, Cl + alkane branching by "
+         "HCl yields of normal and deuterated substrates")
 LIQ25 = Conditions(cl2_temp_c=25.0)
 BR127 = Conditions(br2_temp_c=127.0)
 
@@ -60,6 +65,9 @@ CHECKS = [
           "isobutane + Cl2, 25 °C: 64/36 (Morrison & Boyd, textbook, from memory)"),
     Check("isobutane-cl2-gas", "CC(C)C", "cl2", GAS25, {"CC(C)CCl": 62}, 5,
           "isobutane + Cl2, gas, room temperature: 62 % primary (Choi et al., PCCP 2006, 8, 2172)"),
+    Check("propane-cl2-gas", "CCC", "cl2", GAS25, {"CCCCl": 48}, 5, _CHOI + ": propane, 298 K, primary (48 ± 3) %"),
+    Check("propane-cl2-195K", "CCC", "cl2", GAS195, {"CCCCl": 40}, 5,
+          _CHOI + ": propane, 195 K, primary (40 ± 3) %; below the 22 °C start of the rate data, so an extrapolation"),
     Check("2-methylbutane-cl2-300", "CCC(C)C", "cl2", Conditions(cl2_temp_c=300.0, cl2_phase="gas"),
           {"CCC(C)CCl": 30, "CCC(C)(C)Cl": 22, "CC(C)C(C)Cl": 33, "CC(C)CCCl": 15}, 5,
           "2-methylbutane + Cl2, 300 °C vapour: 30/22/33/15 (Hass, McBee & Weber, Ind. Eng. Chem. 1936, 28, 333, "
@@ -92,6 +100,15 @@ CHECKS = [
           fitted="NBS_OCTENE_SPLIT"),
 ]
 
+#: Published distributions the model is known to miss by more than the tolerance: each stays listed (README
+#: table, kind "known miss") with the size of the miss, and a test fails once the model meets it, so the
+#: README is brought up to date.
+KNOWN_MISSES = [
+    Check("isobutane-cl2-195K", "CC(C)C", "cl2", GAS195, {"CC(C)CCl": 49}, 5,
+          _CHOI + ": isobutane, 195 K, primary (49 ± 4) %; the model's tertiary/primary temperature dependence "
+          "(Sarzyński & Sztuba's fits, 295–469 K, extrapolated) is far shallower than this point implies"),
+]
+
 
 def predicted(check: Check) -> dict[str, float]:
     """The model's percentages for the products a check names (exo share for an exo check)."""
@@ -112,11 +129,22 @@ def test_published_distribution(check: Check) -> None:
         assert got[product] == pytest.approx(expected, abs=check.tolerance), (check.source, product, got)
 
 
+@pytest.mark.parametrize("check", KNOWN_MISSES, ids=[c.id for c in KNOWN_MISSES])
+def test_known_miss_is_still_missed(check: Check) -> None:
+    # A known shortcoming, stated with its size (README "Published checks"): once the model meets it, the check
+    # moves to CHECKS and the README row loses its "known miss".
+    got = predicted(check)
+    first = next(iter(check.published))
+    assert abs(got[first] - check.published[first]) > check.tolerance, (check.source, got)
+
+
 def test_every_check_is_in_the_readme_with_its_current_prediction() -> None:
     # The README's table must list each check and show what the model predicts now (to 0.5 points).
     text = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
     rows = {m.group(1): m.group(2) for m in re.finditer(r"^\| `([^`]+)` \|(.*)$", text, re.M)}
-    for check in CHECKS:
+    for check in KNOWN_MISSES:
+        assert check.id in rows and "known miss" in rows[check.id], check.id
+    for check in CHECKS + KNOWN_MISSES:
         assert check.id in rows, check.id
         cells = [c.strip() for c in rows[check.id].split("|")]
         shown = [float(x) for x in re.findall(r"[-\d.]+", cells[3])]

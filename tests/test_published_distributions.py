@@ -83,8 +83,8 @@ CHECKS = [
           "norbornane + Cl2: exo : endo 2-chloride ≈ 70 : 30 (Kooyman & Vegter 1958; from memory)",
           fitted="EXO_FRACTION['cl']", exo=True),
     Check("bicyclooctane-cl2", "C1CC2CCC1CC2", "cl2", LIQ25, {"ClC1CC2CCC1CC2": 97}, 3,
-          "bicyclo[2.2.2]octane + Cl2: the 2-chloride almost only (from memory, not re-checked; the bridgehead "
-          "factor is norbornane's)"),
+          "bicyclo[2.2.2]octane + Cl2: the 2-chloride almost only (from memory, not re-checked: a published "
+          "distribution was searched for and not found; the bridgehead factor is norbornane's)"),
     Check("propane-br2", "CCC", "br2", BR127, {"CCCCl": 3, "CC(C)Cl": 97}, 2,
           "propane + Br2, 127 °C: 3/97 (Morrison & Boyd, textbook, from memory)", fitted="BR_RATIOS['secondary']"),
     Check("isobutane-br2", "CC(C)C", "br2", BR127, {"CC(C)(C)Cl": 99.5}, 0.5,

@@ -51,6 +51,11 @@ class Conditions:
     """Cl2 phase: gas, liquid (the neat hydrocarbon, a preparative chlorination's usual state) or solution
     (in cl2_solvent; liquid with a solvent set means the same). SO2Cl2 is always weighed as a liquid."""
 
+    def __post_init__(self) -> None:
+        # Checked here, not by each caller, so no screen, explain, summary or panel can weigh a condition
+        # no experiment can have (a missed validate() once let 450 °C liquid Cl2 through the API).
+        self.validate()
+
     def temp_c(self, reagent: str) -> float:
         """Temperature of one reagent, °C."""
         return {"cl2": self.cl2_temp_c, "br2": self.br2_temp_c, "so2cl2": self.so2cl2_temp_c,
@@ -120,7 +125,7 @@ class Conditions:
         return MAX_TEMP_C, "beyond any model here"
 
     def validate(self) -> None:
-        """Raise ValueError (one line) for values no experiment can have."""
+        """Raise ValueError (one line) for values no experiment can have; run by the constructor too."""
         for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
             if not t == t or t <= -KELVIN:

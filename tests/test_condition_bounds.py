@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import subprocess
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -13,36 +14,47 @@ from halosift.engine.parameters import MAX_LIQUID_TEMP_C, MAX_NBS_TEMP_C
 ROOT = Path(__file__).resolve().parent.parent
 
 
-@pytest.mark.parametrize(
-    ("conditions", "words"),
-    [
-        (Conditions(cl2_temp_c=1000.0), "neat liquid"),
-        (Conditions(cl2_temp_c=MAX_LIQUID_TEMP_C.value + 1), "neat liquid"),
-        (Conditions(cl2_temp_c=300.0, cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=4.0), "solution"),
-        (Conditions(so2cl2_temp_c=MAX_LIQUID_TEMP_C.value + 1), "SO2Cl2"),
-        (Conditions(nbs_temp_c=MAX_NBS_TEMP_C.value + 1), "NBS"),
-        (Conditions(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=0.0), "above 0 M"),
-    ],
-)
-def test_refused_with_a_one_line_reason(conditions: Conditions, words: str) -> None:
+#: Condition fields no experiment can have, and a word of the one-line reason.
+REFUSED = [
+    (dict(cl2_temp_c=1000.0), "neat liquid"),
+    (dict(cl2_temp_c=MAX_LIQUID_TEMP_C.value + 1), "neat liquid"),
+    (dict(cl2_temp_c=300.0, cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=4.0), "solution"),
+    (dict(so2cl2_temp_c=MAX_LIQUID_TEMP_C.value + 1), "SO2Cl2"),
+    (dict(nbs_temp_c=MAX_NBS_TEMP_C.value + 1), "NBS"),
+    (dict(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=0.0), "above 0 M"),
+    (dict(cl2_temp_c=-300.0), "absolute zero"),
+    (dict(threshold_pct=101.0), "percentage"),
+]
+
+
+@pytest.mark.parametrize(("fields", "words"), REFUSED)
+def test_refused_with_a_one_line_reason(fields: dict, words: str) -> None:
     with pytest.raises(ValueError, match=words) as info:
-        conditions.validate()
+        Conditions(**fields)
     assert "\n" not in str(info.value)
 
 
+@pytest.mark.parametrize(("fields", "words"), REFUSED)
+def test_no_invalid_condition_can_be_made_so_no_entry_point_weighs_one(fields: dict, words: str) -> None:
+    """The class of error: a caller that forgets validate() (explain, summarise, a panel) once weighed 450 °C
+    liquid Cl2. Construction and dataclasses.replace refuse, so no path can hold such a condition."""
+    with pytest.raises(ValueError, match=words):
+        replace(Conditions(), **fields)
+
+
 @pytest.mark.parametrize(
-    "conditions",
+    "fields",
     [
-        Conditions(cl2_temp_c=1000.0, cl2_phase="gas"),
-        Conditions(cl2_temp_c=MAX_LIQUID_TEMP_C.value),
-        Conditions(br2_temp_c=450.0),  # Br2 substitution of a C=C substrate is vapour-phase: high range kept
-        Conditions(nbs_temp_c=MAX_NBS_TEMP_C.value),
-        Conditions(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=0.5),
-        Conditions(cl2_phase="liquid", cl2_solvent="benzene", cl2_solvent_molar=0.0),  # Russell's neat point
+        dict(cl2_temp_c=1000.0, cl2_phase="gas"),
+        dict(cl2_temp_c=MAX_LIQUID_TEMP_C.value),
+        dict(br2_temp_c=450.0),  # Br2 substitution of a C=C substrate is vapour-phase: high range kept
+        dict(nbs_temp_c=MAX_NBS_TEMP_C.value),
+        dict(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=0.5),
+        dict(cl2_phase="liquid", cl2_solvent="benzene", cl2_solvent_molar=0.0),  # Russell's neat point
     ],
 )
-def test_accepted(conditions: Conditions) -> None:
-    conditions.validate()
+def test_accepted(fields: dict) -> None:
+    Conditions(**fields).validate()
 
 
 @pytest.mark.parametrize(

@@ -109,8 +109,8 @@ def test_alkene_substitution_temperature() -> None:
     # Propene + Cl2 in the gas phase at ≥ 400 °C gives allyl chloride (Groll & Hearne, Ind. Eng. Chem. 1939, 31,
     # 1530); below, addition (1,2-dichloropropane). The threshold lives in engine.parameters with its source.
     t = P.ALKENE_SUBSTITUTION_T_C.value
-    cold = engine.explain("C=CC", Conditions(cl2_temp_c=t - 1))
-    hot = engine.explain("C=CC", Conditions(cl2_temp_c=t))
+    cold = engine.explain("C=CC", Conditions(cl2_temp_c=t - 1, cl2_phase="gas"))
+    hot = engine.explain("C=CC", Conditions(cl2_temp_c=t, cl2_phase="gas"))
     assert cold.outcome("cl2").outcome == X and "C=C" in cold.outcome("cl2").reason
     assert hot.outcome("cl2").outcome == C and hot.outcome("cl2").major == "C=CCCl"  # allyl chloride
     assert hot.serves == "cl2" and hot.verdict == "by-symmetry"

@@ -16,7 +16,7 @@ import pytest
 from halosift.engine import Conditions
 from halosift.engine.conditions import MAX_TEMP_C
 from halosift.engine.contenders import contending_classes
-from halosift.engine.parameters import KELVIN
+from halosift.engine.parameters import KELVIN, MAX_LIQUID_TEMP_C
 from halosift.engine.perception import perceive
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.sample_libraries import sample_path
@@ -31,7 +31,7 @@ from library_gen import make_library  # noqa: E402
 CONDITIONS = [
     Conditions(),
     Conditions(cl2_temp_c=-60.0, br2_temp_c=-20.0, nbs_temp_c=0.0),
-    Conditions(cl2_temp_c=400.0, br2_temp_c=300.0, nbs_temp_c=150.0),
+    Conditions(cl2_temp_c=400.0, cl2_phase="gas", br2_temp_c=300.0, nbs_temp_c=150.0),
     Conditions(cl2_temp_c=25.0, cl2_solvent="cs2"),
     Conditions(cl2_temp_c=25.0, cl2_solvent="benzene", threshold_pct=70.0),
 ]
@@ -110,10 +110,11 @@ def test_contenders_cover_every_winner_on_a_condition_grid(both) -> None:
     full, _ = both
     patterns = _class_patterns(full)
     temps = np.geomspace(-200.0 + KELVIN, MAX_TEMP_C + KELVIN, 60) - KELVIN
-    grid = [Conditions(cl2_temp_c=t, br2_temp_c=t) for t in temps]
+    liquid_top = MAX_LIQUID_TEMP_C.value  # condensed-phase Cl2 is refused above it (Conditions.validate)
+    grid = [Conditions(cl2_temp_c=min(t, liquid_top), br2_temp_c=t) for t in temps]
     grid += [Conditions(cl2_temp_c=t, cl2_phase="gas") for t in temps]
     grid += [Conditions(cl2_temp_c=t, cl2_solvent=s, cl2_solvent_molar=m)
-             for t in temps[::6] for s, m in (("benzene", 2.0), ("benzene", 11.2), ("cs2", 16.6))]
+             for t in temps[::6] if t <= liquid_top for s, m in (("benzene", 2.0), ("benzene", 11.2), ("cs2", 16.6))]
     rates = {r: np.array([c.per_h(r) for c in grid]) for r in ("cl2", "br2")}
     radical = {"cl2": "cl", "br2": "br"}
     winners_seen = 0

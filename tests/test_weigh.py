@@ -29,13 +29,14 @@ from library_gen import make_library  # noqa: E402
 CONDITIONS = [
     Conditions(),
     Conditions(cl2_temp_c=60.0, br2_temp_c=80.0),
-    Conditions(cl2_temp_c=250.0, br2_temp_c=-20.0, threshold_pct=60.0),
+    Conditions(cl2_temp_c=250.0, cl2_phase="gas", br2_temp_c=-20.0, threshold_pct=60.0),
     Conditions(cl2_solvent="benzene", cl2_solvent_molar=4.0, br2_temp_c=150.0, nbs_temp_c=100.0, threshold_pct=0.0),
     # SO2Cl2 at Cl2's temperature (its part read off Cl2's); then hot enough that alkenes substitute (engine.outcomes).
     Conditions(cl2_temp_c=70.0, threshold_pct=60.0),
     # Same temperatures but Cl2 in the gas phase: SO2Cl2 (liquid) must not take Cl2's gas-phase split.
     Conditions(cl2_temp_c=70.0, cl2_phase="gas"),
-    Conditions(cl2_temp_c=450.0, br2_temp_c=420.0, so2cl2_temp_c=380.0, threshold_pct=50.0),
+    # (SO2Cl2 and condensed-phase Cl2 stop at 200 °C, so hot Cl2 is the gas phase.)
+    Conditions(cl2_temp_c=450.0, cl2_phase="gas", br2_temp_c=420.0, so2cl2_temp_c=200.0, threshold_pct=50.0),
 ]
 #: Text columns take whatever type pandas gives a column of Python strings.
 TEXT = pd.DataFrame({"t": np.array([""], dtype=object)})["t"].dtype

@@ -37,7 +37,8 @@ RESULT_DOCS: dict[str, str] = {
     "verdict": (
         "by-symmetry (the reagent offered can form only one monohalide) / selective (several can form; the "
         "reagent offered makes one at or above the threshold) / mixture (no reagent reaches it) / ruled-out "
-        "(every reagent takes another pathway or is not modelled) / inert (no abstractable C–H); read off the "
+        "(every reagent takes another pathway, is not modelled or finds no C–H to substitute) / inert (no "
+        "abstractable C–H and no other pathway); read off the "
         "per-reagent outcomes only; empty when rejected"
     ),
     "cl2_major": "SMILES of the major monochloride under Cl2; empty when cl2_outcome is ruled-out",

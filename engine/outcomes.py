@@ -35,6 +35,15 @@ SITE_REAGENTS: tuple[str, ...] = ("cl2", "br2", "so2cl2")
 #: Outcome words, in code order (code 0 is '' for rejected rows).
 OUTCOMES: tuple[str, ...] = ("clean", "mixture", "ruled-out")
 CLEAN, MIXTURE, RULED_OUT = 1, 2, 3
+#: Percentages are shown, written and compared with the threshold to this many decimals (0.1 point).
+PCT_DECIMALS = 1
+
+
+def shown_pct(pct: np.ndarray) -> np.ndarray:
+    """Shares as shown everywhere (rounded to :data:`PCT_DECIMALS`); outcomes are decided on these."""
+    return np.round(np.asarray(pct, dtype=np.float64), PCT_DECIMALS)
+
+
 #: Verdict words, in code order (code 0 is '' for rejected rows).
 VERDICTS: tuple[str, ...] = ("by-symmetry", "selective", "mixture", "ruled-out", "inert")
 #: What each verdict means ({threshold} is filled in with the threshold, percent).
@@ -45,9 +54,11 @@ VERDICT_DOCS: dict[str, str] = {
     "≥ {threshold} %",
     "mixture": "substitution is weighed for at least one reagent, but none gives one monohalide at "
     "≥ {threshold} %",
-    "ruled-out": "the substrate has C–H to substitute, but every reagent takes another pathway (addition to "
-    "C=C or C≡C, ring opening, addition across a strained bond) or is not modelled (strained cage)",
-    "inert": "no abstractable C–H (only aryl, vinyl or alkynyl C–H, or none): no monohalide forms",
+    "ruled-out": "no reagent's substitution split applies: each takes another pathway (addition to C=C or "
+    "C≡C, ring opening, addition across a strained bond), is not modelled (strained cage) or finds no C–H to "
+    "substitute",
+    "inert": "no abstractable C–H (only aryl, vinyl or alkynyl C–H, or none) and no other pathway under these "
+    "conditions: no monohalide forms",
 }
 #: What each outcome word means.
 OUTCOME_DOCS: dict[str, str] = {
@@ -81,8 +92,6 @@ _ALKENE_T = {"cl2": P.ALKENE_SUBSTITUTION_T_C.value, "so2cl2": P.ALKENE_SUBSTITU
 
 #: The rules, most specific first: a reagent ruled out by several shows the first one's reason.
 PATHWAYS: tuple[Pathway, ...] = (
-    Pathway("no_ch", "no abstractable C–H", "no_ch", OUTCOME_REAGENTS,
-            "only C–H on sp3 carbons are abstracted (engine.site_classes; common practice)"),
     Pathway("no_nbs_site", "no allylic or benzylic C–H", "no_nbs_site", ("nbs",), P.NBS_NOTE),
     Pathway("central_bond", "adds across the strained central C–C bond", "central_bond", OUTCOME_REAGENTS,
             P.CENTRAL_BOND_NOTE),
@@ -95,7 +104,13 @@ PATHWAYS: tuple[Pathway, ...] = (
             ("cl2", "br2", "so2cl2"),
             P.ALKENE_SUBSTITUTION_T_C.source + "; Br2: " + P.BR_ALKENE_SUBSTITUTION_T_C.source, _ALKENE_T),
     Pathway("alkyne_addition", "adds to C≡C", "alkyne", ("cl2", "br2", "so2cl2"), P.ALKYNE_ADDITION_NOTE),
+    # Last: ethene or acetylene has no C–H to abstract, but what the halogen does is add, which the
+    # rules above name; "no abstractable C–H" is the reason only where nothing else happens.
+    Pathway("no_ch", "no abstractable C–H", "no_ch", OUTCOME_REAGENTS,
+            "only C–H on sp3 carbons are abstracted (engine.site_classes; common practice)"),
 )
+#: Reasons that mean "nothing for this reagent to do" rather than "it does something else".
+_NOTHING_TO_DO = ("no_ch", "no_nbs_site")
 #: Reason texts in code order (code 0 is '': clean, mixture or rejected).
 REASONS: tuple[str, ...] = tuple(p.reason for p in PATHWAYS)
 #: Features a caller must supply (per structure, bool) to :func:`reagent_outcomes`.
@@ -150,7 +165,10 @@ def reagent_outcomes(
                 why[hit] = code
         why[~ok] = 0
         pct = np.nan_to_num(np.asarray(major_pct[reagent], dtype=np.float64), nan=0.0)
-        out = np.where(pct >= threshold, CLEAN, MIXTURE).astype(np.int8)
+        # Decided on the share as every screen, file and report shows it (0.1 point), so a row never reads
+        # "90.0 mixture" at a 90 % threshold; float noise (a fitted 90 : 10 split computed as 89.99999999999999)
+        # cannot flip an outcome either.
+        out = np.where(shown_pct(pct) >= threshold, CLEAN, MIXTURE).astype(np.int8)
         out[why > 0] = RULED_OUT
         out[~ok] = 0
         outcome[reagent], reason[reagent] = out, why
@@ -167,7 +185,12 @@ def reagent_outcomes(
     verdict[serves > 0] = v["selective"]
     for code, reagent in enumerate(OUTCOME_REAGENTS, start=1):
         verdict[(serves == code) & np.asarray(one_product[reagent], dtype=bool)] = v["by-symmetry"]
-    verdict[ok & features["no_ch"]] = v["inert"]
+    # Inert only when no reagent does anything else: ethene has no C–H to abstract, but Cl2 adds to it.
+    idle = np.ones(n, dtype=bool)
+    idle_codes = [code for code, p in enumerate(PATHWAYS, start=1) if p.code in _NOTHING_TO_DO]
+    for reagent in OUTCOME_REAGENTS:
+        idle &= np.isin(reason[reagent], idle_codes)
+    verdict[ok & features["no_ch"] & idle] = v["inert"]
     return Outcomes(outcome, reason, serves, verdict)
 
 

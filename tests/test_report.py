@@ -443,7 +443,7 @@ def test_reading_guide_agrees_with_the_model(tmp_path: Path) -> None:
     guide = page[page.index('<section class="key">'):]
     guide = guide[: guide.index("</section>")]
     # Contradictions fixed once must not come back: the report gives polyhalide estimates and NBS splits.
-    assert "not modelled" not in guide.replace("or is not modelled (strained cage)", "")
+    assert "not modelled" not in guide.replace(", is not modelled (strained cage)", "")
     assert "polyhalide" in guide and "NBS monobromides" in guide
     assert "P1: Cl 45" not in guide  # the drawing carries labels only; the shares are in the table
     assert "column" not in guide  # a report has entries, not the screen's columns

@@ -159,13 +159,15 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
         out["nbs_major_pct"].append(nbs_pct[s])
         # Outcomes: the first rule that applies rules a reagent out; otherwise the threshold decides.
         features = flags | ({"no_ch"} if not formed else set()) | ({"no_nbs_site"} if not products_nbs else set())
-        outcome, one = {}, {}
+        outcome, one, reasons = {}, {}, {}
         for r in OUTCOME_REAGENTS:
             why = next((p.reason for p in PATHWAYS if p.feature in features and pathway_applies(p, r, conditions)), "")
             share = judged.get(r, out[f"{r}_major_pct"][-1])
             share = 0.0 if math.isnan(share) else share
-            outcome[r] = "" if not ok else "ruled-out" if why else "clean" if share >= conditions.threshold_pct \
-                else "mixture"
+            # Judged on the share as shown (0.1 point), as every screen and file shows it.
+            outcome[r] = "" if not ok else "ruled-out" if why else "clean" if round(share, 1) >= \
+                conditions.threshold_pct else "mixture"
+            reasons[r] = why
             out[f"{r}_outcome"].append(outcome[r])
             out[f"{r}_reason"].append(why if ok else "")
             one[r] = len(products_nbs) == 1 if r == "nbs" else one_site[r]
@@ -173,8 +175,8 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
         out["serves"].append(serve)
         if not ok:
             verdict = ""
-        elif not formed:
-            verdict = "inert"
+        elif not formed and all(w in ("no abstractable C–H", "no allylic or benzylic C–H") for w in reasons.values()):
+            verdict = "inert"  # nothing abstracted and nothing else happens (ethene is ruled-out: halogens add)
         elif serve:
             verdict = "by-symmetry" if one[serve] else "selective"
         elif any(outcome[r] == "mixture" for r in OUTCOME_REAGENTS):

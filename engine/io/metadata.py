@@ -14,18 +14,17 @@ from collections.abc import Mapping
 
 import numpy as np
 import pandas as pd
+from halosift.engine.outcomes import PCT_DECIMALS  # exports round as outcomes decide
 from pandas.api.types import is_float_dtype
 
 METADATA_PREFIX = "halosift_"
 """Namespace of every metadata key in every exported file (e.g. ``halosift_version``)."""
 
-PCT_DECIMALS = 1
-"""Exported percentages are rounded to this many decimals: 0.1 percentage point."""
 
 PCT_PRECISION = (
     "percentages (the result columns ending _pct) are rounded to the nearest 0.1 percentage point; the model's "
-    "unrounded shares are not written; outcomes, verdicts and serves are decided on the unrounded shares, so a "
-    "share written as 90.0 can belong to a row just below a 90 % threshold"
+    "unrounded shares are not written; outcomes, verdicts and serves are decided on these rounded shares, so a "
+    "share written as 90.0 is clean at a 90 % threshold"
 )
 """The rounding rule, as every exported file states it (key ``halosift_percent_precision``)."""
 

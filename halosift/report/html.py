@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import pandas as pd
 
+from halosift.engine.outcomes import shown_pct
 from halosift.engine.smiles_text import break_quality, smiles_tokens
 from halosift.report.charts import bar_chart, hbar_chart, histogram
 from halosift.report.drawing import SiteMark, colour_hex, structure_svg
@@ -79,16 +80,10 @@ def _letters(i: int) -> str:
 
 
 def _pct(value: float) -> str:
-    """Percent with one decimal for tables; tiny non-zero shares show as <0.1."""
+    """Percent with one decimal, rounded as in every file and screen (outcomes are decided on it)."""
     if value != value:
         return "–"
-    if value == 0:
-        return "0"
-    if value < 0.05:
-        return "<0.1"
-    if 99.95 <= value < 100:
-        return ">99.9"
-    return f"{value:.1f}"
+    return f"{float(shown_pct(np.array([value]))[0]):.1f}"
 
 
 def rejection_kinds(library: Library) -> list[str]:

@@ -78,7 +78,9 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
         return _reject("unparsable", f"RDKit cannot parse the SMILES {text[:60]!r}")
     if mol.GetNumAtoms() == 0:
         return _reject("empty", "the SMILES holds no atoms")
-    n_frags = len(rdmolops.GetMolFrags(mol))
+    # Only '.' separates atoms in SMILES (every other atom bonds to one written before it), so a
+    # string without it is one fragment; with it, ring closures may still join the parts.
+    n_frags = len(rdmolops.GetMolFrags(mol)) if "." in text else 1
     if n_frags > 1:
         return _reject("fragments", f"{n_frags} separate fragments; give one molecule per row")
     if _PLAIN_CARBON.issuperset(text):

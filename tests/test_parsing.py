@@ -47,6 +47,14 @@ def test_size_limit_is_configurable() -> None:
     assert parse_hydrocarbon("C" * 20, max_heavy_atoms=10).reason_code == "too_large"
 
 
+def test_fragments_are_counted_from_the_molecule_not_the_dots() -> None:
+    # A dot with ring closures across it can still give one molecule; without a dot there is one.
+    assert parse_hydrocarbon("C1CC.C1").ok
+    assert parse_hydrocarbon("C1.C1").ok
+    assert parse_hydrocarbon("[CH3].[CH3]").reason_code == "fragments"  # tested before the radicals
+    assert parse_hydrocarbon("C.C.C").reason == "3 separate fragments; give one molecule per row"
+
+
 def test_explicit_hydrogens_are_accepted() -> None:
     assert parse_hydrocarbon("[H]C([H])([H])C").ok
 

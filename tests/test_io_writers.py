@@ -453,3 +453,54 @@ def test_write_stream_gives_the_bytes_a_file_would_hold(tmp_path: Path, fmt: str
         assert pq.read_schema(io.BytesIO(stream.getvalue())).metadata[b"halosift_tool"] == b"halosift"
     else:
         assert stream.getvalue() == written
+
+
+def _odd_typed_library(path: Path) -> None:
+    """A Parquet library whose other columns hold what real catalogues do: bytes, lists, structs, decimals, times."""
+    import datetime
+    import decimal
+
+    import pyarrow as pa
+
+    table = pa.table({
+        "id": ["W-1", "W-2", "W-3"],
+        "smiles": ["CCC", "C1CCCCC1", "not a smiles"],
+        "fingerprint": pa.array([b"\x00\x01", b"=\r\n", None], pa.binary()),
+        "tags": pa.array([["a", "b"], [], None], pa.list_(pa.string())),
+        "lot": pa.array([{"n": 1}, {"n": None}, None], pa.struct([("n", pa.int64())])),
+        "price": pa.array([decimal.Decimal("1.50"), None, decimal.Decimal("-3")], pa.decimal128(6, 2)),
+        "received": pa.array([datetime.datetime(2026, 1, 2, 3, 4), None, datetime.datetime(2025, 5, 6)],
+                             pa.timestamp("s")),
+    })
+    pq.write_table(table, path)
+
+
+@pytest.mark.parametrize("out", ["x.csv", "x.tsv", "x.csv.gz", "x.parquet", "x.sdf", "x.html"])
+def test_odd_typed_input_columns_write_every_row_in_every_format(tmp_path: Path, out: str) -> None:
+    """The class of error: an object column that is not text (bytes from a Parquet binary column) made the CSV
+    writer's text checks raise a TypeError (a traceback). Every format writes such a library, every row in it."""
+    from halosift.cli import main
+
+    source = tmp_path / "odd.parquet"
+    _odd_typed_library(source)
+    command = "report" if out.endswith(".html") else "screen"
+    assert main([command, str(source), "-o", str(tmp_path / out), "--no-cache"]) == 0
+    if out.endswith((".csv", ".tsv", ".csv.gz")):
+        back = pd.read_csv(tmp_path / out, sep="\t" if ".tsv" in out else ",", dtype=str, keep_default_na=False)
+        assert list(back["id"]) == ["W-1", "W-2", "W-3"] and back["status"].tolist()[2] == "rejected"
+    elif out.endswith(".parquet"):
+        assert pq.read_table(tmp_path / out).num_rows == 3
+    elif out.endswith(".sdf"):
+        assert (tmp_path / out).read_text().count("$$$$") == 3
+    else:
+        assert all(i in (tmp_path / out).read_text() for i in ("W-1", "W-2", "W-3"))
+
+
+def test_odd_typed_input_columns_to_standard_output(tmp_path: Path, capsysbinary: pytest.CaptureFixture) -> None:
+    from halosift.cli import main
+
+    source = tmp_path / "odd.parquet"
+    _odd_typed_library(source)
+    assert main(["screen", str(source), "-o", "-", "--out-format", "csv", "--no-cache"]) == 0
+    text = capsysbinary.readouterr().out.decode()
+    assert "W-1" in text and "W-3" in text and "Traceback" not in text

@@ -290,7 +290,7 @@ def defuse_formulas(frame: pd.DataFrame) -> pd.DataFrame:
             continue
         try:
             risky = column.str.contains(_FORMULA_START, regex=True, na=False)
-        except AttributeError:  # an object column without text (.str refuses it): cell by cell
+        except (AttributeError, TypeError):  # object column of bytes, lists, … (.str refuses it): cell by cell
             risky = column.map(lambda v: _defused_text(v) is not v).astype(bool)
         if not risky.any():
             continue
@@ -328,6 +328,7 @@ def _holds_cr(frame: pd.DataFrame) -> bool:
             try:
                 if column.str.contains("\r", regex=False, na=False).any():
                     return True
-            except AttributeError:  # no text in this object column
-                continue
+            except (AttributeError, TypeError):  # bytes, lists, …: as the csv writer will print each cell
+                if column.map(lambda v: "\r" in str(v)).any():
+                    return True
     return False

@@ -24,6 +24,8 @@ REASON_CODES = (
     "isotope",
     "charged",
     "radical",
+    "stereo_group",
+    "no_carbon",
     "too_large",
 )
 
@@ -90,12 +92,19 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
     # One pass over the atoms collects everything the checks below need.
     foreign: set[str] = set()
     isotope = charged = radical = explicit_h = False
+    carbons = 0
     for atom in mol.GetAtoms():
+        if atom.GetAtomMapNum():
+            # A reaction-mapping label, not chemistry: kept, it makes symmetric atoms look different
+            # ([CH3:1]C would get two "different" chlorides), so it is dropped before anything is perceived.
+            atom.SetAtomMapNum(0)
         z = atom.GetAtomicNum()
         if z == 1:
             explicit_h = True
         elif z != 6:
             foreign.add(atom.GetSymbol())
+        else:
+            carbons += 1
         isotope = isotope or atom.GetIsotope() != 0
         charged = charged or atom.GetFormalCharge() != 0
         radical = radical or atom.GetNumRadicalElectrons() != 0
@@ -108,6 +117,13 @@ def parse_hydrocarbon(smiles: object, max_heavy_atoms: int = DEFAULT_MAX_HEAVY_A
         return _reject("charged", "charged species (carbocation/carbanion); only neutral molecules are modelled")
     if radical:
         return _reject("radical", "open-shell species (unpaired electrons); only closed-shell molecules are modelled")
+    if any(g.GetGroupType() != Chem.StereoGroupType.STEREO_ABSOLUTE for g in mol.GetStereoGroups()):
+        # An AND/OR group (CXSMILES |&1:…| or |o1:…|) means a mixture or an unknown configuration;
+        # read as plain SMILES it would be one stereoisomer, which changes the stereo outcome.
+        return _reject("stereo_group", "CXSMILES AND/OR stereo groups (a mixture or unknown configuration) are not "
+                       "modelled; give each stereoisomer as its own row, or the SMILES without the groups")
+    if not carbons:
+        return _reject("no_carbon", "no carbon atom; only hydrocarbons are modelled")
     if explicit_h:
         # Explicit [H] atoms would hide their hydrogens from the site count.
         with quiet_rdkit():

@@ -64,3 +64,32 @@ def test_perceive_keeps_every_row(smiles, code: str) -> None:
     p = engine.perceive(["CC", smiles, "CCC"])
     assert list(p.structures["status"]) == ["ok", "rejected", "ok"]
     assert p.structures["reason_code"].iloc[1] == code
+
+
+@pytest.mark.parametrize(
+    ("mapped", "plain"),
+    [("[CH3:1]C", "CC"), ("[CH3:1][CH2:2][CH3:3]", "CCC"), ("[CH3:7]C(C)(C)C", "CC(C)(C)C"),
+     ("C[C@H:4](Cl)CC".replace("Cl", "C"), "C[C@H](C)CC")],
+)
+def test_atom_maps_change_no_answer(mapped: str, plain: str) -> None:
+    """The class of error: a map number made symmetric atoms differ (ethane with two chlorides). Maps are dropped,
+    so every product, share and verdict is the plain structure's (symmetry: ethane has one monochloride)."""
+    a, b = engine.explain(mapped), engine.explain(plain)
+    assert a.status == b.status == "ok" and a.verdict == b.verdict
+    assert [(p.smiles, round(p.pct["cl2"], 9)) for p in a.products] == [(p.smiles, round(p.pct["cl2"], 9))
+                                                                        for p in b.products]
+
+
+@pytest.mark.parametrize("smiles", ["CC[C@H](C)c1ccccc1 |&1:2|", "CC[C@H](C)c1ccccc1 |o1:2|"])
+def test_and_or_stereo_groups_are_refused_not_read_as_one_isomer(smiles: str) -> None:
+    parsed = parse_hydrocarbon(smiles)
+    assert not parsed.ok and parsed.reason_code == "stereo_group" and "\n" not in parsed.reason
+
+
+def test_absolute_stereo_group_is_plain_stereo() -> None:
+    assert parse_hydrocarbon("CC[C@H](C)c1ccccc1 |a:2|").ok
+
+
+@pytest.mark.parametrize("smiles", ["[H][H]", "[2H][2H]"])
+def test_no_carbon_is_not_a_hydrocarbon_to_screen(smiles: str) -> None:
+    assert parse_hydrocarbon(smiles).reason_code in ("no_carbon", "isotope")

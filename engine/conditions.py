@@ -128,7 +128,9 @@ class Conditions:
         """Raise ValueError (one line) for values no experiment can have; run by the constructor too."""
         for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
-            if not t == t or t <= -KELVIN:
+            if not t == t:
+                raise ValueError(f"{reagent} temperature is not a number")
+            if t <= -KELVIN:
                 raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
         if self.cl2_phase not in CL2_PHASES:
             raise ValueError(f"unknown cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")

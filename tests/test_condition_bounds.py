@@ -23,6 +23,8 @@ REFUSED = [
     (dict(nbs_temp_c=MAX_NBS_TEMP_C.value + 1), "NBS"),
     (dict(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=0.0), "above 0 M"),
     (dict(cl2_temp_c=-300.0), "absolute zero"),
+    (dict(br2_temp_c=float("nan")), "not a number"),
+    (dict(threshold_pct=float("nan")), "percentage"),
     (dict(threshold_pct=101.0), "percentage"),
 ]
 

@@ -268,7 +268,10 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
                 },
             )
         )
-    records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -p.pct["cl2"], -p.pct["br2"], p.smiles))
+    # Ties keep the site-table order (a stable sort), the order in which a screen picks its major, so
+    # the first product listed is the one the outcome names (n-hexane: 2- and 3-chloride tie at 40.2 %).
+    records.sort(key=lambda p: (p.pct["cl2"] == 0 and p.pct["br2"] == 0, -round(p.pct["cl2"], 9),
+                                -round(p.pct["br2"], 9)))
     nbs_frame = nbs_products(perception.allylic, conditions.per_h(NBS), 1)
     nbs_bases = conditions.bases(NBS)
     nbs = sorted(

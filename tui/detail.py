@@ -416,7 +416,7 @@ class DetailScreen(Screen):
         self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)  # a new row starts at its top
         self._work_out(self._request, self.row, str(record["canonical_smiles"]))
 
-    @work(thread=True, exclusive=True, group="detail", exit_on_error=False)
+    @work(thread=True, exclusive=True, group="detail", exit_on_error=False, description="work out a detail")
     def _work_out(self, request: int, row: int, canonical_smiles: str) -> None:
         """Work out one row's detail in a daemon thread and post it, unless the chemist has moved on.
 

@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.tui.conditions import ConditionsScreen
-from halosift.tui.filters import FilterSpec, OrderCache, SortSpec
+from halosift.tui.filters import FilterSpec, OrderCache, SortSpec, TextColumns
 from halosift.tui.messages import (
     ConditionsProposed,
     CursorMoved,
@@ -55,7 +55,7 @@ if TYPE_CHECKING:
     import pandas as pd
     from halosift.engine import Conditions, Library
     from halosift.tui.export import ExportChoice
-    from halosift.tui.session import Session
+    from halosift.tui.session import Opened, Session
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
@@ -303,12 +303,13 @@ class HalosiftApp(App[int]):
         here, off the interface thread), the whole library last (ScreeningFinished).
         """
         from halosift.engine.library import PENDING
+        from halosift.tui.session import ScreenStart
 
         from halosift import engine
 
         freeze_imports()
         last = [0.0]
-        start: list[tuple[Any, str | None, str, Conditions]] = []  # (session, key, note, conditions), once known
+        start: list[ScreenStart] = []  # once known
 
         def progress(done: int, total: int | None) -> None:
             now = time.monotonic()
@@ -316,29 +317,30 @@ class HalosiftApp(App[int]):
                 last[0] = now
                 self.post_message(ScreeningProgress(done, total))
 
-        def begin(n_rows: int) -> tuple[Any, str | None, str, Conditions]:
+        def begin(n_rows: int) -> ScreenStart:
             """The session and conditions to start from (read once the row count is known)."""
             if not start:
-                session, key, note = self._read_session(n_rows)
-                conditions = self.conditions
+                opened = self._read_session(n_rows)
+                conditions, note = self.conditions, opened.note
                 if conditions is None:
                     from halosift.tui.session import initial_conditions
 
                     # Saved conditions, with the command line's explicit options winning field by field.
-                    conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
-                                                               self.explicit_conditions)
+                    saved = opened.session.conditions if opened.session is not None else None
+                    conditions, cond_note = initial_conditions(saved, self.explicit_conditions)
                     note = " ".join(n for n in (note, cond_note) if n)
-                start.append((session, key, note, conditions))
+                start.append(ScreenStart(opened, conditions, note))
             return start[0]
 
         def partial(library: Library) -> None:
             if cancel.is_set():
                 return
-            session, key, note, conditions = begin(len(library.input))
-            conditions = self.conditions or conditions  # the chemist may have changed them meanwhile
+            first = begin(len(library.input))
+            conditions = self.conditions or first.conditions  # the chemist may have changed them meanwhile
             frame = library.evaluate(conditions)
             status = frame["status"].to_numpy()
-            self.post_message(ScreeningPartial(library, frame, conditions, session, key, note,
+            self.post_message(ScreeningPartial(library, frame, conditions, first.opened.session, first.opened.key,
+                                               first.note,
                                                int((status == "ok").sum()), int((status == PENDING).sum())))
 
         try:
@@ -351,8 +353,8 @@ class HalosiftApp(App[int]):
                 cancel=cancel,
                 partial=partial,
             )
-            session, key, note, conditions = begin(len(library.input))
-            conditions = self.conditions or conditions
+            first = begin(len(library.input))
+            conditions = self.conditions or first.conditions
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -366,29 +368,30 @@ class HalosiftApp(App[int]):
         if cancel.is_set():
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
             return
-        self.post_message(ScreeningFinished(library, frame, conditions, session, key, note))
+        self.post_message(ScreeningFinished(library, frame, conditions, first.opened.session, first.opened.key,
+                                            first.note))
 
-    def _read_session(self, n_rows: int) -> tuple[Any, str | None, str]:
-        """(session to restore or None, library key or None, one-line note) — file reads, so called in the worker."""
-        if not self.sessions or self.state.session_restored:
-            return None, self.session_key, ""
+    def _read_session(self, n_rows: int) -> Opened:
+        """The session saved for this library, if any is to be restored (file reads, so called in the worker)."""
         from halosift.tui import session as sessions
 
+        if not self.sessions or self.state.session_restored:
+            return sessions.Opened(None, self.session_key)
         try:
             key = sessions.library_key(self.source)
         except OSError as exc:
-            return None, None, f"Sessions are off for this library: {one_line(exc)}"
+            return sessions.Opened(None, None, f"Sessions are off for this library: {one_line(exc)}")
         if self.fresh:
             try:
                 sessions.forget(key)
             except OSError as exc:
-                return None, key, f"The saved session could not be removed: {one_line(exc)}"
-            return None, key, ""
+                return sessions.Opened(None, key, f"The saved session could not be removed: {one_line(exc)}")
+            return sessions.Opened(None, key)
         saved, note = sessions.load(key)
         if saved is not None and saved.n_rows != n_rows:
-            return None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not {n_rows:,}, "
-                               "and is ignored; this one starts fresh.")
-        return saved, key, note
+            return sessions.Opened(None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not "
+                                               f"{n_rows:,}, and is ignored; this one starts fresh."))
+        return sessions.Opened(saved, key, note)
 
     def on_screening_progress(self, message: ScreeningProgress) -> None:
         if self.phase != "screening":
@@ -604,14 +607,14 @@ class HalosiftApp(App[int]):
 
     # ------------------------------------------------------------------ the view
 
-    def _text_columns(self) -> tuple[list[Hashable], list[Hashable]]:
-        """(ID columns, SMILES columns) the find text looks in."""
+    def _text_columns(self) -> TextColumns:
+        """The columns the find text looks in."""
         lib = self.library
         if lib is None:
-            return [], []
+            return TextColumns()
         names = lib.result_names()  # an input "canonical_smiles" is input_canonical_smiles in the frame
-        ids = [names[lib.id_column]] if lib.id_column is not None else []
-        return ids, [names[lib.smiles_column], "canonical_smiles"]
+        ids = (names[lib.id_column],) if lib.id_column is not None else ()
+        return TextColumns(ids, (names[lib.smiles_column], "canonical_smiles"))
 
     def _request_view(self) -> None:
         """Recompute (in a worker) the rows to show; the newest request wins."""
@@ -640,7 +643,7 @@ class HalosiftApp(App[int]):
         sort: SortSpec,
         view: str,
         marked: np.ndarray,
-        text_columns: tuple[list[Hashable], list[Hashable]],
+        text_columns: TextColumns,
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
         from halosift.engine.library import PENDING
@@ -652,7 +655,7 @@ class HalosiftApp(App[int]):
                 frame = library.evaluate(conditions)
             if worker.is_cancelled:
                 return
-            mask = view_mask(frame, view, spec, marked, *text_columns)
+            mask = view_mask(frame, view, spec, marked, text_columns.ids, text_columns.smiles)
             status = frame["status"].to_numpy()
             pending = status == PENDING
             mask = mask & ~pending  # not perceived yet: in no view until it is (the header counts it)

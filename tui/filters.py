@@ -130,6 +130,16 @@ class FilterSpec:
 
 
 @dataclass(frozen=True)
+class TextColumns:
+    """The columns of the evaluated frame the find text looks in."""
+
+    ids: tuple[Hashable, ...] = ()
+    """ID columns, matched ignoring case."""
+    smiles: tuple[Hashable, ...] = ()
+    """SMILES columns, matched with case kept (in SMILES, c is aromatic and C is not)."""
+
+
+@dataclass(frozen=True)
 class SortSpec:
     """Row order of a view."""
 

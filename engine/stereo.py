@@ -41,7 +41,17 @@ _TRANS = Chem.BondStereo.STEREOTRANS
 #: Outcome of a product whose stereoisomers were not enumerated within its share of
 #: :data:`STEREO_WORK_BUDGET` (too many open stereo elements); its counts are an upper bound.
 NOT_COUNTED = "not counted"
-OUTCOMES = ("achiral", "one-enantiomer", "racemate", "diastereomers", NOT_COUNTED)
+#: Outcome of a product with no stereocentre or stereogenic double bond.
+ACHIRAL = "achiral"
+OUTCOMES = (ACHIRAL, "one-enantiomer", "racemate", "diastereomers", NOT_COUNTED)
+#: What each stereo outcome of a product means (words of their own: none is a verdict word).
+STEREO_DOCS: dict[str, str] = {
+    ACHIRAL: "no new stereocentre",
+    "one-enantiomer": "one chiral stereoisomer (existing stereo carried through)",
+    "racemate": "a new stereocentre, formed as both enantiomers",
+    "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
+    NOT_COUNTED: "too many open stereo elements to count within the per-structure budget; the number is an upper bound",
+}
 
 #: Largest stereoisomer count stored as such: 2**53, exact alike in int64 columns, float64
 #: and JSON numbers. A larger count (53 or more stereo elements) is stored as this cap with

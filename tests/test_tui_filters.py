@@ -6,11 +6,7 @@ import numpy as np
 import pandas as pd
 import pytest
 from halosift.tui.filters import (
-    CONFIDENCE_CHOICES,
     DUPLICATE_MODES,
-    FLAG_CHOICES,
-    OUTCOME_CHOICES,
-    OUTCOME_VALUES,
     FilterSpec,
     OrderCache,
     SortSpec,
@@ -148,18 +144,6 @@ def test_duplicate_filter_modes():
     assert rows(filter_mask(frame(), FilterSpec(duplicates="hide"), *TEXT)) == [0, 1, 2, 3, 5]
     assert rows(filter_mask(frame(), FilterSpec(duplicates="only"), *TEXT)) == [6]
     assert set(DUPLICATE_MODES) == {"all", "hide", "only"}
-
-
-def test_choice_lists_match_the_engine():
-    """tui.filters copies these names to stay import-light; they must not drift from the engine's."""
-    from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES
-    from halosift.engine.special_sites import FLAGS
-    from halosift.engine.weigh import BASES
-
-    assert FLAG_CHOICES == FLAGS
-    assert OUTCOME_CHOICES == OUTCOME_REAGENTS
-    assert OUTCOME_VALUES == OUTCOMES
-    assert CONFIDENCE_CHOICES == tuple(reversed(BASES))
 
 
 def test_filters_combine_with_and():

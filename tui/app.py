@@ -1,25 +1,25 @@
 """The halosift terminal app: screen a library, sift it, explain a row, export a shortlist.
 
-The app owns the state (library, conditions, filters, sort, view, marks) and
-hands it down to its widgets; widgets report back with the messages in
-:mod:`halosift.tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
+The state (library, conditions, filters, sort, view, marks) lives in a plain
+:class:`halosift.tui.state.AppState`; the app calls its transitions and refreshes
+the widgets. Widgets report back with the messages in :mod:`halosift.tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
 worker threads or on first use, so the first paint does not wait for them.
 """
 
 from __future__ import annotations
 
+import gc
 import os
 import sys
 import threading
 import time
 from collections.abc import Hashable, Mapping
-from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.tui.conditions import ConditionsScreen
-from halosift.tui.filters import VIEWS, FilterSpec, OrderCache, SortSpec
+from halosift.tui.filters import FilterSpec, OrderCache, SortSpec, TextColumns
 from halosift.tui.messages import (
     ConditionsProposed,
     CursorMoved,
@@ -40,13 +40,13 @@ from halosift.tui.messages import (
     ViewFailed,
 )
 from halosift.tui.search import SearchBar
+from halosift.tui.state import AppState, RowCounts
 from halosift.tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
 from halosift.tui.wording import counted
 from textual import on, work
 from textual.app import App, ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
-from textual.reactive import reactive
 from textual.timer import Timer
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 from textual.worker import get_current_worker
@@ -55,25 +55,14 @@ if TYPE_CHECKING:
     import pandas as pd
     from halosift.engine import Conditions, Library
     from halosift.tui.export import ExportChoice
+    from halosift.tui.session import Opened, Session
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
-#: Bulk mark steps that z can undo (each keeps one bool per row).
-UNDO_DEPTH = 20
 #: Seconds after the last change before the session file is written (a burst of changes is one write).
 SESSION_SAVE_DELAY = 0.5
 #: Header lines the condition warnings may take before they are summed up in one.
 WARNING_LINES = 3
-
-
-@dataclass(frozen=True)
-class MarksUndo:
-    """The shortlist as it was before one bulk mark step."""
-
-    what: str
-    """The step, in words ('unmark all 12 shown')."""
-    marked: np.ndarray
-    """Marks before the step, one per frame row."""
 
 
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
@@ -118,6 +107,48 @@ def start_process_helpers() -> None:
     resource_tracker.ensure_running()
 
 
+_imports_frozen = threading.Event()
+
+
+def freeze_imports() -> None:
+    """Take every object alive now (after the big imports: modules, classes, functions) out of the collector's scans.
+
+    A full collection scans every container; with textual, pandas, pyarrow and
+    RDKit loaded that is ~80,000 objects and 50-250 ms with the GIL held, which
+    froze the interface while a library streamed in. Once frozen, a full
+    collection scans only what was made after (under 1 ms). Objects frozen are
+    still freed by reference counting; only cycles among them are never collected.
+    """
+    if not _imports_frozen.is_set():
+        _imports_frozen.set()
+        gc.freeze()
+
+
+class _FromState:
+    """An app attribute that lives in :attr:`HalosiftApp.state` (see :class:`AppState` for each one).
+
+    Reading gives the state's value. Setting calls the state's ``set_<name>``
+    transition and, when that reports a change, the app method named ``refresh``
+    (which redraws what shows it); without one the attribute is read-only here.
+    """
+
+    def __init__(self, refresh: str | None = None) -> None:
+        self.refresh = refresh
+        self.name = ""
+
+    def __set_name__(self, owner: type, name: str) -> None:
+        self.name = name
+
+    def __get__(self, app: Any, owner: type | None = None) -> Any:
+        return self if app is None else getattr(app.state, self.name)
+
+    def __set__(self, app: Any, value: Any) -> None:
+        if self.refresh is None:
+            raise AttributeError(f"{self.name} is changed through the app's state transitions")
+        if getattr(app.state, f"set_{self.name}")(value):
+            getattr(app, self.refresh)()
+
+
 class HalosiftApp(App[int]):
     """Screen a hydrocarbon library and sift it by predicted halogenation outcome."""
 
@@ -145,22 +176,6 @@ class HalosiftApp(App[int]):
         Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
     ]
 
-    phase: reactive[str] = reactive("screening")
-    """screening (worker running, no rows yet), streaming (worker running, the rows perceived so far shown),
-    ready (the whole library is loaded) or stopped (cancelled or failed; rows perceived before stay shown)."""
-    view: reactive[str] = reactive("library", init=False)
-    """Which rows the table lists: one of :data:`halosift.tui.filters.VIEWS`."""
-    filters: reactive[FilterSpec] = reactive(FilterSpec, init=False)
-    """The library view's filters."""
-    sort: reactive[SortSpec] = reactive(SortSpec, init=False)
-    """Row order of every view."""
-    conditions: reactive[Any] = reactive(None, init=False)
-    """engine.Conditions the table is evaluated under (None until the engine is loaded)."""
-    show_input_columns: reactive[bool] = reactive(False, init=False)
-    """Also show the input file's own columns (beyond ID and SMILES)."""
-    show_more_columns: reactive[bool] = reactive(False, init=False)
-    """Also show confidence, flags, the NBS major product, the polyhalide columns and why reagents are ruled out."""
-
     def __init__(
         self,
         source: str | os.PathLike[str] | pd.DataFrame,
@@ -181,8 +196,6 @@ class HalosiftApp(App[int]):
         """Ignore (and replace) the session saved for this library."""
         self.sessions = sessions and isinstance(source, (str, os.PathLike))
         """Save and restore marks, sort, filters, view and conditions per library file."""
-        self.session_key: str | None = None
-        """The library's key in the session folder, once screening has read it."""
         self.graphics = graphics
         """Inline-image mode for structure drawings ('sixel', 'tgp', 'unicode'), or None for text only."""
         self.source = source
@@ -193,14 +206,8 @@ class HalosiftApp(App[int]):
         """ID column to use (None: the engine finds it, if any)."""
         self.use_cache = use_cache
         """Let the engine reuse its on-disk perception cache."""
-        self.library: Library | None = None
-        """The loaded engine.Library, once screening has finished."""
-        self.frame: pd.DataFrame | None = None
-        """The evaluated frame the table shows (Library.evaluate(frame_conditions))."""
-        self.frame_conditions: Conditions | None = None
-        """Conditions ``frame`` was evaluated under."""
-        self.marked: np.ndarray = np.zeros(0, dtype=bool)
-        """Shortlist marks, one per input row."""
+        self.state = AppState()
+        """The library, the chemist's choices and the shortlist: the app only shows them."""
         self.last_export: Path | None = None
         """The file most recently written."""
         self._cancel = threading.Event()
@@ -208,11 +215,8 @@ class HalosiftApp(App[int]):
         self._applied_generation = 0
         self._site_choices: tuple[Any, list[str]] = (None, [])
         self._orders = OrderCache()
-        self._counts = (0, 0, 0)
         self._to_top = False
-        self._undo: list[MarksUndo] = []
         self._titles: dict[Hashable, str] = {key: label for key, label, _, _ in MORE_COLUMNS}
-        self._session_restored = False
         self._session_timer: Timer | None = None
         self._session_dirty = False
         self._session_lock = threading.Lock()
@@ -221,6 +225,33 @@ class HalosiftApp(App[int]):
         self._run_taken = False  # the current screen has delivered rows
         self._stop_note = ""  # why a screen stopped with part of the library shown
         self._keep_place_generation = -1  # the view request made for newly perceived rows
+        self._binding_actions = [b.action for b in self.BINDINGS if isinstance(b, Binding)]
+        self._input_widths: dict[tuple[Hashable, str, int], int] = {}  # (column, label, cap) -> width, per library
+        self._bindings_shown: tuple[bool | None, ...] = ()  # check_action's answers when the footer was last redrawn
+
+    # ------------------------------------------------------------------ the state, as the widgets see it
+
+    phase = _FromState("_show_phase")
+    view = _FromState("_request_view")
+    filters = _FromState("_request_view")
+    sort = _FromState("_sort_changed")
+    conditions = _FromState("_conditions_changed")
+    show_input_columns = _FromState("_request_view")
+    show_more_columns = _FromState("_request_view")
+    library = _FromState()
+    frame = _FromState()
+    marked = _FromState()
+    session_key = _FromState()
+
+    def _sort_changed(self) -> None:
+        self._to_top = True  # a new order starts at its first row
+        self._request_view()
+
+    def _conditions_changed(self) -> None:
+        for screen in self.screen_stack:
+            if isinstance(screen, ConditionsScreen):
+                screen.applied = self.conditions  # the panel shows what the table now uses
+        self._request_view()
 
     # ------------------------------------------------------------------ layout
 
@@ -248,6 +279,7 @@ class HalosiftApp(App[int]):
     def on_mount(self) -> None:
         self.query_one("#search").display = False
         self.query_one("#warnings").display = False
+        self._show_phase()
         self._start_screening()
 
     # ------------------------------------------------------------------ screening
@@ -263,7 +295,7 @@ class HalosiftApp(App[int]):
         self.query_one("#screening-label", Label).update(f"Screening {self.source_name}…")
         self._screen(self._cancel)
 
-    @work(thread=True, exclusive=True, group="screen", exit_on_error=False)
+    @work(thread=True, exclusive=True, group="screen", exit_on_error=False, description="screen the library")
     def _screen(self, cancel: threading.Event) -> None:
         """Read and perceive the library, then evaluate it under default conditions.
 
@@ -271,11 +303,13 @@ class HalosiftApp(App[int]):
         here, off the interface thread), the whole library last (ScreeningFinished).
         """
         from halosift.engine.library import PENDING
+        from halosift.tui.session import ScreenStart
 
         from halosift import engine
 
+        freeze_imports()
         last = [0.0]
-        start: list[tuple[Any, str | None, str, Conditions]] = []  # (session, key, note, conditions), once known
+        start: list[ScreenStart] = []  # once known
 
         def progress(done: int, total: int | None) -> None:
             now = time.monotonic()
@@ -283,29 +317,30 @@ class HalosiftApp(App[int]):
                 last[0] = now
                 self.post_message(ScreeningProgress(done, total))
 
-        def begin(n_rows: int) -> tuple[Any, str | None, str, Conditions]:
+        def begin(n_rows: int) -> ScreenStart:
             """The session and conditions to start from (read once the row count is known)."""
             if not start:
-                session, key, note = self._read_session(n_rows)
-                conditions = self.conditions
+                opened = self._read_session(n_rows)
+                conditions, note = self.conditions, opened.note
                 if conditions is None:
                     from halosift.tui.session import initial_conditions
 
                     # Saved conditions, with the command line's explicit options winning field by field.
-                    conditions, cond_note = initial_conditions(session.conditions if session is not None else None,
-                                                               self.explicit_conditions)
+                    saved = opened.session.conditions if opened.session is not None else None
+                    conditions, cond_note = initial_conditions(saved, self.explicit_conditions)
                     note = " ".join(n for n in (note, cond_note) if n)
-                start.append((session, key, note, conditions))
+                start.append(ScreenStart(opened, conditions, note))
             return start[0]
 
         def partial(library: Library) -> None:
             if cancel.is_set():
                 return
-            session, key, note, conditions = begin(len(library.input))
-            conditions = self.conditions or conditions  # the chemist may have changed them meanwhile
+            first = begin(len(library.input))
+            conditions = self.conditions or first.conditions  # the chemist may have changed them meanwhile
             frame = library.evaluate(conditions)
             status = frame["status"].to_numpy()
-            self.post_message(ScreeningPartial(library, frame, conditions, session, key, note,
+            self.post_message(ScreeningPartial(library, frame, conditions, first.opened.session, first.opened.key,
+                                               first.note,
                                                int((status == "ok").sum()), int((status == PENDING).sum())))
 
         try:
@@ -318,8 +353,8 @@ class HalosiftApp(App[int]):
                 cancel=cancel,
                 partial=partial,
             )
-            session, key, note, conditions = begin(len(library.input))
-            conditions = self.conditions or conditions
+            first = begin(len(library.input))
+            conditions = self.conditions or first.conditions
             frame = library.evaluate(conditions)
         except engine.Cancelled:
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
@@ -333,29 +368,30 @@ class HalosiftApp(App[int]):
         if cancel.is_set():
             self.post_message(ScreeningStopped(True, "Screening cancelled."))
             return
-        self.post_message(ScreeningFinished(library, frame, conditions, session, key, note))
+        self.post_message(ScreeningFinished(library, frame, conditions, first.opened.session, first.opened.key,
+                                            first.note))
 
-    def _read_session(self, n_rows: int) -> tuple[Any, str | None, str]:
-        """(session to restore or None, library key or None, one-line note) — file reads, so called in the worker."""
-        if not self.sessions or self._session_restored:
-            return None, self.session_key, ""
+    def _read_session(self, n_rows: int) -> Opened:
+        """The session saved for this library, if any is to be restored (file reads, so called in the worker)."""
         from halosift.tui import session as sessions
 
+        if not self.sessions or self.state.session_restored:
+            return sessions.Opened(None, self.session_key)
         try:
             key = sessions.library_key(self.source)
         except OSError as exc:
-            return None, None, f"Sessions are off for this library: {one_line(exc)}"
+            return sessions.Opened(None, None, f"Sessions are off for this library: {one_line(exc)}")
         if self.fresh:
             try:
                 sessions.forget(key)
             except OSError as exc:
-                return None, key, f"The saved session could not be removed: {one_line(exc)}"
-            return None, key, ""
+                return sessions.Opened(None, key, f"The saved session could not be removed: {one_line(exc)}")
+            return sessions.Opened(None, key)
         saved, note = sessions.load(key)
         if saved is not None and saved.n_rows != n_rows:
-            return None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not {n_rows:,}, "
-                               "and is ignored; this one starts fresh.")
-        return saved, key, note
+            return sessions.Opened(None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not "
+                                               f"{n_rows:,}, and is ignored; this one starts fresh."))
+        return sessions.Opened(saved, key, note)
 
     def on_screening_progress(self, message: ScreeningProgress) -> None:
         if self.phase != "screening":
@@ -368,34 +404,28 @@ class HalosiftApp(App[int]):
         )
 
     def on_screening_partial(self, message: ScreeningPartial) -> None:
-        if self.phase in ("screening", "streaming"):
-            n = len(message.frame)
-            self._counts = (message.screened, n - message.screened - message.pending, message.pending)
-        self._take_library(message, complete=False)
+        self._take_library(message, RowCounts.of(len(message.frame), message.screened, message.pending),
+                           complete=False)
 
     def on_screening_finished(self, message: ScreeningFinished) -> None:
-        self._take_library(message, complete=True)
+        self._take_library(message, self.state.counts, complete=True)  # counted when its view arrives
 
-    def _take_library(self, message: ScreeningPartial | ScreeningFinished, complete: bool) -> None:
+    def _take_library(self, message: ScreeningPartial | ScreeningFinished, counts: RowCounts, complete: bool) -> None:
         """Show a (partial or whole) library; the first of a screen also sets marks, conditions and the session."""
         if self.phase not in ("screening", "streaming"):
             return  # the screen stopped meanwhile
         first = not self._run_taken
         self._run_taken = True
-        self.library = message.library
-        self.frame = message.frame
-        self.frame_conditions = message.conditions
+        state = self.state
+        state.take_library(message.library, message.frame, message.conditions, counts, first=first)
         self._orders = OrderCache()  # sort orders of other rows do not apply
         if first:
-            if len(self.marked) != len(message.frame):  # a resumed screen keeps the marks made meanwhile
-                self.marked = np.zeros(len(message.frame), dtype=bool)
-                self._undo = []
-            self.set_reactive(HalosiftApp.conditions, message.conditions)
+            self._input_widths = {}
             if message.session_key is not None:
-                self.session_key = message.session_key
-            if message.session is not None and not self._session_restored:
+                state.session_key = message.session_key
+            if message.session is not None and not state.session_restored:
                 self._restore_session(message.session)
-            self._session_restored = True
+            state.session_restored = True
             if message.session_note:
                 self.notify(message.session_note, title="Session", severity="warning", timeout=10)
         self.phase = "ready" if complete else "streaming"
@@ -405,30 +435,19 @@ class HalosiftApp(App[int]):
 
     def _restore_session(self, saved: Any) -> None:
         """Take marks, sort, filters, view and column choices from a saved session (conditions came with the frame)."""
-        self.marked = saved.marked.copy()
-        self.set_reactive(HalosiftApp.sort, saved.sort)
-        self.set_reactive(HalosiftApp.filters, saved.filters)
-        self.set_reactive(HalosiftApp.view, saved.view)
-        self.set_reactive(HalosiftApp.show_input_columns, saved.show_input_columns)
-        self.set_reactive(HalosiftApp.show_more_columns, saved.show_more_columns)
+        self.state.restore(saved)
         self.query_one(SearchBar).value = saved.filters.text
         self.notify(
-            f"Restored this library's last session: {int(self.marked.sum()):,} marked, view {saved.view}, "
+            f"Restored this library's last session: {self.state.n_marked:,} marked, view {saved.view}, "
             f"{saved.filters.describe()}. N starts fresh.",
             title="Session", timeout=6,
         )
 
     # ------------------------------------------------------------------ sessions
 
-    def current_session(self) -> Any:
+    def current_session(self) -> Session:
         """The state to save for this library (tui.session.Session)."""
-        from halosift.tui.session import Session, conditions_record
-
-        return Session(
-            n_rows=len(self.marked), marked=self.marked.copy(), sort=self.sort, filters=self.filters, view=self.view,
-            conditions=conditions_record(self.conditions), show_input_columns=self.show_input_columns,
-            show_more_columns=self.show_more_columns,
-        )
+        return self.state.to_session()
 
     def _session_changed(self) -> None:
         """Save the session shortly (changes in a burst are written once)."""
@@ -446,7 +465,7 @@ class HalosiftApp(App[int]):
             self._session_seq += 1
             self._save_session(self.session_key, self.current_session(), self._session_seq)
 
-    @work(thread=True, group="session", exit_on_error=False)
+    @work(thread=True, group="session", exit_on_error=False, description="save the session")
     def _save_session(self, key: str, saved: Any, seq: int) -> None:
         """Write the session file (atomically) off the interface thread; an older state never replaces a newer one."""
         from halosift.tui.session import save
@@ -483,21 +502,15 @@ class HalosiftApp(App[int]):
         """Drop this library's session: no marks (z brings them back), input order, no filters, default conditions."""
         from halosift.engine import Conditions
 
-        if self.marked.any():
-            self._undo.append(MarksUndo(f"start fresh (cleared {counted(int(self.marked.sum()), 'mark')})", self.marked.copy()))
-            del self._undo[:-UNDO_DEPTH]
-            self.marked[:] = False
+        before = self.conditions
+        if self.state.start_fresh(Conditions(), f"start fresh (cleared {counted(self.state.n_marked, 'mark')})"):
             self.query_one(LibraryTable).set_marked(self.marked)
         self.query_one(SearchBar).value = ""
-        with self.batch_update():
-            self.set_reactive(HalosiftApp.sort, SortSpec())
-            self.set_reactive(HalosiftApp.filters, FilterSpec())
-            self.set_reactive(HalosiftApp.view, "library")
-            self.set_reactive(HalosiftApp.show_input_columns, False)
-            self.set_reactive(HalosiftApp.show_more_columns, False)
-            self.conditions = Conditions()  # re-weighs and requests the view
         self._to_top = True
-        self._request_view()
+        if self.conditions != before:
+            self._conditions_changed()  # re-weighs and requests the view
+        else:
+            self._request_view()
         self.notify("Started fresh: default conditions, input order, no filters, no marks (z brings the marks back)",
                     title="Session", timeout=8)
 
@@ -515,9 +528,11 @@ class HalosiftApp(App[int]):
     @property
     def rows_shown(self) -> bool:
         """True while the table lists rows: the whole library, or the part perceived so far."""
-        return self.phase == "ready" or (self.phase in ("streaming", "stopped") and self.library is not None)
+        return self.state.rows_shown
 
-    def watch_phase(self, phase: str) -> None:
+    def _show_phase(self) -> None:
+        """Show the widgets of the phase entered."""
+        phase = self.phase
         shown = self.rows_shown
         self.query_one("#screening").display = phase == "screening"
         self.query_one("#table").display = shown
@@ -531,6 +546,22 @@ class HalosiftApp(App[int]):
             self.query_one("#counts", Static).update("")
             self.query_one("#settings", Static).update("")
         self.refresh_bindings()
+        self._bindings_shown = self._bindings_state()
+
+    def _bindings_state(self) -> tuple[bool | None, ...]:
+        """What :meth:`check_action` says of each of the app's keys now."""
+        return tuple(self.check_action(action, ()) for action in self._binding_actions)
+
+    def _refresh_bindings_on_change(self) -> None:
+        """Redraw the footer's keys only when one of them was enabled or disabled.
+
+        Each refresh rebuilds the footer (tens of ms); rows streaming in change
+        the view twice a second without changing which keys apply.
+        """
+        state = self._bindings_state()
+        if state != self._bindings_shown:
+            self._bindings_shown = state
+            self.refresh_bindings()
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
         # While a text field has focus its keys are typing, not commands: hide them.
@@ -576,14 +607,14 @@ class HalosiftApp(App[int]):
 
     # ------------------------------------------------------------------ the view
 
-    def _text_columns(self) -> tuple[list[Hashable], list[Hashable]]:
-        """(ID columns, SMILES columns) the find text looks in."""
+    def _text_columns(self) -> TextColumns:
+        """The columns the find text looks in."""
         lib = self.library
         if lib is None:
-            return [], []
+            return TextColumns()
         names = lib.result_names()  # an input "canonical_smiles" is input_canonical_smiles in the frame
-        ids = [names[lib.id_column]] if lib.id_column is not None else []
-        return ids, [names[lib.smiles_column], "canonical_smiles"]
+        ids = (names[lib.id_column],) if lib.id_column is not None else ()
+        return TextColumns(ids, (names[lib.smiles_column], "canonical_smiles"))
 
     def _request_view(self) -> None:
         """Recompute (in a worker) the rows to show; the newest request wins."""
@@ -592,14 +623,16 @@ class HalosiftApp(App[int]):
         self._generation += 1
         self._session_changed()
         self._update_status()
-        self.refresh_bindings()
-        frame = self.frame if self.frame_conditions == self.conditions else None
+        self._refresh_bindings_on_change()
+        frame = self.frame if self.state.frame_is_current else None
         self._build_view(
             self._generation, self.library, self.conditions, frame, self.filters, self.sort, self.view,
             self.marked.copy(), self._text_columns(),
         )
 
-    @work(thread=True, exclusive=True, group="view", exit_on_error=False)
+    # Every worker is given a description: without one Textual writes one from repr() of each argument,
+    # on the interface thread, and the repr of a frame of 20,000 rows takes ~100 ms.
+    @work(thread=True, exclusive=True, group="view", exit_on_error=False, description="build the view")
     def _build_view(
         self,
         generation: int,
@@ -610,7 +643,7 @@ class HalosiftApp(App[int]):
         sort: SortSpec,
         view: str,
         marked: np.ndarray,
-        text_columns: tuple[list[Hashable], list[Hashable]],
+        text_columns: TextColumns,
     ) -> None:
         """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
         from halosift.engine.library import PENDING
@@ -622,7 +655,7 @@ class HalosiftApp(App[int]):
                 frame = library.evaluate(conditions)
             if worker.is_cancelled:
                 return
-            mask = view_mask(frame, view, spec, marked, *text_columns)
+            mask = view_mask(frame, view, spec, marked, text_columns.ids, text_columns.smiles)
             status = frame["status"].to_numpy()
             pending = status == PENDING
             mask = mask & ~pending  # not perceived yet: in no view until it is (the header counts it)
@@ -654,9 +687,8 @@ class HalosiftApp(App[int]):
         if message.generation != self._generation:
             return  # a newer request is on its way
         self._applied_generation = message.generation
-        self.frame = message.frame
-        self.frame_conditions = message.conditions
-        self._counts = (message.screened, len(message.frame) - message.screened - message.pending, message.pending)
+        self.state.take_view(message.frame, message.conditions,
+                             RowCounts.of(len(message.frame), message.screened, message.pending))
         table = self.query_one(LibraryTable)
         before, place = table.cursor_row, table.cursor - int(table.scroll_offset.y)
         table.show(message.frame, message.rows, self._columns(message.frame),
@@ -667,7 +699,7 @@ class HalosiftApp(App[int]):
             table.scroll_to(y=max(0, table.cursor - place), animate=False, force=True)
         self._to_top = False
         self._update_status()
-        self.refresh_bindings()
+        self._refresh_bindings_on_change()
 
     @property
     def busy(self) -> bool:
@@ -717,22 +749,32 @@ class HalosiftApp(App[int]):
         cols.append(Column(ROW_KEY, "Row", max(5, len(str(len(frame))) + 2), "row"))
         return cols
 
-    @staticmethod
-    def _text_width(frame: pd.DataFrame, column: Hashable, label: str, cap: int) -> int:
-        """Width for a column from its label and the first thousand values."""
+    def _text_width(self, frame: pd.DataFrame, column: Hashable, label: str, cap: int) -> int:
+        """Width for a column from its label and the first thousand values.
+
+        The input's own columns are measured once per library (they are the same
+        in every partial library and every evaluation); result columns each time.
+        """
+        key = (column, label, cap)
+        if column != "reason" and key in self._input_widths:
+            return self._input_widths[key]
         sample = frame[column].iloc[:1000].astype(str)
         longest = int(sample.str.len().fillna(0).max()) if len(sample) else 0  # missing values show empty
-        return max(len(label) + 2, min(cap, longest))
+        width = max(len(label) + 2, min(cap, longest))
+        if column != "reason":
+            self._input_widths[key] = width
+        return width
 
     def _update_status(self) -> None:
         if self.frame is None or self.conditions is None:
             return
         from halosift.tui.header import Phrase, cl2_forms, fit_phrases
 
-        ok, rejected, pending = self._counts
+        counts = self.state.counts
+        ok, rejected, pending = counts.screened, counts.rejected, counts.pending
         shown = len(self.query_one(LibraryTable).rows)
         total = len(self.frame)
-        marked = _count(int(self.marked.sum()))
+        marked = _count(self.state.n_marked)
         if pending or self.phase == "streaming":
             done = f"{_count(total - pending)} of {_count(total)}"
             counts = [Phrase((f"{done} {'row' if total == 1 else 'rows'} perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
@@ -796,28 +838,6 @@ class HalosiftApp(App[int]):
             self._titles.setdefault(ROW_KEY, "Row")
         return f"{column_title(self.sort.column, self._titles)} {'▼' if self.sort.descending else '▲'}"
 
-    def watch_view(self) -> None:
-        self._request_view()
-
-    def watch_filters(self) -> None:
-        self._request_view()
-
-    def watch_sort(self) -> None:
-        self._to_top = True  # a new order starts at its first row
-        self._request_view()
-
-    def watch_conditions(self, conditions: Any) -> None:
-        for screen in self.screen_stack:
-            if isinstance(screen, ConditionsScreen):
-                screen.applied = conditions  # the panel shows what the table now uses
-        self._request_view()
-
-    def watch_show_input_columns(self) -> None:
-        self._request_view()
-
-    def watch_show_more_columns(self) -> None:
-        self._request_view()
-
     # ------------------------------------------------------------------ table messages
 
     def on_cursor_moved(self, message: CursorMoved) -> None:
@@ -846,7 +866,7 @@ class HalosiftApp(App[int]):
         info.update(" · ".join(parts))
 
     def on_mark_requested(self, message: MarkRequested) -> None:
-        self.marked[message.row] = not self.marked[message.row]
+        self.state.toggle_mark(message.row)
         self._marks_changed()
         from halosift.tui.detail import DetailScreen
 
@@ -862,7 +882,8 @@ class HalosiftApp(App[int]):
             self._update_status()
 
     def on_sort_requested(self, message: SortRequested) -> None:
-        self.sort = SortSpec(message.column, message.descending)
+        if self.state.sort_by(message.column, message.descending):
+            self._sort_changed()
 
     def on_detail_moved(self, message: DetailMoved) -> None:
         self.query_one(LibraryTable).go_to_row(message.row)
@@ -886,16 +907,13 @@ class HalosiftApp(App[int]):
 
     def action_next_view(self) -> None:
         """Cycle library → shortlist → rejected."""
-        self.view = VIEWS[(VIEWS.index(self.view) + 1) % len(VIEWS)]
+        self.state.next_view()
+        self._request_view()
 
     def set_marks(self, rows: np.ndarray, value: bool, what: str) -> int:
         """Mark (or unmark) frame rows as one step that z can undo; returns how many marks changed."""
-        rows = np.asarray(rows, dtype=np.int64)
-        changed = int((self.marked[rows] != value).sum())
+        changed = self.state.set_marks(rows, value, what)
         if changed:
-            self._undo.append(MarksUndo(what, self.marked.copy()))
-            del self._undo[:-UNDO_DEPTH]
-            self.marked[rows] = value
             self._marks_changed()
         return changed
 
@@ -914,13 +932,12 @@ class HalosiftApp(App[int]):
 
     def action_undo_marks(self) -> None:
         """Undo the last mark-all, unmark-all or marks-from-file step."""
-        if not self._undo:
+        step = self.state.undo_marks()
+        if step is None:
             self.notify("Nothing to undo (z undoes a, u and marks from a file)", title="Marks")
             return
-        step = self._undo.pop()
-        self.marked[:] = step.marked
         self._marks_changed()
-        self.notify(f"Undone: {step.what}; {counted(int(self.marked.sum()), 'row')} marked", title="Marks")
+        self.notify(f"Undone: {step.what}; {counted(self.state.n_marked, 'row')} marked", title="Marks")
 
     def action_mark_from_file(self) -> None:
         """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
@@ -937,7 +954,7 @@ class HalosiftApp(App[int]):
 
         self.push_screen(IdListScreen(Path.cwd()), chosen)
 
-    @work(thread=True, exclusive=True, group="ids", exit_on_error=False)
+    @work(thread=True, exclusive=True, group="ids", exit_on_error=False, description="match an ID list")
     def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
         """Read an ID list and find its rows (pandas, off the interface thread)."""
         from halosift.tui.id_list import match_ids, read_ids
@@ -1009,10 +1026,11 @@ class HalosiftApp(App[int]):
 
     @on(SearchChanged)
     def _search_changed(self, message: SearchChanged) -> None:
-        if message.text != self.filters.text:
-            self.filters = replace(self.filters, text=message.text)
-        if self.view != "library" and message.text:
-            self.view = "library"
+        changed = self.state.set_search_text(message.text)
+        if message.text:
+            changed = self.state.set_view("library") or changed
+        if changed:
+            self._request_view()
 
     @on(ConditionsProposed)
     def _conditions_proposed(self, message: ConditionsProposed) -> None:
@@ -1051,7 +1069,7 @@ class HalosiftApp(App[int]):
             selection = f"{self.view} view: {counted(len(rows), 'row')}; {filters}; order: {order}"
         self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
 
-    @work(thread=True, exclusive=True, group="export", exit_on_error=False)
+    @work(thread=True, exclusive=True, group="export", exit_on_error=False, description="write an export")
     def _write_export(
         self, frame: pd.DataFrame, rows: np.ndarray | None, marked: np.ndarray | None, sort: SortSpec, path: Path,
         force: bool, conditions: Conditions, selection: str,

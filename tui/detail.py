@@ -7,6 +7,9 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
+from halosift.engine.outcomes import OUTCOME_REAGENTS
+from halosift.engine.reagents import REAGENTS
+from halosift.tui.filters import reagent_label
 from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
 from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
 from rich.console import Group
@@ -136,7 +139,9 @@ def nbs_text(nbs: pd.DataFrame, conditions: Any, width: int, ruled_reason: str |
 
 
 #: The reagents with an outcome, and how the detail names them (the order of engine.outcomes.OUTCOME_REAGENTS).
-OUTCOME_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", "nbs": "NBS"}
+OUTCOME_LABELS: dict[str, str] = {r: reagent_label(r) for r in OUTCOME_REAGENTS}
+#: The reagents weighed from the site table, with per-product percent columns (cl2_pct, br2_pct).
+SITE_REAGENTS: tuple[str, ...] = tuple(REAGENTS)
 
 
 def outcomes_text(record: Any, conditions: Any) -> Text:
@@ -188,7 +193,7 @@ def poly_text(products: pd.DataFrame, ruled: dict[str, str] | None = None) -> Te
     text.append("\nPolyhalogenation", style="bold")
     text.append(f" (estimate; {DEFAULT_RATIO:g} : 1 substrate : halogen, all halogen used)\n")
     h = products["h_count"].to_numpy()
-    for reagent in ("cl2", "br2"):
+    for reagent in SITE_REAGENTS:
         if reagent in ruled:
             text.append(ruled_out_line(reagent, ruled[reagent]))
             continue
@@ -210,9 +215,9 @@ def bars_text(products: pd.DataFrame, conditions: Any, width: int, ruled: dict[s
     from halosift.tui.structure_view import product_label
 
     ruled = ruled or {}
-    shown = [r for r in ("cl2", "br2") if r not in ruled]
+    shown = [r for r in SITE_REAGENTS if r not in ruled]
     text = Text()
-    for r in ("cl2", "br2"):
+    for r in SITE_REAGENTS:
         if r in ruled:
             text.append(f"{OUTCOME_LABELS[r]} at {conditions.temp_c(r):g} °C  ", style="bold")
             text.append("ruled out" + (f": {ruled[r]}" if ruled[r] else "") + "\n")
@@ -416,7 +421,7 @@ class DetailScreen(Screen):
         self.query_one("#detail-body", VerticalScroll).scroll_home(animate=False)  # a new row starts at its top
         self._work_out(self._request, self.row, str(record["canonical_smiles"]))
 
-    @work(thread=True, exclusive=True, group="detail", exit_on_error=False)
+    @work(thread=True, exclusive=True, group="detail", exit_on_error=False, description="work out a detail")
     def _work_out(self, request: int, row: int, canonical_smiles: str) -> None:
         """Work out one row's detail in a daemon thread and post it, unless the chemist has moved on.
 
@@ -485,7 +490,7 @@ class DetailScreen(Screen):
         )
         self.query_one("#detail-nbs", Static).update(nbs_text(result.nbs, self.conditions, width, ruled.get("nbs")))
         poly_box = self.query_one("#detail-poly", Static)
-        weighed = (products["cl2_pct"] > 0).any() and not {"cl2", "br2"} <= set(ruled)
+        weighed = (products["cl2_pct"] > 0).any() and not set(SITE_REAGENTS) <= set(ruled)
         poly_box.update(poly_text(products, ruled) if weighed else "")
         stereo = sorted(s for s in set(products["stereo"]) if s)
         notes = Text()

@@ -5,18 +5,17 @@ from __future__ import annotations
 from collections.abc import Iterable
 from typing import ClassVar
 
-from halosift.engine.outcomes import VERDICTS
+from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES, VERDICTS
+from halosift.engine.special_sites import FLAGS
+from halosift.engine.stereo import ACHIRAL
 from halosift.tui.filters import (
-    CONFIDENCE_CHOICES,
     DUPLICATE_MODES,
-    FLAG_CHOICES,
-    FLAG_LABELS,
-    NO_NEW_STEREO,
-    OUTCOME_CHOICES,
-    OUTCOME_VALUES,
     FilterSpec,
+    confidence_choices,
+    flag_label,
     parse_optional_float,
     parse_optional_int,
+    reagent_label,
 )
 from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
 from textual import events, on
@@ -30,7 +29,9 @@ from textual.widgets import Button, Footer, Input, Label, Static
 #: Verdict names in display order (the engine's own order).
 VERDICT_ORDER = VERDICTS
 #: How each reagent is named in the form.
-REAGENT_LABELS: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", "nbs": "NBS"}
+REAGENT_LABELS: dict[str, str] = {r: reagent_label(r) for r in OUTCOME_REAGENTS}
+#: Confidence values, strongest basis first.
+CONFIDENCE_CHOICES = confidence_choices()
 #: Short labels of the duplicate modes (tui.filters.DUPLICATE_MODES says what each does).
 DUPLICATE_LABELS: dict[str, str] = {"all": "all rows", "hide": "hide repeats", "only": "only repeats"}
 
@@ -108,7 +109,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                 yield Input(_text(spec.max_products), id="max-products", type="integer", compact=True, placeholder="any")
                 yield Label("products (constitutional monohalides)", classes="filter-label")
             yield TickBox(
-                f"No new stereocentre (Br2 major product {NO_NEW_STEREO})",
+                f"No new stereocentre (Br2 major product {ACHIRAL})",
                 spec.no_new_stereo,
                 id="no-new-stereo",
                 compact=True,
@@ -125,19 +126,19 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             else:
                 yield Label(self.no_sites_reason, id="no-sites", classes="filter-row")
             yield Label("Outcome per reagent (none ticked: any outcome)")
-            reagent_width = _name_width(REAGENT_LABELS[r] for r in OUTCOME_CHOICES)
-            for reagent in OUTCOME_CHOICES:
+            reagent_width = _name_width(REAGENT_LABELS[r] for r in OUTCOME_REAGENTS)
+            for reagent in OUTCOME_REAGENTS:
                 kept = spec.outcomes_for(reagent)
                 with Horizontal(classes="filter-row name-row"):
                     yield _row_name(REAGENT_LABELS[reagent], reagent_width)
-                    for outcome in OUTCOME_VALUES:
+                    for outcome in OUTCOMES:
                         yield TickBox(outcome, outcome in kept, id=f"outcome-{reagent}-{outcome}", compact=True)
             yield Label("Special-site flags")
-            flag_width = _name_width([FLAG_LABELS[f] for f in FLAG_CHOICES])
-            for flag in FLAG_CHOICES:
+            flag_width = _name_width([flag_label(f) for f in FLAGS])
+            for flag in FLAGS:
                 state = "has" if flag in spec.flags_has else "lacks" if flag in spec.flags_lacks else "any"
                 with Horizontal(classes="filter-row name-row"):
-                    yield _row_name(FLAG_LABELS[flag], flag_width)
+                    yield _row_name(flag_label(flag), flag_width)
                     with ChoiceSet(id=f"flag-{flag}", classes="choice-row", compact=True):
                         for choice, label in (("any", "either"), ("has", "has it"), ("lacks", "lacks it")):
                             yield ChoiceButton(label, state == choice, id=f"flag-{flag}-{choice}", compact=True)
@@ -187,10 +188,10 @@ class FilterForm(ModalScreen[FilterSpec | None]):
             site_match=match,
             no_new_stereo=self.query_one("#no-new-stereo", TickBox).value,
             text=self.query_one("#filter-text", Input).value.strip(),
-            flags_has=frozenset(f for f in FLAG_CHOICES if self.query_one(f"#flag-{f}-has", ChoiceButton).value),
-            flags_lacks=frozenset(f for f in FLAG_CHOICES if self.query_one(f"#flag-{f}-lacks", ChoiceButton).value),
+            flags_has=frozenset(f for f in FLAGS if self.query_one(f"#flag-{f}-has", ChoiceButton).value),
+            flags_lacks=frozenset(f for f in FLAGS if self.query_one(f"#flag-{f}-lacks", ChoiceButton).value),
             outcomes=frozenset(
-                (r, o) for r in OUTCOME_CHOICES for o in OUTCOME_VALUES
+                (r, o) for r in OUTCOME_REAGENTS for o in OUTCOMES
                 if self.query_one(f"#outcome-{r}-{o}", TickBox).value
             ),
             confidence=frozenset(c for c in CONFIDENCE_CHOICES if self.query_one("#" + _confidence_id(c), TickBox).value),

@@ -28,25 +28,12 @@ VIEW_DOCS: dict[str, str] = {
     "shortlist": "every marked row, filters ignored",
     "rejected": "rows the engine could not model, with the reason; filters ignored",
 }
-#: Stereo outcome that counts as "no new stereocentre" (of the bromination major product).
-NO_NEW_STEREO = "achiral"
-# The next four copy engine names so the app can import this module (and paint) before
-# the engine has loaded; tests/test_tui_filters.py checks they equal the engine's.
-#: Special-site flags a row can be filtered on (engine.special_sites.FLAGS, same order).
-FLAG_CHOICES: tuple[str, ...] = (
-    "cyclopropylmethyl", "bridgehead", "cage", "cyclopropane", "central_bond", "alkene", "alkyne",
-)
-#: What the chemist reads for each flag in the filter form (the stored id, e.g. central_bond, is not for display).
-FLAG_LABELS: dict[str, str] = {
-    "cyclopropylmethyl": "cyclopropylmethyl", "bridgehead": "bridgehead", "cage": "cage",
-    "cyclopropane": "cyclopropane", "central_bond": "central C–C bond", "alkene": "alkene", "alkyne": "alkyne",
-}
-#: Reagents with an ``<reagent>_outcome`` column (engine.outcomes.OUTCOME_REAGENTS).
-OUTCOME_CHOICES: tuple[str, ...] = ("cl2", "br2", "so2cl2", "nbs")
-#: The outcomes a reagent can take (engine.outcomes.OUTCOMES).
-OUTCOME_VALUES: tuple[str, ...] = ("clean", "mixture", "ruled-out")
-#: Confidence values of the ``confidence`` column, strongest basis first (engine.weigh.BASES reversed).
-CONFIDENCE_CHOICES: tuple[str, ...] = ("measured", "textbook", "from memory", "estimate")
+# The names rows are filtered on (flags, reagents, outcomes, confidence bases, stereo outcomes)
+# are the engine's own, read from it where they are used: this module is imported before the
+# engine has loaded (so the app paints at once), and the rules below only run on an evaluated
+# frame, by which time it has.
+#: How a flag reads in the filter form where its stored id (engine.special_sites.FLAGS) is not for display.
+FLAG_WORDING: dict[str, str] = {"central_bond": "central C–C bond"}
 #: Duplicate filter modes: every row / first occurrence of each structure only / only rows repeating an earlier one.
 DUPLICATE_MODES: dict[str, str] = {
     "all": "show every row",
@@ -120,12 +107,15 @@ class FilterSpec:
             parts.append("flags " + " and ".join(sorted(self.flags_has)))
         if self.flags_lacks:
             parts.append("no " + " or ".join(sorted(self.flags_lacks)))
-        for reagent in OUTCOME_CHOICES:
-            kept = self.outcomes_for(reagent)
-            if kept:
-                parts.append(f"{reagent} " + "/".join(o for o in OUTCOME_VALUES if o in kept))
+        if self.outcomes:
+            from halosift.engine.outcomes import OUTCOME_REAGENTS, OUTCOMES
+
+            for reagent in OUTCOME_REAGENTS:
+                kept = self.outcomes_for(reagent)
+                if kept:
+                    parts.append(f"{reagent} " + "/".join(o for o in OUTCOMES if o in kept))
         if self.confidence:
-            parts.append("confidence " + "/".join(c for c in CONFIDENCE_CHOICES if c in self.confidence))
+            parts.append("confidence " + "/".join(c for c in confidence_choices() if c in self.confidence))
         if self.duplicates == "hide":
             parts.append("repeats hidden")
         elif self.duplicates == "only":
@@ -140,6 +130,16 @@ class FilterSpec:
 
 
 @dataclass(frozen=True)
+class TextColumns:
+    """The columns of the evaluated frame the find text looks in."""
+
+    ids: tuple[Hashable, ...] = ()
+    """ID columns, matched ignoring case."""
+    smiles: tuple[Hashable, ...] = ()
+    """SMILES columns, matched with case kept (in SMILES, c is aromatic and C is not)."""
+
+
+@dataclass(frozen=True)
 class SortSpec:
     """Row order of a view."""
 
@@ -147,6 +147,25 @@ class SortSpec:
     """Column of the evaluated frame to sort by; None keeps input order."""
     descending: bool = False
     """Largest (or last) first."""
+
+
+def flag_label(flag: str) -> str:
+    """What the chemist reads for a special-site flag."""
+    return FLAG_WORDING.get(flag, flag)
+
+
+def reagent_label(reagent: str) -> str:
+    """How the app names a reagent: the engine's label up to its comma ('Cl2, light' → 'Cl2')."""
+    from halosift.engine.reagents import REAGENT_LABELS
+
+    return REAGENT_LABELS[reagent].split(",")[0]
+
+
+def confidence_choices() -> tuple[str, ...]:
+    """Confidence values of the ``confidence`` column, strongest basis first (engine.rates.CONFIDENCE_BASES reversed)."""
+    from halosift.engine.rates import CONFIDENCE_BASES
+
+    return tuple(reversed(CONFIDENCE_BASES))
 
 
 def parse_optional_float(text: str, *, lo: float, hi: float, what: str) -> float | None:
@@ -252,12 +271,16 @@ def filter_mask(
         else:
             mask &= _by_unique(frame["site_types"], lambda v: bool(wanted & site_set(v)))
     if spec.no_new_stereo:
-        mask &= _by_unique(frame["stereo"], lambda v: v == NO_NEW_STEREO)
+        from halosift.engine.stereo import ACHIRAL
+
+        mask &= _by_unique(frame["stereo"], lambda v: v == ACHIRAL)
     if spec.flags_has or spec.flags_lacks:
         has, lacks = spec.flags_has, spec.flags_lacks
         mask &= _by_unique(frame["flags"].fillna(""),
                            lambda v: has <= site_set(v) and not lacks & site_set(v))
-    for reagent in OUTCOME_CHOICES:
+    from halosift.engine.outcomes import OUTCOME_REAGENTS
+
+    for reagent in OUTCOME_REAGENTS:
         kept = spec.outcomes_for(reagent)
         if kept:
             mask &= _by_unique(frame[f"{reagent}_outcome"], lambda v, kept=kept: v in kept)

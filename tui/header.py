@@ -47,8 +47,10 @@ def column_title(key: Hashable, known: dict[Hashable, str]) -> str:
     """The title a chemist reads for a frame column: its table label, else a readable form of its name."""
     if key in known:
         return known[key]
+    from halosift.engine.outcomes import OUTCOME_REAGENTS
+
     name = str(key)
-    for reagent in ("cl2", "br2", "nbs", "so2cl2"):
+    for reagent in OUTCOME_REAGENTS:
         if name.startswith(reagent + "_"):
             name = reagent.capitalize() + " " + name[len(reagent) + 1:]
     name = name.replace("_pct", " %").replace("_", " ")

@@ -4,9 +4,10 @@ from __future__ import annotations
 
 from typing import ClassVar
 
-from halosift.engine.outcomes import OUTCOME_DOCS
+from halosift.engine.outcomes import OUTCOME_DOCS, OUTCOME_REAGENTS
 from halosift.engine.outcomes import VERDICT_DOCS as _ENGINE_VERDICT_DOCS
-from halosift.tui.filters import NO_NEW_STEREO, VIEW_DOCS
+from halosift.engine.stereo import ACHIRAL, STEREO_DOCS
+from halosift.tui.filters import VIEW_DOCS, confidence_choices
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
@@ -22,18 +23,9 @@ VERDICT_DOCS: dict[str, str] = {
     "rejected": "the engine could not model the row; the reason is given",
 }
 
-#: What each stereo outcome of a product means (words of their own: none is a verdict word).
-STEREO_DOCS: dict[str, str] = {
-    "achiral": "no new stereocentre",
-    "one-enantiomer": "one chiral stereoisomer (existing stereo carried through)",
-    "racemate": "a new stereocentre, formed as both enantiomers",
-    "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
-    "not counted": "too many open stereo elements to count within the per-structure budget; the number is an upper bound",
-}
-
 #: What the confidence column means (also quoted by the detail screen).
 CONFIDENCE_NOTE = (
-    "the weakest basis (measured > textbook > from memory > estimate) of the values behind the products that "
+    f"the weakest basis ({' > '.join(confidence_choices())}) of the values behind the products that "
     "carry ≥ 5 % under Cl2, Br2 or NBS (rate constants, exo/endo and allyl-terminus splits); 'from memory': a "
     "published value quoted without re-checking its source"
 )
@@ -157,14 +149,14 @@ class HelpScreen(Screen):
         threshold = getattr(self.app.conditions, "threshold_pct", None)
         shown = "the threshold" if threshold is None else f"{threshold:g}"
         rows = [(v, VERDICT_DOCS[v].format(threshold=shown)) for v in VERDICT_DOCS]
-        rows.append(("Serves", "the reagent offered: first of cl2, br2, so2cl2, nbs whose outcome is clean; a "
+        rows.append(("Serves", f"the reagent offered: first of {', '.join(OUTCOME_REAGENTS)} whose outcome is clean; a "
                      "mixture or ruled-out reagent is never offered"))
         rows.append(("outcomes", "Cl2, Br2, SO2Cl2 and NBS columns: what each reagent does; the verdict and "
                      "Serves are read off them only, and a reagent is offered only when it is clean; a ruled-out "
                      "reagent's major, % and polyhalide cells are blank (they sort last)"))
         rows += [(f"  {k}", v.format(threshold=shown)) for k, v in OUTCOME_DOCS.items()]
         rows.append(("Br2 stereo", f"stereo outcome of bromination's major product; "
-                     f"“no new stereocentre” filter keeps {NO_NEW_STEREO} only"))
+                     f"“no new stereocentre” filter keeps {ACHIRAL} only"))
         rows += [(f"  {k}", v) for k, v in STEREO_DOCS.items()]
         return self._section("Verdicts (per row, under the current conditions)", rows)
 

@@ -77,6 +77,30 @@ class Session:
     """The extra result columns are shown."""
 
 
+@dataclass(frozen=True)
+class Opened:
+    """What opening a library found of its saved session."""
+
+    session: Session | None
+    """The session to restore (None: none saved, not usable for this library, or starting fresh)."""
+    key: str | None
+    """The library's session key (None: sessions are off for this library)."""
+    note: str = ""
+    """One line about a saved session that could not be used or removed ('' when there is nothing to say)."""
+
+
+@dataclass(frozen=True)
+class ScreenStart:
+    """What a screen starts from, worked out once the library's row count is known."""
+
+    opened: Opened
+    """The saved session found for the library."""
+    conditions: Any
+    """engine.Conditions to evaluate under: the saved ones with the command line's options over them."""
+    note: str = ""
+    """Every note about the session and the conditions, in one line ('' when there is none)."""
+
+
 def encode(session: Session) -> str:
     """The session as JSON text (marks packed eight to a byte)."""
     spec = session.filters

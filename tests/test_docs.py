@@ -205,3 +205,19 @@ def test_readme_column_table_is_the_screens_output_and_its_docs() -> None:
     for name, meaning in table:
         assert meaning == RESULT_DOCS[name], name
     assert set(RESULT_DOCS) >= set(added)
+
+
+def test_readme_shell_examples_print_what_the_program_prints() -> None:
+    """The class of error: the explain example went stale after a model change (55.3 shown, 50.7 printed).
+    Every ``$ halosift …`` block in the README is run, and each line it shows must be a line of the output."""
+    import shlex
+
+    text = README.read_text(encoding="utf-8")
+    blocks = re.findall(r"```\n\$ (halosift [^\n]+)\n(.*?)```", text, flags=re.S)
+    assert blocks, "the README shows no command with its output"
+    for command, shown in blocks:
+        argv = [sys.executable, "-m", "halosift", *shlex.split(command)[1:]]
+        run = subprocess.run(argv, capture_output=True, text=True, cwd=README.parent, timeout=300)
+        printed = {line.rstrip() for line in run.stdout.splitlines()}
+        for line in shown.splitlines():
+            assert line.rstrip() in printed, f"README shows for {command!r} a line the program does not print: {line!r}"

@@ -26,10 +26,11 @@ from dataclasses import dataclass
 import numpy as np
 from halosift.engine import parameters as P
 from halosift.engine.conditions import Conditions
+from halosift.engine.reagents import RADICAL_OF
 
 #: Every reagent with an outcome column, in the order ``serves`` tries them: the plainest that is clean wins
 #: (a rule of this program). SO2Cl2 is weighed as Cl· at its own temperature.
-OUTCOME_REAGENTS: tuple[str, ...] = ("cl2", "br2", "so2cl2", "nbs")
+OUTCOME_REAGENTS: tuple[str, ...] = tuple(RADICAL_OF)  # cl2, br2, so2cl2, nbs
 #: Reagents weighed from the site table (the others — NBS — from the allylic table).
 SITE_REAGENTS: tuple[str, ...] = ("cl2", "br2", "so2cl2")
 #: Outcome words, in code order (code 0 is '' for rejected rows).

@@ -45,10 +45,14 @@ def _temp_arg(text: str) -> tuple[str | None, float]:
     if not sep:
         name, value = "", text
     name = name.strip().lower()
-    if name and name not in ("cl2", "br2", "so2cl2", "nbs"):
-        raise argparse.ArgumentTypeError(
-            f"unknown reagent {name!r} in --temp (use cl2=°C, br2=°C, so2cl2=°C or nbs=°C)"
-        )
+    if name:
+        from halosift.engine.reagents import RADICAL_OF  # the engine's reagent names (only when --temp is given)
+
+        if name not in RADICAL_OF:
+            uses = [f"{r}=°C" for r in RADICAL_OF]
+            raise argparse.ArgumentTypeError(
+                f"unknown reagent {name!r} in --temp (use {', '.join(uses[:-1])} or {uses[-1]})"
+            )
     try:
         return (name or None), float(value)
     except ValueError:

@@ -205,3 +205,11 @@ def test_readme_column_table_is_the_screens_output_and_its_docs() -> None:
     for name, meaning in table:
         assert meaning == RESULT_DOCS[name], name
     assert set(RESULT_DOCS) >= set(added)
+
+
+def test_readme_defines_each_stereo_outcome_in_the_engine_words() -> None:
+    from halosift.engine.stereo import STEREO_DOCS
+
+    text = README.read_text(encoding="utf-8")
+    for outcome, meaning in STEREO_DOCS.items():
+        assert f"**{outcome}**: {meaning}" in text, outcome

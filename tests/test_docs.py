@@ -212,4 +212,4 @@ def test_readme_defines_each_stereo_outcome_in_the_engine_words() -> None:
 
     text = README.read_text(encoding="utf-8")
     for outcome, meaning in STEREO_DOCS.items():
-        assert f"**{outcome}**: {meaning}" in text, outcome
+        assert f"{outcome} — {meaning}" in text, outcome

@@ -615,7 +615,7 @@ class HalosiftApp(App[int]):
                 total = len(self.frame) if self.frame is not None else 0
                 done = total - self.state.counts.pending
                 more = " (r resumes)" if phase == "stopped" else ""
-                return f"Export waits for the whole library: {done:,} of {total:,} rows perceived{more}"
+                return f"Export waits for the whole library: {done:,} of {counted(total, 'row')} perceived{more}"
             if self.busy:
                 return "Export waits for the table to finish updating"
         return None

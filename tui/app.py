@@ -330,8 +330,9 @@ class HalosiftApp(App[int]):
 
                     # Saved conditions, with the command line's explicit options winning field by field.
                     saved = opened.session.conditions if opened.session is not None else None
-                    conditions, cond_note = initial_conditions(saved, self.explicit_conditions)
-                    note = " ".join(n for n in (note, cond_note) if n)
+                    opening = initial_conditions(saved, self.explicit_conditions)
+                    conditions = opening.conditions
+                    note = " ".join(n for n in (note, opening.note) if n)
                 start.append(ScreenStart(opened, conditions, note))
             return start[0]
 
@@ -390,7 +391,8 @@ class HalosiftApp(App[int]):
             except OSError as exc:
                 return sessions.Opened(None, key, f"The saved session could not be removed: {one_line(exc)}")
             return sessions.Opened(None, key)
-        saved, note = sessions.load(key)
+        loaded = sessions.load(key)
+        saved, note = loaded.session, loaded.note
         if saved is not None and saved.n_rows != n_rows:
             return sessions.Opened(None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not "
                                                f"{n_rows:,}, and is ignored; this one starts fresh."))
@@ -847,11 +849,11 @@ class HalosiftApp(App[int]):
         width = max(20, self.size.width - 2)  # the lines' padding
         self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
-        cl2_long, cl2_short = cl2_forms(cond)
+        cl2 = cl2_forms(cond)
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
         settings = [
-            Phrase((f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
+            Phrase((f"{cl2.long} · {temps}", f"{cl2.short} · {temps}"), keep=4),
             Phrase((f"sort {sort}", sort), keep=3),
         ]
         if self.view != "library":

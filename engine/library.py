@@ -20,6 +20,7 @@ from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.perception import Perception, concat, perceive
 from halosift.engine.rates import enthalpy_of_abstraction
 from halosift.engine.site_classes import ABSTRACTABLE
+from halosift.engine.stereo import STEREO_DOCS
 from halosift.engine.weigh import SUMMARY_COLUMNS, summarise, weigh
 
 _HOT_ALKENE = (
@@ -48,11 +49,11 @@ RESULT_DOCS: dict[str, str] = {
         "not re-canonicalised); empty when br2_outcome is ruled-out"
     ),
     "br2_major_pct": "its share of the monobromides, percent; empty when br2_outcome is ruled-out",
+    # Each outcome in the words the help and the detail use (engine.stereo.STEREO_DOCS).
     "stereo": (
-        "stereo outcome of the bromination major product: achiral / one-enantiomer (one chiral stereoisomer, "
-        "configuration fixed by the input) / racemate / diastereomers / not counted (too many open stereo "
-        "elements for the per-structure budget; the count shown is an upper bound); empty when br2_outcome is "
-        "ruled-out"
+        "stereo outcome of the bromination major product, one of: "
+        + "; ".join(f"{outcome} — {meaning}" for outcome, meaning in STEREO_DOCS.items())
+        + "; empty when br2_outcome is ruled-out"
     ),
     "site_types": "abstractable site classes present, comma-separated",
     "confidence": (

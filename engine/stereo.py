@@ -49,7 +49,10 @@ STEREO_DOCS: dict[str, str] = {
     ACHIRAL: "no new stereocentre",
     "one-enantiomer": "one chiral stereoisomer (existing stereo carried through)",
     "racemate": "a new stereocentre, formed as both enantiomers",
-    "diastereomers": "a new stereocentre beside existing ones: diastereomers form",
+    # Not only "beside existing ones": 2-chloronorbornane from achiral norbornane forms exo and endo, each a
+    # racemate, so new stereocentres alone can give diastereomers.
+    "diastereomers": ("stereoisomers that are not all mirror images form: a new stereocentre beside existing ones, "
+                      "or new stereocentres that are diastereomeric among themselves (exo/endo 2-chloronorbornane)"),
     NOT_COUNTED: "too many open stereo elements to count within the per-structure budget; the number is an upper bound",
 }
 

@@ -221,3 +221,11 @@ def test_readme_shell_examples_print_what_the_program_prints() -> None:
         printed = {line.rstrip() for line in run.stdout.splitlines()}
         for line in shown.splitlines():
             assert line.rstrip() in printed, f"README shows for {command!r} a line the program does not print: {line!r}"
+
+
+def test_readme_defines_each_stereo_outcome_in_the_engine_words() -> None:
+    from halosift.engine.stereo import STEREO_DOCS
+
+    text = README.read_text(encoding="utf-8")
+    for outcome, meaning in STEREO_DOCS.items():
+        assert f"{outcome} — {meaning}" in text, outcome

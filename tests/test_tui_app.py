@@ -13,7 +13,7 @@ import pytest
 from halosift.tui.app import HalosiftApp, run
 from halosift.tui.conditions import ConditionsScreen
 from halosift.tui.detail import DetailScreen, bar
-from halosift.tui.export import ConfirmScreen, ExportScreen, check_export_path
+from halosift.tui.export import ConfirmScreen, ExportScreen, ExportTarget, check_export_path
 from halosift.tui.filter_form import FilterForm
 from halosift.tui.help import HelpScreen
 from halosift.tui.table import ROW_KEY, LibraryTable
@@ -450,10 +450,11 @@ async def test_help_lists_bindings_verdicts_sources_and_caution(tmp_path):
 
 
 def test_export_path_checks(tmp_path):
-    path, fmt = check_export_path("out.parquet", tmp_path)
+    target = check_export_path("out.parquet", tmp_path)
+    path, fmt = target.path, target.format
     assert path == tmp_path / "out.parquet" and fmt == "parquet"
-    assert check_export_path("x.sdf.gz", tmp_path)[1] == "sdf"
-    assert check_export_path("Report.HTML", tmp_path) == (tmp_path / "Report.HTML", "html")
+    assert check_export_path("x.sdf.gz", tmp_path).format == "sdf"
+    assert check_export_path("Report.HTML", tmp_path) == ExportTarget(tmp_path / "Report.HTML", "html")
     with pytest.raises(ValueError, match="unknown file type"):
         check_export_path("out.xlsx", tmp_path)
     with pytest.raises(ValueError, match="does not exist"):
@@ -463,7 +464,7 @@ def test_export_path_checks(tmp_path):
     source = small_library(tmp_path)
     with pytest.raises(ValueError, match="library being screened"):
         check_export_path(source.name, tmp_path, [source])
-    assert check_export_path("other.csv", tmp_path, [source])[0] == tmp_path / "other.csv"
+    assert check_export_path("other.csv", tmp_path, [source]).path == tmp_path / "other.csv"
 
 
 def test_bar_glyphs():

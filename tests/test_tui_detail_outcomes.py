@@ -112,3 +112,29 @@ async def test_ruled_out_reagents_show_no_share_in_table_or_detail(tmp_path):
             assert "99.2" not in bars
             await pilot.press("escape")
             await settle(pilot)
+
+
+@async_test
+async def test_norbornane_diastereomers_are_defined_alike_in_detail_and_help(tmp_path):
+    """2-chloronorbornane (exo/endo from achiral norbornane) is 'diastereomers'; detail and help define it so."""
+    from halosift.engine.stereo import STEREO_DOCS
+    from halosift.tui.help import HelpScreen
+
+    meaning = STEREO_DOCS["diastereomers"]
+    assert "exo/endo" in meaning and "among themselves" in meaning  # not only "beside existing ones"
+    path = tmp_path / "norbornane.csv"
+    pd.DataFrame({"id": ["WF-N1"], "smiles": ["C1CC2CCC1C2"]}).to_csv(path, index=False)
+    app = HalosiftApp(str(path), sessions=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot, app)
+        assert app.frame["stereo"].iloc[0] == "diastereomers"
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert isinstance(app.screen, DetailScreen)
+        notes = " ".join(plain(app.screen.query_one("#detail-notes")).split())
+        assert f"diastereomers: {meaning}" in notes
+        await pilot.press("escape", "question_mark")
+        await pilot.pause(0.3)
+        assert isinstance(app.screen, HelpScreen)
+        verdicts = " ".join(plain(app.screen.query_one("#help-verdicts")).split())
+        assert f"diastereomers {meaning}" in verdicts

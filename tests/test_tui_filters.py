@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
+from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import (
     DUPLICATE_MODES,
     FilterSpec,
@@ -21,6 +22,7 @@ from halosift.tui.filters import (
     text_mask,
     view_mask,
 )
+from tui_helpers import QX_ROWS, async_test, settle
 
 TEXT = (["code"], ["smiles"])
 
@@ -340,3 +342,31 @@ def test_filter_form_sets_the_new_filters_and_the_view_follows(tmp_path, monkeyp
             assert form.query_one("#dup-hide").value and not form.query_one("#confidence-estimate").value
 
     asyncio.run(run())
+
+
+@pytest.mark.parametrize("width", [80, 81, 86, 100])
+@async_test
+async def test_every_filter_form_label_shows_whole(tmp_path, width):
+    """Site types and flags are read whole at 80 columns and wider: no label ends in '…'."""
+    from halosift.tui.toggles import TickBox
+    from textual.widgets import RadioButton
+
+    # Propargylic-tertiary (3-methyl-1-butyne) is the longest site name here: three to a line at some widths.
+    path = tmp_path / "sites.csv"
+    pd.DataFrame(QX_ROWS + [("QX-0101", "C#CC(C)C")], columns=["id", "smiles"]).to_csv(path, index=False)
+    app = HalosiftApp(str(path), sessions=False)
+    async with app.run_test(size=(width, 24)) as pilot:
+        await settle(pilot, app)
+        await pilot.press("f")
+        await pilot.pause(0.3)
+        form = app.screen
+        assert form.query_one("#site-propargylic-tertiary")
+        cut = []
+        for widget in form.query("TickBox, RadioButton, Label"):
+            label = str(widget.label) if isinstance(widget, (TickBox, RadioButton)) else str(widget.render())
+            shown = " ".join("".join(s.text for s in widget.render_line(y)).strip()
+                             for y in range(widget.size.height))
+            words = label.split()
+            if "…" in shown or any(word not in shown for word in words):
+                cut.append((label, shown))
+        assert cut == []

@@ -198,10 +198,34 @@ def test_grown_leaves_fixed_columns_alone():
 
     cols = [Column("id", "ID", 8), Column("s", "SMILES", 20, grow_to=50), Column("v", "Verdict", 12, "verdict")]
     assert grown(cols, 80) == cols
-    assert [c.width for c in grown(cols, 120)] == [8, 40, 12]
+    assert [c.width for c in grown(cols, 120)] == [8, 50, 12]  # everything fits: the SMILES takes all it needs
     assert [c.width for c in grown(cols, 400)] == [8, 50, 12]
-    # A number column in view at the own widths keeps the cells it needs: only half of what is beyond it is shared.
+    # Beyond the last number column shown whole, the cells go to the growing column as far as it needs (every
+    # number in view stays in view); the text column after it is then whole or out of view, never a stub ("di…").
     with_number = [*cols, Column("m", "Br2 major", 40), Column("p", "Br2 %", 7, "pct"), Column("t", "text", 30)]
     end = 2 + 9 + 13 + 21 + 41 + 7  # gutter, ID, verdict, SMILES, Br2 major, Br2 % (with the cells between)
-    assert [c.width for c in grown(with_number, 120)][1] == 20 + (120 - end) // 2
+    assert [c.width for c in grown(with_number, 120)][1] == 20 + (120 - end)
+    # Two growing columns share the cells; one that reaches its longest value passes the rest on.
+    two = [Column("id", "ID", 8), Column("s", "SMILES", 20, grow_to=24), Column("r", "Reason", 56, grow_to=160)]
+    assert [c.width for c in grown(two, 120)] == [8, 24, 120 - 2 - 9 - 25]
     assert [c.width for c in grown(with_number, 80)][1] == 20
+
+
+@async_test
+async def test_rejection_reasons_take_the_room_a_wide_terminal_has(tmp_path):
+    import pandas as pd
+
+    bad = "not a smiles " * 6  # an invented unparsable entry: its reason quotes it, so it is long
+    path = tmp_path / "bad.csv"
+    pd.DataFrame([("WS-3201", bad.strip()), ("WS-3202", "CCC")], columns=["id", "smiles"]).to_csv(path, index=False)
+    app = HalosiftApp(str(path), sessions=False)
+    async with app.run_test(size=(200, 30)) as pilot:
+        await settle(pilot)
+        await pilot.press("v", "v")
+        await settle(pilot)
+        table = app.query_one(LibraryTable)
+        reason = app.frame["reason"].iloc[0]
+        assert len(reason) > 80
+        table._fill_window()
+        line = table.render_line(1).text
+        assert reason in line and "…" not in line  # room enough: the reason and the SMILES are whole

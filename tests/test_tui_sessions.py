@@ -138,7 +138,7 @@ def test_save_is_atomic_and_leaves_no_temp_file(tmp_path):
     saved = sessions.Session(3, np.array([True, False, True]))
     path = sessions.save("abc", saved, tmp_path)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["abc.json"]
-    assert (sessions.load("abc", tmp_path)[0].marked == saved.marked).all()
+    assert (sessions.load("abc", tmp_path).session.marked == saved.marked).all()
     assert path == sessions.path_for("abc", tmp_path)
 
 
@@ -169,14 +169,18 @@ def test_new_filters_round_trip_and_old_files_still_load():
 def test_initial_conditions_explicit_options_win_field_by_field():
     saved = sessions.conditions_record(engine.Conditions(br2_temp_c=100.0, cl2_solvent="benzene",
                                                          cl2_solvent_molar=4.0))
-    cond, note = sessions.initial_conditions(saved, {"br2_temp_c": 60.0})
+    opening = sessions.initial_conditions(saved, {"br2_temp_c": 60.0})
+    cond, note = opening.conditions, opening.note
     assert cond == engine.Conditions(br2_temp_c=60.0, cl2_solvent="benzene", cl2_solvent_molar=4.0) and not note
-    assert sessions.initial_conditions(saved, {})[0].br2_temp_c == 100.0
-    assert sessions.initial_conditions(None, {"threshold_pct": 80.0}) == (engine.Conditions(threshold_pct=80.0), "")
+    assert sessions.initial_conditions(saved, {}).conditions.br2_temp_c == 100.0
+    assert sessions.initial_conditions(None, {"threshold_pct": 80.0}) == sessions.OpeningConditions(
+        engine.Conditions(threshold_pct=80.0), "")
     # Gas phase does not combine with the saved solvent: the options over the defaults, with a note.
-    cond, note = sessions.initial_conditions(saved, {"cl2_phase": "gas"})
+    opening = sessions.initial_conditions(saved, {"cl2_phase": "gas"})
+    cond, note = opening.conditions, opening.note
     assert cond == engine.Conditions(cl2_phase="gas") and "do not combine" in note
-    cond, note = sessions.initial_conditions({"br2_temp_c": -500.0}, {"cl2_temp_c": 30.0})
+    opening = sessions.initial_conditions({"br2_temp_c": -500.0}, {"cl2_temp_c": 30.0})
+    cond, note = opening.conditions, opening.note
     assert cond == engine.Conditions(cl2_temp_c=30.0) and "not usable" in note
 
 

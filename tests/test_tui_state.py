@@ -122,7 +122,8 @@ def test_session_round_trip(tmp_path) -> None:
     state.set_view("shortlist")
     state.set_show_more_columns(True)
     sessions.save("k", state.to_session(), tmp_path)
-    saved, note = sessions.load("k", tmp_path)
+    read = sessions.load("k", tmp_path)
+    saved, note = read.session, read.note
     assert saved is not None and note == ""
 
     again = loaded(12)

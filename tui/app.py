@@ -159,8 +159,11 @@ class HalosiftApp(App[int]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("q", "leave", "Quit"),
         Binding("question_mark,f1", "help", "Help", key_display="?"),
-        Binding("escape", "cancel_screening", "Cancel screening"),
-        Binding("r", "rescreen", "Screen again"),
+        # Esc and r are off the footer: the screening box ("Esc cancels") and the header ("Esc stops",
+        # "r resumes", "Press r to screen again") name them where they apply, which leaves the footer room
+        # for the table's keys at 80 columns in every phase.
+        Binding("escape", "cancel_screening", "Cancel screening (the rows done stay)", show=False),
+        Binding("r", "rescreen", "Screen again (resumes a stopped screen)", show=False),
         Binding("slash", "search", "Find", key_display="/", show=False),
         Binding("f", "filters", "Filter"),
         Binding("t", "conditions", "Conditions"),
@@ -327,8 +330,9 @@ class HalosiftApp(App[int]):
 
                     # Saved conditions, with the command line's explicit options winning field by field.
                     saved = opened.session.conditions if opened.session is not None else None
-                    conditions, cond_note = initial_conditions(saved, self.explicit_conditions)
-                    note = " ".join(n for n in (note, cond_note) if n)
+                    opening = initial_conditions(saved, self.explicit_conditions)
+                    conditions = opening.conditions
+                    note = " ".join(n for n in (note, opening.note) if n)
                 start.append(ScreenStart(opened, conditions, note))
             return start[0]
 
@@ -387,7 +391,8 @@ class HalosiftApp(App[int]):
             except OSError as exc:
                 return sessions.Opened(None, key, f"The saved session could not be removed: {one_line(exc)}")
             return sessions.Opened(None, key)
-        saved, note = sessions.load(key)
+        loaded = sessions.load(key)
+        saved, note = loaded.session, loaded.note
         if saved is not None and saved.n_rows != n_rows:
             return sessions.Opened(None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not "
                                                f"{n_rows:,}, and is ignored; this one starts fresh."))
@@ -564,24 +569,70 @@ class HalosiftApp(App[int]):
             self.refresh_bindings()
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        # While a text field has focus its keys are typing, not commands: hide them.
-        typing = isinstance(self.focused, Input)
         if action == "quit":  # ctrl+q (Textual's own binding) quits from anywhere
             return True
-        if action in ("leave", "help"):
-            return not typing
-        if action == "cancel_screening":
-            return self.phase in ("screening", "streaming")
-        if action == "rescreen":
-            return self.phase == "stopped"
-        if action not in TABLE_ACTIONS:
+        if action not in self._binding_actions:
             return True  # Textual's own actions (focus next/previous, ...) are never restricted
-        # Table commands act on the main screen only (not under detail, help or a dialog).
-        if not (self.rows_shown and len(self.screen_stack) == 1 and not typing):
+        # While a text field has focus its keys are typing, not commands: hide them.
+        if isinstance(self.focused, Input) and action != "cancel_screening":
             return False
-        if action == "export" and (self.busy or (self.library is not None and self.library.partial)):
+        if self.why_disabled(action) is None:
+            return True
+        if action == "export" and self._on_table():
             return None  # shown greyed: the table is about to change, or not every row is perceived yet
-        return True
+        return False
+
+    def _on_table(self) -> bool:
+        """True when the library table is on screen with nothing over it."""
+        return self.rows_shown and len(self.screen_stack) == 1
+
+    def why_disabled(self, action: str) -> str | None:
+        """Why the app's key for ``action`` does nothing now, in one line; None when it acts.
+
+        :meth:`check_action` hides or greys exactly the keys this gives a reason
+        for, and :meth:`run_action` says that reason when such a key is pressed.
+        """
+        phase = self.phase
+        if action in ("leave", "help"):
+            return None
+        if action == "cancel_screening":
+            if phase in ("screening", "streaming"):
+                return None
+            return ("Screening is stopped: r resumes it" if phase == "stopped"
+                    else "Nothing to cancel: the whole library is screened")
+        if action == "rescreen":
+            if phase == "stopped":
+                return None
+            return ("Screening is under way (Esc stops it; r then resumes)" if phase in ("screening", "streaming")
+                    else "The whole library is screened: r screens again only after a stop")
+        if action not in TABLE_ACTIONS:
+            return None
+        if not self.rows_shown:
+            return (f"Wait for the first rows: {self.source_name} is being perceived" if phase == "screening"
+                    else "No library is loaded: r tries again")
+        if len(self.screen_stack) > 1:
+            return "That key acts on the library table: Esc goes back to it"
+        if action == "export":
+            if self.library is not None and self.library.partial:
+                total = len(self.frame) if self.frame is not None else 0
+                done = total - self.state.counts.pending
+                more = " (r resumes)" if phase == "stopped" else ""
+                return f"Export waits for the whole library: {done:,} of {counted(total, 'row')} perceived{more}"
+            if self.busy:
+                return "Export waits for the table to finish updating"
+        return None
+
+    async def run_action(
+        self, action: str | Any, default_namespace: Any = None, namespaces: Mapping[str, Any] | None = None,
+    ) -> bool:
+        """Run an action; one of the app's own keys pressed while it does nothing says why instead."""
+        if (isinstance(action, str) and action in self._binding_actions and default_namespace in (None, self)
+                and not self.check_action(action, ())):
+            reason = None if isinstance(self.focused, Input) else self.why_disabled(action)
+            if reason is not None:
+                self.notify(reason, title="Not now", severity="warning")
+                return True
+        return await super().run_action(action, default_namespace, namespaces)
 
     def action_cancel_screening(self) -> None:
         """Stop the screening worker (it stops at the next batch)."""
@@ -780,7 +831,7 @@ class HalosiftApp(App[int]):
             counts = [Phrase((f"{done} {'row' if total == 1 else 'rows'} perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
                               f"{done} {'row' if total == 1 else 'rows'} perceived", f"{done} perceived"), keep=6)]
             if self.phase == "streaming" and not self._stop_note:
-                counts.append(Phrase(("Esc stops, keeps what is done", "Esc stops", ""), keep=0))
+                counts.append(Phrase(("Esc stops, keeps what is done", "Esc stops"), keep=0))  # the footer leaves Esc to this line
             elif self.phase == "streaming":
                 counts.append(Phrase((f"{self._stop_note}…",), keep=5))
             elif self.phase == "stopped":
@@ -798,11 +849,11 @@ class HalosiftApp(App[int]):
         width = max(20, self.size.width - 2)  # the lines' padding
         self.query_one("#counts", Static).update(fit_phrases(counts, width))
         cond = self.conditions
-        cl2_long, cl2_short = cl2_forms(cond)
+        cl2 = cl2_forms(cond)
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
         sort = self._sort_text()
         settings = [
-            Phrase((f"{cl2_long} · {temps}", f"{cl2_short} · {temps}"), keep=4),
+            Phrase((f"{cl2.long} · {temps}", f"{cl2.short} · {temps}"), keep=4),
             Phrase((f"sort {sort}", sort), keep=3),
         ]
         if self.view != "library":

@@ -74,7 +74,7 @@ def _text(value: float) -> str:
 
 def short_description(conditions: Any) -> str:
     """The conditions the panel edits, in one short line."""
-    return (f"{cl2_forms(conditions)[0]} · Br2 {_text(conditions.br2_temp_c)} °C · "
+    return (f"{cl2_forms(conditions).long} · Br2 {_text(conditions.br2_temp_c)} °C · "
             f"SO2Cl2 {_text(conditions.so2cl2_temp_c)} °C · NBS {_text(conditions.nbs_temp_c)} °C · "
             f"threshold {_text(conditions.threshold_pct)} %")
 

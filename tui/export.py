@@ -41,8 +41,18 @@ class ExportChoice:
     """True when the chemist agreed to replace an existing file."""
 
 
-def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -> tuple[Path, str]:
-    """(absolute path, format) for the typed path, or ValueError with a one-line reason.
+@dataclass(frozen=True)
+class ExportTarget:
+    """Where an export goes, checked."""
+
+    path: Path
+    """Absolute, normalised path to write."""
+    format: str
+    """'csv', 'tsv', 'parquet', 'sdf' (engine.io.output_format) or 'html' (a report)."""
+
+
+def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -> ExportTarget:
+    """The checked target (absolute path and format) for the typed path, or ValueError with a one-line reason.
 
     Relative paths are taken from ``folder``. The folder must exist and be
     writable; the extension must be one the writer knows; the path must not
@@ -73,7 +83,7 @@ def check_export_path(text: str, folder: Path, protected: Sequence[Path] = ()) -
     for guarded in protected:
         if path.exists() and Path(guarded).exists() and os.path.samefile(path, guarded):
             raise ValueError(f"{path} is the library being screened; choose another name")
-    return path, fmt
+    return ExportTarget(path, fmt)
 
 
 def existing_targets(path: Path, fmt: str) -> list[Path]:
@@ -294,13 +304,14 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         """'shortlist' or 'view', as chosen."""
         return "shortlist" if self.query_one("#what-shortlist", ChoiceButton).value else "view"
 
-    def _check(self) -> tuple[Path, str] | None:
+    def _check(self) -> ExportTarget | None:
         box = self.query_one("#export-check", Static)
         try:
-            path, fmt = check_export_path(self.query_one("#export-path", Input).value, self.folder, self.protected)
+            target = check_export_path(self.query_one("#export-path", Input).value, self.folder, self.protected)
         except ValueError as exc:
             box.update(f"✗ {exc}")
             return None
+        path, fmt = target.path, target.format
         if self.what == "shortlist" and not self.n_marked:
             box.update("✗ the shortlist is empty: mark rows with Space, or choose the current view")
             return None
@@ -310,11 +321,11 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         exists = " · the file exists: you will be asked before it is replaced" if existing_targets(path, fmt) else ""
         if fmt == "html":
             box.update(f"✓ HTML report to {path}; conditions, sources and the caution in its header{exists}")
-            return path, fmt
+            return target
         where = "in the Parquet schema metadata" if fmt == "parquet" else (
             "as properties of the first SDF record" if fmt == "sdf" else "in a .about.txt file beside it")
         box.update(f"✓ {fmt.upper()} to {path}; metadata {where}{exists}")
-        return path, fmt
+        return target
 
     @on(Input.Changed, "#export-path")
     def _path_changed(self) -> None:
@@ -332,8 +343,8 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         checked = self._check()
         if checked is None:
             return
-        path, fmt = checked
-        targets = existing_targets(path, fmt)
+        path = checked.path
+        targets = existing_targets(path, checked.format)
         what = self.what
         if not targets:
             self.dismiss(ExportChoice(what, path, False))

@@ -36,14 +36,15 @@ CONFIDENCE_CHOICES = confidence_choices()
 DUPLICATE_LABELS: dict[str, str] = {"all": "all rows", "hide": "hide repeats", "only": "only repeats"}
 
 
-#: Cells a compact tick box or choice button draws before its label: "[ ] " / "( ) ".
-TOGGLE_CELLS = 4
+#: Cells a compact tick box or choice button draws besides its label: "[ ]" / "( )" and the blank cell Textual
+#: pads the label with on each side (ToggleButton.render); one fewer cuts the longest label to "…".
+TOGGLE_CELLS = 5
 #: Blank cells between two cells of a :class:`FlowGrid`.
 FLOW_GUTTER = 1
 
 
 def toggle_width(labels: Iterable[str]) -> int:
-    """Cells the widest of these tick boxes needs, so that every label shows whole."""
+    """Cells the widest of these tick boxes needs, so that every label shows whole (no "…")."""
     return TOGGLE_CELLS + max((len(label) for label in labels), default=0)
 
 

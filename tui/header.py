@@ -57,8 +57,18 @@ def column_title(key: Hashable, known: dict[Hashable, str]) -> str:
     return name[:1].upper() + name[1:]
 
 
-def cl2_forms(conditions: Any) -> tuple[str, str]:
-    """(long, short) description of the Cl2 conditions: temperature, phase and solvent.
+@dataclass(frozen=True)
+class Cl2Forms:
+    """The Cl2 conditions in words, in two lengths for the header."""
+
+    long: str
+    """Temperature, phase and solvent with its molarity, e.g. 'Cl2 25 °C liquid in 4 M benzene'."""
+    short: str
+    """Temperature, phase and solvent name only, e.g. 'Cl2 25 °C liquid (benzene)'."""
+
+
+def cl2_forms(conditions: Any) -> Cl2Forms:
+    """The Cl2 conditions described: temperature, phase and solvent.
 
     The phase is always named: gas-phase and liquid-phase chlorinations use
     different rate tables, so the same temperature can give different splits.
@@ -67,5 +77,5 @@ def cl2_forms(conditions: Any) -> tuple[str, str]:
     phase = conditions.cl2_phase
     if conditions.cl2_solvent != "none":
         solvent = "CS2" if conditions.cl2_solvent == "cs2" else conditions.cl2_solvent
-        return (f"{temp} {phase} in {conditions.cl2_solvent_molar:g} M {solvent}", f"{temp} {phase} ({solvent})")
-    return f"{temp} {phase}", f"{temp} {phase}"  # liquid without a solvent: the neat hydrocarbon
+        return Cl2Forms(f"{temp} {phase} in {conditions.cl2_solvent_molar:g} M {solvent}", f"{temp} {phase} ({solvent})")
+    return Cl2Forms(f"{temp} {phase}", f"{temp} {phase}")  # liquid without a solvent: the neat hydrocarbon

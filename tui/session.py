@@ -192,8 +192,18 @@ def restore_conditions(record: dict[str, Any]) -> Any:
     return conditions
 
 
-def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]) -> tuple[Any, str]:
-    """(engine.Conditions, one-line note or '') the app opens a library with.
+@dataclass(frozen=True)
+class OpeningConditions:
+    """The conditions a library opens with, and why they are not the ones asked for (if so)."""
+
+    conditions: Any
+    """engine.Conditions to screen with."""
+    note: str
+    """One line for the chemist when the saved or explicit conditions could not be used as given; '' if none."""
+
+
+def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]) -> OpeningConditions:
+    """The engine.Conditions the app opens a library with, and a one-line note (or '').
 
     The saved session's conditions (when usable), with every field given
     explicitly on the command line (``explicit``) taking precedence. When the
@@ -211,17 +221,17 @@ def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]
         except ValueError as exc:
             note = f"The saved conditions are not usable ({exc}); default conditions are used."
     if not explicit:
-        return base, note
+        return OpeningConditions(base, note)
     try:
         conditions = replace(base, **explicit)
         conditions.validate()
-        return conditions, note
+        return OpeningConditions(conditions, note)
     except ValueError as exc:
         conditions = Conditions(**explicit)
         conditions.validate()
         reason = " ".join(str(exc).split())
-        return conditions, (f"The saved conditions do not combine with the options given ({reason}); "
-                            "the options over default conditions are used.")
+        return OpeningConditions(conditions, (f"The saved conditions do not combine with the options given ({reason}); "
+                                              "the options over default conditions are used."))
 
 
 def path_for(key: str, folder: Path | None = None) -> Path:
@@ -229,19 +239,29 @@ def path_for(key: str, folder: Path | None = None) -> Path:
     return (folder or session_folder()) / f"{key}.json"
 
 
-def load(key: str, folder: Path | None = None) -> tuple[Session | None, str]:
-    """(session, '') when one was saved; (None, '') when none; (None, one-line note) when it is damaged."""
+@dataclass(frozen=True)
+class Loaded:
+    """What reading a library's session file gave."""
+
+    session: Session | None
+    """The saved session; None when none was saved or it could not be used."""
+    note: str
+    """One line saying why a saved session is ignored (damaged, unreadable); '' otherwise."""
+
+
+def load(key: str, folder: Path | None = None) -> Loaded:
+    """The session saved for a library key: none (no note) when there is none, none with a note when it is damaged."""
     path = path_for(key, folder)
     try:
         text = path.read_text(encoding="utf-8")
     except FileNotFoundError:
-        return None, ""
+        return Loaded(None, "")
     except (OSError, UnicodeDecodeError) as exc:
-        return None, f"The saved session could not be read and is ignored ({type(exc).__name__})."
+        return Loaded(None, f"The saved session could not be read and is ignored ({type(exc).__name__}).")
     try:
-        return decode(text), ""
+        return Loaded(decode(text), "")
     except ValueError as exc:
-        return None, f"The saved session is {exc} and is ignored; this one starts fresh."
+        return Loaded(None, f"The saved session is {exc} and is ignored; this one starts fresh.")
 
 
 def save(key: str, session: Session, folder: Path | None = None) -> Path:

@@ -84,34 +84,53 @@ REASON_COLUMNS: tuple[Column, ...] = (
 )
 
 
-def grown(columns: Sequence[Column], table_width: int) -> list[Column]:
-    """The columns with each growing one widened into part of the cells the table has to spare.
-
-    Spare cells are those beyond :data:`GROW_FROM` and beyond the last number
-    column shown whole at the columns' own widths; half of them go to the
-    growing columns, so every number that was in view stays in view and the
-    columns after it still come into view on a wide terminal. A growing column
-    is never wider than its ``grow_to`` (its longest value) nor narrower than ``width``.
-    """
-    growing = [i for i, c in enumerate(columns) if c.grow_to > c.width]
-    if not growing:
-        return list(columns)
+def _whole_end(columns: Sequence[Column], table_width: int, numbers_only: bool) -> int:
+    """Where the last column shown whole at scroll position 0 ends (if asked, of the number and growing columns only)."""
     pinned = [c for i, c in enumerate(columns) if i == 0 or c.kind == "verdict"]
-    keep = x = _GUTTER + sum(c.width + _SEP for c in pinned)
+    x = _GUTTER + sum(c.width + _SEP for c in pinned)
+    end = x - _SEP
     for c in (c for i, c in enumerate(columns) if not (i == 0 or c.kind == "verdict")):
         x += c.width + _SEP
         if x - _SEP > table_width:
             break
-        if c.number:
-            keep = x - _SEP
-    spare = max(0, table_width - max(GROW_FROM, keep)) // 2
-    share = spare // len(growing)
-    if not share:
-        return list(columns)
+        if c.number or c.grow_to > c.width or not numbers_only:
+            end = x - _SEP
+    return end
+
+
+def _share(columns: list[Column], growing: list[int], spare: int) -> None:
+    """Widen the growing columns by ``spare`` cells in equal shares; one that reaches its ``grow_to`` passes the rest on."""
+    open_ = [i for i in growing if columns[i].width < columns[i].grow_to]
+    while spare > 0 and open_:
+        share = max(1, spare // len(open_))
+        for i in list(open_):
+            c = columns[i]
+            add = min(share, c.grow_to - c.width, spare)
+            columns[i] = replace(c, width=c.width + add)
+            spare -= add
+            if columns[i].width >= c.grow_to:
+                open_.remove(i)
+            if not spare:
+                break
+
+
+def grown(columns: Sequence[Column], table_width: int) -> list[Column]:
+    """The columns with the growing ones widened into the cells the table has to spare.
+
+    Spare cells are those beyond :data:`GROW_FROM` and beyond the last number
+    (or growing) column shown whole at the columns' own widths: the growing
+    columns take what their values need of them, so every number in view stays
+    in view.
+    Then the cells after the last column shown whole (which would hold only a
+    stub of the next column, "di…") go to them too while they need more. A
+    growing column is never wider than its ``grow_to`` (its longest value) nor narrower than ``width``.
+    """
+    growing = [i for i, c in enumerate(columns) if c.grow_to > c.width]
     out = list(columns)
-    for i in growing:
-        c = columns[i]
-        out[i] = replace(c, width=min(c.grow_to, c.width + share))
+    if not growing or table_width <= GROW_FROM:
+        return out
+    _share(out, growing, table_width - max(GROW_FROM, _whole_end(out, table_width, numbers_only=True)))
+    _share(out, growing, table_width - max(GROW_FROM, _whole_end(out, table_width, numbers_only=False)))
     return out
 
 

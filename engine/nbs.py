@@ -266,7 +266,10 @@ def allylic_rows(
             st = outcomes[only]
         else:
             st = stereo_outcome(products, skeleton)
-        smiles = canonical(products[0]) if specified else key  # without stereo, the key is the SMILES
+        # With input stereo the product's equivalent sources can give several stereoisomers (the two
+        # enantiomers of a meso substrate's mirror-related carbons): the smallest SMILES stands for them,
+        # the convention engine.sites.SiteGroup.product follows, whatever the input's atom order.
+        smiles = min(canonical(p) for p in products) if specified else key  # without stereo, the key is the SMILES
         for g, (share, termini, n) in by_group.items():
             site = groups[g].site
             rows.append(

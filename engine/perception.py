@@ -138,7 +138,8 @@ def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
         mol, specified, bridgeheads, prepared.h_counts, lambda atoms: site_names(batch, k, atoms, bridgeheads, bicyclic)
     )
     patterns = {"cyclopropylmethyl": bool(batch.cyclopropylmethyl[k]), "cyclopropane": bool(batch.cyclopropane[k]),
-                "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k])}
+                "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
+                "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
     return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail)
 

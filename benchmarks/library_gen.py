@@ -445,6 +445,52 @@ def make_library(n: int, seed: int = 0) -> list[str]:
     return generate(n, seed)[0]
 
 
+#: Meso and other mirror-symmetric stereo substrates, written as a chemist might (not canonical).
+MESO_EXAMPLES: tuple[str, ...] = (
+    "CC[C@@H](C)C[C@@H](C)CC",  # meso-3,5-dimethylheptane
+    "C1CC[C@H]2CCC[C@H]2C1",  # cis-hydrindane
+    "C[C@H]1CC[C@@H](C(C)(C)C)CC1",  # cis-1-tert-butyl-4-methylcyclohexane
+    "C[C@H]1CCC[C@@H](C)C1",  # cis-1,3-dimethylcyclohexane
+    "C[C@H]1C=C[C@@H](C)C1",  # cis-3,5-dimethylcyclopentene
+    "C[C@@H]1C[C@H](C)C[C@@H](C)C1",  # all-cis-1,3,5-trimethylcyclohexane
+)
+
+
+def stereo_variants(smiles: Sequence[str], seed: int = 0, per_structure: int = 2) -> list[str]:
+    """Stereo-defined versions of the structures that have stereocentres, meso forms first.
+
+    For each input with two or more open tetrahedral centres, up to ``per_structure``
+    fully specified stereoisomers: those that are their own mirror image (meso: the
+    case where mirror-related carbons give enantiomeric products) first, then chiral
+    ones. Each is written from a random atom order (seeded), so no output relies on
+    canonical numbering; :data:`MESO_EXAMPLES` come first.
+    """
+    from rdkit.Chem.EnumerateStereoisomers import EnumerateStereoisomers, StereoEnumerationOptions
+
+    rng = np.random.default_rng(seed)
+    options = StereoEnumerationOptions(onlyUnassigned=True, maxIsomers=16, unique=True)
+    out = list(MESO_EXAMPLES)
+    for smi in smiles:
+        mol = Chem.MolFromSmiles(smi)
+        if mol is None:
+            continue
+        centres = [e for e in Chem.FindPotentialStereo(mol) if e.type == Chem.StereoType.Atom_Tetrahedral]
+        if len(centres) < 2:
+            continue
+        isomers = list(EnumerateStereoisomers(mol, options=options))
+        meso, chiral = [], []
+        for iso in isomers:
+            text = Chem.MolToSmiles(iso)
+            mirror = Chem.Mol(iso)
+            for atom in mirror.GetAtoms():
+                atom.InvertChirality()
+            (meso if Chem.MolToSmiles(mirror) == text else chiral).append(iso)
+        for iso in (meso + chiral)[:per_structure]:
+            shuffled = Chem.RenumberAtoms(iso, [int(i) for i in rng.permutation(iso.GetNumAtoms())])
+            out.append(Chem.MolToSmiles(shuffled, canonical=False))
+    return out
+
+
 _ALKENE = Chem.MolFromSmarts("C=C")
 """Non-aromatic carbon-carbon double bond, for the summary printout."""
 

@@ -284,7 +284,8 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
             )
             for r in nbs_frame.itertuples(index=False)
         ),
-        key=lambda p: (-p.pct, p.smiles),
+        # Ties (within float noise) by SMILES, the rule engine.nbs.nbs_majors names the major by.
+        key=lambda p: (-round(p.pct, 9), p.smiles),
     )
     return Explanation(
         smiles, "ok", "", "", s["canonical_smiles"], tuple(records), summary["verdict"], conditions, warnings,

@@ -73,6 +73,8 @@ class BatchSites:
     """Per molecule: some double bond ('*=*')."""
     alkyne: np.ndarray
     """Per molecule: some triple bond ('*#*')."""
+    propargylic: np.ndarray
+    """Per molecule: an abstractable sp3 C–H single-bonded to an aliphatic C≡C atom ('[CX4;!H0]-[A]#*')."""
     cyclopropane: np.ndarray
     """Per molecule: some three-membered ring."""
     cyclopropylmethyl: np.ndarray
@@ -160,6 +162,7 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
         junction=abstractable & (n_rings >= 2),
         alkene=np.bincount(mol_of_bond[o == _DOUBLE], minlength=n_mol) > 0,
         alkyne=np.bincount(mol_of_bond[o == _TRIPLE], minlength=n_mol) > 0,
+        propargylic=per_mol(abstractable & propargylic),
         cyclopropane=np.bincount(ring_mol_arr[sizes == 3], minlength=n_mol) > 0,
         cyclopropylmethyl=per_mol(np.bincount(src[cpm_bond], minlength=total) > 0),
         small_ring=np.bincount(ring_mol_arr[sizes <= small_ring_size], minlength=n_mol) > 0,

@@ -36,8 +36,8 @@ RESULT_DOCS: dict[str, str] = {
     "reason": "why a row was rejected; empty when ok",
     "n_products": "distinct constitutional monohalides from abstractable C–H",
     "verdict": (
-        "by-symmetry (the reagent offered can form only one monohalide) / selective (several can form; the "
-        "reagent offered makes one at or above the threshold) / mixture (no reagent reaches it) / ruled-out "
+        "by-symmetry (the substrate has only one monohalide, and the reagent offered makes it) / selective (the "
+        "substrate has several; the reagent offered makes one at or above the threshold) / mixture (no reagent reaches it) / ruled-out "
         "(every reagent takes another pathway, is not modelled or finds no C–H to substitute) / inert (no "
         "abstractable C–H and no other pathway); read off the "
         "per-reagent outcomes only; empty when rejected"
@@ -89,7 +89,8 @@ RESULT_DOCS: dict[str, str] = {
         "special-site warnings, comma-separated: cyclopropylmethyl (ring opening of the radical), bridgehead "
         "(small-bicycle bridgehead C–H, its own rate class), cage (strained cage), cyclopropane (Br· opens the "
         "ring), central_bond (halogens add across a strained central C–C bond), alkene and alkyne (halogens add "
-        "to the π bond); see engine.special_sites; every flag but bridgehead rules some reagents out "
+        "to the π bond), propargylic (a C–H next to C≡C: propargyl/allenyl bromides under NBS, not modelled); "
+        "see engine.special_sites; every flag but bridgehead rules some reagents out "
         "(engine.outcomes); empty when none"
     ),
     **{f"{r}_outcome": (

@@ -266,7 +266,10 @@ def allylic_rows(
             st = outcomes[only]
         else:
             st = stereo_outcome(products, skeleton)
-        smiles = canonical(products[0]) if specified else key  # without stereo, the key is the SMILES
+        # With input stereo the product's equivalent sources can give several stereoisomers (the two
+        # enantiomers of a meso substrate's mirror-related carbons): the smallest SMILES stands for them,
+        # the convention engine.sites.SiteGroup.product follows, whatever the input's atom order.
+        smiles = min(canonical(p) for p in products) if specified else key  # without stereo, the key is the SMILES
         for g, (share, termini, n) in by_group.items():
             site = groups[g].site
             rows.append(
@@ -315,7 +318,8 @@ def nbs_majors(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> tuple
     """Per structure: SMILES and percent of the NBS major product ('' and NaN without allylic/benzylic C–H).
 
     Integer keys (struct, product_id) instead of a string group-by: this runs for every re-weighing.
-    Ties go to the product met first in perception order.
+    Ties go to the smallest product SMILES: the order products are met in follows the input's atom
+    numbering, which must not decide the major (explain lists NBS products in this order too).
     """
     major = np.full(n_struct, "", dtype=object)
     pct = np.full(n_struct, np.nan)
@@ -340,10 +344,20 @@ def nbs_majors(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> tuple
     seg = np.flatnonzero(np.r_[True, key_struct[1:] != key_struct[:-1]])
     seg_max = np.maximum.reduceat(summed, seg)
     seg_of = np.repeat(np.arange(len(seg)), np.diff(np.r_[seg, len(summed)]))
-    hits = np.flatnonzero(summed >= seg_max[seg_of])
-    best = hits[np.r_[True, seg_of[hits][1:] != seg_of[hits][:-1]]]
+    # A tie within float noise (the same weights summed in another order) is a tie.
+    hits = np.flatnonzero(summed >= seg_max[seg_of] * (1 - 1e-12))
+    first_hit = np.r_[True, seg_of[hits][1:] != seg_of[hits][:-1]]
+    best = hits[first_hit]
+    products = allylic["product"].to_numpy(dtype=object)
+    tied = np.flatnonzero(~first_hit)
+    if len(tied):  # rare: pick the smallest SMILES among each structure's tied products
+        run_of = np.cumsum(first_hit) - 1
+        for t in tied:
+            run = run_of[t]
+            if products[rows[starts[hits[t]]]] < products[rows[starts[best[run]]]]:
+                best[run] = hits[t]
     best = best[summed[best] > 0]
     idx = key_struct[best]
-    major[idx] = allylic["product"].to_numpy(dtype=object)[rows[starts[best]]]
+    major[idx] = products[rows[starts[best]]]
     pct[idx] = summed[best]
     return major, pct

@@ -49,10 +49,10 @@ def shown_pct(pct: np.ndarray) -> np.ndarray:
 VERDICTS: tuple[str, ...] = ("by-symmetry", "selective", "mixture", "ruled-out", "inert")
 #: What each verdict means ({threshold} is filled in with the threshold, percent).
 VERDICT_DOCS: dict[str, str] = {
-    "by-symmetry": "the reagent offered (serves) can form only one monohalide: every C–H it takes gives the "
-    "same product",
-    "selective": "several monohalides can form, but the reagent offered (serves) makes one of them at "
-    "≥ {threshold} %",
+    "by-symmetry": "the substrate has only one monohalide: every abstractable C–H gives the same product, "
+    "and the reagent offered (serves) makes just that one",
+    "selective": "the substrate has several monohalides, but the reagent offered (serves) makes one of them at "
+    "≥ {threshold} % (or, like NBS, takes only one kind of C–H)",
     "mixture": "substitution is weighed for at least one reagent, but none gives one monohalide at "
     "≥ {threshold} %",
     "ruled-out": "no reagent's substitution split applies: each takes another pathway (addition to C=C or "
@@ -93,7 +93,6 @@ _ALKENE_T = {"cl2": P.ALKENE_SUBSTITUTION_T_C.value, "so2cl2": P.ALKENE_SUBSTITU
 
 #: The rules, most specific first: a reagent ruled out by several shows the first one's reason.
 PATHWAYS: tuple[Pathway, ...] = (
-    Pathway("no_nbs_site", "no allylic or benzylic C–H", "no_nbs_site", ("nbs",), P.NBS_NOTE),
     Pathway("central_bond", "adds across the strained central C–C bond", "central_bond", OUTCOME_REAGENTS,
             P.CENTRAL_BOND_NOTE),
     Pathway("cage", "strained cage: not modelled", "cage", OUTCOME_REAGENTS, P.CAGE_NOTE),
@@ -105,6 +104,11 @@ PATHWAYS: tuple[Pathway, ...] = (
             ("cl2", "br2", "so2cl2"),
             P.ALKENE_SUBSTITUTION_T_C.source + "; Br2: " + P.BR_ALKENE_SUBSTITUTION_T_C.source, _ALKENE_T),
     Pathway("alkyne_addition", "adds to C≡C", "alkyne", ("cl2", "br2", "so2cl2"), P.ALKYNE_ADDITION_NOTE),
+    Pathway("propargyl_split", "propargyl/allenyl bromides: not modelled", "propargylic", ("nbs",),
+            P.PROPARGYL_NBS_NOTE),
+    # "Nothing to do" comes after every rule that says what does happen, so cyclopropylbenzene (its benzylic
+    # C–H is a cyclopropyl C–H) shows NBS opening the ring rather than "no allylic or benzylic C–H".
+    Pathway("no_nbs_site", "no allylic or benzylic C–H", "no_nbs_site", ("nbs",), P.NBS_NOTE),
     # Last: ethene or acetylene has no C–H to abstract, but what the halogen does is add, which the
     # rules above name; "no abstractable C–H" is the reason only where nothing else happens.
     Pathway("no_ch", "no abstractable C–H", "no_ch", OUTCOME_REAGENTS,
@@ -147,13 +151,22 @@ def reagent_outcomes(
     ok: np.ndarray,
     one_product: Mapping[str, np.ndarray],
     conditions: Conditions,
+    n_monohalides: np.ndarray | None = None,
 ) -> Outcomes:
     """Outcomes, ``serves`` and verdicts of every structure (vectorised; no RDKit).
 
     ``features``: every name of :data:`FEATURES` → bool per structure. ``major_pct``:
     reagent → share of its major product (NaN without one). ``one_product``:
     reagent → True where the reagent can form only one monohalide.
+    ``n_monohalides``: constitutional monohalides of the substrate's abstractable C–H (the
+    ``n_products`` column; None: take each reagent's ``one_product`` alone).
     ``ok``: rows that were perceived (others get code 0 everywhere).
+
+    The verdict is **by-symmetry** only where the substrate itself has one monohalide
+    (``n_monohalides == 1``) and the reagent offered forms only it; a reagent that is clean
+    because it takes one kind of C–H among several (NBS on a benzylic alkane or on
+    cyclohexene, Br2 on isobutane) is **selective**: the one product is the reagent's doing,
+    not the structure's.
     """
     n = len(ok)
     threshold = conditions.threshold_pct
@@ -184,8 +197,9 @@ def reagent_outcomes(
     verdict[ok] = v["ruled-out"]
     verdict[ok & weighed] = v["mixture"]
     verdict[serves > 0] = v["selective"]
+    single = np.ones(n, dtype=bool) if n_monohalides is None else np.asarray(n_monohalides) == 1
     for code, reagent in enumerate(OUTCOME_REAGENTS, start=1):
-        verdict[(serves == code) & np.asarray(one_product[reagent], dtype=bool)] = v["by-symmetry"]
+        verdict[(serves == code) & single & np.asarray(one_product[reagent], dtype=bool)] = v["by-symmetry"]
     # Inert only when no reagent does anything else: ethene has no C–H to abstract, but Cl2 adds to it.
     idle = np.ones(n, dtype=bool)
     idle_codes = [code for code, p in enumerate(PATHWAYS, start=1) if p.code in _NOTHING_TO_DO]

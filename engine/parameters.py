@@ -482,6 +482,11 @@ SOLVENT_MAX_MOLAR: dict[str, float] = {"benzene": 11.2, "cs2": 16.6}
 # radical uses halosift's Br· constants; the delocalised allyl radical then
 # takes Br at either terminus.
 # ---------------------------------------------------------------------------
+PROPARGYL_NBS_NOTE = (
+    "a propargylic radical (C–H next to C≡C, benzylic or allylic ones included) is delocalised onto the far "
+    "alkyne carbon, so Br· can end at either terminus: propargyl and allenyl bromides both form (from memory; "
+    "common practice to expect the mixture), and halosift has no measured split to weigh them by"
+)
 NBS_NOTE = (
     "NBS with an initiator: Br· at low Br2 concentration; only allylic and benzylic C–H are brominated "
     "(other C–H get no share), an allylic radical gives Br at both termini (allylic transposition, E/Z mixture)"

@@ -21,7 +21,7 @@ from halosift.engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.shares import cast_checked
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
-from halosift.engine.sites import has_specified_stereo, norbornane_positions, site_groups, substitute
+from halosift.engine.sites import has_specified_stereo, norbornane_positions, site_groups
 from halosift.engine.special_sites import (
     CAGE_MAX_RING,
     is_small_bridgehead,
@@ -138,7 +138,8 @@ def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
         mol, specified, bridgeheads, prepared.h_counts, lambda atoms: site_names(batch, k, atoms, bridgeheads, bicyclic)
     )
     patterns = {"cyclopropylmethyl": bool(batch.cyclopropylmethyl[k]), "cyclopropane": bool(batch.cyclopropane[k]),
-                "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k])}
+                "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
+                "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
     return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail)
 
@@ -201,11 +202,9 @@ def _finish(
     for g, group in enumerate(groups):
         formed = group.site in _ABSTRACTABLE
         if formed and (stereo_wanted is None or g in stereo_wanted):
-            products = [group.product]
-            if specified and len(group.atoms) > 1:
-                # Equivalent carbons of a stereo-defined input can give different
-                # stereoisomers (e.g. enantiomers); the group forms all of them.
-                products += [substitute(mol, i) for i in group.atoms[1:]]
+            # Equivalent carbons of a stereo-defined input can give different
+            # stereoisomers (e.g. enantiomers); the group forms all of them.
+            products = [prod for _, prod in group.member_products] if specified else [group.product]
             st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
         else:
             st = NOT_ANALYSED  # never formed (vinyl/aryl/alkynyl C–H), or not a possible Br2 major

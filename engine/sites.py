@@ -121,18 +121,42 @@ class SiteGroup:
     """(SMILES, molecule) of the product when grouping already had to make it."""
 
     @cached_property
+    def member_products(self) -> tuple[tuple[str, Chem.Mol], ...]:
+        """(canonical isomeric SMILES, molecule) of the monochloride from each carbon of the group,
+        smallest SMILES first (the order :meth:`product` picks its representative by).
+
+        With input stereo, equivalent carbons can give different stereoisomers of one
+        constitution (the two enantiomers from mirror-related carbons of a meso
+        substrate); without it every member gives the same product, and only the first is built.
+        """
+        atoms = self.atoms if self.has_stereo else self.atoms[:1]
+        made = [(_smiles(prod, self.has_stereo), prod) for prod in (substitute(self.substrate, i) for i in atoms)]
+        return tuple(sorted(made, key=lambda pair: pair[0]))
+
+    @cached_property
     def product(self) -> Chem.Mol:
-        """The monochloride from the first atom (stereo of the input kept, the new centre unset)."""
-        if self.known_product is not None:
-            return self.known_product[1]
-        return substitute(self.substrate, self.atoms[0])
+        """The monochloride standing for the group (stereo of the input kept, the new centre unset).
+
+        With input stereo and several carbons, the one whose canonical SMILES sorts first:
+        which of two enantiomers a racemate is written as is a convention, and this one does
+        not depend on how the input numbers its atoms, so a screen, an explanation and a
+        re-perception from the canonical SMILES all name the same stereoisomer.
+        """
+        if self._representative_known:
+            return self.known_product[1]  # type: ignore[index]  # checked by _representative_known
+        return self.member_products[0][1]
 
     @cached_property
     def product_smiles(self) -> str:
         """Canonical isomeric SMILES of that monochloride."""
-        if self.known_product is not None:
-            return self.known_product[0]
-        return _smiles(self.product, self.has_stereo)
+        if self._representative_known:
+            return self.known_product[0]  # type: ignore[index]  # checked by _representative_known
+        return self.member_products[0][0]
+
+    @property
+    def _representative_known(self) -> bool:
+        """Whether grouping's own product is the representative (one carbon, or no input stereo)."""
+        return self.known_product is not None and (not self.has_stereo or len(self.atoms) == 1)
 
     @cached_property
     def stabiliser(self) -> tuple[tuple[int, ...], ...] | None:

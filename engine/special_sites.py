@@ -88,8 +88,14 @@ FLAG_NOTES: dict[str, FlagNote] = {
     "alkyne": FlagNote(
         "alkyne",
         "C≡C present: Cl2, Br2 and SO2Cl2 add to the triple bond, so they are ruled out at every temperature; "
-        "NBS is weighed on allylic and benzylic C–H only",
+        "NBS is weighed on allylic and benzylic C–H only, and ruled out where a C–H is propargylic",
         P.ALKYNE_ADDITION_NOTE,
+    ),
+    "propargylic": FlagNote(
+        "propargylic",
+        "a C–H next to a C≡C: its radical can take Br at either end (propargyl or allenyl bromide), a split "
+        "the NBS model does not have, so NBS is ruled out",
+        P.PROPARGYL_NBS_NOTE,
     ),
 }
 FLAGS: tuple[str, ...] = tuple(FLAG_NOTES)
@@ -155,6 +161,7 @@ _SMARTS = {
     "cyclopropylmethyl": "[CX4;!H0;!r3]-[r3]",
     "alkene": "*=*",  # aromatic bonds do not match '='
     "alkyne": "*#*",
+    "propargylic": "[CX4;!H0]-[A]#*",  # engine.sites' propargylic pattern
 }
 _PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SMARTS.items()}
 
@@ -208,7 +215,7 @@ def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) ->
         found.add("cyclopropane")
     if any(size <= CAGE_MAX_RING for size in ring_sizes) and has_central_bond(mol):
         found.add("central_bond")
-    for flag in ("alkene", "alkyne"):
+    for flag in ("alkene", "alkyne", "propargylic"):
         if mol.HasSubstructMatch(_PATTERNS[flag]):
             found.add(flag)
     return tuple(f for f in FLAGS if f in found)
@@ -217,7 +224,7 @@ def structure_flags(mol: Chem.Mol, bridgeheads: frozenset[int] | None = None) ->
 def kernel_flags(mol: Chem.Mol, bridgeheads: frozenset[int], patterns: dict[str, bool], small_ring: bool) -> tuple[str, ...]:
     """:func:`structure_flags` from the batch kernel's pattern flags (:class:`halosift.engine.kernels.BatchSites`).
 
-    ``patterns``: cyclopropylmethyl, cyclopropane, alkene, alkyne as the kernel found them;
+    ``patterns``: cyclopropylmethyl, cyclopropane, alkene, alkyne, propargylic as the kernel found them;
     ``small_ring``: some ring of at most :data:`CAGE_MAX_RING` atoms, which gates the cage and
     central-bond walks exactly as in :func:`structure_flags`.
     """

@@ -432,7 +432,7 @@ def summarise(perception: Perception, conditions: Conditions, memo: dict | None 
             pct, count = _transposed_split(perception, conditions, r, alkene & ok)
             majors[r] = np.where(alkene & ok, pct, majors[r])
             one_product[r] = np.where(alkene, count == 1, one_product[r])
-    result = reagent_outcomes(static["features"], majors, ok, one_product, conditions)
+    result = reagent_outcomes(static["features"], majors, ok, one_product, conditions, n_products)
     # Confidence: the weakest basis of each reagent whose percentages apply (not ruled out); so2cl2 only when it
     # is the reagent offered, since its constants are Cl2's by assumption and would mark every row an estimate.
     worst = {r: parts[r]["worst"] for r in SITE_REAGENTS} | {"nbs": nbs_worst}

@@ -76,7 +76,8 @@ def test_kernel_classes_flags_and_bridgeheads_match_the_patterns(smiles: list[st
         expected = site_classes(mol, atoms, bridgeheads)
         assert site_names(batch, k, atoms, bridgeheads, norbornane_positions(mol)) == expected, where
         patterns = {"cyclopropylmethyl": bool(batch.cyclopropylmethyl[k]), "cyclopropane": bool(batch.cyclopropane[k]),
-                    "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k])}
+                    "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
+                    "propargylic": bool(batch.propargylic[k])}
         assert kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])) == structure_flags(mol), where
         seen.update(expected)
     # The comparison must cover every class, or it proves little.

@@ -66,11 +66,20 @@ KNOWN = [
     ("C1C2CC1C2", "bicyclo[1.1.1]pentane", C, C, C, X, "selective", "cl2",
      "not a propellane (no central bond): its C–H are weighed, not ruled out; the CH2 lead because the bridgehead "
      "class is strongly disfavoured (norbornane-derived bridgehead factor, an estimate; the split is the model's)"),
-    ("C1=CCCCC1", "cyclohexene", X, X, X, C, "by-symmetry", "nbs",
+    ("C1=CCCCC1", "cyclohexene", X, X, X, C, "selective", "nbs",
      "Br2 adds (trans-1,2-dibromide, textbook); NBS gives 3-bromocyclohexene, one product (Wohl–Ziegler, "
-     "common practice)"),
+     "common practice), but by taking the allylic CH2 only: the homoallylic CH2 gives a second monohalide, so "
+     "the one product is the reagent's selectivity, not the structure's symmetry"),
+    ("C=CC", "propene", X, X, X, C, "by-symmetry", "nbs",
+     "one kind of sp3 C–H, whose allyl radical gives allyl bromide at either end (common practice)"),
     ("CC#CC", "2-butyne", X, X, X, X, "ruled-out", "",
-     "halogens add to C≡C (common practice); no allylic or benzylic C–H for NBS"),
+     "halogens add to C≡C (common practice); its CH3 are propargylic: NBS would give propargyl/allenyl bromides, "
+     "not modelled"),
+    ("C#CCc1ccccc1", "3-phenylpropyne", X, X, X, X, "ruled-out", "",
+     "the benzylic CH2 is propargylic: its radical takes Br at either end (propargyl and allenyl bromides, from "
+     "memory), a split not modelled, so NBS is not offered as clean"),
+    ("CCCCCCCCc1ccccc1", "octylbenzene", M, C, M, C, "selective", "br2",
+     "Br· and NBS take the benzylic CH2 (textbook), one bromide among eight monohalides: selective, not by symmetry"),
     ("c1ccccc1", "benzene", X, X, X, X, "inert", "", "no sp3 C–H (common practice)"),
     ("C=C", "ethene", X, X, X, X, "ruled-out", "",
      "no C–H to abstract, but Cl2 and Br2 add (1,2-dihalide; textbook): not inert"),
@@ -265,6 +274,11 @@ def _independent_bans(smiles: str) -> set[str]:
         banned |= {"cl2", "br2", "so2cl2"}  # halogens add to C=C / C≡C below ≈ 400 °C (textbook)
     if mol.HasSubstructMatch(_THREE_RING):
         banned |= {"br2", "nbs"}  # Br· opens cyclopropane rings (textbook, from memory)
+    for atom in mol.GetAtoms():
+        # A C–H beside a C≡C: its radical gives propargyl and allenyl bromides (from memory), not modelled.
+        triple = any(b.GetBondType() == Chem.BondType.TRIPLE for n in atom.GetNeighbors() for b in n.GetBonds())
+        if atom.GetHybridization() == Chem.HybridizationType.SP3 and atom.GetTotalNumHs() and triple:
+            banned.add("nbs")
     for bond in mol.GetBonds():
         a, b = bond.GetBeginAtom(), bond.GetEndAtom()
         common = {n.GetIdx() for n in a.GetNeighbors()} & {n.GetIdx() for n in b.GetNeighbors()}
@@ -299,11 +313,15 @@ def test_no_reagent_offered_against_its_outcome(smiles: list[str]) -> None:
         # The rules agree with the structure read independently of the flags.
         for r in _independent_bans(smi):
             assert outcomes[r] != C and served != r, (smi, r)
+        # "Nothing to do" is never the reason where something else happens (cyclopropylbenzene: ring opening).
+        if Chem.MolFromSmiles(smi).HasSubstructMatch(_THREE_RING):
+            assert row.nbs_reason != "no allylic or benzylic C–H", smi
         # A flag that names another pathway never lets its reagents through.
         flags = set(flag_text.split(","))
         if flags & {"cage", "central_bond", "cyclopropylmethyl"}:
             assert served == "" and row.verdict in ("ruled-out", "inert"), smi
-        if row.verdict == "by-symmetry" and served != "nbs":
+        # By symmetry means the substrate has one monohalide, whichever reagent serves.
+        if row.verdict == "by-symmetry":
             assert row.n_products == 1, smi
         if served:
             pct = getattr(row, f"{served}_major_pct") if served != "nbs" else row.nbs_major_pct
@@ -411,3 +429,19 @@ def test_first_product_listed_is_the_major_named_even_in_a_tie() -> None:
         if e.status != "ok" or e.outcome("cl2").outcome == X or not e.products:
             continue
         assert e.products[0].smiles == e.outcome("cl2").major == major, smi
+
+
+@pytest.mark.parametrize("smiles", ["C#CCc1ccccc1", "CC#CCc1ccccc1", "C#CC(C)c1ccccc1", "C=CCC#C", "C=CC(C)C#CC",
+                                    "C1=CCC(C#C)CC1", "CC#CC1=CCCCC1", "CCCC#C"])
+def test_propargylic_sites_never_clean_under_nbs(smiles: str) -> None:
+    """Every C–H beside a C≡C (benzylic and allylic ones included) keeps NBS from being offered, with the reason."""
+    e = engine.explain(smiles)
+    nbs = e.outcome("nbs")
+    assert nbs is not None and nbs.outcome == X and nbs.reason == "propargyl/allenyl bromides: not modelled", smiles
+    assert "nbs" in _independent_bans(smiles) and e.serves != "nbs", smiles
+
+
+def test_cyclopropylbenzene_nbs_reason_is_ring_opening() -> None:
+    """Its benzylic C–H is a cyclopropyl C–H; Br· opens the ring, which says more than 'no benzylic C–H'."""
+    nbs = engine.explain("c1ccc(cc1)C1CC1").outcome("nbs")
+    assert nbs is not None and nbs.reason == "opens the cyclopropane ring (1,3-addition)"

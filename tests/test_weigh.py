@@ -178,7 +178,9 @@ def reference(perception: Perception, conditions: Conditions) -> pd.DataFrame:
         elif not formed and all(w in ("no abstractable C–H", "no allylic or benzylic C–H") for w in reasons.values()):
             verdict = "inert"  # nothing abstracted and nothing else happens (ethene is ruled-out: halogens add)
         elif serve:
-            verdict = "by-symmetry" if one[serve] else "selective"
+            # By symmetry only when the substrate itself has one monohalide; a reagent that takes one kind
+            # of C–H among several (NBS on cyclohexene) is selective.
+            verdict = "by-symmetry" if one[serve] and len(formed) == 1 else "selective"
         elif any(outcome[r] == "mixture" for r in OUTCOME_REAGENTS):
             verdict = "mixture"
         else:

@@ -169,6 +169,9 @@ def _reference_flags(mol: Chem.Mol) -> tuple[str, ...]:
             found.add("cyclopropylmethyl")
         if is_small_bridgehead(atom):
             found.add("bridgehead")
+        for n in atom.GetNeighbors():  # an sp3 C–H beside a C≡C carbon: propargylic
+            if not n.GetIsAromatic() and any(b.GetBondType() == Chem.BondType.TRIPLE for b in n.GetBonds()):
+                found.add("propargylic")
     counts = [0] * mol.GetNumAtoms()
     for ring in Chem.GetSymmSSSR(mol):
         if len(ring) <= CAGE_MAX_RING:

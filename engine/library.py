@@ -205,8 +205,8 @@ class Library:
         return dict(zip(self.input.columns, output_names(list(self.input.columns))))
 
     def _summary(self, conditions: Conditions) -> pd.DataFrame:
-        # A screen's perception names only the products that can win under valid conditions.
-        conditions.validate()
+        # A screen's perception names only the products that can win under valid conditions, the only
+        # kind a Conditions can hold (it checks itself when made).
         if conditions not in self._summaries:
             if len(self._summaries) > 8:
                 self._summaries.clear()

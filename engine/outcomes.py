@@ -151,7 +151,7 @@ def reagent_outcomes(
     ok: np.ndarray,
     one_product: Mapping[str, np.ndarray],
     conditions: Conditions,
-    n_monohalides: np.ndarray | None = None,
+    n_monohalides: np.ndarray,
 ) -> Outcomes:
     """Outcomes, ``serves`` and verdicts of every structure (vectorised; no RDKit).
 
@@ -159,7 +159,7 @@ def reagent_outcomes(
     reagent → share of its major product (NaN without one). ``one_product``:
     reagent → True where the reagent can form only one monohalide.
     ``n_monohalides``: constitutional monohalides of the substrate's abstractable C–H (the
-    ``n_products`` column; None: take each reagent's ``one_product`` alone).
+    ``n_products`` column).
     ``ok``: rows that were perceived (others get code 0 everywhere).
 
     The verdict is **by-symmetry** only where the substrate itself has one monohalide
@@ -197,7 +197,7 @@ def reagent_outcomes(
     verdict[ok] = v["ruled-out"]
     verdict[ok & weighed] = v["mixture"]
     verdict[serves > 0] = v["selective"]
-    single = np.ones(n, dtype=bool) if n_monohalides is None else np.asarray(n_monohalides) == 1
+    single = np.asarray(n_monohalides) == 1
     for code, reagent in enumerate(OUTCOME_REAGENTS, start=1):
         verdict[(serves == code) & single & np.asarray(one_product[reagent], dtype=bool)] = v["by-symmetry"]
     # Inert only when no reagent does anything else: ethene has no C–H to abstract, but Cl2 adds to it.

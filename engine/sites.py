@@ -7,7 +7,7 @@ from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 from functools import cached_property
 
-from halosift.engine.special_sites import small_bridgeheads
+from halosift.engine.special_sites import PROPARGYLIC_SMARTS, small_bridgeheads
 from halosift.engine.stereo import canonical
 from rdkit import Chem
 
@@ -24,7 +24,7 @@ _SITE_SMARTS = {
     "cyclopropyl": "[CX4;!H0;r3]",
     "allylic": "[CX4;!H0]-[A]=*",  # π partner not aromatic: an aryl neighbour makes it benzylic
     "benzylic": "[CX4;!H0]-a",
-    "propargylic": "[CX4;!H0]-[A]#*",
+    "propargylic": PROPARGYLIC_SMARTS,
 }
 _SITE_PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SITE_SMARTS.items()}
 #: A saturated bicyclo[2.2.1] skeleton; pattern atoms 0, 1, 3, 4 are C2-type positions, 6 is C7

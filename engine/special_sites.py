@@ -154,6 +154,8 @@ def _small_ring_counts(mol: Chem.Mol) -> list[int]:
     return counts
 
 
+#: An abstractable sp3 C–H beside an aliphatic C≡C atom: the flag here and engine.sites' site class alike.
+PROPARGYLIC_SMARTS = "[CX4;!H0]-[A]#*"
 _SMARTS = {
     # H-bearing carbon with only single bonds (an abstractable sp3 C–H), on two or more rings:
     # a small bicycle's bridgehead lies on at least two rings of any smallest set of rings.
@@ -161,7 +163,7 @@ _SMARTS = {
     "cyclopropylmethyl": "[CX4;!H0;!r3]-[r3]",
     "alkene": "*=*",  # aromatic bonds do not match '='
     "alkyne": "*#*",
-    "propargylic": "[CX4;!H0]-[A]#*",  # engine.sites' propargylic pattern
+    "propargylic": PROPARGYLIC_SMARTS,
 }
 _PATTERNS = {name: Chem.MolFromSmarts(smarts) for name, smarts in _SMARTS.items()}
 

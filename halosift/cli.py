@@ -232,12 +232,10 @@ def _add_library_options(p: argparse.ArgumentParser) -> None:
 
 
 def _conditions(args: argparse.Namespace, reagents: Sequence[str]):
-    """engine.Conditions from the condition options, validated (ValueError: one line)."""
+    """engine.Conditions from the condition options, validated as it is made (ValueError: one line)."""
     from halosift.engine import Conditions
 
-    cond = Conditions(**_condition_fields(args, reagents))
-    cond.validate()
-    return cond
+    return Conditions(**_condition_fields(args, reagents))
 
 
 def _condition_fields(args: argparse.Namespace, reagents: Sequence[str]) -> dict[str, float | str]:

@@ -110,7 +110,7 @@ def read_fields(texts: dict[str, str], solvent: str, applied: Any, phase: str | 
             if "cl2_solvent_molar" in values and "cl2_solvent_molar" not in errors:  # a solution needs > 0 M
                 one["cl2_solvent_molar"] = values["cl2_solvent_molar"]
         try:
-            replace(applied, **one).validate()
+            replace(applied, **one)  # a Conditions checks itself when made
         except ValueError as exc:
             errors[name] = str(exc)
     pending = tuple(
@@ -119,9 +119,8 @@ def read_fields(texts: dict[str, str], solvent: str, applied: Any, phase: str | 
     )
     if errors:
         return Proposal(None, errors, pending)
-    conditions = replace(applied, **values)
     try:
-        conditions.validate()
+        conditions = replace(applied, **values)
     except ValueError as exc:  # only the combination is wrong (e.g. solvent and concentration)
         return Proposal(None, {"cl2_solvent": str(exc)}, pending)
     return Proposal(conditions, {}, pending)

@@ -177,7 +177,7 @@ def conditions_record(conditions: Any) -> dict[str, Any]:
 
 
 def restore_conditions(record: dict[str, Any]) -> Any:
-    """engine.Conditions from a saved record, checked with validate(); ValueError (one line) when unusable."""
+    """engine.Conditions from a saved record (checked as it is made); ValueError (one line) when unusable."""
     from halosift.engine import Conditions
 
     names = {f.name for f in fields(Conditions)}
@@ -186,7 +186,6 @@ def restore_conditions(record: dict[str, Any]) -> Any:
         raise ValueError(f"unknown condition {sorted(unknown)[0]!r}")
     try:
         conditions = Conditions(**record)
-        conditions.validate()
     except (TypeError, ValueError) as exc:
         raise ValueError(" ".join(str(exc).split())) from None
     return conditions
@@ -224,11 +223,9 @@ def initial_conditions(saved: dict[str, Any] | None, explicit: Mapping[str, Any]
         return OpeningConditions(base, note)
     try:
         conditions = replace(base, **explicit)
-        conditions.validate()
         return OpeningConditions(conditions, note)
     except ValueError as exc:
         conditions = Conditions(**explicit)
-        conditions.validate()
         reason = " ".join(str(exc).split())
         return OpeningConditions(conditions, (f"The saved conditions do not combine with the options given ({reason}); "
                                               "the options over default conditions are used."))

@@ -392,6 +392,7 @@ def _perceive_with_cache(
     caller_helps: bool,
     dask_client: object | None = None,
     on_part: PartFn | None = None,
+    background: bool = False,
 ) -> Perception:
     """Perceive ``keys`` in order, cached ones from the cache.
 
@@ -431,6 +432,7 @@ def _perceive_with_cache(
                 missing, workers=workers, max_heavy_atoms=max_heavy_atoms, progress=shifted, cancel=cancel,
                 detail=False, caller_helps=caller_helps,
                 on_part=part_done if (store is not None or on_part is not None) else None,
+                background=background,
             )
     except Cancelled:
         if store is not None and received:  # keep what is done: the next screen perceives only the rest
@@ -464,6 +466,7 @@ def load_library(
     dask: object | None = None,
     partial: Callable[[Library], None] | None = None,
     partial_interval: float = PARTIAL_INTERVAL,
+    background: bool = False,
 ) -> Library:
     """Read a library file (or DataFrame) and perceive it.
 
@@ -475,6 +478,8 @@ def load_library(
     done, then at most every ``partial_interval`` seconds (and spaced so that
     handing them on takes at most a third of the time; 0: after every chunk); the complete library
     is returned as usual. A cancel keeps what was perceived in the cache.
+    ``background``: local worker processes run at a lower priority, so that an interactive
+    caller's interface never waits for a CPU they hold (the app sets it).
 
     Raises :class:`halosift.engine.io.LibraryError` for whole-file problems and
     :class:`halosift.engine.parallel.Cancelled` when ``cancel`` is set. ``progress``
@@ -493,6 +498,7 @@ def load_library(
             source, smiles_column=smiles_column, id_column=id_column, workers=workers, use_cache=use_cache,
             cache_folder=cache_folder, max_heavy_atoms=max_heavy_atoms, progress=progress, cancel=cancel,
             caller_helps=caller_helps, dask_client=client, partial=partial, partial_interval=partial_interval,
+            background=background,
         )
 
 
@@ -511,6 +517,7 @@ def _load_library(
     dask_client: object | None,
     partial: Callable[[Library], None] | None = None,
     partial_interval: float = PARTIAL_INTERVAL,
+    background: bool = False,
 ) -> Library:
     """:func:`load_library` with the Dask client (or None) settled."""
     from halosift.engine.io import open_frame, open_library
@@ -570,6 +577,7 @@ def _load_library(
         max_heavy_atoms=max_heavy_atoms, progress=row_progress, cancel=cancel, caller_helps=caller_helps,
         dask_client=dask_client,
         on_part=on_part,
+        background=background,
     )
     return make(np.arange(len(keys), dtype=np.int32), perception)
 

@@ -35,6 +35,10 @@ TASKS_PER_WORKER = 4
 FIRST_CHUNK = 200
 #: Below this many strings, process start-up costs more than it saves.
 MIN_PARALLEL = 6_000
+#: Niceness added to worker processes that serve an interactive caller (``background=True``): the
+#: caller's interface then gets a CPU as soon as it wants one, and a lock its own threads hold is not
+#: held up by a descheduled thread; idle cores still go to the workers, so a run barely slows.
+BACKGROUND_NICE = 10
 #: Seconds between a worker's checks that the process that started it is still alive.
 PARENT_CHECK_S = 0.5
 #: Seconds to wait for terminated workers before killing them outright.
@@ -45,8 +49,18 @@ class Cancelled(Exception):
     """Raised when a caller's cancel event was set during perception."""
 
 
+def _start_worker(parent: int, nice: int) -> None:
+    """Worker initializer: lower this process's priority by ``nice`` (if above 0), then :func:`_die_with_parent`."""
+    if nice > 0 and hasattr(os, "nice"):
+        try:
+            os.nice(nice)
+        except OSError:
+            pass  # a priority we may not set: the worker runs as it is
+    _die_with_parent(parent)
+
+
 def _die_with_parent(parent: int) -> None:
-    """Worker initializer: end this process when ``parent`` ends, however it ends.
+    """End this process when ``parent`` ends, however it ends.
 
     Linux delivers SIGKILL on the parent's death (PR_SET_PDEATHSIG), which also
     reaches a worker blocked writing a large result into a pipe nobody reads.
@@ -100,8 +114,11 @@ class _Pool(ProcessPoolExecutor):
 
 
 @contextmanager
-def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
+def worker_pool(processes: int, background: bool = False) -> Iterator[ProcessPoolExecutor]:
     """A process pool whose workers die with this process and are stopped, not awaited, on any exception.
+
+    ``background``: the workers run at a lower priority (:data:`BACKGROUND_NICE`), for an
+    interactive caller whose interface must not wait for them.
 
     A normal exit waits for the workers as usual. On an exception (a signal
     turned into KeyboardInterrupt, a cancel, an error) the workers are
@@ -109,7 +126,8 @@ def worker_pool(processes: int) -> Iterator[ProcessPoolExecutor]:
     """
     # spawn, not fork: the caller may be a threaded UI, and forking threads is unsafe.
     ctx = multiprocessing.get_context("spawn")
-    pool = _Pool(max_workers=processes, mp_context=ctx, initializer=_die_with_parent, initargs=(os.getpid(),))
+    pool = _Pool(max_workers=processes, mp_context=ctx, initializer=_start_worker,
+                 initargs=(os.getpid(), BACKGROUND_NICE if background else 0))
     try:
         yield pool
     except BaseException:
@@ -197,6 +215,7 @@ def perceive_parallel(
     detail: bool = True,
     caller_helps: bool = False,
     on_part: Callable[[int, Perception], None] | None = None,
+    background: bool = False,
 ) -> Perception:
     """Perceive many strings, in worker processes when it pays; order is kept.
 
@@ -209,6 +228,7 @@ def perceive_parallel(
     ``on_part(start, part)``: called from this thread as each task's perception
     arrives (in any order), ``start`` being the position of its first string
     in ``smiles``; the first tasks are then small (:data:`FIRST_CHUNK`).
+    ``background``: worker processes run at a lower priority (see :func:`worker_pool`).
     """
     total = len(smiles)
     workers = capped_workers(workers)
@@ -231,7 +251,7 @@ def perceive_parallel(
         return concat([p for p in parts if p is not None])
 
     processes = workers - 1 if caller_helps else workers
-    with worker_pool(processes) as pool:
+    with worker_pool(processes, background) as pool:
         pending: dict[Future, int] = {}
         next_chunk = 0  # chunks from next_chunk on are not handed out yet
 

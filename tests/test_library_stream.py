@@ -105,3 +105,22 @@ def test_first_tasks_are_small_when_results_are_taken_as_they_come() -> None:
     assert bounds[0][0] == 0 and bounds[-1][1] == 21_800
     assert all(a == b for (_, a), (b, _) in zip(bounds, bounds[1:]))  # contiguous, nothing lost
     assert parallel.chunk_bounds(21_800, 2) == parallel.chunk_bounds(21_800, 2, 0)
+
+
+def _own_niceness() -> int:
+    import os
+
+    return os.nice(0)
+
+
+@pytest.mark.skipif(not hasattr(__import__("os"), "nice"), reason="no process priorities here")
+@pytest.mark.parametrize("background", [False, True])
+def test_background_workers_run_at_a_lower_priority(background: bool) -> None:
+    """An interactive caller's workers yield the CPU to its interface (the app asks for this)."""
+    import os
+
+    ours = os.nice(0)
+    with parallel.worker_pool(1, background=background) as pool:
+        theirs = pool.submit(_own_niceness).result(timeout=60)
+    expected = min(19, ours + parallel.BACKGROUND_NICE) if background else ours
+    assert theirs == expected

@@ -174,3 +174,64 @@ async def test_reopening_a_stopped_library_shows_the_cached_rows_at_once(tmp_pat
         await settle(pilot, again)
         assert again.phase == "ready"
         assert not set(gate.perceived()) & set(done)
+
+
+@async_test
+async def test_the_screening_thread_goes_on_only_once_a_delivery_is_drawn(tmp_path, cache_dir, monkeypatch):
+    """The hand-over that keeps the interface thread alone with the interpreter lock while it draws."""
+    import halosift.tui.app as app_module
+
+    monkeypatch.setattr(app_module, "SHOWN_WAIT_S", 60.0)  # a missed release would stall the test, not pass it
+    gate = Gate(monkeypatch)
+    gate.open.set()
+    from halosift import engine
+
+    real_load = engine.load_library
+    asked: list[dict] = []
+
+    def load(*args, **kwargs):
+        asked.append(kwargs)
+        return real_load(*args, **{**kwargs, "partial_interval": 0.0})  # every chunk is a delivery
+
+    monkeypatch.setattr(engine, "load_library", load)
+    deliveries: list[threading.Event] = []
+    seen_at_chunk: list[list[bool]] = []
+    real_perceive = parallel.perceive
+
+    def watching(chunk, *args, **kwargs):
+        seen_at_chunk.append([event.is_set() for event in deliveries])
+        return real_perceive(chunk, *args, **kwargs)
+
+    monkeypatch.setattr(parallel, "perceive", watching)
+    real_take = HalosiftApp.on_screening_partial
+
+    def take(self, message):
+        deliveries.append(message.shown)
+        real_take(self, message)
+
+    monkeypatch.setattr(HalosiftApp, "on_screening_partial", take)
+    app = HalosiftApp(str(write_library(tmp_path)), sessions=False)
+    async with app.run_test(size=SIZE) as pilot:
+        await until(pilot, lambda: app.phase == "ready")
+        await settle(pilot, app)
+    assert len(deliveries) >= 2 and all(event is not None for event in deliveries)
+    # Each chunk after the first began only when every delivery before it had been drawn.
+    assert [len(seen) for seen in seen_at_chunk[1:]] == list(range(1, len(seen_at_chunk)))
+    assert all(all(seen) for seen in seen_at_chunk)
+    assert all(event.is_set() for event in deliveries)
+    assert asked[0]["background"] is True  # and its worker processes yield the CPU to the interface
+
+
+@async_test
+async def test_a_delivery_never_drawn_holds_the_screen_up_only_briefly(tmp_path, cache_dir, monkeypatch):
+    import halosift.tui.app as app_module
+
+    monkeypatch.setattr(app_module, "SHOWN_WAIT_S", 0.2)
+    monkeypatch.setattr(HalosiftApp, "_release_screening", lambda self: None)  # the app never says "drawn"
+    gate = Gate(monkeypatch)
+    gate.open.set()
+    app = HalosiftApp(str(write_library(tmp_path)), sessions=False)
+    async with app.run_test(size=SIZE) as pilot:
+        await until(pilot, lambda: app.phase == "ready")
+        await settle(pilot, app)
+        assert len(app.frame) == len(QX_ROWS) and (app.frame["status"].isin(["ok", "rejected"])).all()

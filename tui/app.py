@@ -59,6 +59,8 @@ if TYPE_CHECKING:
 
 #: Seconds between progress messages from the screening worker (keeps the UI queue short).
 PROGRESS_INTERVAL = 0.1
+#: Longest the screening thread waits for a partial delivery to be drawn before it goes on anyway.
+SHOWN_WAIT_S = 1.0
 #: Seconds after the last change before the session file is written (a burst of changes is one write).
 SESSION_SAVE_DELAY = 0.5
 #: Header lines the condition warnings may take before they are summed up in one.
@@ -226,6 +228,7 @@ class HalosiftApp(App[int]):
         self._session_seq = 0
         self._session_written = 0
         self._run_taken = False  # the current screen has delivered rows
+        self._shown_waiting: list[threading.Event] = []  # partial deliveries not drawn yet
         self._stop_note = ""  # why a screen stopped with part of the library shown
         self._keep_place_generation = -1  # the view request made for newly perceived rows
         self._binding_actions = [b.action for b in self.BINDINGS if isinstance(b, Binding)]
@@ -343,9 +346,14 @@ class HalosiftApp(App[int]):
             conditions = self.conditions or first.conditions  # the chemist may have changed them meanwhile
             frame = library.evaluate(conditions)
             status = frame["status"].to_numpy()
+            shown = threading.Event()
             self.post_message(ScreeningPartial(library, frame, conditions, first.opened.session, first.opened.key,
                                                first.note,
-                                               int((status == "ok").sum()), int((status == PENDING).sum())))
+                                               int((status == "ok").sum()), int((status == PENDING).sum()), shown))
+            # The workers go on perceiving meanwhile; only this thread's next step waits.
+            deadline = time.monotonic() + SHOWN_WAIT_S
+            while not shown.wait(0.02) and not cancel.is_set() and time.monotonic() < deadline:
+                pass
 
         try:
             library = engine.load_library(
@@ -356,6 +364,7 @@ class HalosiftApp(App[int]):
                 progress=progress,
                 cancel=cancel,
                 partial=partial,
+                background=True,  # the workers yield the CPU to the interface
             )
             first = begin(len(library.input))
             conditions = self.conditions or first.conditions
@@ -409,8 +418,18 @@ class HalosiftApp(App[int]):
         )
 
     def on_screening_partial(self, message: ScreeningPartial) -> None:
+        if message.shown is not None:
+            self._shown_waiting.append(message.shown)
         self._take_library(message, RowCounts.of(len(message.frame), message.screened, message.pending),
                            complete=False)
+        if self.phase != "streaming":
+            self._release_screening()
+
+    def _release_screening(self) -> None:
+        """Let the screening thread go on: the rows it handed over are drawn (or will not be)."""
+        waiting, self._shown_waiting = self._shown_waiting, []
+        for event in waiting:
+            event.set()
 
     def on_screening_finished(self, message: ScreeningFinished) -> None:
         self._take_library(message, self.state.counts, complete=True)  # counted when its view arrives
@@ -521,6 +540,7 @@ class HalosiftApp(App[int]):
 
     def on_screening_stopped(self, message: ScreeningStopped) -> None:
         self.phase = "stopped"
+        self._release_screening()
         if self.library is not None and self.library.partial:
             # The rows perceived so far stay usable (and are cached); r perceives only the rest.
             self._stop_note = "stopped" if message.cancelled else message.message
@@ -751,6 +771,8 @@ class HalosiftApp(App[int]):
         self._to_top = False
         self._update_status()
         self._refresh_bindings_on_change()
+        if self._shown_waiting:
+            self.call_after_refresh(self._release_screening)
 
     @property
     def busy(self) -> bool:
@@ -762,6 +784,7 @@ class HalosiftApp(App[int]):
             self._applied_generation = message.generation
             self._update_status()
             self.notify(message.message, title="Could not update the table", severity="error")
+        self._release_screening()
 
     def _columns(self, frame: pd.DataFrame) -> list[Column]:
         """The table's columns for the current view."""

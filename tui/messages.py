@@ -6,6 +6,7 @@ threads post them too (``post_message`` is thread-safe).
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass
 from typing import Any
 
@@ -53,6 +54,9 @@ class ScreeningPartial(_LibraryEvaluated):
     """Rows of ``frame`` with status ok."""
     pending: int = 0
     """Rows of ``frame`` not perceived yet."""
+    shown: threading.Event | None = None
+    """Set by the app once these rows are on screen. The screening thread waits for it before its
+    next step, so the interface thread draws them without sharing the interpreter lock."""
 
 
 @dataclass

@@ -172,7 +172,9 @@ def perceive_on_cluster(
             if progress:
                 progress(done, total)
     finally:
-        client.cancel([f for f in futures if not f.done()])
+        # Every future, finished ones too: the cluster drops their results now, not when the last
+        # reference here goes (a traceback can keep this frame alive).
+        client.cancel(futures)
     return concat([p for p in parts if p is not None])
 
 

@@ -116,3 +116,31 @@ def test_plain_screens_never_import_dask(tmp_path: Path) -> None:
                          env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin", "HALOSIFT_CACHE_DIR": str(tmp_path)})
     assert out.returncode == 0, out.stderr
     assert out.stdout.strip() == "[]"
+
+
+def test_stopping_a_cluster_screen_cancels_its_tasks_and_keeps_the_client(frame: pd.DataFrame, client) -> None:
+    """A cancel during a cluster screen raises Cancelled at once, leaves no task of it running, and the
+    same client screens again afterwards to the local answer."""
+    import threading
+    import time
+
+    from halosift.engine.parallel import Cancelled
+
+    cancel = threading.Event()
+
+    def progress(done: int, total: int) -> None:
+        cancel.set()  # the chemist presses Esc as soon as anything is reported
+
+    before = set(client.who_has())
+    with pytest.raises(Cancelled):
+        hs.load_library(frame, use_cache=False, dask=client, cancel=cancel, progress=progress)
+    def running() -> list[str]:
+        return [str(k) for keys in client.processing().values() for k in keys if "perceive_batch" in str(k)]
+
+    deadline = time.monotonic() + 30
+    while running() and time.monotonic() < deadline:
+        time.sleep(0.1)
+    assert not running()
+    assert not [k for k in set(client.who_has()) - before if "perceive_batch" in str(k)]  # no results kept there
+    again = hs.screen(frame, use_cache=False, dask=client)
+    pd.testing.assert_frame_equal(again, hs.screen(frame, use_cache=False))

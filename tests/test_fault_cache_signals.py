@@ -668,7 +668,7 @@ def test_perception_starts_no_more_processes_than_cores(monkeypatch: pytest.Monk
     class Enough(Exception):
         pass
 
-    def fake_pool(processes: int):
+    def fake_pool(processes: int, background: bool = False):
         started.append(processes)
         raise Enough()
 

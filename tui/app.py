@@ -91,6 +91,23 @@ def one_line(exc: BaseException) -> str:
     return text or type(exc).__name__
 
 
+class OneLine(Static):
+    """A one-line text widget (height fixed by the app's CSS) that redraws without a layout pass.
+
+    A layout re-arranges and repaints the whole screen (tens of ms with a large table); a
+    one-line widget's size never depends on its text, so only the widget itself is redrawn,
+    and only when the text changed.
+    """
+
+    _shown: str | None = None
+
+    def show(self, text: str) -> None:
+        """Show ``text`` (nothing happens when it is already shown)."""
+        if text != self._shown:
+            self._shown = text
+            self.update(text, layout=False)
+
+
 def _count(n: int) -> str:
     return f"{n:,}"
 
@@ -270,15 +287,15 @@ class HalosiftApp(App[int]):
 
     def compose(self) -> ComposeResult:
         yield Static(f"halosift │ {self.source_name}", id="title")
-        yield Static("", id="counts")
-        yield Static("", id="settings")
+        yield OneLine("", id="counts")
+        yield OneLine("", id="settings")
         yield Static("", id="warnings")
         with Vertical(id="screening"):
             yield Label(f"Screening {self.source_name}…", id="screening-label")
             yield ProgressBar(total=None, show_eta=False, id="screening-progress")
             yield Label("Esc cancels", id="screening-hint")
         yield LibraryTable(id="table")
-        yield Static("", id="rowinfo")
+        yield OneLine("", id="rowinfo")
         yield SearchBar(id="search")
         yield Footer(compact=True)
 
@@ -547,8 +564,8 @@ class HalosiftApp(App[int]):
             self._update_status()
             return
         hint = "Press r to screen again, q to quit." if message.cancelled else "Press r to try again, q to quit."
-        self.query_one("#counts", Static).update(message.message)
-        self.query_one("#settings", Static).update(hint)
+        self.query_one("#counts", OneLine).show(message.message)
+        self.query_one("#settings", OneLine).show(hint)
 
     @property
     def rows_shown(self) -> bool:
@@ -568,8 +585,8 @@ class HalosiftApp(App[int]):
         else:
             self.set_focus(None)  # nothing to type into or move through until a library is loaded
         if phase == "screening":
-            self.query_one("#counts", Static).update("")
-            self.query_one("#settings", Static).update("")
+            self.query_one("#counts", OneLine).show("")
+            self.query_one("#settings", OneLine).show("")
         self.refresh_bindings()
         self._bindings_shown = self._bindings_state()
 
@@ -870,7 +887,7 @@ class HalosiftApp(App[int]):
         if self._applied_generation != self._generation or self.phase == "screening":
             counts.append(Phrase(("updating…",), keep=5))
         width = max(20, self.size.width - 2)  # the lines' padding
-        self.query_one("#counts", Static).update(fit_phrases(counts, width))
+        self.query_one("#counts", OneLine).show(fit_phrases(counts, width))
         cond = self.conditions
         cl2 = cl2_forms(cond)
         temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
@@ -887,7 +904,7 @@ class HalosiftApp(App[int]):
                                    keep=2))
         else:
             settings.append(Phrase(("no filters", ""), keep=1))
-        self.query_one("#settings", Static).update(fit_phrases(settings, width))
+        self.query_one("#settings", OneLine).show(fit_phrases(settings, width))
         warnings = cond.warnings()
         box = self.query_one("#warnings", Static)
         box.display = bool(warnings)
@@ -918,15 +935,15 @@ class HalosiftApp(App[int]):
         from textual.css.query import NoMatches
 
         try:
-            info = self.query_one("#rowinfo", Static)
+            info = self.query_one("#rowinfo", OneLine)
         except NoMatches:  # the app is closing (rows may arrive up to the last moment)
             return
         if message.row < 0 or self.frame is None:
-            info.update("no rows in this view" if self.frame is not None else "")
+            info.show("no rows in this view" if self.frame is not None else "")
             return
         record = self.frame.iloc[message.row]
         if record["status"] != "ok":
-            info.update(f"row {message.row + 1} rejected: {record['reason']}")
+            info.show(f"row {message.row + 1} rejected: {record['reason']}")
             return
         parts = [f"row {message.row + 1}"]
         if "site_types" in record.index:
@@ -937,7 +954,7 @@ class HalosiftApp(App[int]):
         dup = record["duplicate_of"]
         if not pd.isna(dup) and str(dup) != "":
             parts.append(f"same structure as row {dup}")
-        info.update(" · ".join(parts))
+        info.show(" · ".join(parts))
 
     def on_mark_requested(self, message: MarkRequested) -> None:
         self.state.toggle_mark(message.row)

@@ -75,3 +75,21 @@ def plain(widget) -> str:
     console = Console(width=max(widget.size.width, 40), record=True, file=io.StringIO(), color_system=None)
     console.print(content)
     return console.export_text()
+
+
+#: The characters a terminal sends for the named keys used in bursts (others: the key itself).
+_BURST_CHARACTERS = {"backspace": "\x7f", "enter": "\r", "tab": "\t", "escape": "\x1b", "space": " ",
+                     "end": None, "home": None, "left": None, "right": None, "delete": None}
+
+
+async def burst(pilot, *keys: str) -> None:
+    """Send ``keys`` as a terminal does when they arrive in one read: each is posted to the app at once.
+
+    ``pilot.press`` waits for every key to be handled before sending the next, which hides
+    any reordering between keys; this does not wait.
+    """
+    from textual import events
+
+    for key in keys:
+        pilot.app.post_message(events.Key(key, _BURST_CHARACTERS.get(key, key)))
+    await pilot.pause()

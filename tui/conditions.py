@@ -14,6 +14,7 @@ from dataclasses import dataclass, replace
 from typing import Any, ClassVar
 
 from halosift.tui.header import cl2_forms
+from halosift.tui.inputs import OrderedInput
 from halosift.tui.messages import ConditionsProposed
 from halosift.tui.toggles import ChoiceButton, ChoiceSet
 from textual import on
@@ -132,7 +133,7 @@ class ConditionsPanel(Vertical):
     def compose(self) -> ComposeResult:
         with Horizontal(classes="cond-row"):
             yield Label("Cl2 °C", classes="cond-label")
-            yield Input(id="cond-cl2", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-cl2", type="number", compact=True, classes="cond-input")
             yield Label("phase", classes="cond-label")
             with ChoiceSet(id="cond-phase", classes="cond-choice", compact=True):
                 for key, label in PHASE_LABELS.items():
@@ -143,16 +144,16 @@ class ConditionsPanel(Vertical):
                 for key, label in SOLVENT_LABELS.items():
                     yield ChoiceButton(label, id=f"cond-solvent-{key}", compact=True)
             yield Label("mol/L", classes="cond-label")
-            yield Input(id="cond-molar", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-molar", type="number", compact=True, classes="cond-input")
         with Horizontal(classes="cond-row"):
             yield Label("Br2 °C", classes="cond-label")
-            yield Input(id="cond-br2", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-br2", type="number", compact=True, classes="cond-input")
             yield Label("SO2Cl2 °C", classes="cond-label")
-            yield Input(id="cond-so2cl2", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-so2cl2", type="number", compact=True, classes="cond-input")
             yield Label("NBS °C", classes="cond-label")
-            yield Input(id="cond-nbs", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-nbs", type="number", compact=True, classes="cond-input")
             yield Label("clean at %", classes="cond-label")
-            yield Input(id="cond-threshold", type="number", compact=True, classes="cond-input")
+            yield OrderedInput(id="cond-threshold", type="number", compact=True, classes="cond-input")
         yield Static("", id="cond-note")
 
 

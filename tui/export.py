@@ -10,6 +10,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
+from halosift.tui.inputs import OrderedInput
 from halosift.tui.toggles import ChoiceButton
 from halosift.tui.wording import counted
 from textual import on
@@ -285,7 +286,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
                                   start == "view", id="what-view", compact=True)
             yield Static(f"Rows are written in the table's order: {self.order}.", id="export-order")
             yield Static("File (.csv, .tsv, .parquet or .sdf; .csv/.tsv/.sdf may add .gz; .html: printable report):")
-            yield Input(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
+            yield OrderedInput(str(self.folder / DEFAULT_NAMES[start]), id="export-path", compact=True, select_on_focus=False)
             yield Static("", id="export-check")
             yield Static("Conditions, selection and the safety caution are stored with the data.", id="export-note")
             with Horizontal(id="export-buttons"):

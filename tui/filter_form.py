@@ -17,6 +17,7 @@ from halosift.tui.filters import (
     parse_optional_int,
     reagent_label,
 )
+from halosift.tui.inputs import OrderedInput
 from halosift.tui.toggles import ChoiceButton, ChoiceSet, TickBox
 from textual import events, on
 from textual.app import ComposeResult
@@ -103,11 +104,11 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                     yield TickBox(verdict, verdict in spec.verdicts, id=f"verdict-{verdict}", compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Br2 major product at least", classes="filter-label")
-                yield Input(_text(spec.min_br2_pct), id="min-br2", type="number", compact=True, placeholder="any")
+                yield OrderedInput(_text(spec.min_br2_pct), id="min-br2", type="number", compact=True, placeholder="any")
                 yield Label("%", classes="filter-label")
             with Horizontal(classes="filter-row"):
                 yield Label("At most", classes="filter-label")
-                yield Input(_text(spec.max_products), id="max-products", type="integer", compact=True, placeholder="any")
+                yield OrderedInput(_text(spec.max_products), id="max-products", type="integer", compact=True, placeholder="any")
                 yield Label("products (constitutional monohalides)", classes="filter-label")
             yield TickBox(
                 f"No new stereocentre (Br2 major product {ACHIRAL})",
@@ -156,7 +157,7 @@ class FilterForm(ModalScreen[FilterSpec | None]):
                                            compact=True)
             with Horizontal(classes="filter-row"):
                 yield Label("Text in ID or SMILES", classes="filter-label")
-                yield Input(spec.text, id="filter-text", compact=True, placeholder="any")
+                yield OrderedInput(spec.text, id="filter-text", compact=True, placeholder="any")
             yield Static("", id="filter-error")
             with Horizontal(id="filter-buttons"):
                 yield Button("Apply", id="filter-apply", variant="primary", compact=True)

@@ -7,6 +7,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
+from halosift.tui.inputs import OrderedInput
 from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
@@ -99,7 +100,7 @@ class IdListScreen(ModalScreen[Path | None]):
         with Vertical(id="ids-box"):
             yield Static("Mark the rows listed in a file", id="ids-title")
             yield Static("File: one ID a line, or a .csv/.tsv with the library's ID column")
-            yield Input(str(self.folder) + "/", id="ids-path", compact=True, select_on_focus=False)
+            yield OrderedInput(str(self.folder) + "/", id="ids-path", compact=True, select_on_focus=False)
             yield Static("", id="ids-check")
             yield Static("Listed rows are added to the shortlist; z undoes it. Enter reads · Esc cancels",
                          id="ids-note")

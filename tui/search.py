@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import ClassVar
 
+from halosift.tui.inputs import OrderedInput
 from halosift.tui.messages import PanelClosed, SearchChanged
 from textual.binding import Binding, BindingType
 from textual.timer import Timer
@@ -14,7 +15,7 @@ from textual.widgets import Input
 SETTLE_SECONDS = 0.25
 
 
-class SearchBar(Input):
+class SearchBar(OrderedInput):
     """Type to filter the library view by ID or SMILES; Enter or Esc returns to the table."""
 
     BINDINGS: ClassVar[list[BindingType]] = [

@@ -288,6 +288,31 @@ async def test_shortlist_exports_as_html_report(tmp_path):
 
 
 @async_test
+async def test_export_choice_moves_with_the_arrows_from_the_file_field(tmp_path):
+    """The form opens in the file field; ↑/↓ still choose shortlist or current view (the help says so),
+    and the rows written follow the choice."""
+    app = HalosiftApp(str(small_library(tmp_path)))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        app.query_one(LibraryTable).focus()
+        await pilot.press("home", "space")
+        await pilot.press("e")
+        screen = app.screen
+        assert isinstance(screen, ExportScreen) and app.focused is screen.query_one("#export-path")
+        assert screen.what == "shortlist"
+        await pilot.press("down")
+        assert screen.what == "view" and "halosift-view" in screen.query_one("#export-path").value
+        await pilot.press("up")
+        assert screen.what == "shortlist"
+        await pilot.press("down")
+        out = tmp_path / "view.csv"
+        screen.query_one("#export-path").value = str(out)
+        await pilot.press("enter")
+        await settle(pilot, app)
+        assert len(pd.read_csv(out)) == len(app.query_one(LibraryTable).rows) > 1  # the view, not the marked row
+
+
+@async_test
 async def test_html_export_shows_progress_until_written(tmp_path, monkeypatch):
     from halosift.tui import export as export_module
 

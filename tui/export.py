@@ -255,6 +255,9 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "cancel", "Cancel"),
+        # From any field (the file field has the focus at first): one line field has no use for ↑/↓.
+        Binding("up", "choose('shortlist')", "Shortlist", show=False),
+        Binding("down", "choose('view')", "Current view", show=False),
     ]
 
     def __init__(
@@ -274,9 +277,10 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         """Name of the current view."""
         self.folder = folder
         """Folder relative paths are taken from."""
+        self._what = "shortlist" if n_marked else "view"
 
     def compose(self) -> ComposeResult:
-        start = "shortlist" if self.n_marked else "view"
+        start = self._what
         with Vertical(id="export-box"):
             yield Static("Export", id="export-title")
             with RadioSet(id="export-what", compact=True):
@@ -300,10 +304,17 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         path.cursor_position = len(path.value)
         self._check()
 
+    def action_choose(self, what: str) -> None:
+        """Choose what to write: 'shortlist' or 'view' (the RadioSet, when focused, moves by itself)."""
+        if what != self._what:
+            self._what = what  # at once: an Enter right behind this key writes what it chose
+            self.query_one(f"#what-{what}", ChoiceButton).value = True  # the set redraws and says Changed
+            self._follow_choice()
+
     @property
     def what(self) -> str:
         """'shortlist' or 'view', as chosen."""
-        return "shortlist" if self.query_one("#what-shortlist", ChoiceButton).value else "view"
+        return self._what
 
     def _check(self) -> ExportTarget | None:
         box = self.query_one("#export-check", Static)
@@ -333,7 +344,13 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
         self._check()
 
     @on(RadioSet.Changed)
-    def _what_changed(self) -> None:
+    def _what_changed(self, event: RadioSet.Changed) -> None:
+        chosen = (event.pressed.id or "").removeprefix("what-")
+        if chosen in DEFAULT_NAMES and chosen != self._what:
+            self._what = chosen
+            self._follow_choice()
+
+    def _follow_choice(self) -> None:
         box = self.query_one("#export-path", Input)
         current = Path(box.value).name
         if current in DEFAULT_NAMES.values():  # still the suggested name: follow the choice

@@ -20,8 +20,10 @@ class OrderedInput(Input):
         for binding in self._bindings.key_to_bindings.get(event.key, ()):
             if binding.priority:
                 continue  # the app ran it before the key reached this field
-            event.stop()  # handled here: it must not reach the app, which would run the binding again
-            event.prevent_default()
-            await self.run_action(binding.action)
-            return
+            # As the app would: an action that declines (scrolling a field that cannot scroll)
+            # lets the key go on up, to the screen's bindings.
+            if await self.app.run_action(binding.action, self):
+                event.stop()  # handled here: the app must not run the binding again
+                event.prevent_default()
+                return
         await super()._on_key(event)

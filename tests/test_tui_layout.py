@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import pytest
+
 from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import FilterSpec, SortSpec
 from halosift.tui.header import Phrase, column_title, fit_phrases
@@ -98,7 +100,24 @@ def test_fit_phrases_shortens_the_least_important_first():
     assert fit_phrases(phrases, 21) == "aaaa aaaa │ bbbb bbbb"
     assert fit_phrases(phrases, 16) == "aaaa │ bbbb bbbb"
     assert fit_phrases(phrases, 11) == "aaaa │ bbbb"
-    assert fit_phrases(phrases, 3) == "aaaa │ bbbb"  # nothing shorter: the widget adds the ellipsis
+    assert fit_phrases(phrases, 10) == "bbbb"  # nothing shorter: the least important phrase goes whole
+    assert fit_phrases(phrases, 3) == "bbbb"  # one phrase wider than the line: the widget adds the ellipsis
+
+
+@pytest.mark.parametrize("width", range(1, 90))
+def test_fit_phrases_never_cuts_a_phrase(width):
+    """The class of error: whatever the width, the line is whole phrases in one of their forms, in order."""
+    phrases = [Phrase(("Cl2 60 °C solution in 4 M benzene · Br2 125 °C · threshold 90 %",
+                       "Cl2 60 °C solution (benzene) · Br2 125 °C · threshold 90 %"), keep=4),
+               Phrase(("sort Verdict ▲", "Verdict ▲"), keep=3),
+               Phrase(("verdict is selective, max products 3", "2 filters on", "filtered"), keep=2)]
+    text = fit_phrases(phrases, width)
+    parts = text.split(" │ ")
+    forms = [set(p.forms) for p in phrases]
+    positions = [next(i for i, f in enumerate(forms) if part in f) for part in parts]
+    assert positions == sorted(set(positions))  # whole forms, each phrase at most once, in order
+    if len(parts) > 1 or min(len(f) for f in phrases[positions[0]].forms) <= width:
+        assert len(text) <= width
 
 
 @async_test

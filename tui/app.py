@@ -894,14 +894,15 @@ class HalosiftApp(App[int]):
         sort = self._sort_text()
         settings = [
             Phrase((f"{cl2.long} · {temps}", f"{cl2.short} · {temps}"), keep=4),
-            Phrase((f"sort {sort}", sort), keep=3),
+            # The sort also shows on its column's title; the filters show nowhere else, so they stay longer.
+            Phrase((f"sort {sort}", sort), keep=2),
         ]
         if self.view != "library":
             settings.append(Phrase(("filters off here", ""), keep=1))
         elif self.filters.active:
             n = self.filters.count
             settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
-                                   keep=2))
+                                   keep=3))
         else:
             settings.append(Phrase(("no filters", ""), keep=1))
         self.query_one("#settings", OneLine).show(fit_phrases(settings, width))

@@ -23,14 +23,16 @@ class Phrase:
 def fit_phrases(phrases: Sequence[Phrase], width: int, separator: str = SEPARATOR) -> str:
     """The phrases joined in order, each in the longest form that lets the whole line fit ``width``.
 
-    The phrase with the lowest ``keep`` is shortened first, one form at a time;
-    if even the shortest forms do not fit, the shortest line is returned (the
-    widget then ends it in '…').
+    The phrase with the lowest ``keep`` is shortened first, one form at a time.
+    If even the shortest forms do not fit, whole phrases are left out, the lowest
+    ``keep`` first, so no phrase is ever cut in the middle; only a single phrase
+    wider than the line is returned as it is (the widget then ends it in '…').
     """
     chosen = [0] * len(phrases)
+    dropped: set[int] = set()
 
     def line() -> str:
-        return separator.join(f for p, i in zip(phrases, chosen) if (f := p.forms[i]))
+        return separator.join(f for k, (p, i) in enumerate(zip(phrases, chosen)) if k not in dropped and (f := p.forms[i]))
 
     text = line()
     while len(text) > width:
@@ -39,6 +41,12 @@ def fit_phrases(phrases: Sequence[Phrase], width: int, separator: str = SEPARATO
             break
         k = min(candidates, key=lambda k: (phrases[k].keep, k))
         chosen[k] += 1
+        text = line()
+    while len(text) > width:
+        shown = [k for k, p in enumerate(phrases) if k not in dropped and p.forms[chosen[k]]]
+        if len(shown) <= 1:
+            break
+        dropped.add(min(shown, key=lambda k: (phrases[k].keep, -k)))
         text = line()
     return text
 

@@ -833,10 +833,15 @@ class HalosiftApp(App[int]):
                 cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
                 cols += REASON_COLUMNS
         if self.show_input_columns:
+            import pandas as pd  # loaded long before: a frame is being shown
+
             # By their names in the frame: an input "status" is shown as input_status, not as the result's.
             for name, key in lib.result_names().items():
                 if name not in (lib.id_column, lib.smiles_column):
-                    cols.append(Column(key, str(key), self._text_width(frame, key, str(key), 24)))
+                    values = frame[key]
+                    numeric = pd.api.types.is_numeric_dtype(values) and not pd.api.types.is_bool_dtype(values)
+                    cols.append(Column(key, str(key), self._text_width(frame, key, str(key), 24),
+                                       "number" if numeric else "text"))  # a number is never shown cut
         cols.append(Column(ROW_KEY, "Row", max(5, len(str(len(frame))) + 2), "row"))
         return cols
 

@@ -29,7 +29,7 @@ if TYPE_CHECKING:
 #: Column key meaning "the input row number" (1-based on screen).
 ROW_KEY = "\x00row"
 #: Cell kinds: how a column's values are shown.
-KINDS = ("text", "pct", "count", "verdict", "row")
+KINDS = ("text", "pct", "count", "verdict", "row", "number")
 #: Table width (cells) up to which every column keeps its own width: the 80×24 layout never changes.
 GROW_FROM = 80
 _SEP = 1  # blank cells between columns
@@ -56,12 +56,12 @@ class Column:
     @property
     def right(self) -> bool:
         """Numbers are right-aligned."""
-        return self.kind in ("pct", "count", "row")
+        return self.number
 
     @property
     def number(self) -> bool:
-        """A number: shown whole or not at all, never cut."""
-        return self.kind in ("pct", "count", "row")
+        """A number: shown whole or not at all, never cut ('number': an input column's own numbers, as given)."""
+        return self.kind in ("pct", "count", "row", "number")
 
 
 #: Beside the verdict: the reagent offered.

@@ -235,3 +235,29 @@ async def test_a_delivery_never_drawn_holds_the_screen_up_only_briefly(tmp_path,
         await until(pilot, lambda: app.phase == "ready")
         await settle(pilot, app)
         assert len(app.frame) == len(QX_ROWS) and (app.frame["status"].isin(["ok", "rejected"])).all()
+
+
+@async_test
+async def test_sort_before_the_first_rows_says_why_and_works_once_they_are_in(tmp_path, cache_dir, monkeypatch):
+    release = threading.Event()
+    real = parallel.perceive
+
+    def held(chunk, *args, **kwargs):
+        release.wait(20)
+        return real(chunk, *args, **kwargs)
+
+    monkeypatch.setattr(parallel, "perceive", held)
+    notes: list[str] = []
+    app = HalosiftApp(str(write_library(tmp_path)), sessions=False)
+    monkeypatch.setattr(app, "notify", lambda message, **kw: notes.append(str(message)))
+    async with app.run_test(size=SIZE) as pilot:
+        await until(pilot, lambda: app.phase == "screening")
+        await pilot.press("s")
+        assert any("Wait for the first rows" in n for n in notes), notes
+        release.set()
+        await until(pilot, lambda: app.phase == "ready")
+        await settle(pilot, app)
+        app.set_focus(None)  # the table not focused: the app's own s still sorts
+        await pilot.press("s")
+        await settle(pilot, app)
+        assert app.sort.column is not None and app.focused is app.query_one(LibraryTable)

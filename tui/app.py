@@ -71,7 +71,7 @@ WARNING_LINES = 3
 TABLE_ACTIONS = frozenset({
     "search", "filters", "conditions", "next_view", "export", "mark_shown", "unmark_shown", "undo_marks",
     "mark_from_file", "start_fresh",
-    "clear_filters", "toggle_input_columns", "toggle_more_columns",
+    "clear_filters", "toggle_input_columns", "toggle_more_columns", "sort_table",
 })
 #: Result columns the "more columns" key adds to the library table (label, width, kind).
 MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
@@ -196,6 +196,8 @@ class HalosiftApp(App[int]):
         Binding("x", "clear_filters", "Clear filters", show=False),
         Binding("c", "toggle_input_columns", "Input columns", show=False),
         Binding("o", "toggle_more_columns", "More columns (confidence, flags, NBS, poly)", show=False),
+        # The table's own s (it wins when the table has the focus): before the first rows, say why nothing sorts.
+        Binding("s", "sort_table", "Sort", show=False),
     ]
 
     def __init__(
@@ -670,6 +672,12 @@ class HalosiftApp(App[int]):
                 self.notify(reason, title="Not now", severity="warning")
                 return True
         return await super().run_action(action, default_namespace, namespaces)
+
+    def action_sort_table(self) -> None:
+        """Sort by the table's picked column, the table taking the focus (as its own s does)."""
+        table = self.query_one(LibraryTable)
+        table.focus()
+        table.action_sort()
 
     def action_cancel_screening(self) -> None:
         """Stop the screening worker (it stops at the next batch)."""

@@ -222,6 +222,27 @@ async def test_whole_path(tmp_path):
 
 
 @async_test
+async def test_detail_shows_the_inputs_own_columns_whole(tmp_path):
+    """A long catalogue name, cut in the table's column, reads in full in the detail."""
+    name = "cis-1-tert-butyl-4-methylcyclohexane, 97 % (GC), stabilised, Wrenfield lot 22-0419"
+    path = tmp_path / "named.csv"
+    pd.DataFrame({"id": ["WS-0001", "WS-0002"], "smiles": ["CC(C)(C)C1CCC(C)CC1", "CCC"],
+                  "name": [name, None], "price_eur": [412.5, 9.0]}).to_csv(path, index=False)
+    app = HalosiftApp(str(path), sessions=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot, app)
+        app.query_one(LibraryTable).cursor = 0
+        await pilot.press("enter")
+        await settle(pilot, app)
+        head = " ".join(plain(app.screen.query_one("#detail-head")).split())
+        assert f"Input: name {name} · price_eur 412.5" in head
+        await pilot.press("n")  # the next row has no name: only what it has is listed
+        await settle(pilot, app)
+        head = " ".join(plain(app.screen.query_one("#detail-head")).split())
+        assert "Input: price_eur 9.0" in head and "name" not in head.split("Input:")[1].split("Verdict")[0]
+
+
+@async_test
 async def test_detail_shows_every_product_and_steps(tmp_path):
     app = HalosiftApp(str(small_library(tmp_path)))
     async with app.run_test(size=SIZE) as pilot:

@@ -31,7 +31,8 @@ def _missing(value: Any) -> bool:
     """True for an empty result cell (None, NaN or pandas' NA)."""
     import pandas
 
-    return bool(pandas.isna(value))
+    missing = pandas.isna(value)
+    return missing if isinstance(missing, bool) else False  # a list or array cell (Parquet) is a value
 
 
 _EIGHTHS = " ▏▎▍▌▋▊▉"
@@ -363,6 +364,13 @@ class DetailScreen(Screen):
         line_width = max(20, (self.size.width or self.app.size.width) - 2)  # the head's padding
         given = str(record[names[lib.smiles_column]])
         head.append("\n" + smiles_block("SMILES ", given, line_width))
+        # The input's own columns (a name, a price…), whole: the table cuts long ones to its column width.
+        own = [(str(name), record[key]) for name, key in names.items()
+               if name not in (lib.id_column, lib.smiles_column) and not _missing(record[key])
+               and str(record[key]).strip()]
+        if own:
+            head.append("\nInput: ", style="bold")
+            head.append(" · ".join(f"{name} {value}" for name, value in own))
         if record["status"] != "ok":
             head.append("\nRejected: ", style="bold")
             head.append(str(record["reason"]))

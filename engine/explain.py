@@ -73,9 +73,9 @@ class NbsProduct:
     smiles: str
     """Canonical SMILES of the monobromide."""
     site: str
-    """Site class(es) of the carbon(s) whose radical gives it, comma-joined."""
+    """Site class(es) of the carbon(s) whose radical gives it, joined by ', '."""
     terminus: str
-    """'radical carbon' (Br where H left), 'allylic shift' (Br at the far end, C=C moved), or both."""
+    """'radical carbon' (Br where H left), 'allylic shift' (Br at the far end, C=C moved), or both ('radical carbon, allylic shift')."""
     alkene_substituents: int
     """Carbon substituents on the product's C=C (-1: no C=C, benzylic); more favours that terminus."""
     stereo: str
@@ -280,7 +280,7 @@ def explain(smiles: str, conditions: Conditions | None = None) -> Explanation:
                 smiles=r.product, site=r.site, terminus=r.terminus, alkene_substituents=int(r.alkene_subst),
                 stereo=r.stereo, n_stereoisomers=int(r.n_stereoisomers), n_diastereomers=int(r.n_diastereomers),
                 stereo_approximate=bool(r.stereo_approx), e_and_z=bool(r.ez_open), pct=float(r.nbs_pct),
-                rate_basis=BASES[min(BASES.index(nbs_bases[SITE_CODE[x]]) for x in str(r.site).split(","))],
+                rate_basis=BASES[min(BASES.index(nbs_bases[SITE_CODE[x]]) for x in str(r.site).split(", "))],
             )
             for r in nbs_frame.itertuples(index=False)
         ),

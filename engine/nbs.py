@@ -297,13 +297,14 @@ def nbs_products(allylic: pd.DataFrame, per_h: np.ndarray, n_struct: int) -> pd.
                                      "n_stereoisomers", "n_diastereomers", "stereo_approx", "ez_open", "nbs_pct"])
     df = allylic.assign(nbs_pct=nbs_percent(allylic, per_h, n_struct))
 
-    def joined(values: pd.Series) -> str:
+    def joined(values: pd.Series) -> str:  # as a chemist reads it: "radical carbon, allylic shift"
         seen: list[str] = []
         for v in values:
             for part in str(v).split(","):
+                part = part.strip()
                 if part and part not in seen:
                     seen.append(part)
-        return ",".join(seen)
+        return ", ".join(seen)
 
     out = df.groupby(["struct", "product"], sort=False, as_index=False).agg(
         site=("site", joined), terminus=("terminus", joined), alkene_subst=("alkene_subst", "max"),

@@ -7,6 +7,7 @@ import json
 import os
 import signal
 import sys
+import textwrap
 import threading
 import warnings
 from collections.abc import Iterator, Sequence
@@ -14,6 +15,7 @@ from contextlib import contextmanager
 from dataclasses import asdict
 from typing import TextIO
 
+from halosift._caution import CAUTION
 from halosift._version import __version__
 
 EXIT_OK = 0
@@ -135,7 +137,9 @@ def build_parser() -> argparse.ArgumentParser:
     """The argument parser for all subcommands."""
     parser = _Parser(
         prog="halosift", description="Predict free-radical halogenation outcomes for hydrocarbons.",
-        epilog="Without a command, opens the app on the bundled sample catalogue (on a terminal only).",
+        epilog="Without a command, opens the app on the bundled sample catalogue (on a terminal only).\n\n"
+               + textwrap.fill(CAUTION, 78),
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"halosift {__version__}")
     sub = parser.add_subparsers(dest="command", parser_class=_Parser)

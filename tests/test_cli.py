@@ -548,3 +548,13 @@ def test_condition_help_names_every_reagent_and_what_the_threshold_governs() -> 
         text = " ".join(sub.choices[name].format_help().split())
         assert all(f"{r}=°C" in text for r in ("cl2", "br2", "so2cl2", "nbs")), name
         assert "bromination share" not in text and "every reagent" in text, name
+
+
+def test_help_carries_the_safety_caution(capsys: pytest.CaptureFixture) -> None:
+    """Like every output (README, app help, exports): the caution, in full, under --help."""
+    from halosift.engine import CAUTION
+
+    with pytest.raises(SystemExit):
+        main(["--help"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert CAUTION in out

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import pytest
-
 from halosift.tui.app import HalosiftApp
 from halosift.tui.filters import FilterSpec, SortSpec
 from halosift.tui.header import Phrase, column_title, fit_phrases

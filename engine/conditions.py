@@ -13,7 +13,7 @@ from halosift.engine.parameters import (
     MAX_NBS_TEMP_C,
 )
 from halosift.engine.rates import RateTable, product_basis, rate_table
-from halosift.engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENTS
+from halosift.engine.reagents import EXPLAIN_REAGENTS, RADICAL_OF, REAGENT_LABELS, REAGENT_NAMES, REAGENTS
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES
 from halosift.engine.solvent import check_solvent, extrapolated, scale_rates, selectivity_exponent
 
@@ -129,23 +129,23 @@ class Conditions:
         for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
             if not t == t:
-                raise ValueError(f"{reagent} temperature is not a number")
+                raise ValueError(f"{REAGENT_NAMES[reagent]} temperature is not a number")
             if t <= -KELVIN:
-                raise ValueError(f"{reagent} temperature {t} °C is at or below absolute zero")
+                raise ValueError(f"{REAGENT_NAMES[reagent]} temperature {t:g} °C is at or below absolute zero")
         if self.cl2_phase not in CL2_PHASES:
-            raise ValueError(f"unknown cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")
+            raise ValueError(f"unknown Cl2 phase {self.cl2_phase!r}; expected one of {', '.join(CL2_PHASES)}")
         for reagent in RADICAL_OF:
             t = self.temp_c(reagent)
             top, why = self.max_temp_c(reagent)
             if t > top:
-                raise ValueError(f"{reagent} temperature {t:g} °C is above the {top:g} °C accepted ({why})")
+                raise ValueError(f"{REAGENT_NAMES[reagent]} temperature {t:g} °C is above the {top:g} °C accepted ({why})")
         if not 0 <= self.threshold_pct <= 100:
             raise ValueError(f"threshold {self.threshold_pct} is not a percentage between 0 and 100")
         check_solvent(self.cl2_solvent, self.cl2_solvent_molar)
         if self.cl2_phase == "gas" and self.cl2_solvent != "none":
-            raise ValueError("a cl2 solvent needs phase solution (or liquid), not gas")
+            raise ValueError("a Cl2 solvent needs phase solution (or liquid), not gas")
         if self.cl2_phase == "solution" and self.cl2_solvent == "none":
-            raise ValueError("cl2 phase solution needs a solvent (benzene or cs2)")
+            raise ValueError("Cl2 phase solution needs a solvent (benzene or cs2)")
         if self.cl2_phase == "solution" and not self.cl2_solvent_molar > 0:
             # 0 M is Russell's neat-liquid point: a "solution" in no solvent is the neat liquid, phase liquid
             raise ValueError(f"a solution needs a {self.cl2_solvent} concentration above 0 M (0 M is the neat "
@@ -159,13 +159,13 @@ class Conditions:
             t = self.temp_k(reagent)
             if not lo <= t <= hi:
                 out.append(
-                    f"{reagent} at {self.temp_c(reagent):g} °C is outside the {lo - KELVIN:.0f}–{hi - KELVIN:.0f} °C "
+                    f"{REAGENT_NAMES[reagent]} at {self.temp_c(reagent):g} °C is outside the {lo - KELVIN:.0f}–{hi - KELVIN:.0f} °C "
                     "range of its rate data; the split is extrapolated"
                 )
         if "cl2" in reagents and self.cl2_solvent != "none":
             if extrapolated(self.cl2_solvent, self.cl2_solvent_molar):
                 out.append(
-                    f"cl2 in {self.cl2_solvent_molar:g} M {self.cl2_solvent} is beyond the measured solvent data; "
+                    f"Cl2 in {self.cl2_solvent_molar:g} M {self.cl2_solvent} is beyond the measured solvent data; "
                     "the solvent effect is extrapolated"
                 )
             if abs(self.cl2_temp_c - 25.0) > 10:

@@ -36,6 +36,8 @@ NBS = "nbs"
 RADICAL_OF: dict[str, str] = {**EXPLAIN_REAGENTS, NBS: "br"}
 #: What :func:`halosift.engine.explain` and ``halosift explain --reagent`` accept.
 ACCEPTED_REAGENTS: dict[str, str] = RADICAL_OF
+#: How a chemist writes each reagent in running text (messages, headers): Cl2, Br2, SO2Cl2, NBS.
+REAGENT_NAMES: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", NBS: "NBS"}
 REAGENT_LABELS: dict[str, str] = {
     "cl2": "Cl2, light", "br2": "Br2, light", "so2cl2": "SO2Cl2, initiator", NBS: "NBS, initiator",
 }

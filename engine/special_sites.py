@@ -43,6 +43,12 @@ class FlagNote:
     """Where the numbers in ``note`` come from."""
 
 
+def _alkene_limits() -> str:
+    """The temperatures below which addition wins, per radical, said once when they are equal."""
+    cl, br = P.ALKENE_SUBSTITUTION_T_C.value, P.BR_ALKENE_SUBSTITUTION_T_C.value
+    return f"{cl:.0f} °C" if f"{cl:.0f}" == f"{br:.0f}" else f"{cl:.0f} °C (Cl·) / {br:.0f} °C (Br·)"
+
+
 FLAG_NOTES: dict[str, FlagNote] = {
     "cyclopropylmethyl": FlagNote(
         "cyclopropylmethyl",
@@ -80,7 +86,7 @@ FLAG_NOTES: dict[str, FlagNote] = {
     "alkene": FlagNote(
         "alkene",
         "C=C present: Cl2, Br2 and SO2Cl2 add to the double bond at ordinary temperatures, so they are ruled out "
-        f"below {P.ALKENE_SUBSTITUTION_T_C.value:.0f} °C (Cl·) / {P.BR_ALKENE_SUBSTITUTION_T_C.value:.0f} °C (Br·), "
+        f"below {_alkene_limits()}, "
         "where allylic substitution takes over (propene + Cl2 gives allyl chloride); "
         "NBS (Br· at low Br2 concentration) is the reagent that serves allylic substitution",
         P.ALKENE_SUBSTITUTION_T_C.source + "; Br2: " + P.BR_ALKENE_SUBSTITUTION_T_C.source,

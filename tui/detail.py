@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.engine.outcomes import OUTCOME_REAGENTS
-from halosift.engine.reagents import REAGENTS
+from halosift.engine.reagents import REAGENT_NAMES, REAGENTS
 from halosift.tui.filters import reagent_label
 from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
 from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
@@ -202,8 +202,8 @@ def poly_text(products: pd.DataFrame, ruled: dict[str, str] | None = None) -> Te
         excess = "no excess suffices" if p.min_ratio == float("inf") else f"≥ {p.min_ratio:.2g} : 1 substrate : halogen"
         # The table's "poly % prod" column: the same figure, the same unit.
         text.append(
-            f"{reagent}: {p.poly_pct_at_ratio:.1f} {POLY_UNIT} is polyhalide; ≤ {DEFAULT_MAX_POLY_PCT:g} % "
-            f"needs ≤ {p.max_conversion_pct:.0f} % conversion ({excess})\n"
+            f"{REAGENT_NAMES[reagent]}: {p.poly_pct_at_ratio:.1f} {POLY_UNIT} is polyhalide; "
+            f"≤ {DEFAULT_MAX_POLY_PCT:g} % needs ≤ {p.max_conversion_pct:.1f} % conversion ({excess})\n"
         )
     return text
 

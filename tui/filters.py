@@ -113,7 +113,7 @@ class FilterSpec:
             for reagent in OUTCOME_REAGENTS:
                 kept = self.outcomes_for(reagent)
                 if kept:
-                    parts.append(f"{reagent} " + "/".join(o for o in OUTCOMES if o in kept))
+                    parts.append(f"{reagent_label(reagent)} " + "/".join(o for o in OUTCOMES if o in kept))
         if self.confidence:
             parts.append("confidence " + "/".join(c for c in confidence_choices() if c in self.confidence))
         if self.duplicates == "hide":
@@ -155,10 +155,10 @@ def flag_label(flag: str) -> str:
 
 
 def reagent_label(reagent: str) -> str:
-    """How the app names a reagent: the engine's label up to its comma ('Cl2, light' → 'Cl2')."""
-    from halosift.engine.reagents import REAGENT_LABELS
+    """How the app names a reagent: the engine's running-text name ('cl2' → 'Cl2')."""
+    from halosift.engine.reagents import REAGENT_NAMES
 
-    return REAGENT_LABELS[reagent].split(",")[0]
+    return REAGENT_NAMES[reagent]
 
 
 def confidence_choices() -> tuple[str, ...]:

@@ -615,7 +615,7 @@ async def test_detail_shows_confidence_flags_nbs_and_polyhalide(tmp_path):
         assert "No allylic or benzylic C–H" in plain(app.screen.query_one("#detail-nbs"))
         # Cyclohexane substitutes under both: polyhalide figures for each.
         poly = plain(app.screen.query_one("#detail-poly"))
-        assert "cl2:" in poly and "br2:" in poly and "1 : 1" in poly and "ruled out" not in poly
+        assert "Cl2:" in poly and "Br2:" in poly and "1 : 1" in poly and "ruled out" not in poly
 
 
 @async_test

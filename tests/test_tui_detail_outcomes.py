@@ -104,9 +104,9 @@ async def test_ruled_out_reagents_show_no_share_in_table_or_detail(tmp_path):
             for label in off:
                 shown = bars if label != "NBS" else nbs
                 assert any(x.startswith(label) and "ruled out" in x for x in shown.splitlines()), (smiles, shown)
-                assert f"{label.lower()}:" not in poly
+                assert f"{label}:" not in poly
             for label in kept:
-                assert f"{label} at" in bars and "%" in bars and f"{label.lower()}:" in poly
+                assert f"{label} at" in bars and "%" in bars and f"{label}:" in poly
             if not kept:
                 assert "%" not in bars and poly.strip() == ""
             assert "99.2" not in bars

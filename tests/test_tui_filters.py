@@ -180,7 +180,7 @@ def test_describe_and_active():
                       confidence=frozenset({"measured"}), duplicates="hide")
     assert more.active and more.count == 6
     text = more.describe()
-    for part in ("flags alkene", "no cage", "br2 clean/mixture", "nbs clean", "confidence measured", "repeats hidden"):
+    for part in ("flags alkene", "no cage", "Br2 clean/mixture", "NBS clean", "confidence measured", "repeats hidden"):
         assert part in text
     assert "repeats only" in FilterSpec(duplicates="only").describe()
 

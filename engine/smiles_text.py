@@ -22,12 +22,12 @@ def break_quality(tokens: list[str], k: int) -> int:
     """How good a break after ``tokens[k]`` is: 2 good, 1 acceptable, 0 never.
 
     Good after a ring-closure digit, after a branch closes, after '.', or before a
-    branch opens; never before a ring-closure digit (it belongs to the atom before
-    it) nor after a branch or bond symbol (it belongs to the atom after it).
+    branch opens; never before a ring-closure digit or a branch's ')' (they belong to
+    the atom before them) nor after a branch or bond symbol (it belongs to the atom after it).
     """
     here = tokens[k]
     after = tokens[k + 1] if k + 1 < len(tokens) else ""
-    if _RING_DIGIT.fullmatch(after):
+    if _RING_DIGIT.fullmatch(after) or after == ")":
         return 0
     if here in _LEADING:
         return 0

@@ -353,6 +353,7 @@ def test_smiles_break_only_between_tokens() -> None:
         # ends with the C of Cl/Br or starts with its l/r.
         assert piece.count("[") == piece.count("]"), piece
         assert not piece.startswith(("l", "r")), piece
+        assert not piece.startswith(")"), piece  # a branch closes on the line it is on
     for i, piece in enumerate(pieces[:-1]):
         assert piece[-1] in ")0123456789]CcHBrl", piece  # after ')', a ring digit or an atom only
         assert not (piece.endswith("B") or (piece.endswith("C") and pieces[i + 1].startswith("l")))

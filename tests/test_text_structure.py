@@ -175,7 +175,7 @@ def test_smiles_lines_never_split_an_atom_or_a_ring_closure(width: int) -> None:
     lines = smiles_lines(LONG, width)
     for before, after in pairwise(lines):
         assert not (before.endswith("C") and after.startswith("l")) and not (before.endswith("B") and after.startswith("r"))
-        assert not re.match(r"\d|%", after), (before, after)  # ring-closure digits stay with their atom
+        assert not re.match(r"\d|%|\)", after), (before, after)  # ring digits and ')' stay with their atom
         assert before.count("[") == before.count("]")  # no bracket atom cut
         assert not before.endswith(("(", "=", "#"))
 

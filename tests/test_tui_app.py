@@ -334,6 +334,23 @@ async def test_export_choice_moves_with_the_arrows_from_the_file_field(tmp_path)
 
 
 @async_test
+async def test_export_form_says_a_report_is_grouped_not_in_table_order(tmp_path):
+    app = HalosiftApp(str(small_library(tmp_path)), sessions=False)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, app)
+        await pilot.press("e")
+        screen = app.screen
+        path = screen.query_one("#export-path")
+        path.value = str(tmp_path / "out.html")
+        await pilot.pause()
+        order = plain(screen.query_one("#export-order"))
+        assert "groups its entries by outcome" in order and "not the table's order" in order
+        path.value = str(tmp_path / "out.csv")
+        await pilot.pause()
+        assert "in the table's order: input order" in plain(screen.query_one("#export-order"))
+
+
+@async_test
 async def test_html_export_shows_progress_until_written(tmp_path, monkeypatch):
     from halosift.tui import export as export_module
 

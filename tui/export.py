@@ -331,6 +331,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             box.update("✗ the current view has no rows")
             return None
         exists = " · the file exists: you will be asked before it is replaced" if existing_targets(path, fmt) else ""
+        self._show_order(fmt)
         if fmt == "html":
             box.update(f"✓ HTML report to {path}; conditions, sources and the caution in its header{exists}")
             return target
@@ -338,6 +339,20 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             "as properties of the first SDF record" if fmt == "sdf" else "in a .about.txt file beside it")
         box.update(f"✓ {fmt.upper()} to {path}; metadata {where}{exists}")
         return target
+
+    def _show_order(self, fmt: str) -> None:
+        """Say in which order the rows go out: the table's, or a report's grouping (and its cap)."""
+        from halosift.report import DEFAULT_MAX_PAGES
+
+        box = self.query_one("#export-order", Static)
+        if fmt != "html":
+            box.update(f"Rows are written in the table's order: {self.order}.")
+            return
+        n = self.n_marked if self.what == "shortlist" else self.n_view
+        over = (f"; {n - DEFAULT_MAX_PAGES:,} of these {n:,} rows are counted in it but not drawn"
+                if n > DEFAULT_MAX_PAGES else "")
+        box.update("A report groups its entries by outcome, best candidates first (not the table's order), and "
+                   f"draws at most {DEFAULT_MAX_PAGES}{over}.")
 
     @on(Input.Changed, "#export-path")
     def _path_changed(self) -> None:

@@ -349,7 +349,7 @@ class ExportScreen(ModalScreen[ExportChoice | None]):
             box.update(f"Rows are written in the table's order: {self.order}.")
             return
         n = self.n_marked if self.what == "shortlist" else self.n_view
-        over = (f"; {n - DEFAULT_MAX_PAGES:,} of these {n:,} rows are counted in it but not drawn"
+        over = (f"; {n - DEFAULT_MAX_PAGES:,} of these {counted(n, 'row')} are counted in it but not drawn"
                 if n > DEFAULT_MAX_PAGES else "")
         box.update("A report groups its entries by outcome, best candidates first (not the table's order), and "
                    f"draws at most {DEFAULT_MAX_PAGES}{over}.")

@@ -372,6 +372,13 @@ def test_page_smiles_carry_break_points_and_no_break_all(tmp_path: Path) -> None
             assert piece.count("[") == piece.count("]") and not piece.startswith(("l", "r")), cell
 
 
+def test_entries_name_reagents_as_chemists_write_them(tmp_path: Path) -> None:
+    page = report(tmp_path)
+    lines = re.findall(r'<p class="meta">Outcomes: (.*?)</p>', page)
+    assert lines and all(line.startswith("Cl2: ") and "; Br2: " in line and "; NBS: " in line for line in lines)
+    assert "radical carbon,allylic" not in page  # the NBS termini read as words
+
+
 def test_header_and_title_name_the_file_only(tmp_path: Path) -> None:
     folder = tmp_path / "private" / "projects"
     folder.mkdir(parents=True)

@@ -378,11 +378,14 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
         majors = [_major_html(result_row, "cl2", "Cl2"), _major_html(result_row, "br2", "Br2")]
         lines.append(f'<p class="meta">{" · ".join(majors)}</p>')
     outcomes = []
-    for r in ("cl2", "br2", "so2cl2", "nbs"):
+    from halosift.engine.outcomes import OUTCOME_REAGENTS
+    from halosift.engine.reagents import REAGENT_NAMES
+
+    for r in OUTCOME_REAGENTS:
         outcome = result_row.get(f"{r}_outcome", "")
         if isinstance(outcome, str) and outcome:
             why = result_row.get(f"{r}_reason", "")
-            outcomes.append(f"{r}: {outcome}" + (f" ({why})" if isinstance(why, str) and why else ""))
+            outcomes.append(f"{REAGENT_NAMES[r]}: {outcome}" + (f" ({why})" if isinstance(why, str) and why else ""))
     if outcomes:
         lines.append(f'<p class="meta">Outcomes: {_e("; ".join(outcomes))}</p>')
     extras = []

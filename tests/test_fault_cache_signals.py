@@ -37,6 +37,25 @@ SIGNAL_ROWS = 20_000
 WAIT_S = 60.0
 
 
+@pytest.fixture(autouse=True, scope="module")
+def _signals_not_ignored():
+    """The processes these tests signal must not inherit an ignored SIGINT or SIGHUP.
+
+    A shell starts a background job (``cmd &``, ``nohup``) with them ignored, an ignored
+    signal stays ignored across exec, and halosift rightly leaves an ignored signal
+    ignored: run that way, every child here would shrug the signal off and finish.
+    Handled (not ignored) here, they reach each child as the default action.
+    """
+    changed = {}
+    for signum in (signal.SIGINT, signal.SIGHUP, signal.SIGTERM):
+        if signal.getsignal(signum) is signal.SIG_IGN:
+            changed[signum] = signal.SIG_IGN
+            signal.signal(signum, signal.default_int_handler if signum == signal.SIGINT else signal.SIG_DFL)
+    yield
+    for signum, old in changed.items():
+        signal.signal(signum, old)
+
+
 def _library_gen() -> ModuleType:
     """benchmarks/library_gen.py, imported by path (benchmarks is not an installed package)."""
     path = ROOT / "benchmarks" / "library_gen.py"

@@ -169,7 +169,7 @@ class Conditions:
                     "the solvent effect is extrapolated"
                 )
             if abs(self.cl2_temp_c - 25.0) > 10:
-                out.append("the cl2 solvent effect was measured at 25 °C; it is applied unchanged at other temperatures")
+                out.append("the Cl2 solvent effect was measured at 25 °C; it is applied unchanged at other temperatures")
         return out
 
     def describe(self) -> str:

@@ -81,6 +81,19 @@ def test_extrapolation_warns() -> None:
     assert not Conditions(cl2_solvent="benzene", cl2_solvent_molar=6).warnings()
 
 
+def test_warnings_name_reagents_as_chemists_write_them() -> None:
+    # Every warning a chemist reads says Cl2, Br2, SO2Cl2, NBS: the lowercase tokens are option values, not names.
+    import re
+
+    hot = Conditions(cl2_phase="gas", cl2_temp_c=400, br2_temp_c=400, so2cl2_temp_c=150, nbs_temp_c=140,
+                     cl2_solvent="none")
+    cold = Conditions(cl2_phase="solution", cl2_solvent="benzene", cl2_solvent_molar=10, cl2_temp_c=60)
+    warned = hot.warnings() + cold.warnings()
+    assert len(warned) >= 3
+    for text in warned:
+        assert not re.search(r"\b(cl2|br2|so2cl2|nbs)\b", text), text
+
+
 def test_cli_solvent(capsys: pytest.CaptureFixture) -> None:
     assert main(["explain", "CC(C)C(C)C", "--solvent", "benzene=8", "--reagent", "cl2"]) == 0
     out = capsys.readouterr().out

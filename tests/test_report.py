@@ -529,6 +529,35 @@ def test_site_letters_placed_clear_at_one_size_without_a_browser() -> None:
             assert not any(a.box.overlaps(b.box) for b in spots[i + 1:])
 
 
+@pytest.mark.parametrize(
+    ("p", "q", "a", "b", "crosses"),
+    [((0, 0), (10, 0), (5, -5), (5, 5), True),    # an X
+     ((0, 0), (10, 0), (0, 0), (0, 10), False),   # sharing an end point (a leader starts at its atom)
+     ((0, 0), (10, 0), (12, -5), (12, 5), False),  # beyond the end
+     ((0, 0), (10, 0), (0, 2), (10, 2), False)],  # parallel
+)
+def test_segments_cross(p, q, a, b, crosses: bool) -> None:
+    from halosift.report import drawing
+
+    assert drawing.segments_cross(p, q, a, b) is crosses
+
+
+def test_leader_goes_round_a_bond_when_it_can() -> None:
+    # Synthetic layout: a ring of bare points blocks every near spot of atom 0, and a bond (C–D) stands
+    # between atom 0 and its first far spots; a leader drawn through that bond reads as labelling the bond.
+    import math
+
+    from halosift.report import drawing
+
+    cx = cy = 200.0
+    atoms = [(cx, cy), (cx + 40, cy), (cx - 50, cy - 30), (cx - 50, cy + 30)]
+    atoms += [(cx + r * math.cos(k * math.pi / 12), cy + r * math.sin(k * math.pi / 12))
+              for r in (20, 30, 40, 48) for k in range(24)]
+    (spot,) = drawing.place_labels(atoms, [(0, 1), (2, 3)], [(0, "P1")], (400, 400), 40.0)
+    assert spot.clear and spot.leader
+    assert not drawing.segments_cross(atoms[0], (spot.x, spot.y), atoms[2], atoms[3])
+
+
 def test_ruled_out_reagents_show_no_numbers_and_charts_count_only_where_they_apply(tmp_path: Path) -> None:
     from halosift.sample_libraries import sample_path
 

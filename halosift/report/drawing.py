@@ -174,6 +174,16 @@ class LabelSpot:
     """True when the letter sits far from its atom (a crowded drawing) and a thin line joins them."""
 
 
+def segments_cross(p: tuple[float, float], q: tuple[float, float],
+                   a: tuple[float, float], b: tuple[float, float]) -> bool:
+    """True when segments p–q and a–b properly intersect (touching at an end point does not count)."""
+    def side(u: tuple[float, float], v: tuple[float, float], w: tuple[float, float]) -> float:
+        return (v[0] - u[0]) * (w[1] - u[1]) - (v[1] - u[1]) * (w[0] - u[0])
+
+    d1, d2, d3, d4 = side(a, b, p), side(a, b, q), side(p, q, a), side(p, q, b)
+    return d1 * d2 < 0 and d3 * d4 < 0
+
+
 def label_box(x: float, y: float, text: str, font_px: float = LABEL_FONT_PX) -> Box:
     """The room a letter centred at (x, y) takes: generous, so the glyphs' real extent always lies inside."""
     half_w = (0.64 * font_px * len(text) + 3.0) / 2
@@ -193,7 +203,9 @@ def place_labels(
 
     Candidates ring each atom at growing distances, nearest first, starting from
     the direction that points away from the atom's bonds; the first clear one is
-    taken. Greedy in ``sites`` order, atoms with the fewest free directions first.
+    taken; a far one (joined by a leader line) only if its leader crosses no
+    other bond and no other leader, unless no far spot avoids that. Greedy,
+    the most crowded atoms (most bonds) first.
     """
     segments = [(atoms[i], atoms[j]) for i, j in bonds]
     leaders: list[tuple[tuple[float, float], tuple[float, float]]] = []
@@ -231,18 +243,30 @@ def place_labels(
                 out.append((ax + radius * bond_px * math.cos(angle), ay + radius * bond_px * math.sin(angle)))
         return out
 
+    def leader_crosses(atom: int, end: tuple[float, float]) -> bool:
+        """The leader from ``atom`` to ``end`` crosses a bond not at that atom, or another leader."""
+        start = atoms[atom]
+        others = [seg for (i, j), seg in zip(bonds, segments) if atom not in (i, j)]
+        return any(segments_cross(start, end, a, b) for a, b in (*others, *leaders))
+
     spots: dict[int, LabelSpot] = {}
     # Crowded atoms (more bonds) choose first, while the most room is left around them.
     order = sorted(range(len(sites)), key=lambda k: -len(neighbours[sites[k][0]]))
     for k in order:
         atom, letter = sites[k]
         spot = None
+        crossing: LabelSpot | None = None  # a clear far spot whose leader crosses a bond: the last resort
         for x, y in candidates(atom, letter):
             box = label_box(x, y, letter, font_px)
             if free(box):
                 far = math.dist((x, y), atoms[atom]) > 1.6 * bond_px
-                spot = LabelSpot(letter, x, y, box, True, leader=far)
+                found = LabelSpot(letter, x, y, box, True, leader=far)
+                if far and leader_crosses(atom, (x, y)):
+                    crossing = crossing or found
+                    continue
+                spot = found
                 break
+        spot = spot or crossing
         if spot is None:  # nothing clear: the nearest spot off the bonds' own atom
             x, y = candidates(atom, letter)[0]
             spot = LabelSpot(letter, x, y, label_box(x, y, letter, font_px), False)

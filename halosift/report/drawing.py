@@ -243,11 +243,9 @@ def place_labels(
                 out.append((ax + radius * bond_px * math.cos(angle), ay + radius * bond_px * math.sin(angle)))
         return out
 
-    def leader_crosses(atom: int, end: tuple[float, float]) -> bool:
-        """The leader from ``atom`` to ``end`` crosses a bond not at that atom, or another leader."""
-        start = atoms[atom]
-        others = [seg for (i, j), seg in zip(bonds, segments) if atom not in (i, j)]
-        return any(segments_cross(start, end, a, b) for a, b in (*others, *leaders))
+    def leader_crosses(start: tuple[float, float], end: tuple[float, float], in_the_way: list) -> bool:
+        """The leader from ``start`` to ``end`` crosses one of ``in_the_way`` or another leader."""
+        return any(segments_cross(start, end, a, b) for a, b in (*in_the_way, *leaders))
 
     spots: dict[int, LabelSpot] = {}
     # Crowded atoms (more bonds) choose first, while the most room is left around them.
@@ -256,12 +254,14 @@ def place_labels(
         atom, letter = sites[k]
         spot = None
         crossing: LabelSpot | None = None  # a clear far spot whose leader crosses a bond: the last resort
+        # The atom's own bonds meet its leader at the atom; only the others can be crossed.
+        in_the_way = [seg for (i, j), seg in zip(bonds, segments) if atom not in (i, j)]
         for x, y in candidates(atom, letter):
             box = label_box(x, y, letter, font_px)
             if free(box):
                 far = math.dist((x, y), atoms[atom]) > 1.6 * bond_px
                 found = LabelSpot(letter, x, y, box, True, leader=far)
-                if far and leader_crosses(atom, (x, y)):
+                if far and leader_crosses(atoms[atom], (x, y), in_the_way):
                     crossing = crossing or found
                     continue
                 spot = found

@@ -13,6 +13,7 @@ import pandas as pd
 import pyarrow.parquet as pq
 import pytest
 from halosift.sample_libraries import sample_path
+from project_files import ROOT, python_files
 
 from halosift.cli import main
 
@@ -170,10 +171,8 @@ def test_version_comes_from_the_one_place_it_is_written() -> None:
 
     proc = run("--version")
     assert proc.returncode == 0 and proc.stdout == f"halosift {__version__}\n"
-    root = Path(__file__).resolve().parents[1]
-    written = [p for p in root.rglob("*.py") if "__version__ = " in p.read_text(encoding="utf-8")
-               and "tests" not in p.parts]
-    assert [p.relative_to(root).as_posix() for p in written] == ["halosift/_version.py"]
+    written = [p for p in python_files(with_tests=False) if "__version__ = " in p.read_text(encoding="utf-8")]
+    assert [p.relative_to(ROOT).as_posix() for p in written] == ["halosift/_version.py"]
 
 
 HEAVY = ("rdkit", "pandas", "pyarrow", "textual", "numpy", "halosift.engine", "halosift.tui")

@@ -9,10 +9,10 @@ import sys
 from pathlib import Path
 
 import pytest
+from project_files import ROOT, python_files
 
 tomllib = pytest.importorskip("tomllib")  # Python 3.11+
 
-ROOT = Path(__file__).resolve().parents[1]
 OLD_TOP_LEVEL = ("engine", "tui", "sample_libraries")
 
 
@@ -28,11 +28,10 @@ def _imported_names(path: Path) -> list[str]:
 
 def test_no_source_file_imports_a_folder_as_a_top_level_module() -> None:
     offenders = []
-    for folder in ("engine", "tui", "halosift", "sample_libraries", "tests", "benchmarks"):
-        for path in (ROOT / folder).rglob("*.py"):
-            for name in _imported_names(path):
-                if name.split(".")[0] in OLD_TOP_LEVEL:
-                    offenders.append(f"{path.relative_to(ROOT)}: {name}")
+    for path in python_files(with_tests=True):
+        for name in _imported_names(path):
+            if name.split(".")[0] in OLD_TOP_LEVEL:
+                offenders.append(f"{path.relative_to(ROOT)}: {name}")
     assert not offenders, offenders
 
 

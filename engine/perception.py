@@ -14,6 +14,7 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 from halosift.engine import contenders as contenders_module
+from halosift.engine import stereo as stereo_module
 from halosift.engine.contenders import contenders
 from halosift.engine.kernels import BatchSites, MolArrays, classify, mol_arrays, site_names
 from halosift.engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit
@@ -29,7 +30,15 @@ from halosift.engine.special_sites import (
     small_bridgeheads,
     structure_flags,
 )
-from halosift.engine.stereo import NOT_ANALYSED, Skeleton, StereoOutcome, stereo_outcome, work_share
+from halosift.engine.stereo import (
+    NOT_ANALYSED,
+    PendingStereo,
+    Skeleton,
+    StereoOutcome,
+    resolve_pending,
+    stereo_outcome_later,
+    work_share,
+)
 from rdkit import Chem
 
 _ABSTRACTABLE = frozenset(ABSTRACTABLE)
@@ -106,12 +115,13 @@ class _Prepared:
 
 
 def _perceive_one(
-    smiles: object, max_heavy: int, detail: bool, prepared: _Prepared | None = None
+    smiles: object, max_heavy: int, detail: bool, prepared: _Prepared | None = None,
+    pending: list[_Waiting] | None = None,
 ) -> tuple[tuple, list[tuple], list[tuple]]:
     """One structure's rows: from the kernel results in ``prepared``, or (None) by the reference
-    path, where every rule is its own RDKit pattern search."""
+    path, where every rule is its own RDKit pattern search. ``pending``: see :func:`_finish`."""
     if prepared is not None:
-        return _from_kernels(prepared, detail)
+        return _from_kernels(prepared, detail, pending)
     parsed = parse_hydrocarbon(smiles, max_heavy)
     if not parsed.ok:
         return _rejected(parsed)
@@ -125,7 +135,7 @@ def _perceive_one(
     return _finish(mol, canonical, order, specified, groups, flags, detail)
 
 
-def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
+def _from_kernels(prepared: _Prepared, detail: bool, pending: list[_Waiting] | None = None) -> _Outcome:
     """:func:`_perceive_one` for a structure whose site classes and pattern flags the batch kernels found."""
     batch, k, mol = prepared.batch, prepared.index, prepared.mol
     lo, hi = int(batch.atom_start[k]), int(batch.atom_start[k + 1])
@@ -141,7 +151,7 @@ def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
                 "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
                 "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
-    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail)
+    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail, pending)
 
 
 def _rejected(parsed: Parsed) -> _Outcome:
@@ -175,21 +185,38 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
         batch = classify([a[4] for a in accepted], [len(a[4].h_counts) for a in accepted], CAGE_MAX_RING)
     except Exception:  # never expected; the reference path still answers every row
         batch = None
+    waiting: dict[int, list[_Waiting]] = {}  # structure → its site rows waiting for orbit counts
     for k, (i, mol, canonical, order, arrays) in enumerate(accepted):
         try:
             prepared = None if batch is None else _Prepared(mol, canonical, order, arrays.h_counts, batch, k)
-            outcomes[i] = _perceive_one(smiles[i], max_heavy, detail, prepared)
+            mine: list[_Waiting] = []
+            outcomes[i] = _perceive_one(smiles[i], max_heavy, detail, prepared, mine)
+            if mine:
+                waiting[i] = mine
         except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
             outcomes[i] = _internal("perception failed", exc)
+    try:
+        _resolve([w for ws in waiting.values() for w in ws])  # the whole batch's orbit counts at once
+    except Exception:  # never expected: count structure by structure, so one cannot fail the others
+        for i, ws in waiting.items():
+            try:
+                _resolve(ws)
+            except Exception as exc:
+                outcomes[i] = _internal("perception failed", exc)
     return outcomes  # type: ignore[return-value]  # every slot is filled above
 
 
 def _finish(
-    mol: Chem.Mol, canonical: str, order: list[int], specified: bool, groups: list, flags: str, detail: bool
+    mol: Chem.Mol, canonical: str, order: list[int], specified: bool, groups: list, flags: str, detail: bool,
+    pending: list[_Waiting] | None = None,
 ) -> _Outcome:
-    """One accepted structure's rows, from its site groups and flags (shared by both paths)."""
+    """One accepted structure's rows, from its site groups and flags (shared by both paths).
+
+    ``pending``: where the batch gathers orbit counts (a screen's kernel path), the site rows
+    still waiting for theirs are added to it, their stereo columns filled in by :func:`_resolve`.
+    """
     position = {atom: pos for pos, atom in enumerate(order)}
-    rows = []
+    rows: list[tuple] = []
     # One stereo budget per structure, shared by every product that may need stereo (NBS
     # gives up to two per allylic/benzylic group), counted alike in a screen and in detail.
     stereo_products = sum(g.site in _ABSTRACTABLE for g in groups) + 2 * sum(
@@ -199,13 +226,19 @@ def _finish(
     # A screen names only majors: Cl2 contenders need their SMILES, Br2 contenders also their stereo.
     named, stereo_wanted = (None, None) if detail else contenders([(SITE_CODE[g.site], g.h_count) for g in groups])
     outcomes: list[StereoOutcome] = []
+    waiting: list[tuple[int, PendingStereo]] = []  # (row, its pending count)
     for g, group in enumerate(groups):
         formed = group.site in _ABSTRACTABLE
         if formed and (stereo_wanted is None or g in stereo_wanted):
             # Equivalent carbons of a stereo-defined input can give different
             # stereoisomers (e.g. enantiomers); the group forms all of them.
             products = [prod for _, prod in group.member_products] if specified else [group.product]
-            st = stereo_outcome(products, skeleton, group.stabiliser if len(products) == 1 else None)
+            found = stereo_outcome_later(products, skeleton, group.stabiliser if len(products) == 1 else None)
+            if isinstance(found, PendingStereo):
+                waiting.append((len(rows), found))
+                st = NOT_ANALYSED  # until counted, below or by the batch
+            else:
+                st = found
         else:
             st = NOT_ANALYSED  # never formed (vinyl/aryl/alkynyl C–H), or not a possible Br2 major
         shown = named is None or g in named or (stereo_wanted is not None and g in stereo_wanted)
@@ -223,9 +256,31 @@ def _finish(
                 st.approximate,
             )
         )
+    if waiting and (detail or pending is None):
+        # The NBS rows reuse these outcomes (detail), or no batch gathers the counts: count them now.
+        for (r, _), st in zip(waiting, resolve_pending([p for _, p in waiting])):
+            rows[r] = _with_stereo(rows[r], st)
+            outcomes[r] = st
+    elif waiting:
+        pending.extend((rows, r, p) for r, p in waiting)  # type: ignore[union-attr]  # checked above
     abstractable_h = sum(group.h_count for group in groups if group.site in _ABSTRACTABLE)
     nbs = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail)
     return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
+
+
+#: A site row waiting for its orbit count: (the structure's row list, row index, the pending count).
+_Waiting = tuple[list[tuple], int, PendingStereo]
+
+
+def _with_stereo(row: tuple, st: StereoOutcome) -> tuple:
+    """A site row of :func:`_finish` with its stereo columns (the last four) set from ``st``."""
+    return (*row[:-4], st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate)
+
+
+def _resolve(waiting: list[_Waiting]) -> None:
+    """Count every waiting row of a batch at once and fill in its stereo columns."""
+    for (rows, r, _), st in zip(waiting, resolve_pending([p for _, _, p in waiting])):
+        rows[r] = _with_stereo(rows[r], st)
 
 
 def perceive(
@@ -276,17 +331,18 @@ _reference = False
 
 @contextmanager
 def reference_mode() -> Iterator[None]:
-    """Perceive by the reference implementations (per-structure patterns, loop-built contender vertices).
+    """Perceive by the reference implementations (per-structure patterns, loop-built contender vertices,
+    orbit counts worked out per product in Python).
 
     For the differential tests and benchmarks; not thread-safe (it switches module state).
     """
     global _reference
-    saved = _reference, contenders_module.use_reference
-    _reference, contenders_module.use_reference = True, True
+    saved = _reference, contenders_module.use_reference, stereo_module.use_reference
+    _reference, contenders_module.use_reference, stereo_module.use_reference = True, True, True
     try:
         yield
     finally:
-        _reference, contenders_module.use_reference = saved
+        _reference, contenders_module.use_reference, stereo_module.use_reference = saved
 
 
 #: What :func:`_perceive_one` gives per structure: its structures row, site rows and NBS rows.

@@ -7,6 +7,7 @@ from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
 from functools import cached_property
 
+import numpy as np
 from halosift.engine.special_sites import PROPARGYLIC_SMARTS, small_bridgeheads
 from halosift.engine.stereo import canonical
 from rdkit import Chem
@@ -115,8 +116,8 @@ class SiteGroup:
     """The parsed molecule the atom indices refer to."""
     has_stereo: bool
     """Whether the substrate specifies any stereo (then product SMILES are isomeric)."""
-    substrate_automorphisms: tuple[tuple[int, ...], ...] | None
-    """Every automorphism of the substrate (None when there were too many to list)."""
+    substrate_automorphisms: np.ndarray | None
+    """Every automorphism of the substrate, one per row (None when there were too many to list)."""
     known_product: tuple[str, Chem.Mol] | None = None
     """(SMILES, molecule) of the product when grouping already had to make it."""
 
@@ -159,13 +160,14 @@ class SiteGroup:
         return self.known_product is not None and (not self.has_stereo or len(self.atoms) == 1)
 
     @cached_property
-    def stabiliser(self) -> tuple[tuple[int, ...], ...] | None:
+    def stabiliser(self) -> np.ndarray | None:
         """The substrate's automorphisms that fix the substituted carbon — exactly the
-        product's automorphisms (None when there were too many to list)."""
-        if self.substrate_automorphisms is None:
+        product's automorphisms, one per row (None when there were too many to list)."""
+        perms = self.substrate_automorphisms
+        if perms is None:
             return None
         first = self.atoms[0]
-        return tuple(p for p in self.substrate_automorphisms if p[first] == first)
+        return perms[perms[:, first] == first]
 
 
 def substitute(mol: Chem.Mol, idx: int, halogen: int = 17) -> Chem.RWMol:
@@ -208,10 +210,13 @@ def _smiles(prod: Chem.Mol, isomeric: bool) -> str:
 MAX_AUTOMORPHISMS = 512
 
 
-def automorphisms(mol: Chem.Mol) -> list[tuple[int, ...]] | None:
-    """Every permutation of atoms that maps the graph onto itself (None when there are too many)."""
+def automorphisms(mol: Chem.Mol) -> np.ndarray | None:
+    """Every permutation of atoms that maps the graph onto itself, one per row: row[i] is the image
+    of atom i (None when there are too many)."""
     perms = mol.GetSubstructMatches(mol, uniquify=False, useChirality=False, maxMatches=MAX_AUTOMORPHISMS)
-    return None if len(perms) >= MAX_AUTOMORPHISMS else list(perms)
+    if len(perms) >= MAX_AUTOMORPHISMS:
+        return None
+    return np.array(perms, dtype=np.int64).reshape(len(perms), mol.GetNumAtoms())
 
 
 def site_groups(
@@ -246,18 +251,17 @@ def site_groups(
     perms = automorphisms(mol)
     cyclic = mol.GetRingInfo().NumRings() > 0
     groups: list[SiteGroup] = []
-    automorphism_list = None if perms is None else tuple(perms)
+    # An atom's orbit is the set of its images; its lowest image names it (computed for every atom at once).
+    orbit_of = None if perms is None or not cyclic else perms.min(axis=0).tolist()
     pending: list[tuple[list[int], tuple[str, Chem.Mol] | None]] = []
     for rank in sorted(by_rank):
         members = by_rank[rank]
         parts: list[tuple[list[int], tuple[str, Chem.Mol] | None]]
-        if cyclic and len(members) > 1 and perms is not None:
-            parts = []
-            left = list(members)
-            while left:
-                orbit = {p[left[0]] for p in perms}
-                parts.append(([i for i in left if i in orbit], None))
-                left = [i for i in left if i not in orbit]
+        if cyclic and len(members) > 1 and orbit_of is not None:
+            orbits: dict[int, list[int]] = {}
+            for i in members:
+                orbits.setdefault(orbit_of[i], []).append(i)
+            parts = [(orbit, None) for orbit in orbits.values()]
         elif cyclic and len(members) > 1:
             split: dict[str, list[int]] = {}
             products: dict[str, Chem.Mol] = {}
@@ -286,7 +290,7 @@ def site_groups(
                 h_count=sum(h_counts[i] for i in idxs),
                 substrate=mol,
                 has_stereo=has_stereo,
-                substrate_automorphisms=automorphism_list,
+                substrate_automorphisms=perms,
                 known_product=known,
             )
         )

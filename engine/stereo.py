@@ -11,6 +11,8 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any
 
+import numpy as np
+from halosift.engine.orbit_counts import OrbitCount, OrbitJob, count_orbits, orbit_job
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
 
@@ -60,6 +62,9 @@ STEREO_DOCS: dict[str, str] = {
 #: and JSON numbers. A larger count (53 or more stereo elements) is stored as this cap with
 #: ``approximate`` set: read it as "at least this many", never as a wrapped number.
 COUNT_CAP = 2**53
+
+#: Automorphisms of a product, one per row: an int array (or, for the reference, tuples).
+Symmetries = np.ndarray | tuple[tuple[int, ...], ...]
 
 
 @dataclass(frozen=True)
@@ -346,7 +351,7 @@ def _assignments(product: Chem.Mol, open_elements: list) -> Iterable[tuple[tuple
         yield picks, m
 
 
-def _independent(product: Chem.Mol, elements: list, symmetries: tuple[tuple[int, ...], ...] | None = None) -> bool:
+def _independent(product: Chem.Mol, elements: list, symmetries: Symmetries | None = None) -> bool:
     """True when no symmetry of the product can touch any stereo element.
 
     Every automorphism must fix each centre and each of its neighbours (each
@@ -376,6 +381,8 @@ def _independent(product: Chem.Mol, elements: list, symmetries: tuple[tuple[int,
     n_substrate = product.GetNumAtoms() - 1  # the halogen is the last atom; automorphisms fix it
     if symmetries is not None:
         watched = [w for w in watched if w < n_substrate]
+        if isinstance(symmetries, np.ndarray):
+            return bool((symmetries[:, watched] == np.array(watched, dtype=symmetries.dtype)).all())
         return all(perm[w] == w for perm in symmetries for w in watched)
     ranks = list(Chem.CanonicalRankAtoms(product, breakTies=False, includeChirality=False))
     counts: dict[int, int] = {}
@@ -456,7 +463,7 @@ _PARITY = _parity_table()
 
 
 def _signed_actions(
-    product: Chem.Mol, elements: list[tuple], symmetries: tuple[tuple[int, ...], ...]
+    product: Chem.Mol, elements: list[tuple], symmetries: Symmetries
 ) -> tuple[list[list[tuple[int, int]]], list[int]] | None:
     """How the automorphisms move the stereo elements: distinct actions and how many automorphisms give each.
 
@@ -497,7 +504,8 @@ def _signed_actions(
     relevant = sorted({a for part in parts for a in part[1:]} | {n for nbrs in nbrs_of.values() for n in nbrs})
     relevant = [a for a in relevant if a < n_substrate]
     restrict = operator.itemgetter(*relevant, relevant[0])  # a trailing repeat keeps one atom a tuple too
-    counts = Counter(map(restrict, symmetries))
+    rows = symmetries.tolist() if isinstance(symmetries, np.ndarray) else symmetries
+    counts = Counter(map(restrict, rows))
     actions, weights = [], []
     for key, weight in counts.items():
         image = dict(zip(relevant, key))
@@ -560,8 +568,8 @@ def _apply(action: list[tuple[int, int]], config: int, extra: int) -> int:
 
 
 def _orbit_outcome(
-    product: Chem.Mol, elements: list[tuple], symmetries: tuple[tuple[int, ...], ...], skeleton: Skeleton
-) -> StereoOutcome | None:
+    product: Chem.Mol, elements: list[tuple], symmetries: Symmetries, skeleton: Skeleton, later: bool = False
+) -> StereoOutcome | OrbitJob | None:
     """Stereo outcome of one product of a stereo-free input by counting orbits, without building isomers.
 
     Stereoisomers are the configurations of the open elements up to the
@@ -572,9 +580,18 @@ def _orbit_outcome(
     forms, the feasible configurations are walked explicitly. None hands the
     product to enumeration (too many elements, an unusual element, a skeleton
     that does not embed). ``elements``: (type, centred-on index, controlling
-    atoms) of each element, all open.
+    atoms) of each element, all open. ``later``: give the :class:`OrbitJob` whose array count
+    (:func:`halosift.engine.orbit_counts.count_orbits`) decides the outcome instead of counting it now.
     """
     k = len(elements)
+    geometric = [pos for pos, (kind, centre, _) in enumerate(elements) if kind == _TETRAHEDRAL and centre in skeleton.geometric]
+    if not geometric and not use_reference:
+        # The common case, counted with other products' in array passes (engine.orbit_counts).
+        job = orbit_job(product, elements, np.asarray(symmetries))
+        if job is None or later:
+            return job
+        counts = count_orbits([job])[0]
+        return None if counts is None else _from_orbits(counts)
     signed = _signed_actions(product, elements, symmetries)
     if signed is None:
         return None
@@ -582,7 +599,6 @@ def _orbit_outcome(
     order = sum(weights)
     tetra = [int(kind == _TETRAHEDRAL) for kind, _, _ in elements]
     none = [0] * k
-    geometric = [pos for pos, (kind, centre, _) in enumerate(elements) if kind == _TETRAHEDRAL and centre in skeleton.geometric]
     tags = skeleton.tags([elements[pos][1] for pos in geometric]) if geometric else {}
     if tags is None:
         return None  # cannot embed: enumeration marks the count approximate
@@ -613,9 +629,20 @@ def _orbit_outcome(
                 n += 1
             if config == min(images + [_apply(a, config, mirror_mask) for a in actions]):
                 n_pairs += 1
-    if n == 1:
+    return _from_orbits(OrbitCount(n, n_pairs))
+
+
+def _from_orbits(counts: OrbitCount) -> StereoOutcome:
+    """The outcome of a product counted by orbits."""
+    if counts.n_stereoisomers == 1:
         return _ACHIRAL
-    return StereoOutcome("racemate" if n_pairs == 1 else "diastereomers", n, n_pairs)
+    kind = "racemate" if counts.n_diastereomers == 1 else "diastereomers"
+    return StereoOutcome(kind, counts.n_stereoisomers, counts.n_diastereomers)
+
+
+#: True inside :func:`halosift.engine.perception.reference_mode`: count orbits by the per-product
+#: Python reference (:func:`_signed_actions`, :func:`_fixed_count`) instead of engine.orbit_counts.
+use_reference = False
 
 
 def capped(outcome: StereoOutcome) -> StereoOutcome:
@@ -663,19 +690,60 @@ def _not_counted(products: list[Chem.Mol], elements: dict[int, list]) -> StereoO
 
 
 def stereo_outcome(
-    products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None = None
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: Symmetries | None = None
 ) -> StereoOutcome:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons (counts capped: :func:`capped`).
 
     Enumeration stops before it starts when it would cost more than
     ``skeleton.work_limit``: the product is then :data:`NOT_COUNTED`.
     """
-    return capped(_outcome(products, skeleton, symmetries))
+    found = _outcome(products, skeleton, symmetries, "now")
+    assert isinstance(found, StereoOutcome)  # "now" never hands back a job
+    return capped(found)
+
+
+@dataclass(frozen=True)
+class PendingStereo:
+    """A product whose stereo outcome waits for its orbit count (see :func:`stereo_outcome_later`)."""
+
+    job: OrbitJob
+    """The count that decides it."""
+    products: list[Chem.Mol]
+    """The arguments of :func:`stereo_outcome`, for the rare job the arrays hand back."""
+    skeleton: Skeleton
+    """As for :func:`stereo_outcome`."""
+    symmetries: Symmetries | None
+    """As for :func:`stereo_outcome`."""
+
+
+def stereo_outcome_later(
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: Symmetries | None = None
+) -> StereoOutcome | PendingStereo:
+    """:func:`stereo_outcome`, or, where an orbit count decides it, the pending count: many products'
+    counts then cost one set of array passes (:func:`resolve_pending`)."""
+    found = _outcome(products, skeleton, symmetries, "later")
+    if isinstance(found, OrbitJob):
+        return PendingStereo(found, products, skeleton, symmetries)
+    return capped(found)
+
+
+def resolve_pending(pending: list[PendingStereo]) -> list[StereoOutcome]:
+    """The outcome of each pending product, all counted at once; the same as :func:`stereo_outcome`'s."""
+    counts = count_orbits([p.job for p in pending])
+    out = []
+    for p, counted in zip(pending, counts):
+        if counted is None:  # an automorphism leaves the elements: enumeration decides, as without arrays
+            found = _outcome(p.products, p.skeleton, p.symmetries, "never")
+            assert isinstance(found, StereoOutcome)
+            out.append(capped(found))
+        else:
+            out.append(capped(_from_orbits(counted)))
+    return out
 
 
 def _outcome(
-    products: list[Chem.Mol], skeleton: Skeleton, symmetries: tuple[tuple[int, ...], ...] | None
-) -> StereoOutcome:
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: Symmetries | None, orbits: str
+) -> StereoOutcome | OrbitJob:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 
     Each product keeps the input's specified stereo and leaves the new (or
@@ -687,7 +755,9 @@ def _outcome(
     product, when known) lets a product of a stereo-free input be counted by
     orbits (:func:`_orbit_outcome`) instead: exact where canonical SMILES are
     not (an axially chiral spirane, a bridge carbon on a mirror plane), and
-    much cheaper.
+    much cheaper. ``orbits``: "now" counts them at once, "later" hands back the
+    :class:`OrbitJob` of an array count, "never" skips counting by orbits (the path
+    taken when a count gives up).
     """
     approximate = False
     plans: list[_Plan] = []
@@ -698,9 +768,9 @@ def _outcome(
         open_elements = [e for e in elements if e.specified == _UNSPECIFIED]
         if not elements and single:
             return _ACHIRAL  # no stereo element at all: the common primary/achiral case
-        if single and symmetries is not None and len(open_elements) == len(elements):
+        if single and symmetries is not None and len(open_elements) == len(elements) and orbits != "never":
             info = [(e.type, e.centeredOn, _controlling(e)) for e in elements]
-            counted = _orbit_outcome(product, info, symmetries, skeleton)
+            counted = _orbit_outcome(product, info, symmetries, skeleton, later=orbits == "later")
             if counted is not None:
                 return counted
         if not open_elements:

@@ -137,3 +137,25 @@ def test_orbit_labels_are_the_orbits() -> None:
             orbit = {int(p[atom]) for p in perms}
             assert labels[atom] == min(orbit)
             assert {a for a in range(parsed.mol.GetNumAtoms()) if labels[a] == labels[atom]} == orbit
+
+
+def test_a_count_handed_back_is_decided_by_enumeration() -> None:
+    # resolve_pending's fallback: a job the arrays give up on gets the enumeration's answer.
+    from halosift.engine.stereo import PendingStereo, Skeleton, resolve_pending, stereo_outcome
+    from rdkit import Chem
+
+    substrate = Chem.MolFromSmiles("CC(CC(C)CC)CCC")
+    product = Chem.MolFromSmiles("CC(CC(C)CC)CCCCl")
+    elements = potential_stereo(product)
+    info = [(e.type, e.centeredOn, _controlling(e)) for e in elements]
+    n_sub = product.GetNumAtoms() - 1
+    swap = np.arange(n_sub)[None, :].repeat(2, axis=0)
+    centre = info[0][1]
+    other = next(i for i in range(n_sub) if i != centre and product.GetAtomWithIdx(i).GetDegree() == 1)
+    swap[1, [centre, other]] = [other, centre]
+    job = orbit_job(product, info, swap)
+    assert job is not None and count_orbits([job]) == [None]
+    skeleton = Skeleton(substrate, False)
+    resolved = resolve_pending([PendingStereo(job, [product], skeleton, swap)])
+    assert resolved == [stereo_outcome([product], skeleton, None)]
+    assert resolved[0].outcome == "diastereomers" and resolved[0].n_stereoisomers == 4

@@ -17,7 +17,8 @@ from halosift.engine import contenders as contenders_module
 from halosift.engine.contenders import contenders
 from halosift.engine.kernels import BatchSites, MolArrays, classify, mol_arrays, site_names
 from halosift.engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit
-from halosift.engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
+from halosift.engine.nbs import ALLYLIC_SCHEMA, NBS_SITES, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
+from halosift.engine.nbs_kernels import MolNbsFacts, NbsBatch, mol_facts, nbs_facts
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.shares import cast_checked
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
@@ -101,6 +102,8 @@ class _Prepared:
     """Hydrogens per atom."""
     batch: BatchSites
     """The kernel results of the batch it came in."""
+    nbs: NbsBatch
+    """The NBS kernel results (radical classes, allyl partners) of that batch."""
     index: int
     """Its position among the batch's accepted structures."""
 
@@ -141,7 +144,9 @@ def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
                 "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
                 "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
-    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail)
+    # Without an allylic or benzylic group there is nothing for NBS to read (nor to walk on the reference path).
+    nbs = mol_facts(prepared.nbs, batch, k) if any(g.site in NBS_SITES for g in groups) else None
+    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail, nbs)
 
 
 def _rejected(parsed: Parsed) -> _Outcome:
@@ -173,11 +178,13 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
             outcomes[i] = _internal("perception failed", exc)
     try:
         batch = classify([a[4] for a in accepted], [len(a[4].h_counts) for a in accepted], CAGE_MAX_RING)
+        nbs = nbs_facts(batch, [a[1] for a in accepted])
     except Exception:  # never expected; the reference path still answers every row
-        batch = None
+        batch = nbs = None
     for k, (i, mol, canonical, order, arrays) in enumerate(accepted):
         try:
-            prepared = None if batch is None else _Prepared(mol, canonical, order, arrays.h_counts, batch, k)
+            prepared = None if batch is None or nbs is None else _Prepared(
+                mol, canonical, order, arrays.h_counts, batch, nbs, k)
             outcomes[i] = _perceive_one(smiles[i], max_heavy, detail, prepared)
         except Exception as exc:  # an RDKit corner we did not foresee: reject, never raise
             outcomes[i] = _internal("perception failed", exc)
@@ -185,9 +192,13 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
 
 
 def _finish(
-    mol: Chem.Mol, canonical: str, order: list[int], specified: bool, groups: list, flags: str, detail: bool
+    mol: Chem.Mol, canonical: str, order: list[int], specified: bool, groups: list, flags: str, detail: bool,
+    nbs: MolNbsFacts | None = None,
 ) -> _Outcome:
-    """One accepted structure's rows, from its site groups and flags (shared by both paths)."""
+    """One accepted structure's rows, from its site groups and flags (shared by both paths).
+
+    ``nbs``: the kernels' NBS facts of the molecule; None walks its atoms instead (the reference path).
+    """
     position = {atom: pos for pos, atom in enumerate(order)}
     rows = []
     # One stereo budget per structure, shared by every product that may need stereo (NBS
@@ -224,8 +235,8 @@ def _finish(
             )
         )
     abstractable_h = sum(group.h_count for group in groups if group.site in _ABSTRACTABLE)
-    nbs = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail)
-    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
+    allylic = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail, facts=nbs)
+    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, allylic
 
 
 def perceive(

@@ -282,7 +282,7 @@ def allylic_rows(
         if facts is None:
             radical_code[g] = SITE_CODE[radical_class(mol, group.atoms[0], group.site)]
         else:
-            radical_code[g] = facts.radical_code[group.atoms[0]]
+            radical_code[g] = facts.radical_code(group.atoms[0])
         atoms = group.atoms if specified else group.atoms[:1]
         for a in atoms:
             if facts is None:

@@ -76,19 +76,35 @@ class AllylPartner:
 
 
 @dataclass(frozen=True)
-class MolNbsFacts:
-    """The NBS facts of one molecule of a batch, as Python lists (atom indices within the molecule)."""
+class NbsLists:
+    """:class:`NbsBatch` as Python lists, made once per batch so that each structure reads plain ints."""
 
     radical_code: list[int]
-    """Per atom: radical class code (-1 where no allylic/benzylic C–H)."""
+    """Per atom of the batch: as :attr:`NbsBatch.radical_code`."""
     partner_start: list[int]
-    """Per atom, plus one: offsets into the partner lists, from 0."""
-    partners_flat: list[AllylPartner]
-    """All partners of the molecule, atom by atom in RDKit's visiting order."""
+    """Per atom of the batch, plus one: as :attr:`NbsBatch.partner_start`."""
+    columns: list[list[int]]
+    """Per partner: b, c, substrate_subst, substrate_conj, product_subst, product_conj (AllylPartner's fields)."""
+
+
+@dataclass(frozen=True)
+class MolNbsFacts:
+    """The NBS facts of one molecule of a batch (atom indices within the molecule)."""
+
+    lists: NbsLists
+    """The batch's facts."""
+    first_atom: int
+    """Flat index of the molecule's atom 0 in the batch."""
+
+    def radical_code(self, a: int) -> int:
+        """Site code of the radical formed at atom ``a`` (-1 where no allylic/benzylic C–H)."""
+        return self.lists.radical_code[self.first_atom + a]
 
     def partners(self, a: int) -> list[AllylPartner]:
         """The allyl partners of atom ``a``, in the order :func:`halosift.engine.nbs._termini` visits them."""
-        return self.partners_flat[self.partner_start[a]:self.partner_start[a + 1]]
+        at = self.first_atom + a
+        lo, hi = self.lists.partner_start[at], self.lists.partner_start[at + 1]
+        return [AllylPartner(*(column[j] for column in self.lists.columns)) for j in range(lo, hi)]
 
 
 def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
@@ -132,7 +148,7 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
     # Allyl partners: every bond a→b of a site atom, joined with every double bond b→c, c ≠ a.
     first = np.flatnonzero(site[src])
     dbl_count = np.bincount(b_of, minlength=total)
-    dbl_start = np.searchsorted(b_of, np.arange(total))
+    dbl_start = np.cumsum(dbl_count) - dbl_count  # b_of is sorted: each atom's double bonds are one run
     per = dbl_count[dst[first]]
     e1 = np.repeat(first, per)
     within = np.arange(len(e1)) - np.repeat(np.cumsum(per) - per, per)
@@ -143,7 +159,9 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
     # On the product's a=b: c lost its double bond (b–c is single now), so c — when also bonded to a —
     # stops being a π atom seen from a unless it is aromatic or keeps another multiple bond. Seen from
     # b, c and every other atom look as in the substrate (their bonds to atoms other than b are unchanged).
-    ac_bonded = np.isin(pa * total + pc, key)
+    ac = pa * total + pc
+    at = np.minimum(np.searchsorted(key, ac), max(len(key) - 1, 0))
+    ac_bonded = key[at] == ac if len(key) else np.zeros(len(ac), dtype=bool)
     c_still_pi = aromatic[pc] | (n_multiple[pc] - 1 > 0)
     from_a = pi_sum[pa] - pi[e1] - (ac_bonded & ~c_still_pi) > 0
     product_conj = from_a | beyond[rev[e1]]
@@ -178,15 +196,12 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
     )
 
 
-def mol_facts(nbs: NbsBatch, batch: BatchSites, k: int) -> MolNbsFacts:
-    """The facts of molecule ``k`` of the batch, as lists for the per-structure step."""
-    lo, hi = int(batch.atom_start[k]), int(batch.atom_start[k + 1])
-    plo, phi = int(nbs.partner_start[lo]), int(nbs.partner_start[hi])
-    columns = zip(nbs.b[plo:phi].tolist(), nbs.c[plo:phi].tolist(), nbs.substrate_subst[plo:phi].tolist(),
-                  nbs.substrate_conj[plo:phi].tolist(), nbs.product_subst[plo:phi].tolist(),
-                  nbs.product_conj[plo:phi].tolist())
-    return MolNbsFacts(
-        radical_code=nbs.radical_code[lo:hi].tolist(),
-        partner_start=(nbs.partner_start[lo:hi + 1] - plo).tolist(),
-        partners_flat=[AllylPartner(*row) for row in columns],
-    )
+def as_lists(nbs: NbsBatch) -> NbsLists:
+    """The batch's facts as lists (one conversion per array for the whole batch)."""
+    columns = [nbs.b, nbs.c, nbs.substrate_subst, nbs.substrate_conj, nbs.product_subst, nbs.product_conj]
+    return NbsLists(nbs.radical_code.tolist(), nbs.partner_start.tolist(), [col.tolist() for col in columns])
+
+
+def mol_facts(lists: NbsLists, batch: BatchSites, k: int) -> MolNbsFacts:
+    """The facts of molecule ``k`` of the batch, for the per-structure step."""
+    return MolNbsFacts(lists, int(batch.atom_start[k]))

@@ -17,8 +17,8 @@ from halosift.engine import contenders as contenders_module
 from halosift.engine.contenders import contenders
 from halosift.engine.kernels import BatchSites, MolArrays, classify, mol_arrays, site_names
 from halosift.engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit
-from halosift.engine.nbs import ALLYLIC_SCHEMA, NBS_SITES, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
-from halosift.engine.nbs_kernels import MolNbsFacts, NbsBatch, mol_facts, nbs_facts
+from halosift.engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
+from halosift.engine.nbs_kernels import MolNbsFacts, NbsLists, as_lists, mol_facts, nbs_facts
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.shares import cast_checked
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
@@ -102,7 +102,7 @@ class _Prepared:
     """Hydrogens per atom."""
     batch: BatchSites
     """The kernel results of the batch it came in."""
-    nbs: NbsBatch
+    nbs: NbsLists
     """The NBS kernel results (radical classes, allyl partners) of that batch."""
     index: int
     """Its position among the batch's accepted structures."""
@@ -144,9 +144,8 @@ def _from_kernels(prepared: _Prepared, detail: bool) -> _Outcome:
                 "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
                 "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
-    # Without an allylic or benzylic group there is nothing for NBS to read (nor to walk on the reference path).
-    nbs = mol_facts(prepared.nbs, batch, k) if any(g.site in NBS_SITES for g in groups) else None
-    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail, nbs)
+    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail,
+                   mol_facts(prepared.nbs, batch, k))
 
 
 def _rejected(parsed: Parsed) -> _Outcome:
@@ -178,7 +177,7 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
             outcomes[i] = _internal("perception failed", exc)
     try:
         batch = classify([a[4] for a in accepted], [len(a[4].h_counts) for a in accepted], CAGE_MAX_RING)
-        nbs = nbs_facts(batch, [a[1] for a in accepted])
+        nbs = as_lists(nbs_facts(batch, [a[1] for a in accepted]))
     except Exception:  # never expected; the reference path still answers every row
         batch = nbs = None
     for k, (i, mol, canonical, order, arrays) in enumerate(accepted):

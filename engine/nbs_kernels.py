@@ -111,6 +111,12 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
     """Radical classes and allyl partners of every allylic/benzylic C–H of a batch (``mols`` in batch order)."""
     src, dst, o = batch.src, batch.dst, batch.bond_order
     total = int(batch.atom_start[-1])
+    kind = batch.kind
+    site = (kind == 1) | (kind == 2)
+    if not site.any():  # a batch of alkanes, say: nothing to compute
+        none = np.zeros(0, dtype=np.int64)
+        return NbsBatch(np.full(total, -1, dtype=np.int16), np.zeros(total + 1, dtype=np.int64),
+                        none, none, none, none, none, none)
     degree = np.bincount(src, minlength=total)
     aromatic = np.bincount(src[o == _AROMATIC], minlength=total) > 0
     multiple = o != _SINGLE
@@ -125,8 +131,6 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
     # The directed bonds are in (src, dst) order, so the reverse of each is found by binary search.
     key = src * total + dst
     rev = np.searchsorted(key, dst * total + src)
-    kind = batch.kind
-    site = (kind == 1) | (kind == 2)
 
     # radical_class. An allylic or benzylic atom a is sp3 (all its bonds single), so no double bond of
     # its π neighbour b leads back to a, and b (single-bonded to a) has at most one double bond.

@@ -40,6 +40,8 @@ STAGES: list[tuple[Any, str, str, int]] = [
     (perception, "_canonical", "substrate canonical SMILES (RDKit MolToSmiles)", 0),
     (perception, "mol_arrays", "kernel input arrays (adjacency, H counts, rings)", 0),
     (perception, "classify", "batch kernels (site classes, pattern flags)", 0),
+    (perception, "nbs_facts", "NBS kernels (radical classes, allyl partners)", 0),
+    (perception, "as_lists", "NBS kernel results as lists", 0),
     (perception, "is_small_bridgehead", "bridgehead path search", 0),
     (perception, "norbornane_positions", "norbornane SMARTS", 0),
     (perception, "kernel_flags", "cage / central-bond walks", 0),
@@ -54,8 +56,7 @@ STAGES: list[tuple[Any, str, str, int]] = [
     (stereo, "orbit_job", "orbit jobs (elements and automorphisms gathered)", 1),
     (perception, "_resolve", "orbit counts (array passes over the batch)", 0),
     (perception, "allylic_rows", "NBS rows", 0),
-    (nbs, "_termini", "termini (RDKit bromides + Python walks)", 1),
-    (nbs, "radical_class", "radical classes (Python walks)", 1),
+    (nbs, "_built_termini", "termini (RDKit bromides from the kernels' partners)", 1),
     (perception, "_tables", "result tables (pandas, Arrow check)", 0),
 ]
 

@@ -46,10 +46,9 @@ from halosift.engine.perception import ALLYLIC_SCHEMA, SITE_SCHEMA, STRUCTURE_SC
 
 #: Every engine module perception runs (a test derives the list from the imports).
 _FINGERPRINTED = (
-    "conditions.py", "contenders.py", "kernels.py", "molecules.py", "nbs.py", "orbit_counts.py", "parameters.py",
-    "perception.py", "rates.py",
-    "rdkit_log.py", "reagents.py", "shares.py", "site_classes.py", "sites.py", "solvent.py", "special_sites.py",
-    "stereo.py",
+    "conditions.py", "contenders.py", "kernels.py", "molecules.py", "nbs.py", "nbs_kernels.py", "orbit_counts.py",
+    "parameters.py", "perception.py", "rates.py", "rdkit_log.py", "reagents.py", "shares.py", "site_classes.py",
+    "sites.py", "solvent.py", "special_sites.py", "stereo.py",
 )
 #: Merge the small shards when there are more than this many of them.
 MAX_SHARDS = 8

@@ -81,6 +81,14 @@ class BatchSites:
     """Per molecule: an sp3 C–H outside any triangle single-bonded to a triangle atom ('[CX4;!H0;!r3]-[r3]')."""
     small_ring: np.ndarray
     """Per molecule: some ring of at most ``small_ring_size`` atoms (gates the cage and central-bond walks)."""
+    kind: np.ndarray
+    """Per atom: 1 allylic, 2 benzylic, 3 propargylic for an abstractable sp3 C–H with that π neighbour, else 0."""
+    src: np.ndarray
+    """Directed bonds of the whole batch: start atom, a flat index (row-major per molecule, so sorted)."""
+    dst: np.ndarray
+    """Directed bonds: end atom, a flat index."""
+    bond_order: np.ndarray
+    """Directed bonds: order 1, 1.5, 2 or 3."""
 
 
 def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size: int) -> BatchSites:
@@ -166,6 +174,10 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
         cyclopropane=np.bincount(ring_mol_arr[sizes == 3], minlength=n_mol) > 0,
         cyclopropylmethyl=per_mol(np.bincount(src[cpm_bond], minlength=total) > 0),
         small_ring=np.bincount(ring_mol_arr[sizes <= small_ring_size], minlength=n_mol) > 0,
+        kind=kind,
+        src=src,
+        dst=dst,
+        bond_order=o,
     )
 
 

@@ -7,6 +7,10 @@ terminus gets a weight within its radical from the substitution of the
 product's C=C (:data:`halosift.engine.parameters.NBS_SUBSTITUENT_FACTOR`), stored as
 ``share``. Longer conjugation (pentadienyl ends beyond the first C=C) is not
 followed: only termini one bond away from the radical carbon's neighbours.
+The graph arithmetic (radical classes, allyl partners, the substitution and
+conjugation of each C=C) comes from the batch kernels of
+:mod:`halosift.engine.nbs_kernels`; the walks here (:func:`radical_class`,
+:func:`_termini`) are the reference path they are tested against.
 
 Weighing side (numpy/pandas, any conditions): rate of each radical = H count ×
 Br· rate per H of the *radical's* class at the NBS temperature
@@ -20,10 +24,13 @@ other C–H gets no share under NBS).
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import pandas as pd
 import pyarrow as pa
 from halosift.engine import parameters as P
+from halosift.engine.nbs_kernels import AllylPartner, MolNbsFacts
 from halosift.engine.shares import cast_checked, percent_of_structure
 from halosift.engine.site_classes import SITE_CODE
 from halosift.engine.sites import substitute
@@ -171,10 +178,22 @@ def _shifted_bromide(mol: Chem.Mol, a: int, b: int, c: int) -> Chem.Mol:
     return rw.GetMol()
 
 
-def _termini(
-    mol: Chem.Mol, a: int, build_radical_carbon: bool = True
-) -> list[tuple[str, Chem.Mol | None, int, int]]:
-    """(terminus, product, substituents on the product's C=C, 1 if that C=C is conjugated) for the radical at ``a``.
+@dataclass(frozen=True)
+class Terminus:
+    """One NBS product of a radical: where Br goes, the molecule, and its C=C's weight inputs."""
+
+    name: str
+    """One of :data:`TERMINI`."""
+    product: Chem.Mol | None
+    """The bromide (None: the caller knows its SMILES)."""
+    alkene_subst: int
+    """Carbon substituents on the product's C=C (-1: none)."""
+    conjugated: int
+    """1 when that C=C is conjugated with an arene or another multiple bond, else 0."""
+
+
+def _termini(mol: Chem.Mol, a: int, build_radical_carbon: bool = True) -> list[Terminus]:
+    """The products of the radical at ``a``, by walking its atoms (the reference path).
 
     ``build_radical_carbon=False`` leaves the bromide at the radical carbon
     itself as None, for a caller that knows its SMILES already.
@@ -194,11 +213,27 @@ def _termini(
             if _alkene_substituents(mol, b, c) > kept_subst:
                 kept_subst, kept_conj = _alkene_substituents(mol, b, c), _conjugation(mol, b, c)
             product = _shifted_bromide(mol, a, b, c)
-            shifted.append(("allylic shift", product, _alkene_substituents(product, a, b), _conjugation(product, a, b)))
+            shifted.append(Terminus("allylic shift", product, _alkene_substituents(product, a, b),
+                                    _conjugation(product, a, b)))
     # At the radical carbon the existing C=C stays (benzylic: none, -1).
     # The bromide at the radical carbon is the substitution product (planar radical: its configuration is lost).
     radical_carbon = substitute(mol, a, _BR) if build_radical_carbon else None
-    return [("radical carbon", radical_carbon, kept_subst, kept_conj), *shifted]
+    return [Terminus("radical carbon", radical_carbon, kept_subst, kept_conj), *shifted]
+
+
+def _built_termini(
+    mol: Chem.Mol, a: int, partners: list[AllylPartner], build_radical_carbon: bool = True
+) -> list[Terminus]:
+    """:func:`_termini` from the batch kernels' allyl partners of ``a``: only the bromides are built here."""
+    shifted = []
+    kept_subst = -1
+    kept_conj = 0
+    for p in partners:
+        if p.substrate_subst > kept_subst:  # the first most substituted C=C, as the walk keeps it
+            kept_subst, kept_conj = p.substrate_subst, p.substrate_conj
+        shifted.append(Terminus("allylic shift", _shifted_bromide(mol, a, p.b, p.c), p.product_subst, p.product_conj))
+    radical_carbon = substitute(mol, a, _BR) if build_radical_carbon else None
+    return [Terminus("radical carbon", radical_carbon, kept_subst, kept_conj), *shifted]
 
 
 def _ez_open(product: Chem.Mol) -> bool:
@@ -216,6 +251,7 @@ def allylic_rows(
     skeleton: Skeleton,
     outcomes: list[StereoOutcome] | None = None,
     stereo: bool = True,
+    facts: MolNbsFacts | None = None,
 ) -> list[tuple]:
     """NBS product rows of one structure (without ``struct``): see :data:`ALLYLIC_SCHEMA`.
 
@@ -226,6 +262,8 @@ def allylic_rows(
     radical carbon of one group: it is that group's monochloride with Br for
     Cl, so its stereo is the same and need not be worked out again.
     ``stereo=False`` leaves the stereo columns empty (a library screen's rows).
+    ``facts`` (the batch kernels' radical classes and allyl partners of this molecule) replace
+    the atom walks of :func:`radical_class` and :func:`_termini`; None walks (the reference path).
     """
     factor = P.NBS_SUBSTITUENT_FACTOR.value
     conj_weight = P.NBS_CONJUGATION_SUBSTITUENTS.value
@@ -241,13 +279,20 @@ def allylic_rows(
         if group.site not in NBS_SITES:
             continue
         # Equivalent carbons give equivalent radicals: the first names the class.
-        radical_code[g] = SITE_CODE[radical_class(mol, group.atoms[0], group.site)]
+        if facts is None:
+            radical_code[g] = SITE_CODE[radical_class(mol, group.atoms[0], group.site)]
+        else:
+            radical_code[g] = facts.radical_code(group.atoms[0])
         atoms = group.atoms if specified else group.atoms[:1]
         for a in atoms:
-            termini = _termini(mol, a, build_radical_carbon=not constitution_only)
-            weights = [factor ** (max(n, 0) + conj_weight * conj) for _, _, n, conj in termini]
+            if facts is None:
+                termini = _termini(mol, a, build_radical_carbon=not constitution_only)
+            else:
+                termini = _built_termini(mol, a, facts.partners(a), build_radical_carbon=not constitution_only)
+            weights = [factor ** (max(t.alkene_subst, 0) + conj_weight * t.conjugated) for t in termini]
             total = sum(weights) * len(atoms)
-            for (terminus, product, n, _), w in zip(termini, weights):
+            for t, w in zip(termini, weights):
+                terminus, product, n = t.name, t.product, t.alkene_subst
                 if product is None:
                     key = group.product_smiles.replace("Cl", "Br")
                 else:

@@ -19,6 +19,7 @@ from halosift.engine.contenders import contenders
 from halosift.engine.kernels import BatchSites, MolArrays, classify, mol_arrays, site_names
 from halosift.engine.molecules import Parsed, parse_hydrocarbon, quiet_rdkit
 from halosift.engine.nbs import ALLYLIC_SCHEMA, allylic_rows, empty_frame, frame_from_rows  # noqa: F401  (schema re-exported with the others)
+from halosift.engine.nbs_kernels import MolNbsFacts, NbsLists, as_lists, mol_facts, nbs_facts
 from halosift.engine.parameters import DEFAULT_MAX_HEAVY_ATOMS
 from halosift.engine.shares import cast_checked
 from halosift.engine.site_classes import ABSTRACTABLE, SITE_CLASSES, SITE_CODE, site_bde
@@ -110,6 +111,8 @@ class _Prepared:
     """Hydrogens per atom."""
     batch: BatchSites
     """The kernel results of the batch it came in."""
+    nbs: NbsLists
+    """The NBS kernel results (radical classes, allyl partners) of that batch."""
     index: int
     """Its position among the batch's accepted structures."""
 
@@ -151,7 +154,8 @@ def _from_kernels(prepared: _Prepared, detail: bool, pending: list[_Waiting] | N
                 "alkene": bool(batch.alkene[k]), "alkyne": bool(batch.alkyne[k]),
                 "propargylic": bool(batch.propargylic[k])}
     flags = ",".join(kernel_flags(mol, bridgeheads, patterns, bool(batch.small_ring[k])))
-    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail, pending)
+    return _finish(mol, prepared.canonical, prepared.order, specified, groups, flags, detail,
+                   mol_facts(prepared.nbs, batch, k), pending)
 
 
 def _rejected(parsed: Parsed) -> _Outcome:
@@ -183,12 +187,14 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
             outcomes[i] = _internal("perception failed", exc)
     try:
         batch = classify([a[4] for a in accepted], [len(a[4].h_counts) for a in accepted], CAGE_MAX_RING)
+        nbs = as_lists(nbs_facts(batch, [a[1] for a in accepted]))
     except Exception:  # never expected; the reference path still answers every row
-        batch = None
+        batch = nbs = None
     waiting: dict[int, list[_Waiting]] = {}  # structure → its site rows waiting for orbit counts
     for k, (i, mol, canonical, order, arrays) in enumerate(accepted):
         try:
-            prepared = None if batch is None else _Prepared(mol, canonical, order, arrays.h_counts, batch, k)
+            prepared = None if batch is None or nbs is None else _Prepared(
+                mol, canonical, order, arrays.h_counts, batch, nbs, k)
             mine: list[_Waiting] = []
             outcomes[i] = _perceive_one(smiles[i], max_heavy, detail, prepared, mine)
             if mine:
@@ -208,10 +214,12 @@ def _perceive_batch(smiles: Sequence[object], max_heavy: int, detail: bool) -> l
 
 def _finish(
     mol: Chem.Mol, canonical: str, order: list[int], specified: bool, groups: list, flags: str, detail: bool,
+    nbs: MolNbsFacts | None = None,
     pending: list[_Waiting] | None = None,
 ) -> _Outcome:
     """One accepted structure's rows, from its site groups and flags (shared by both paths).
 
+    ``nbs``: the kernels' NBS facts of the molecule; None walks its atoms instead (the reference path).
     ``pending``: where the batch gathers orbit counts (a screen's kernel path), the site rows
     still waiting for theirs are added to it, their stereo columns filled in by :func:`_resolve`.
     """
@@ -264,8 +272,8 @@ def _finish(
     elif waiting:
         pending.extend((rows, r, p) for r, p in waiting)  # type: ignore[union-attr]  # checked above
     abstractable_h = sum(group.h_count for group in groups if group.site in _ABSTRACTABLE)
-    nbs = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail)
-    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, nbs
+    allylic = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail, facts=nbs)
+    return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, allylic
 
 
 #: A site row waiting for its orbit count: (the structure's row list, row index, the pending count).

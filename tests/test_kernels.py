@@ -17,7 +17,7 @@ import pytest
 from halosift.engine import contenders as contenders_module
 from halosift.engine.kernels import classify, mol_arrays, site_names
 from halosift.engine.perception import reference_mode
-from halosift.engine.site_classes import ABSTRACTABLE
+from halosift.engine.site_classes import ABSTRACTABLE, SITE_CODE
 from halosift.engine.sites import norbornane_positions, site_classes
 from halosift.engine.special_sites import (
     CAGE_MAX_RING,
@@ -47,12 +47,21 @@ EXTRA = [
     "C1C2CC3CC1CC(C2)C3", "C12(CC1)CC2", "c1ccccc1-c1ccccc1", "C(c1ccccc1)c1ccccc1", "C=CC=CC",
     "CCO", "", "not a smiles", "C.C", "[13CH4]", "[CH3+]", "[CH3]", "CC(C)(C)C(C)(C)C(C)(C)C(C)(C)C",
 ]
+#: NBS corners: radicals conjugated or not, several allyl partners per carbon (in RDKit neighbour
+#: orders that differ from index order), rings where the shifted C=C closes a small ring or a bridge.
+NBS_CASES = [
+    "C=CCc1ccccc1", "C=CCC=C", "CC=CC=C", "C1=CCC=CC1", "C1=CCCCC1", "CC=Cc1ccccc1", "C=C1CCCCC1",
+    "C1=CC1", "CC1=CC1", "C1=CCC1", "C1=CC2CCC1C2", "C1=CC2CCC1CC2", "C12=CCC1CC2", "C1=CC=CC1",
+    "CC1=CCC(C)=CC1", "C=C1CC=CCC1", "C1CC(C=C)C1=C", "C(C=C)(C=C)C=C", "C=CC(C)(C=C)Cc1ccccc1",
+    r"C/C=C/CC", r"C/C=C\C", r"C/C=C(\C)CC", r"C[C@@H](C=C)CC", "C=C=CC", "CC#CC=CC", "c1ccc2c(c1)CC=C2",
+    "C1=Cc2ccccc2C1", "C=C(C)Cc1ccccc1", "C1=CCC=C1", "CC1=C(C)CC1",
+]
 
 
 def _smiles(n_generated: int, seed: int) -> list[str]:
     catalogue = pd.read_csv(sample_path("catalogue.csv"), keep_default_na=False)
     small_alkanes = sorted(s for n in range(1, 10) for s in alkanes(n))
-    return EDGE_CASES + EXTRA + list(catalogue["smiles"]) + small_alkanes + make_library(n_generated, seed=seed)
+    return EDGE_CASES + EXTRA + NBS_CASES + list(catalogue["smiles"]) + small_alkanes + make_library(n_generated, seed=seed)
 
 
 @pytest.fixture(scope="module")
@@ -90,20 +99,32 @@ def _assert_same(kernel: engine.Perception, reference: engine.Perception) -> Non
         pd.testing.assert_frame_equal(getattr(kernel, name), getattr(reference, name), obj=name)
 
 
+def _assert_nbs_covered(perception: engine.Perception) -> None:
+    """The NBS table holds shifted bromides, conjugated radicals and carbons with several allyl partners."""
+    allylic = perception.allylic
+    assert (allylic["terminus"].str.contains("allylic shift")).sum() > 20
+    assert (allylic["radical_code"] == SITE_CODE["conjugated"]).any()
+    assert {"allylic-primary", "allylic-secondary", "allylic-tertiary", "benzylic-primary"} <= set(allylic["site"])
+    shifted = allylic[allylic["terminus"].str.contains("allylic shift")]
+    assert (shifted.groupby("struct")["product"].nunique() > 2).any()
+
+
 def test_kernel_perception_equals_the_reference_in_a_screen(smiles: list[str]) -> None:
     kernel = engine.perceive(smiles, detail=False)
     with reference_mode():
         reference = engine.perceive(smiles, detail=False)
     _assert_same(kernel, reference)
     assert (kernel.structures["status"] == "rejected").sum() >= 7  # the bad rows went through both paths
+    _assert_nbs_covered(kernel)
 
 
 def test_kernel_perception_equals_the_reference_in_full_detail(smiles: list[str]) -> None:
-    subset = EDGE_CASES + EXTRA + smiles[-300:]
+    subset = EDGE_CASES + EXTRA + NBS_CASES + smiles[-300:]
     kernel = engine.perceive(subset, detail=True)
     with reference_mode():
         reference = engine.perceive(subset, detail=True)
     _assert_same(kernel, reference)
+    _assert_nbs_covered(kernel)
 
 
 def test_reference_mode_switches_back() -> None:

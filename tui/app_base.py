@@ -246,3 +246,10 @@ class AppBase(App[int]):
         def _release_screening(self) -> None: ...
 
         def _refresh_bindings_on_change(self) -> None: ...
+
+
+if TYPE_CHECKING:
+    AppMixin = AppBase
+else:
+    AppMixin = object
+"""The base of each topic's mixin: :class:`AppBase` to the type checker, a plain class at run time."""

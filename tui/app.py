@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import os
 import sys
-from collections.abc import Hashable, Mapping
+from collections.abc import Mapping
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
@@ -24,8 +24,6 @@ from halosift.tui.messages import (
     DetailRequested,
     ExportFailed,
     ExportFinished,
-    IdsMatched,
-    MarkRequested,
     PanelClosed,
     SearchChanged,
     SortRequested,
@@ -40,6 +38,7 @@ from textual.containers import Vertical
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 
 from .app_base import AppBase, OneLine, one_line
+from .app_marks import MarksMixin
 from .app_screening import ScreeningMixin
 from .app_sessions import SessionsMixin
 from .app_view import ViewMixin
@@ -59,7 +58,7 @@ TABLE_ACTIONS = frozenset({
 })
 
 
-class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, AppBase):
+class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, AppBase):
     """Screen a hydrocarbon library and sift it by predicted halogenation outcome."""
 
     TITLE = "halosift"
@@ -259,22 +258,6 @@ class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, AppBase):
             parts.append(f"same structure as row {dup}")
         info.show(" · ".join(parts))
 
-    def on_mark_requested(self, message: MarkRequested) -> None:
-        self.state.toggle_mark(message.row)
-        self._marks_changed()
-        from halosift.tui.detail import DetailScreen
-
-        if isinstance(self.screen, DetailScreen):
-            self.screen.marked = bool(self.marked[self.screen.row])
-
-    def _marks_changed(self) -> None:
-        self._session_changed()
-        self.query_one(LibraryTable).set_marked(self.marked)
-        if self.view == "shortlist":
-            self._request_view()
-        else:
-            self._update_status()
-
     def on_sort_requested(self, message: SortRequested) -> None:
         if self.state.sort_by(message.column, message.descending):
             self._sort_changed()
@@ -303,80 +286,6 @@ class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, AppBase):
         """Cycle library → shortlist → rejected."""
         self.state.next_view()
         self._request_view()
-
-    def set_marks(self, rows: np.ndarray, value: bool, what: str) -> int:
-        """Mark (or unmark) frame rows as one step that z can undo; returns how many marks changed."""
-        changed = self.state.set_marks(rows, value, what)
-        if changed:
-            self._marks_changed()
-        return changed
-
-    def action_mark_shown(self) -> None:
-        """Mark every row the current view shows."""
-        rows = self.query_one(LibraryTable).rows
-        changed = self.set_marks(rows, True, f"mark all {len(rows):,} shown")
-        self.notify(f"Marked {counted(changed, 'more row')} (all {len(rows):,} shown) · z undoes" if changed
-                    else "Every shown row was already marked", title="Marks")
-
-    def action_unmark_shown(self) -> None:
-        """Unmark every row the current view shows."""
-        rows = self.query_one(LibraryTable).rows
-        changed = self.set_marks(rows, False, f"unmark all {len(rows):,} shown")
-        self.notify(f"Unmarked {counted(changed, 'row')} · z undoes" if changed else "No shown row was marked", title="Marks")
-
-    def action_undo_marks(self) -> None:
-        """Undo the last mark-all, unmark-all or marks-from-file step."""
-        step = self.state.undo_marks()
-        if step is None:
-            self.notify("Nothing to undo (z undoes a, u and marks from a file)", title="Marks")
-            return
-        self._marks_changed()
-        self.notify(f"Undone: {step.what}; {counted(self.state.n_marked, 'row')} marked", title="Marks")
-
-    def action_mark_from_file(self) -> None:
-        """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
-        from halosift.tui.id_list import IdListScreen
-
-        if self.library is None or self.library.id_column is None:
-            self.notify("This library has no ID column, so there are no IDs to match", title="Marks",
-                        severity="warning")
-            return
-
-        def chosen(path: Path | None) -> None:
-            if path is not None:
-                self._match_ids(path, self.frame, self.library.id_column)
-
-        self.push_screen(IdListScreen(Path.cwd()), chosen)
-
-    @work(thread=True, exclusive=True, group="ids", exit_on_error=False, description="match an ID list")
-    def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
-        """Read an ID list and find its rows (pandas, off the interface thread)."""
-        from halosift.tui.id_list import match_ids, read_ids
-
-        try:
-            ids = read_ids(path, str(id_column))
-            match = match_ids(frame[id_column], ids)
-        except (OSError, ValueError) as exc:
-            self.post_message(IdsMatched(str(path), None, 0, (), one_line(exc)))
-            return
-        self.post_message(IdsMatched(str(path), match.rows, match.n_ids, match.missing, ""))
-
-    def on_ids_matched(self, message: IdsMatched) -> None:
-        name = Path(message.path).name
-        if message.rows is None:
-            self.notify(f"Cannot read {name}: {message.error}", title="Marks", severity="error", timeout=10)
-            return
-        changed = self.set_marks(message.rows, True, f"mark {counted(len(message.rows), 'row')} listed in {name}")
-        missing = ""
-        if message.missing:
-            few = ", ".join(message.missing[:3]) + (" …" if len(message.missing) > 3 else "")
-            missing = f"; {len(message.missing):,} not in this library ({few})"
-        self.notify(
-            f"{counted(message.n_ids, 'ID')} read from {name}: {counted(len(message.rows), 'row')} found, "
-            f"{changed:,} newly marked"
-            f"{missing}" + (" · z undoes" if changed else ""),
-            title="Marks", timeout=10,
-        )
 
     def action_clear_filters(self) -> None:
         """Drop every filter."""

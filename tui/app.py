@@ -4,26 +4,29 @@ The state (library, conditions, filters, sort, view, marks) lives in a plain
 :class:`halosift.tui.state.AppState`; the app calls its transitions and refreshes
 the widgets. Widgets report back with the messages in :mod:`halosift.tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
 worker threads or on first use, so the first paint does not wait for them.
+
+:class:`HalosiftApp` is put together from one mixin per topic: screening
+(:mod:`.app_screening`), sessions (:mod:`.app_sessions`), the table view
+(:mod:`.app_view`), marks (:mod:`.app_marks`) and export (:mod:`.app_export`), on
+:class:`.app_base.AppBase` (the attributes they share). This module keeps the
+layout, the keys (which apply when, and why not), the panels they open, and
+:func:`run`.
 """
 
 from __future__ import annotations
 
-import os
 import sys
 from collections.abc import Mapping
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import Any, ClassVar
 
-import numpy as np
 from halosift.tui.conditions import ConditionsScreen
-from halosift.tui.filters import FilterSpec, SortSpec
+from halosift.tui.filters import FilterSpec
 from halosift.tui.messages import (
     ConditionsProposed,
     CursorMoved,
     DetailMoved,
     DetailRequested,
-    ExportFailed,
-    ExportFinished,
     PanelClosed,
     SearchChanged,
     SortRequested,
@@ -31,24 +34,18 @@ from halosift.tui.messages import (
 from halosift.tui.search import SearchBar
 from halosift.tui.table import LibraryTable
 from halosift.tui.wording import counted
-from textual import on, work
+from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
 
 from .app_base import AppBase, OneLine, one_line
+from .app_export import ExportMixin
 from .app_marks import MarksMixin
 from .app_screening import ScreeningMixin
 from .app_sessions import SessionsMixin
 from .app_view import ViewMixin
-
-if TYPE_CHECKING:
-    import pandas as pd
-    from halosift.engine import Conditions
-    from halosift.tui.export import ExportChoice
-
-
 
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
@@ -58,7 +55,7 @@ TABLE_ACTIONS = frozenset({
 })
 
 
-class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, AppBase):
+class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, ExportMixin, AppBase):
     """Screen a hydrocarbon library and sift it by predicted halogenation outcome."""
 
     TITLE = "halosift"
@@ -343,93 +340,6 @@ class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, AppBase)
     @on(PanelClosed)
     def _panel_closed(self, message: PanelClosed) -> None:
         self.query_one(LibraryTable).focus()
-
-    # ------------------------------------------------------------------ export
-
-    def action_export(self) -> None:
-        """Export the shortlist or the current view (CSV, TSV, Parquet or SDF, or an HTML report)."""
-        from halosift.tui.export import ExportScreen
-
-        table = self.query_one(LibraryTable)
-        protected = [Path(self.source)] if isinstance(self.source, (str, os.PathLike)) else []
-        self.push_screen(
-            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected, self._sort_text()),
-            self._export_chosen,
-        )
-
-    def _export_chosen(self, choice: ExportChoice | None) -> None:
-        if choice is None or self.frame is None:
-            return
-        order = self._sort_text()
-        if choice.what == "shortlist":
-            marked = self.marked.copy()
-            rows = None  # put in the table's order by the export worker
-            selection = f"shortlist: {counted(int(marked.sum()), 'marked row')}; order: {order}"
-        else:
-            marked = None
-            rows = self.query_one(LibraryTable).rows.copy()
-            filters = self.filters.describe() if self.view == "library" else "no filters"
-            selection = f"{self.view} view: {counted(len(rows), 'row')}; {filters}; order: {order}"
-        self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
-
-    @work(thread=True, exclusive=True, group="export", exit_on_error=False, description="write an export")
-    def _write_export(
-        self, frame: pd.DataFrame, rows: np.ndarray | None, marked: np.ndarray | None, sort: SortSpec, path: Path,
-        force: bool, conditions: Conditions, selection: str,
-    ) -> None:
-        """Write the chosen rows atomically, in the table's order, with conditions and the safety caution as metadata.
-
-        ``rows`` are the view's rows as shown; for the shortlist they are None and
-        the ``marked`` rows are put in ``sort`` order here, off the interface thread.
-        """
-        from halosift.engine.io import about_path, output_format, write_table
-        from halosift.tui.export import ReportProgress, export_frame, export_metadata, write_report_export
-        from halosift.tui.filters import ordered_rows
-
-        from halosift import engine
-        from halosift.report import is_report_path
-
-        try:
-            if rows is None:
-                rows = ordered_rows(marked, self._sort_order(self.library, conditions, frame, sort))
-            protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
-            if is_report_path(path):
-                progress = ReportProgress(self, path)  # a report draws every entry: seconds on a large library
-                try:
-                    written = write_report_export(
-                        self.library, conditions, rows, path, force=force, selection=selection,
-                        source=self._source_text(), protect=protect, progress=progress,
-                    )
-                finally:
-                    progress.close()
-                n_rows, sidecar = len(rows), ""
-            else:
-                out = export_frame(frame, rows)
-                meta = export_metadata(conditions, selection, self._source_text())
-                written = write_table(out, path, metadata=meta, force=force, protect=protect)
-                n_rows = len(out)
-                sidecar = str(about_path(written).resolve()) if output_format(written) in ("csv", "tsv") else ""
-        except engine.LibraryError as exc:
-            self.post_message(ExportFailed(one_line(exc)))
-            return
-        except Exception as exc:
-            self.post_message(ExportFailed(f"{type(exc).__name__}: {one_line(exc)}"))
-            return
-        self.post_message(ExportFinished(str(Path(written).resolve()), n_rows, sidecar))
-
-    def _source_text(self) -> str:
-        if isinstance(self.source, (str, os.PathLike)):
-            return str(Path(self.source).resolve())
-        return "in-memory table"
-
-    def on_export_finished(self, message: ExportFinished) -> None:
-        self.last_export = Path(message.path)
-        where = f"{message.path}"
-        extra = f"; conditions and caution in {message.sidecar}" if message.sidecar else "; conditions and caution inside"
-        self.notify(f"Wrote {counted(message.rows, 'row')} to {where}{extra}", title="Exported", timeout=10)
-
-    def on_export_failed(self, message: ExportFailed) -> None:
-        self.notify(message.message, title="Export failed", severity="error", timeout=10)
 
 
 def run(

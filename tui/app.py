@@ -87,6 +87,7 @@ class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, ExportMi
         Binding("s", "sort_table", "Sort", show=False),
     ]
 
+    # ------------------------------------------------------------------ layout
 
     def compose(self) -> ComposeResult:
         yield Static(f"halosift │ {self.source_name}", id="title")
@@ -107,6 +108,8 @@ class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, ExportMi
         self.query_one("#warnings").display = False
         self._show_phase()
         self._start_screening()
+
+    # ------------------------------------------------------------------ phases and keys
 
     @property
     def rows_shown(self) -> bool:

@@ -6,7 +6,9 @@ top of :class:`AppBase`, which holds the attributes they all read and the
 :class:`AppState` properties. A mixin is a plain class at run time and an
 :class:`AppBase` for the type checker, so each one is checked against the
 attributes and the other topics' methods it uses (declared at the end of
-:class:`AppBase`).
+:class:`AppBase`). The ``app_*`` modules import one another relatively
+(``from .app_base import ...``): mypy cannot follow ``halosift.tui`` to this
+folder, and would take an absolutely imported :class:`AppBase` for ``Any``.
 
 Two rules of Textual's that a mixin must keep: a message handler (``on_*``) is
 called once for every class in the app's MRO that defines it, so each is defined
@@ -133,8 +135,6 @@ class _FromState:
             getattr(app, self.refresh)()
 
 
-
-
 class AppBase(App[int]):
     """The app's attributes and its state's properties, shared by every topic's mixin."""
 
@@ -223,9 +223,9 @@ class AppBase(App[int]):
             return Path(self.source).name
         return "in-memory table"
 
-
     if TYPE_CHECKING:
-        # Defined by one topic and called by another (see the module's docstring); mypy checks each definition against these.
+        # Defined by one topic's mixin (or HalosiftApp) and called by another; for the type checker only, which
+        # checks each definition against these. At run time the one definition is the mixin's.
 
         def _request_view(self) -> None: ...
 

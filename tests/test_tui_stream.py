@@ -179,9 +179,9 @@ async def test_reopening_a_stopped_library_shows_the_cached_rows_at_once(tmp_pat
 @async_test
 async def test_the_screening_thread_goes_on_only_once_a_delivery_is_drawn(tmp_path, cache_dir, monkeypatch):
     """The hand-over that keeps the interface thread alone with the interpreter lock while it draws."""
-    import halosift.tui.app as app_module
+    import halosift.tui.app_screening as screening_module
 
-    monkeypatch.setattr(app_module, "SHOWN_WAIT_S", 60.0)  # a missed release would stall the test, not pass it
+    monkeypatch.setattr(screening_module, "SHOWN_WAIT_S", 60.0)  # a missed release would stall the test, not pass it
     gate = Gate(monkeypatch)
     gate.open.set()
     from halosift import engine
@@ -203,13 +203,14 @@ async def test_the_screening_thread_goes_on_only_once_a_delivery_is_drawn(tmp_pa
         return real_perceive(chunk, *args, **kwargs)
 
     monkeypatch.setattr(parallel, "perceive", watching)
-    real_take = HalosiftApp.on_screening_partial
+    real_take = screening_module.ScreeningMixin.on_screening_partial
 
     def take(self, message):
         deliveries.append(message.shown)
         real_take(self, message)
 
-    monkeypatch.setattr(HalosiftApp, "on_screening_partial", take)
+    # On the class that defines it: Textual calls the handler of every class in the MRO that has one.
+    monkeypatch.setattr(screening_module.ScreeningMixin, "on_screening_partial", take)
     app = HalosiftApp(str(write_library(tmp_path)), sessions=False)
     async with app.run_test(size=SIZE) as pilot:
         await until(pilot, lambda: app.phase == "ready")
@@ -224,9 +225,9 @@ async def test_the_screening_thread_goes_on_only_once_a_delivery_is_drawn(tmp_pa
 
 @async_test
 async def test_a_delivery_never_drawn_holds_the_screen_up_only_briefly(tmp_path, cache_dir, monkeypatch):
-    import halosift.tui.app as app_module
+    import halosift.tui.app_screening as screening_module
 
-    monkeypatch.setattr(app_module, "SHOWN_WAIT_S", 0.2)
+    monkeypatch.setattr(screening_module, "SHOWN_WAIT_S", 0.2)
     monkeypatch.setattr(HalosiftApp, "_release_screening", lambda self: None)  # the app never says "drawn"
     gate = Gate(monkeypatch)
     gate.open.set()

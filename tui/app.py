@@ -4,68 +4,48 @@ The state (library, conditions, filters, sort, view, marks) lives in a plain
 :class:`halosift.tui.state.AppState`; the app calls its transitions and refreshes
 the widgets. Widgets report back with the messages in :mod:`halosift.tui.messages`. RDKit, pyarrow, pandas and the engine are imported in
 worker threads or on first use, so the first paint does not wait for them.
+
+:class:`HalosiftApp` is put together from one mixin per topic: screening
+(:mod:`.app_screening`), sessions (:mod:`.app_sessions`), the table view
+(:mod:`.app_view`), marks (:mod:`.app_marks`) and export (:mod:`.app_export`), on
+:class:`.app_base.AppBase` (the attributes they share). This module keeps the
+layout, the keys (which apply when, and why not), the panels they open, and
+:func:`run`.
 """
 
 from __future__ import annotations
 
-import gc
-import os
 import sys
-import threading
-import time
-from collections.abc import Hashable, Mapping
+from collections.abc import Mapping
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import Any, ClassVar
 
-import numpy as np
 from halosift.tui.conditions import ConditionsScreen
-from halosift.tui.filters import FilterSpec, OrderCache, SortSpec, TextColumns
+from halosift.tui.filters import FilterSpec
 from halosift.tui.messages import (
     ConditionsProposed,
     CursorMoved,
     DetailMoved,
     DetailRequested,
-    ExportFailed,
-    ExportFinished,
-    IdsMatched,
-    MarkRequested,
     PanelClosed,
-    ScreeningFinished,
-    ScreeningPartial,
-    ScreeningProgress,
-    ScreeningStopped,
     SearchChanged,
     SortRequested,
-    ViewComputed,
-    ViewFailed,
 )
 from halosift.tui.search import SearchBar
-from halosift.tui.state import AppState, RowCounts
-from halosift.tui.table import OUTCOME_COLUMNS, REASON_COLUMNS, ROW_KEY, SERVES_COLUMN, Column, LibraryTable
+from halosift.tui.table import LibraryTable
 from halosift.tui.wording import counted
-from textual import on, work
-from textual.app import App, ComposeResult
+from textual import on
+from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
-from textual.timer import Timer
 from textual.widgets import Footer, Input, Label, ProgressBar, Static
-from textual.worker import get_current_worker
 
-if TYPE_CHECKING:
-    import pandas as pd
-    from halosift.engine import Conditions, Library
-    from halosift.tui.export import ExportChoice
-    from halosift.tui.session import Opened, Session
-
-#: Seconds between progress messages from the screening worker (keeps the UI queue short).
-PROGRESS_INTERVAL = 0.1
-#: Longest the screening thread waits for a partial delivery to be drawn before it goes on anyway.
-SHOWN_WAIT_S = 1.0
-#: Seconds after the last change before the session file is written (a burst of changes is one write).
-SESSION_SAVE_DELAY = 0.5
-#: Header lines the condition warnings may take before they are summed up in one.
-WARNING_LINES = 3
-
+from .app_base import AppBase, OneLine, one_line
+from .app_export import ExportMixin
+from .app_marks import MarksMixin
+from .app_screening import ScreeningMixin
+from .app_sessions import SessionsMixin
+from .app_view import ViewMixin
 
 #: The app's own commands that act on the library table (see ``HalosiftApp.check_action``).
 TABLE_ACTIONS = frozenset({
@@ -73,102 +53,9 @@ TABLE_ACTIONS = frozenset({
     "mark_from_file", "start_fresh",
     "clear_filters", "toggle_input_columns", "toggle_more_columns", "sort_table",
 })
-#: Result columns the "more columns" key adds to the library table (label, width, kind).
-MORE_COLUMNS: tuple[tuple[str, str, int, str], ...] = (
-    ("confidence", "Confidence", 12, "text"),
-    ("flags", "Flags", 20, "text"),
-    ("nbs_major", "NBS major", 18, "text"),
-    ("nbs_major_pct", "NBS %", 7, "pct"),
-    # "% prod": percent of the halogenated product (engine.polyhalogenation.POLY_FIGURE), as in the detail.
-    ("cl2_poly_pct", "Cl2 poly % prod", 15, "pct"),
-    ("br2_poly_pct", "Br2 poly % prod", 15, "pct"),
-)
 
 
-def one_line(exc: BaseException) -> str:
-    """An exception as one line fit for the status bar."""
-    text = " ".join(str(exc).split())
-    return text or type(exc).__name__
-
-
-class OneLine(Static):
-    """A one-line text widget (height fixed by the app's CSS) that redraws without a layout pass.
-
-    A layout re-arranges and repaints the whole screen (tens of ms with a large table); a
-    one-line widget's size never depends on its text, so only the widget itself is redrawn,
-    and only when the text changed.
-    """
-
-    _shown: str | None = None
-
-    def show(self, text: str) -> None:
-        """Show ``text`` (nothing happens when it is already shown)."""
-        if text != self._shown:
-            self._shown = text
-            self.update(text, layout=False)
-
-
-def _count(n: int) -> str:
-    return f"{n:,}"
-
-
-def start_process_helpers() -> None:
-    """Start multiprocessing's resource tracker now, while stderr is still a real file.
-
-    The engine perceives big libraries in spawned worker processes, and the first
-    process pool starts the tracker, handing it ``sys.stderr.fileno()``. Inside a
-    running Textual app ``sys.stderr`` is a capture whose ``fileno()`` is -1, so
-    that start fails ("bad value(s) in fds_to_keep"). Started before the app runs,
-    the tracker already exists and every pool reuses it.
-    """
-    from multiprocessing import resource_tracker
-
-    resource_tracker.ensure_running()
-
-
-_imports_frozen = threading.Event()
-
-
-def freeze_imports() -> None:
-    """Take every object alive now (after the big imports: modules, classes, functions) out of the collector's scans.
-
-    A full collection scans every container; with textual, pandas, pyarrow and
-    RDKit loaded that is ~80,000 objects and 50-250 ms with the GIL held, which
-    froze the interface while a library streamed in. Once frozen, a full
-    collection scans only what was made after (under 1 ms). Objects frozen are
-    still freed by reference counting; only cycles among them are never collected.
-    """
-    if not _imports_frozen.is_set():
-        _imports_frozen.set()
-        gc.freeze()
-
-
-class _FromState:
-    """An app attribute that lives in :attr:`HalosiftApp.state` (see :class:`AppState` for each one).
-
-    Reading gives the state's value. Setting calls the state's ``set_<name>``
-    transition and, when that reports a change, the app method named ``refresh``
-    (which redraws what shows it); without one the attribute is read-only here.
-    """
-
-    def __init__(self, refresh: str | None = None) -> None:
-        self.refresh = refresh
-        self.name = ""
-
-    def __set_name__(self, owner: type, name: str) -> None:
-        self.name = name
-
-    def __get__(self, app: Any, owner: type | None = None) -> Any:
-        return self if app is None else getattr(app.state, self.name)
-
-    def __set__(self, app: Any, value: Any) -> None:
-        if self.refresh is None:
-            raise AttributeError(f"{self.name} is changed through the app's state transitions")
-        if getattr(app.state, f"set_{self.name}")(value):
-            getattr(app, self.refresh)()
-
-
-class HalosiftApp(App[int]):
+class HalosiftApp(ScreeningMixin, SessionsMixin, ViewMixin, MarksMixin, ExportMixin, AppBase):
     """Screen a hydrocarbon library and sift it by predicted halogenation outcome."""
 
     TITLE = "halosift"
@@ -200,92 +87,7 @@ class HalosiftApp(App[int]):
         Binding("s", "sort_table", "Sort", show=False),
     ]
 
-    def __init__(
-        self,
-        source: str | os.PathLike[str] | pd.DataFrame,
-        *,
-        smiles_column: str | None = None,
-        id_column: str | None = None,
-        use_cache: bool = True,
-        graphics: str | None = None,
-        fresh: bool = False,
-        sessions: bool = True,
-        conditions: Mapping[str, Any] | None = None,
-    ) -> None:
-        super().__init__()
-        start_process_helpers()
-        self.explicit_conditions: dict[str, Any] = dict(conditions or {})
-        """engine.Conditions fields given on the command line; they win over the saved session's."""
-        self.fresh = fresh
-        """Ignore (and replace) the session saved for this library."""
-        self.sessions = sessions and isinstance(source, (str, os.PathLike))
-        """Save and restore marks, sort, filters, view and conditions per library file."""
-        self.graphics = graphics
-        """Inline-image mode for structure drawings ('sixel', 'tgp', 'unicode'), or None for text only."""
-        self.source = source
-        """The library file (or DataFrame) to screen."""
-        self.smiles_column = smiles_column
-        """SMILES column to use (None: the engine finds it)."""
-        self.id_column = id_column
-        """ID column to use (None: the engine finds it, if any)."""
-        self.use_cache = use_cache
-        """Let the engine reuse its on-disk perception cache."""
-        self.state = AppState()
-        """The library, the chemist's choices and the shortlist: the app only shows them."""
-        self.last_export: Path | None = None
-        """The file most recently written."""
-        self._cancel = threading.Event()
-        self._generation = 0
-        self._applied_generation = 0
-        self._site_choices: tuple[Any, list[str]] = (None, [])
-        self._orders = OrderCache()
-        self._to_top = False
-        self._titles: dict[Hashable, str] = {key: label for key, label, _, _ in MORE_COLUMNS}
-        self._session_timer: Timer | None = None
-        self._session_dirty = False
-        self._session_lock = threading.Lock()
-        self._session_seq = 0
-        self._session_written = 0
-        self._run_taken = False  # the current screen has delivered rows
-        self._shown_waiting: list[threading.Event] = []  # partial deliveries not drawn yet
-        self._stop_note = ""  # why a screen stopped with part of the library shown
-        self._keep_place_generation = -1  # the view request made for newly perceived rows
-        self._binding_actions = [b.action for b in self.BINDINGS if isinstance(b, Binding)]
-        self._input_widths: dict[tuple[Hashable, str, int], int] = {}  # (column, label, cap) -> width, per library
-        self._bindings_shown: tuple[bool | None, ...] = ()  # check_action's answers when the footer was last redrawn
-
-    # ------------------------------------------------------------------ the state, as the widgets see it
-
-    phase = _FromState("_show_phase")
-    view = _FromState("_request_view")
-    filters = _FromState("_request_view")
-    sort = _FromState("_sort_changed")
-    conditions = _FromState("_conditions_changed")
-    show_input_columns = _FromState("_request_view")
-    show_more_columns = _FromState("_request_view")
-    library = _FromState()
-    frame = _FromState()
-    marked = _FromState()
-    session_key = _FromState()
-
-    def _sort_changed(self) -> None:
-        self._to_top = True  # a new order starts at its first row
-        self._request_view()
-
-    def _conditions_changed(self) -> None:
-        for screen in self.screen_stack:
-            if isinstance(screen, ConditionsScreen):
-                screen.applied = self.conditions  # the panel shows what the table now uses
-        self._request_view()
-
     # ------------------------------------------------------------------ layout
-
-    @property
-    def source_name(self) -> str:
-        """The library's file name (no folder: snapshots and screenshots stay path-free)."""
-        if isinstance(self.source, (str, os.PathLike)):
-            return Path(self.source).name
-        return "in-memory table"
 
     def compose(self) -> ComposeResult:
         yield Static(f"halosift │ {self.source_name}", id="title")
@@ -307,267 +109,7 @@ class HalosiftApp(App[int]):
         self._show_phase()
         self._start_screening()
 
-    # ------------------------------------------------------------------ screening
-
-    def _start_screening(self) -> None:
-        self._cancel = threading.Event()
-        self._run_taken = False
-        self._stop_note = ""
-        # Resuming a stopped screen: the rows perceived before stay on screen (and come back from the cache).
-        self.phase = "streaming" if self.library is not None and self.library.partial else "screening"
-        bar = self.query_one("#screening-progress", ProgressBar)
-        bar.update(total=None, progress=0)
-        self.query_one("#screening-label", Label).update(f"Screening {self.source_name}…")
-        self._screen(self._cancel)
-
-    @work(thread=True, exclusive=True, group="screen", exit_on_error=False, description="screen the library")
-    def _screen(self, cancel: threading.Event) -> None:
-        """Read and perceive the library, then evaluate it under default conditions.
-
-        The rows perceived so far go up as they come (ScreeningPartial, evaluated
-        here, off the interface thread), the whole library last (ScreeningFinished).
-        """
-        from halosift.engine.library import PENDING
-        from halosift.tui.session import ScreenStart
-
-        from halosift import engine
-
-        freeze_imports()
-        last = [0.0]
-        start: list[ScreenStart] = []  # once known
-
-        def progress(done: int, total: int | None) -> None:
-            now = time.monotonic()
-            if now - last[0] >= PROGRESS_INTERVAL or (total is not None and done >= total):
-                last[0] = now
-                self.post_message(ScreeningProgress(done, total))
-
-        def begin(n_rows: int) -> ScreenStart:
-            """The session and conditions to start from (read once the row count is known)."""
-            if not start:
-                opened = self._read_session(n_rows)
-                conditions, note = self.conditions, opened.note
-                if conditions is None:
-                    from halosift.tui.session import initial_conditions
-
-                    # Saved conditions, with the command line's explicit options winning field by field.
-                    saved = opened.session.conditions if opened.session is not None else None
-                    opening = initial_conditions(saved, self.explicit_conditions)
-                    conditions = opening.conditions
-                    note = " ".join(n for n in (note, opening.note) if n)
-                start.append(ScreenStart(opened, conditions, note))
-            return start[0]
-
-        def partial(library: Library) -> None:
-            if cancel.is_set():
-                return
-            first = begin(len(library.input))
-            conditions = self.conditions or first.conditions  # the chemist may have changed them meanwhile
-            frame = library.evaluate(conditions)
-            status = frame["status"].to_numpy()
-            shown = threading.Event()
-            self.post_message(ScreeningPartial(library, frame, conditions, first.opened.session, first.opened.key,
-                                               first.note,
-                                               int((status == "ok").sum()), int((status == PENDING).sum()), shown))
-            # The workers go on perceiving meanwhile; only this thread's next step waits.
-            deadline = time.monotonic() + SHOWN_WAIT_S
-            while not shown.wait(0.02) and not cancel.is_set() and time.monotonic() < deadline:
-                pass
-
-        try:
-            library = engine.load_library(
-                self.source,
-                smiles_column=self.smiles_column,
-                id_column=self.id_column,
-                use_cache=self.use_cache,
-                progress=progress,
-                cancel=cancel,
-                partial=partial,
-                background=True,  # the workers yield the CPU to the interface
-            )
-            first = begin(len(library.input))
-            conditions = self.conditions or first.conditions
-            frame = library.evaluate(conditions)
-        except engine.Cancelled:
-            self.post_message(ScreeningStopped(True, "Screening cancelled."))
-            return
-        except engine.LibraryError as exc:
-            self.post_message(ScreeningStopped(False, f"Cannot open {self.source_name}: {one_line(exc)}"))
-            return
-        except Exception as exc:  # an engine bug: say so in one line, never a traceback on screen
-            self.post_message(ScreeningStopped(False, f"Screening failed: {type(exc).__name__}: {one_line(exc)}"))
-            return
-        if cancel.is_set():
-            self.post_message(ScreeningStopped(True, "Screening cancelled."))
-            return
-        self.post_message(ScreeningFinished(library, frame, conditions, first.opened.session, first.opened.key,
-                                            first.note))
-
-    def _read_session(self, n_rows: int) -> Opened:
-        """The session saved for this library, if any is to be restored (file reads, so called in the worker)."""
-        from halosift.tui import session as sessions
-
-        if not self.sessions or self.state.session_restored:
-            return sessions.Opened(None, self.session_key)
-        try:
-            key = sessions.library_key(self.source)
-        except OSError as exc:
-            return sessions.Opened(None, None, f"Sessions are off for this library: {one_line(exc)}")
-        if self.fresh:
-            try:
-                sessions.forget(key)
-            except OSError as exc:
-                return sessions.Opened(None, key, f"The saved session could not be removed: {one_line(exc)}")
-            return sessions.Opened(None, key)
-        loaded = sessions.load(key)
-        saved, note = loaded.session, loaded.note
-        if saved is not None and saved.n_rows != n_rows:
-            return sessions.Opened(None, key, (f"The saved session is for {counted(saved.n_rows, 'row')}, not "
-                                               f"{n_rows:,}, and is ignored; this one starts fresh."))
-        return sessions.Opened(saved, key, note)
-
-    def on_screening_progress(self, message: ScreeningProgress) -> None:
-        if self.phase != "screening":
-            return
-        bar = self.query_one("#screening-progress", ProgressBar)
-        bar.update(total=message.total, progress=message.done)
-        total = f" of {_count(message.total)}" if message.total is not None else ""
-        self.query_one("#screening-label", Label).update(
-            f"Screening {self.source_name}: {_count(message.done)}{total} structures perceived"
-        )
-
-    def on_screening_partial(self, message: ScreeningPartial) -> None:
-        if message.shown is not None:
-            self._shown_waiting.append(message.shown)
-        self._take_library(message, RowCounts.of(len(message.frame), message.screened, message.pending),
-                           complete=False)
-        if self.phase != "streaming":
-            self._release_screening()
-
-    def _release_screening(self) -> None:
-        """Let the screening thread go on: the rows it handed over are drawn (or will not be)."""
-        waiting, self._shown_waiting = self._shown_waiting, []
-        for event in waiting:
-            event.set()
-
-    def on_screening_finished(self, message: ScreeningFinished) -> None:
-        self._take_library(message, self.state.counts, complete=True)  # counted when its view arrives
-
-    def _take_library(self, message: ScreeningPartial | ScreeningFinished, counts: RowCounts, complete: bool) -> None:
-        """Show a (partial or whole) library; the first of a screen also sets marks, conditions and the session."""
-        if self.phase not in ("screening", "streaming"):
-            return  # the screen stopped meanwhile
-        first = not self._run_taken
-        self._run_taken = True
-        state = self.state
-        state.take_library(message.library, message.frame, message.conditions, counts, first=first)
-        self._orders = OrderCache()  # sort orders of other rows do not apply
-        if first:
-            self._input_widths = {}
-            if message.session_key is not None:
-                state.session_key = message.session_key
-            if message.session is not None and not state.session_restored:
-                self._restore_session(message.session)
-            state.session_restored = True
-            if message.session_note:
-                self.notify(message.session_note, title="Session", severity="warning", timeout=10)
-        self.phase = "ready" if complete else "streaming"
-        self._request_view()
-        if not first:
-            self._keep_place_generation = self._generation  # new rows: the cursor's row stays where it is on screen
-
-    def _restore_session(self, saved: Any) -> None:
-        """Take marks, sort, filters, view and column choices from a saved session (conditions came with the frame)."""
-        self.state.restore(saved)
-        self.query_one(SearchBar).value = saved.filters.text
-        self.notify(
-            f"Restored this library's last session: {self.state.n_marked:,} marked, view {saved.view}, "
-            f"{saved.filters.describe()}. N starts fresh.",
-            title="Session", timeout=6,
-        )
-
-    # ------------------------------------------------------------------ sessions
-
-    def current_session(self) -> Session:
-        """The state to save for this library (tui.session.Session)."""
-        return self.state.to_session()
-
-    def _session_changed(self) -> None:
-        """Save the session shortly (changes in a burst are written once)."""
-        if self.session_key is None or self.library is None or self.conditions is None:
-            return
-        self._session_dirty = True
-        if self._session_timer is not None:
-            self._session_timer.stop()
-        self._session_timer = self.set_timer(SESSION_SAVE_DELAY, self._save_session_soon)
-
-    def _save_session_soon(self) -> None:
-        self._session_timer = None
-        if self._session_dirty and self.session_key is not None:
-            self._session_dirty = False
-            self._session_seq += 1
-            self._save_session(self.session_key, self.current_session(), self._session_seq)
-
-    @work(thread=True, group="session", exit_on_error=False, description="save the session")
-    def _save_session(self, key: str, saved: Any, seq: int) -> None:
-        """Write the session file (atomically) off the interface thread; an older state never replaces a newer one."""
-        from halosift.tui.session import save
-
-        try:
-            with self._session_lock:
-                if seq <= self._session_written:
-                    return
-                save(key, saved)
-                self._session_written = seq
-        except OSError as exc:
-            self.call_from_thread(self.notify, f"Could not save the session: {one_line(exc)}", title="Session",
-                                  severity="warning")
-
-    def save_session_now(self) -> None:
-        """Write any unsaved change at once (on quitting)."""
-        if self._session_timer is not None:
-            self._session_timer.stop()
-            self._session_timer = None
-        if not (self._session_dirty and self.session_key is not None and self.library is not None):
-            return
-        from halosift.tui.session import save
-
-        self._session_dirty = False
-        self._session_seq += 1
-        try:
-            with self._session_lock:
-                save(self.session_key, self.current_session())
-                self._session_written = self._session_seq
-        except OSError:
-            pass  # quitting: nowhere left to say it; the previous session file is intact (atomic writes)
-
-    def action_start_fresh(self) -> None:
-        """Drop this library's session: no marks (z brings them back), input order, no filters, default conditions."""
-        from halosift.engine import Conditions
-
-        before = self.conditions
-        if self.state.start_fresh(Conditions(), f"start fresh (cleared {counted(self.state.n_marked, 'mark')})"):
-            self.query_one(LibraryTable).set_marked(self.marked)
-        self.query_one(SearchBar).value = ""
-        self._to_top = True
-        if self.conditions != before:
-            self._conditions_changed()  # re-weighs and requests the view
-        else:
-            self._request_view()
-        self.notify("Started fresh: default conditions, input order, no filters, no marks (z brings the marks back)",
-                    title="Session", timeout=8)
-
-    def on_screening_stopped(self, message: ScreeningStopped) -> None:
-        self.phase = "stopped"
-        self._release_screening()
-        if self.library is not None and self.library.partial:
-            # The rows perceived so far stay usable (and are cached); r perceives only the rest.
-            self._stop_note = "stopped" if message.cancelled else message.message
-            self._update_status()
-            return
-        hint = "Press r to screen again, q to quit." if message.cancelled else "Press r to try again, q to quit."
-        self.query_one("#counts", OneLine).show(message.message)
-        self.query_one("#settings", OneLine).show(hint)
+    # ------------------------------------------------------------------ phases and keys
 
     @property
     def rows_shown(self) -> bool:
@@ -679,18 +221,6 @@ class HalosiftApp(App[int]):
         table.focus()
         table.action_sort()
 
-    def action_cancel_screening(self) -> None:
-        """Stop the screening worker (it stops at the next batch)."""
-        self._cancel.set()
-        self.query_one("#screening-label", Label).update("Cancelling…")
-        if self.phase == "streaming":
-            self._stop_note = "stopping"
-            self._update_status()
-
-    def action_rescreen(self) -> None:
-        """Start screening again after a cancel or a failure."""
-        self._start_screening()
-
     async def action_quit(self) -> None:
         """Quit, stopping any screening first and saving the session."""
         self._cancel.set()
@@ -700,248 +230,6 @@ class HalosiftApp(App[int]):
     async def action_leave(self) -> None:
         """Quit (the q key; a letter, so not while typing in a field)."""
         await self.action_quit()
-
-    # ------------------------------------------------------------------ the view
-
-    def _text_columns(self) -> TextColumns:
-        """The columns the find text looks in."""
-        lib = self.library
-        if lib is None:
-            return TextColumns()
-        names = lib.result_names()  # an input "canonical_smiles" is input_canonical_smiles in the frame
-        ids = (names[lib.id_column],) if lib.id_column is not None else ()
-        return TextColumns(ids, (names[lib.smiles_column], "canonical_smiles"))
-
-    def _request_view(self) -> None:
-        """Recompute (in a worker) the rows to show; the newest request wins."""
-        if self.library is None or self.conditions is None:
-            return
-        self._generation += 1
-        self._session_changed()
-        self._update_status()
-        self._refresh_bindings_on_change()
-        frame = self.frame if self.state.frame_is_current else None
-        self._build_view(
-            self._generation, self.library, self.conditions, frame, self.filters, self.sort, self.view,
-            self.marked.copy(), self._text_columns(),
-        )
-
-    # Every worker is given a description: without one Textual writes one from repr() of each argument,
-    # on the interface thread, and the repr of a frame of 20,000 rows takes ~100 ms.
-    @work(thread=True, exclusive=True, group="view", exit_on_error=False, description="build the view")
-    def _build_view(
-        self,
-        generation: int,
-        library: Library,
-        conditions: Conditions,
-        frame: pd.DataFrame | None,
-        spec: FilterSpec,
-        sort: SortSpec,
-        view: str,
-        marked: np.ndarray,
-        text_columns: TextColumns,
-    ) -> None:
-        """Evaluate when the conditions changed, then filter and sort (pandas/numpy only)."""
-        from halosift.engine.library import PENDING
-        from halosift.tui.filters import ordered_rows, view_mask
-
-        worker = get_current_worker()
-        try:
-            if frame is None:
-                frame = library.evaluate(conditions)
-            if worker.is_cancelled:
-                return
-            mask = view_mask(frame, view, spec, marked, text_columns.ids, text_columns.smiles)
-            status = frame["status"].to_numpy()
-            pending = status == PENDING
-            mask = mask & ~pending  # not perceived yet: in no view until it is (the header counts it)
-            rows = ordered_rows(mask, self._sort_order(library, conditions, frame, sort))
-            screened = int((status == "ok").sum())
-        except Exception as exc:  # a bug: report it in one line
-            self.post_message(ViewFailed(generation, f"{type(exc).__name__}: {one_line(exc)}"))
-            return
-        if not worker.is_cancelled:
-            self.post_message(ViewComputed(generation, conditions, frame, rows, screened, int(pending.sum())))
-
-    def _sort_order(
-        self, library: Library, conditions: Conditions, frame: pd.DataFrame, sort: SortSpec
-    ) -> np.ndarray | None:
-        """Every frame row in ``sort`` order, or None for input order (call off the interface thread)."""
-        from halosift.engine import VERDICTS
-        from halosift.engine.stereo import OUTCOMES
-
-        if sort.column == ROW_KEY:
-            return np.arange(len(frame))[::-1] if sort.descending else None
-        if sort.column is None or sort.column not in frame:
-            return None
-        token = "input" if sort.column in library.result_names().values() else conditions
-        categories = {"verdict": VERDICTS, "stereo": OUTCOMES}.get(sort.column)
-        ranks = {v: i for i, v in enumerate(categories)} if categories else None
-        return self._orders.order(frame, token, sort.column, sort.descending, ranks)
-
-    def on_view_computed(self, message: ViewComputed) -> None:
-        if message.generation != self._generation:
-            return  # a newer request is on its way
-        self._applied_generation = message.generation
-        self.state.take_view(message.frame, message.conditions,
-                             RowCounts.of(len(message.frame), message.screened, message.pending))
-        table = self.query_one(LibraryTable)
-        before, place = table.cursor_row, table.cursor - int(table.scroll_offset.y)
-        table.show(message.frame, message.rows, self._columns(message.frame),
-                   sort=(self.sort.column, self.sort.descending), marked=self.marked, top=self._to_top)
-        if message.generation == self._keep_place_generation and not self._to_top and before >= 0 \
-                and table.cursor_row == before:
-            # Rows arrived above the cursor's: scroll with them, so the row read stays put on screen.
-            table.scroll_to(y=max(0, table.cursor - place), animate=False, force=True)
-        self._to_top = False
-        self._update_status()
-        self._refresh_bindings_on_change()
-        if self._shown_waiting:
-            self.call_after_refresh(self._release_screening)
-
-    @property
-    def busy(self) -> bool:
-        """True while screening, or while a requested table update has not arrived yet."""
-        return self.phase in ("screening", "streaming") or self._applied_generation != self._generation
-
-    def on_view_failed(self, message: ViewFailed) -> None:
-        if message.generation == self._generation:
-            self._applied_generation = message.generation
-            self._update_status()
-            self.notify(message.message, title="Could not update the table", severity="error")
-        self._release_screening()
-
-    def _columns(self, frame: pd.DataFrame) -> list[Column]:
-        """The table's columns for the current view."""
-        lib = self.library
-        assert lib is not None
-        cols: list[Column] = []
-        names = lib.result_names()  # the input's own ID and SMILES, even when named like a result column
-        if lib.id_column is not None:
-            ident = names[lib.id_column]
-            cols.append(Column(ident, "ID", self._text_width(frame, ident, "ID", 18)))
-        smiles = names[lib.smiles_column]
-        cols.append(Column(smiles, "SMILES", 20, grow_to=self._text_width(frame, smiles, "SMILES", 120)))
-        if self.view == "rejected":
-            # Grows on a wide terminal to the longest reason; cut ones end in "…" and the status line has them whole.
-            cols.append(Column("reason", "Reason", 56, grow_to=self._text_width(frame, "reason", "Reason", 160)))
-        else:
-            cols += [
-                Column("verdict", "Verdict", 12, "verdict"),
-                SERVES_COLUMN,
-                Column("n_products", "Prods", 7, "count"),
-                Column("cl2_major", "Cl2 major", 18),
-                Column("cl2_major_pct", "Cl2 %", 7, "pct"),
-                Column("br2_major", "Br2 major", 18),
-                Column("br2_major_pct", "Br2 %", 7, "pct"),
-                Column("stereo", "Br2 stereo", 13),
-                *OUTCOME_COLUMNS,
-            ]
-            if self.show_more_columns:
-                cols += [Column(key, label, width, kind) for key, label, width, kind in MORE_COLUMNS]
-                cols += REASON_COLUMNS
-        if self.show_input_columns:
-            import pandas as pd  # loaded long before: a frame is being shown
-
-            # By their names in the frame: an input "status" is shown as input_status, not as the result's.
-            for name, key in lib.result_names().items():
-                if name not in (lib.id_column, lib.smiles_column):
-                    values = frame[key]
-                    numeric = pd.api.types.is_numeric_dtype(values) and not pd.api.types.is_bool_dtype(values)
-                    cols.append(Column(key, str(key), self._text_width(frame, key, str(key), 24),
-                                       "number" if numeric else "text"))  # a number is never shown cut
-        cols.append(Column(ROW_KEY, "Row", max(5, len(str(len(frame))) + 2), "row"))
-        return cols
-
-    def _text_width(self, frame: pd.DataFrame, column: Hashable, label: str, cap: int) -> int:
-        """Width for a column from its label and the first thousand values.
-
-        The input's own columns are measured once per library (they are the same
-        in every partial library and every evaluation); result columns each time.
-        """
-        key = (column, label, cap)
-        if column != "reason" and key in self._input_widths:
-            return self._input_widths[key]
-        sample = frame[column].iloc[:1000].astype(str)
-        longest = int(sample.str.len().fillna(0).max()) if len(sample) else 0  # missing values show empty
-        width = max(len(label) + 2, min(cap, longest))
-        if column != "reason":
-            self._input_widths[key] = width
-        return width
-
-    def _update_status(self) -> None:
-        if self.frame is None or self.conditions is None:
-            return
-        from halosift.tui.header import Phrase, cl2_forms, fit_phrases
-
-        counts = self.state.counts
-        ok, rejected, pending = counts.screened, counts.rejected, counts.pending
-        shown = len(self.query_one(LibraryTable).rows)
-        total = len(self.frame)
-        marked = _count(self.state.n_marked)
-        if pending or self.phase == "streaming":
-            done = f"{_count(total - pending)} of {_count(total)}"
-            counts = [Phrase((f"{done} {'row' if total == 1 else 'rows'} perceived ({_count(ok)} screened, {_count(rejected)} rejected)",
-                              f"{done} {'row' if total == 1 else 'rows'} perceived", f"{done} perceived"), keep=6)]
-            if self.phase == "streaming" and not self._stop_note:
-                counts.append(Phrase(("Esc stops, keeps what is done", "Esc stops"), keep=0))  # the footer leaves Esc to this line
-            elif self.phase == "streaming":
-                counts.append(Phrase((f"{self._stop_note}…",), keep=5))
-            elif self.phase == "stopped":
-                note = f"{self._stop_note}, done rows kept · r resumes"
-                counts.append(Phrase((note, f"{self._stop_note} · r resumes", "r resumes"), keep=5))
-        else:
-            counts = [Phrase((f"{counted(total, 'row')} ({_count(ok)} screened, {_count(rejected)} rejected)",
-                              f"{counted(total, 'row')} ({_count(rejected)} rejected)", counted(total, 'row')), keep=1)]
-        counts += [
-            Phrase((f"view {self.view}: {_count(shown)} shown", f"{self.view}: {_count(shown)} shown"), keep=3),
-            Phrase((f"{marked} marked",), keep=4),
-        ]
-        if self._applied_generation != self._generation or self.phase == "screening":
-            counts.append(Phrase(("updating…",), keep=5))
-        width = max(20, self.size.width - 2)  # the lines' padding
-        self.query_one("#counts", OneLine).show(fit_phrases(counts, width))
-        cond = self.conditions
-        cl2 = cl2_forms(cond)
-        temps = f"Br2 {cond.br2_temp_c:g} °C · threshold {cond.threshold_pct:g} %"
-        sort = self._sort_text()
-        settings = [
-            Phrase((f"{cl2.long} · {temps}", f"{cl2.short} · {temps}"), keep=4),
-            # The sort also shows on its column's title; the filters show nowhere else, so they stay longer.
-            Phrase((f"sort {sort}", sort), keep=2),
-        ]
-        if self.view != "library":
-            settings.append(Phrase(("filters off here", ""), keep=1))
-        elif self.filters.active:
-            n = self.filters.count
-            settings.append(Phrase((self.filters.describe(), f"{n} filter{'s' if n > 1 else ''} on", "filtered"),
-                                   keep=3))
-        else:
-            settings.append(Phrase(("no filters", ""), keep=1))
-        self.query_one("#settings", OneLine).show(fit_phrases(settings, width))
-        warnings = cond.warnings()
-        box = self.query_one("#warnings", Static)
-        box.display = bool(warnings)
-        lines = [f"! {w}" for w in warnings]
-        # Wrapped whole, never cut; more than fits in WARNING_LINES becomes a count pointing to the panel.
-        if sum(-(-len(line) // width) for line in lines) > WARNING_LINES:
-            lines = [f"! {len(warnings)} warnings about these conditions: the split is extrapolated "
-                     "(t lists them in full)"]
-        box.update("\n".join(lines))
-
-    def on_resize(self) -> None:
-        self._update_status()
-
-    def _sort_text(self) -> str:
-        """The sort order in words, e.g. 'Br2 % ▼' or 'input order' (titles a chemist reads, never internal names)."""
-        from halosift.tui.header import column_title
-
-        if self.sort.column is None:
-            return "input order"
-        self._titles.update({c.key: c.label for c in self.query_one(LibraryTable).columns})
-        if self.sort.column == ROW_KEY:
-            self._titles.setdefault(ROW_KEY, "Row")
-        return f"{column_title(self.sort.column, self._titles)} {'▼' if self.sort.descending else '▲'}"
 
     # ------------------------------------------------------------------ table messages
 
@@ -969,22 +257,6 @@ class HalosiftApp(App[int]):
         if not pd.isna(dup) and str(dup) != "":
             parts.append(f"same structure as row {dup}")
         info.show(" · ".join(parts))
-
-    def on_mark_requested(self, message: MarkRequested) -> None:
-        self.state.toggle_mark(message.row)
-        self._marks_changed()
-        from halosift.tui.detail import DetailScreen
-
-        if isinstance(self.screen, DetailScreen):
-            self.screen.marked = bool(self.marked[self.screen.row])
-
-    def _marks_changed(self) -> None:
-        self._session_changed()
-        self.query_one(LibraryTable).set_marked(self.marked)
-        if self.view == "shortlist":
-            self._request_view()
-        else:
-            self._update_status()
 
     def on_sort_requested(self, message: SortRequested) -> None:
         if self.state.sort_by(message.column, message.descending):
@@ -1014,80 +286,6 @@ class HalosiftApp(App[int]):
         """Cycle library → shortlist → rejected."""
         self.state.next_view()
         self._request_view()
-
-    def set_marks(self, rows: np.ndarray, value: bool, what: str) -> int:
-        """Mark (or unmark) frame rows as one step that z can undo; returns how many marks changed."""
-        changed = self.state.set_marks(rows, value, what)
-        if changed:
-            self._marks_changed()
-        return changed
-
-    def action_mark_shown(self) -> None:
-        """Mark every row the current view shows."""
-        rows = self.query_one(LibraryTable).rows
-        changed = self.set_marks(rows, True, f"mark all {len(rows):,} shown")
-        self.notify(f"Marked {counted(changed, 'more row')} (all {len(rows):,} shown) · z undoes" if changed
-                    else "Every shown row was already marked", title="Marks")
-
-    def action_unmark_shown(self) -> None:
-        """Unmark every row the current view shows."""
-        rows = self.query_one(LibraryTable).rows
-        changed = self.set_marks(rows, False, f"unmark all {len(rows):,} shown")
-        self.notify(f"Unmarked {counted(changed, 'row')} · z undoes" if changed else "No shown row was marked", title="Marks")
-
-    def action_undo_marks(self) -> None:
-        """Undo the last mark-all, unmark-all or marks-from-file step."""
-        step = self.state.undo_marks()
-        if step is None:
-            self.notify("Nothing to undo (z undoes a, u and marks from a file)", title="Marks")
-            return
-        self._marks_changed()
-        self.notify(f"Undone: {step.what}; {counted(self.state.n_marked, 'row')} marked", title="Marks")
-
-    def action_mark_from_file(self) -> None:
-        """Mark the rows whose ID is listed in a file (one ID a line, or a CSV/TSV with an ID column)."""
-        from halosift.tui.id_list import IdListScreen
-
-        if self.library is None or self.library.id_column is None:
-            self.notify("This library has no ID column, so there are no IDs to match", title="Marks",
-                        severity="warning")
-            return
-
-        def chosen(path: Path | None) -> None:
-            if path is not None:
-                self._match_ids(path, self.frame, self.library.id_column)
-
-        self.push_screen(IdListScreen(Path.cwd()), chosen)
-
-    @work(thread=True, exclusive=True, group="ids", exit_on_error=False, description="match an ID list")
-    def _match_ids(self, path: Path, frame: pd.DataFrame, id_column: Hashable) -> None:
-        """Read an ID list and find its rows (pandas, off the interface thread)."""
-        from halosift.tui.id_list import match_ids, read_ids
-
-        try:
-            ids = read_ids(path, str(id_column))
-            match = match_ids(frame[id_column], ids)
-        except (OSError, ValueError) as exc:
-            self.post_message(IdsMatched(str(path), None, 0, (), one_line(exc)))
-            return
-        self.post_message(IdsMatched(str(path), match.rows, match.n_ids, match.missing, ""))
-
-    def on_ids_matched(self, message: IdsMatched) -> None:
-        name = Path(message.path).name
-        if message.rows is None:
-            self.notify(f"Cannot read {name}: {message.error}", title="Marks", severity="error", timeout=10)
-            return
-        changed = self.set_marks(message.rows, True, f"mark {counted(len(message.rows), 'row')} listed in {name}")
-        missing = ""
-        if message.missing:
-            few = ", ".join(message.missing[:3]) + (" …" if len(message.missing) > 3 else "")
-            missing = f"; {len(message.missing):,} not in this library ({few})"
-        self.notify(
-            f"{counted(message.n_ids, 'ID')} read from {name}: {counted(len(message.rows), 'row')} found, "
-            f"{changed:,} newly marked"
-            f"{missing}" + (" · z undoes" if changed else ""),
-            title="Marks", timeout=10,
-        )
 
     def action_clear_filters(self) -> None:
         """Drop every filter."""
@@ -1145,93 +343,6 @@ class HalosiftApp(App[int]):
     @on(PanelClosed)
     def _panel_closed(self, message: PanelClosed) -> None:
         self.query_one(LibraryTable).focus()
-
-    # ------------------------------------------------------------------ export
-
-    def action_export(self) -> None:
-        """Export the shortlist or the current view (CSV, TSV, Parquet or SDF, or an HTML report)."""
-        from halosift.tui.export import ExportScreen
-
-        table = self.query_one(LibraryTable)
-        protected = [Path(self.source)] if isinstance(self.source, (str, os.PathLike)) else []
-        self.push_screen(
-            ExportScreen(int(self.marked.sum()), len(table.rows), self.view, Path.cwd(), protected, self._sort_text()),
-            self._export_chosen,
-        )
-
-    def _export_chosen(self, choice: ExportChoice | None) -> None:
-        if choice is None or self.frame is None:
-            return
-        order = self._sort_text()
-        if choice.what == "shortlist":
-            marked = self.marked.copy()
-            rows = None  # put in the table's order by the export worker
-            selection = f"shortlist: {counted(int(marked.sum()), 'marked row')}; order: {order}"
-        else:
-            marked = None
-            rows = self.query_one(LibraryTable).rows.copy()
-            filters = self.filters.describe() if self.view == "library" else "no filters"
-            selection = f"{self.view} view: {counted(len(rows), 'row')}; {filters}; order: {order}"
-        self._write_export(self.frame, rows, marked, self.sort, choice.path, choice.force, self.conditions, selection)
-
-    @work(thread=True, exclusive=True, group="export", exit_on_error=False, description="write an export")
-    def _write_export(
-        self, frame: pd.DataFrame, rows: np.ndarray | None, marked: np.ndarray | None, sort: SortSpec, path: Path,
-        force: bool, conditions: Conditions, selection: str,
-    ) -> None:
-        """Write the chosen rows atomically, in the table's order, with conditions and the safety caution as metadata.
-
-        ``rows`` are the view's rows as shown; for the shortlist they are None and
-        the ``marked`` rows are put in ``sort`` order here, off the interface thread.
-        """
-        from halosift.engine.io import about_path, output_format, write_table
-        from halosift.tui.export import ReportProgress, export_frame, export_metadata, write_report_export
-        from halosift.tui.filters import ordered_rows
-
-        from halosift import engine
-        from halosift.report import is_report_path
-
-        try:
-            if rows is None:
-                rows = ordered_rows(marked, self._sort_order(self.library, conditions, frame, sort))
-            protect = [self.source] if isinstance(self.source, (str, os.PathLike)) else []
-            if is_report_path(path):
-                progress = ReportProgress(self, path)  # a report draws every entry: seconds on a large library
-                try:
-                    written = write_report_export(
-                        self.library, conditions, rows, path, force=force, selection=selection,
-                        source=self._source_text(), protect=protect, progress=progress,
-                    )
-                finally:
-                    progress.close()
-                n_rows, sidecar = len(rows), ""
-            else:
-                out = export_frame(frame, rows)
-                meta = export_metadata(conditions, selection, self._source_text())
-                written = write_table(out, path, metadata=meta, force=force, protect=protect)
-                n_rows = len(out)
-                sidecar = str(about_path(written).resolve()) if output_format(written) in ("csv", "tsv") else ""
-        except engine.LibraryError as exc:
-            self.post_message(ExportFailed(one_line(exc)))
-            return
-        except Exception as exc:
-            self.post_message(ExportFailed(f"{type(exc).__name__}: {one_line(exc)}"))
-            return
-        self.post_message(ExportFinished(str(Path(written).resolve()), n_rows, sidecar))
-
-    def _source_text(self) -> str:
-        if isinstance(self.source, (str, os.PathLike)):
-            return str(Path(self.source).resolve())
-        return "in-memory table"
-
-    def on_export_finished(self, message: ExportFinished) -> None:
-        self.last_export = Path(message.path)
-        where = f"{message.path}"
-        extra = f"; conditions and caution in {message.sidecar}" if message.sidecar else "; conditions and caution inside"
-        self.notify(f"Wrote {counted(message.rows, 'row')} to {where}{extra}", title="Exported", timeout=10)
-
-    def on_export_failed(self, message: ExportFailed) -> None:
-        self.notify(message.message, title="Export failed", severity="error", timeout=10)
 
 
 def run(

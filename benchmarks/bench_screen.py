@@ -152,6 +152,10 @@ def screen_set(name: str, smiles: list[str], tmpd: Path, env: dict[str, str], wo
               f"SMILES and stereo elements of each reported product, {shown / len(smiles):.1f} per structure) cost "
               f"{floor / a_cpu:4.1f} × parse in CPU time, {verdict}; the rest of (b) is per-structure Python, "
               f"split by stage in benchmarks/bench_stages.py")
+        floor_million = floor / len(smiles) * 1_000_000 / max(1, workers)
+        print(f"    those calls alone, on {workers} perfectly scaling workers with no start-up: c/a ≥ "
+              f"{floor / a_cpu / max(1, workers):4.1f} (target ≤ {TARGETS['c/a']}) and 1,000,000 new structures "
+              f"≥ {floor_million:4.0f} s (target ≤ {TARGETS['million_s']:g} s)")
     return a, b, perception
 
 

@@ -626,3 +626,28 @@ def test_a_named_pipe_as_output_is_never_replaced(force: bool, fifo: Path, tmp_p
     assert proc.returncode == 2
     assert proc.stderr == f"halosift: cannot write {target}: it is a named pipe (FIFO), not a regular file\n"
     assert target.is_fifo()
+
+
+def test_an_orbit_count_that_fails_rejects_only_its_structure(monkeypatch: pytest.MonkeyPatch) -> None:
+    # The batch gathers every structure's orbit counts into one call; when that call fails, each
+    # structure is counted on its own, so only the one whose count fails is rejected.
+    import halosift.engine.perception as perception
+
+    smiles = ["CCC(C)CC", "CCCCCC(C)C", "CC(C)CC(C)C", "CC1CCC(C)C1", "CCCC(C)C"]
+    expected = perception.perceive(smiles, detail=False)
+    real = perception.resolve_pending
+
+    def failing(pending: list) -> list:
+        if any(p.job.n_substrate == 8 for p in pending):  # 2-methylheptane, the only 8-carbon input
+            raise RuntimeError("an unforeseen corner\nof the counts")
+        return real(pending)
+
+    monkeypatch.setattr(perception, "resolve_pending", failing)
+    got = perception.perceive(smiles, detail=False)
+    assert list(got.structures["status"]) == ["ok", "rejected", "ok", "ok", "ok"]
+    assert got.structures.loc[1, "reason_code"] == "internal" and "\n" not in got.structures.loc[1, "reason"]
+    for i in (0, 2, 3, 4):
+        mine = got.sites[got.sites["struct"] == i].reset_index(drop=True)
+        theirs = expected.sites[expected.sites["struct"] == i].reset_index(drop=True)
+        pd.testing.assert_frame_equal(mine, theirs)
+    assert (got.sites["stereo"] != "").any()  # the counts that did run filled their rows

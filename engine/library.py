@@ -72,7 +72,8 @@ RESULT_DOCS: dict[str, str] = {
     ),
     "nbs_major_pct": "its share of the NBS monobromides, percent; empty when nbs_outcome is ruled-out",
     "serves": (
-        "the reagent offered: the first of cl2, br2, so2cl2, nbs whose outcome is clean (plainest first, a rule "
+        "the reagent offered, as its option token (shown as Cl2, Br2, SO2Cl2, NBS): the first of cl2, br2, so2cl2, "
+        "nbs whose outcome is clean (plainest first, a rule "
         "of this program); a reagent whose outcome is mixture or ruled-out is never offered; empty when none is "
         "clean, and for rejected rows"
     ),

@@ -38,6 +38,14 @@ RADICAL_OF: dict[str, str] = {**EXPLAIN_REAGENTS, NBS: "br"}
 ACCEPTED_REAGENTS: dict[str, str] = RADICAL_OF
 #: How a chemist writes each reagent in running text (messages, headers): Cl2, Br2, SO2Cl2, NBS.
 REAGENT_NAMES: dict[str, str] = {"cl2": "Cl2", "br2": "Br2", "so2cl2": "SO2Cl2", NBS: "NBS"}
+
+
+def reagent_name(token: object) -> str:
+    """How a chemist writes the reagent an option token or a ``serves`` value names (cl2 → Cl2);
+    other text as it is, and a missing value as ''."""
+    return REAGENT_NAMES.get(token, token) if isinstance(token, str) else ""
+
+
 REAGENT_LABELS: dict[str, str] = {
     "cl2": "Cl2, light", "br2": "Br2, light", "so2cl2": "SO2Cl2, initiator", NBS: "NBS, initiator",
 }

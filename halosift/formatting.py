@@ -7,7 +7,7 @@ from collections.abc import Sequence
 from halosift.engine.conditions import REAGENT_LABELS
 from halosift.engine.explain import REAGENT_NOTES, Explanation
 from halosift.engine.polyhalogenation import POLY_UNIT, PolyPlan
-from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS
+from halosift.engine.reagents import EXPLAIN_REAGENTS, NBS, reagent_name
 from halosift.engine.safety import CAUTION
 from halosift.engine.stereo import count_text
 
@@ -37,13 +37,14 @@ def explanation_table(
     lines.append("conditions " + "; ".join(label(r) for r in reagents))
     nbs = NBS in reagents
     reagents = [r for r in reagents if r in EXPLAIN_REAGENTS]  # the site table's reagents
-    headers = ["product (chloride)", "site", "H", "BDE", "ΔH Cl·", "ΔH Br·", "stereo", *(f"% {r}" for r in reagents),
-               *(f"basis {r}" for r in reagents)]
+    names = [reagent_name(r) for r in reagents]
+    headers = ["product (chloride)", "site", "H", "BDE", "ΔH Cl·", "ΔH Br·", "stereo", *(f"% {n}" for n in names),
+               *(f"basis {n}" for n in names)]
     rows = []
     for p in result.products:
         stereo = " ".join(filter(None, [p.stereo, count_text(p.stereo, p.n_stereoisomers, p.stereo_approximate)]))
         # A norbornane 2-halide: its exo/endo split, per reagent shown (a rate-model property).
-        splits = [f"{p.exo_endo(r).removeprefix('exo:endo ')} {r}" for r in reagents if p.exo_endo(r)]
+        splits = [f"{p.exo_endo(r).removeprefix('exo:endo ')} {reagent_name(r)}" for r in reagents if p.exo_endo(r)]
         if splits:
             stereo += "; exo:endo " + ", ".join(splits)
         rows.append(
@@ -72,12 +73,12 @@ def explanation_table(
         counted = result.counted_reagents(asked)
         lines.append(
             f"confidence {confidence}  (weakest basis of the rates and product splits among products with ≥ 5 % "
-            f"under {', '.join(counted)}; ruled-out reagents do not count)"
+            f"under {', '.join(reagent_name(r) for r in counted)}; ruled-out reagents do not count)"
         )
     lines.append("units      BDE and ΔH in kcal/mol; * marks an estimated bond enthalpy")
     lines.append("basis      what each product share rests on: measured / textbook / from memory / estimate (engine/parameters.py)")
     lines.extend(f"flag       {f.flag}: {f.note} [{f.source}]" for f in result.flags)
-    lines.extend(f"note       {r}: {REAGENT_NOTES[r]}" for r in [*reagents, *([NBS] if nbs else [])]
+    lines.extend(f"note       {reagent_name(r)}: {REAGENT_NOTES[r]}" for r in [*reagents, *([NBS] if nbs else [])]
                  if r in REAGENT_NOTES)
     for plan in plans:
         lines.extend(poly_lines(plan))
@@ -95,7 +96,7 @@ def outcome_lines(result: Explanation) -> list[str]:
     rows = []
     for o in result.outcomes:
         pct = "" if o.major_pct != o.major_pct else f"{o.major_pct:.1f}"
-        rows.append([o.reagent, f"{o.temp_c:g}", o.outcome, o.major or "-", pct, o.reason])
+        rows.append([reagent_name(o.reagent), f"{o.temp_c:g}", o.outcome, o.major or "-", pct, o.reason])
     lines = [f"outcomes   per reagent (clean: one monohalide at ≥ {cond.threshold_pct:g} %; ruled-out: the "
              "substitution split does not apply)"]
     lines += ["  " + line for line in _table(["reagent", "°C", "outcome", "major (substitution split)", "%", "why"],
@@ -111,8 +112,8 @@ def outcome_lines(result: Explanation) -> list[str]:
                      "share between its two termini (as under NBS); the products and majors shown are per site")
     meaning = verdict_docs(cond.threshold_pct).get(result.verdict, "")
     lines.append(f"verdict    {result.verdict}  ({meaning})")
-    served = result.serves or "none"
-    lines.append(f"serves     {served}  (first of cl2, br2, so2cl2, nbs whose outcome is clean; never one that is "
+    served = reagent_name(result.serves) or "none"
+    lines.append(f"serves     {served}  (first of Cl2, Br2, SO2Cl2, NBS whose outcome is clean; never one that is "
                  "mixture or ruled-out)")
     return lines
 
@@ -130,7 +131,7 @@ def _nbs_lines(result: Explanation) -> list[str]:
             stereo += ", E+Z"
         rows.append([p.smiles, p.terminus, p.site, str(p.alkene_substituents) if p.alkene_substituents >= 0 else "-",
                      stereo, f"{p.pct:.1f}"])
-    out += _table(["product (bromide)", "Br at", "from site", "C=C subst.", "stereo", "% nbs"], rows, right={3, 5})
+    out += _table(["product (bromide)", "Br at", "from site", "C=C subst.", "stereo", "% NBS"], rows, right={3, 5})
     out.append("Br at      radical carbon: where H was taken; allylic shift: far end of the allyl radical, C=C moved; "
                "termini weighed by C=C substitution (engine.parameters.NBS_SUBSTITUENT_FACTOR); E/Z ratio not modelled")
     return out
@@ -141,7 +142,7 @@ def poly_lines(plan: PolyPlan) -> list[str]:
     at = f"at {plan.ratio:g} : 1 substrate : halogen (all halogen used)"
     # One figure everywhere: percent of the halogenated product, as the screen's <reagent>_poly_pct column.
     lines = [
-        f"polyhalide {plan.reagent} {at}: {plan.poly_pct_at_ratio:.1f} {POLY_UNIT} "
+        f"polyhalide {reagent_name(plan.reagent)} {at}: {plan.poly_pct_at_ratio:.1f} {POLY_UNIT} "
         f"({100.0 - plan.unreacted_pct:.1f} % of the substrate converted)",
     ]
     if abs(plan.conversion_pct - (100.0 - plan.unreacted_pct)) > 1e-6:

@@ -26,7 +26,7 @@ def test_explain_table(capsys: pytest.CaptureFixture) -> None:
     assert main(["explain", "CCC"]) == 0
     out = capsys.readouterr().out
     assert "CC(C)Cl" in out and "CCCCl" in out
-    assert "verdict    selective" in out and "serves     br2" in out
+    assert "verdict    selective" in out and "serves     Br2" in out
     assert "SAFETY" in out
 
 
@@ -557,3 +557,16 @@ def test_help_carries_the_safety_caution(capsys: pytest.CaptureFixture) -> None:
         main(["--help"])
     out = " ".join(capsys.readouterr().out.split())
     assert CAUTION in out
+
+
+@pytest.mark.parametrize("smiles", ["CCC", "CC(C)Cc1ccccc1", "C=CCC", "C1CC2CCC1C2", "CC1CC1"])
+def test_explain_text_names_reagents_as_chemists_write_them(smiles: str, capsys: pytest.CaptureFixture) -> None:
+    # The text a chemist reads says Cl2, Br2, SO2Cl2, NBS; the lowercase tokens are values of options
+    # (--reagent cl2) and of the files' serves column, never how the page names a reagent.
+    import re
+
+    assert main(["explain", smiles, "--reagent", "cl2", "--reagent", "br2", "--reagent", "nbs"]) == 0
+    out = capsys.readouterr().out
+    assert "serves     " in out and "  reagent " in out
+    for line in out.splitlines():
+        assert not re.search(r"\b(cl2|br2|so2cl2|nbs)\b", line), line

@@ -14,6 +14,7 @@ from pathlib import Path
 import pandas as pd
 import pytest
 from halosift.engine.provenance import MODEL_SOURCES
+from halosift.engine.reagents import reagent_name
 
 from halosift import engine
 from halosift.cli import main
@@ -377,6 +378,9 @@ def test_entries_name_reagents_as_chemists_write_them(tmp_path: Path) -> None:
     lines = re.findall(r'<p class="meta">Outcomes: (.*?)</p>', page)
     assert lines and all(line.startswith("Cl2: ") and "; Br2: " in line and "; NBS: " in line for line in lines)
     assert "radical carbon,allylic" not in page  # the NBS termini read as words
+    # Nowhere in the text a reader sees (serves included) is a reagent its lowercase option token.
+    text = html.unescape(re.sub(r"<[^>]+>", " ", re.sub(r"<style.*?</style>", "", page, flags=re.S)))
+    assert "Serves: " in text and not re.findall(r"\b(?:cl2|br2|so2cl2|nbs)\b", text)
 
 
 def test_header_and_title_name_the_file_only(tmp_path: Path) -> None:
@@ -611,7 +615,7 @@ def test_every_input_row_appears_beyond_the_entry_cap(tmp_path: Path, monkeypatc
         line = re.search(rf'<tr data-row="{r}">(.*?)</tr>', section).group(1)
         assert f"<td>{html.escape(ROWS[r - 1][0])}</td>" in line
         if row["status"] == "ok":
-            assert f"<td>{row['verdict']}</td><td>{row['serves'] or 'none'}</td>" in line
+            assert f"<td>{row['verdict']}</td><td>{reagent_name(row['serves']) or 'none'}</td>" in line
         else:
             assert f"<td>rejected</td><td>{html.escape(row['reason'])}</td>" in line
     # Grouped as the entries are: the appendix's modelled rows follow the verdict groups in order.

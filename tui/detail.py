@@ -8,7 +8,7 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 from halosift.engine.outcomes import OUTCOME_REAGENTS
-from halosift.engine.reagents import REAGENT_NAMES, REAGENTS
+from halosift.engine.reagents import REAGENT_NAMES, REAGENTS, reagent_name
 from halosift.tui.filters import reagent_label
 from halosift.tui.help import CONFIDENCE_NOTE, STEREO_DOCS, verdict_text
 from halosift.tui.messages import DetailFailed, DetailMoved, DetailReady, MarkRequested
@@ -387,7 +387,7 @@ class DetailScreen(Screen):
             head.append(verdict, style="bold")
             head.append(f" — {verdict_text(verdict, self.conditions.threshold_pct)}")
             head.append("\nServes: ", style="bold")
-            head.append(str(record.get("serves", "")) or "none (no reagent's outcome is clean)")
+            head.append(reagent_name(record.get("serves", "")) or "none (no reagent's outcome is clean)")
             head.append("  Confidence: ", style="bold")
             head.append(str(record.get("confidence", "")) or "—")
             head.append("  Flags: ", style="bold")

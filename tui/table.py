@@ -13,6 +13,7 @@ from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
+from halosift.engine.reagents import REAGENT_NAMES
 from halosift.tui.messages import CursorMoved, DetailRequested, MarkRequested, SortRequested
 from rich.segment import Segment
 from rich.style import Style
@@ -29,7 +30,7 @@ if TYPE_CHECKING:
 #: Column key meaning "the input row number" (1-based on screen).
 ROW_KEY = "\x00row"
 #: Cell kinds: how a column's values are shown.
-KINDS = ("text", "pct", "count", "verdict", "row", "number")
+KINDS = ("text", "pct", "count", "verdict", "row", "number", "reagent")
 #: Table width (cells) up to which every column keeps its own width: the 80×24 layout never changes.
 GROW_FROM = 80
 _SEP = 1  # blank cells between columns
@@ -65,7 +66,7 @@ class Column:
 
 
 #: Beside the verdict: the reagent offered.
-SERVES_COLUMN = Column("serves", "Serves", 8)
+SERVES_COLUMN = Column("serves", "Serves", 8, "reagent")
 #: After the majors: each reagent's outcome (engine.outcomes), the grounds of the verdict and of Serves.
 OUTCOME_COLUMNS: tuple[Column, ...] = (
     Column("cl2_outcome", "Cl2 outcome", 13),
@@ -186,6 +187,8 @@ def format_values(kind: str, values: np.ndarray | None, rows: np.ndarray) -> lis
             out.append(f"{float(v):.1f}")
         elif kind == "count":
             out.append(str(int(v)))
+        elif kind == "reagent":  # a reagent token (cl2) shown as chemists write it (Cl2)
+            out.append(REAGENT_NAMES.get(v, str(v)))
         else:
             out.append(str(v))
     return out

@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 
 from halosift.engine.outcomes import shown_pct
+from halosift.engine.reagents import reagent_name
 from halosift.engine.smiles_text import break_quality, smiles_tokens
 from halosift.report.charts import bar_chart, hbar_chart, histogram
 from halosift.report.drawing import SiteMark, colour_hex, structure_svg
@@ -392,7 +393,7 @@ def _section(library: Library, row: int, row_id: str, result_row: pd.Series, con
     for column, label in (("serves", "Serves"), ("confidence", "Confidence")):
         value = result_row.get(column, "")
         if isinstance(value, str) and value:
-            extras.append(f"{label}: {_e(value)}")
+            extras.append(f"{label}: {_e(reagent_name(value) if column == 'serves' else value)}")
     nbs_major = result_row.get("nbs_major", "")
     if isinstance(nbs_major, str) and nbs_major:
         extras.append(_major_html(result_row, "nbs", "NBS"))
@@ -467,7 +468,7 @@ def _appendix(library: Library, left: Sequence[tuple[str, np.ndarray]], rejected
     for verdict, rows in left:
         if not len(rows):
             continue
-        lines = "".join(line(r, verdicts[r], serves[r] or "none") for r in rows)
+        lines = "".join(line(r, verdicts[r], reagent_name(serves[r]) or "none") for r in rows)
         parts.append(f'<h3 data-verdict="{_e(verdict)}">{_e(headings[verdict])} ({len(rows):,})</h3>'
                      + head.format("verdict", "serves") + lines + "</tbody></table>")
     if len(rejected):

@@ -32,6 +32,16 @@ SLOTS_PER_PASS = 200_000
 
 
 @dataclass(frozen=True)
+class ElementParts:
+    """The atoms that say how an automorphism moves each stereo element of a product."""
+
+    tetrahedral: tuple[tuple[int, int, tuple[int, ...]], ...]
+    """(element position, centre atom, neighbours in bond order) of each tetrahedral element."""
+    double: tuple[tuple[int, int, int, int, int], ...]
+    """(element position, end u, end w, reference atom on u, reference atom on w) of each double bond."""
+
+
+@dataclass(frozen=True)
 class OrbitJob:
     """One product's open stereo elements and automorphisms, ready to be counted."""
 
@@ -42,41 +52,52 @@ class OrbitJob:
     """Atoms of the substrate: indices at or above it (the halogen) are fixed."""
     n_elements: int
     """Open stereo elements of the product (all of its elements)."""
-    tetrahedral: tuple[tuple[int, int, tuple[int, ...]], ...]
-    """(element position, centre atom, neighbours in bond order) of each tetrahedral element."""
-    double: tuple[tuple[int, int, int, int, int], ...]
-    """(element position, end u, end w, reference atom on u, reference atom on w) of each double bond."""
+    parts: ElementParts
+    """Where each element sits (:func:`element_parts`)."""
 
 
-def _cumulated(atom: Chem.Atom) -> bool:
+def cumulated(atom: Chem.Atom) -> bool:
+    """True for the middle atom of an allene-like C=C=C (two double bonds)."""
     return sum(b.GetBondType() == Chem.BondType.DOUBLE for b in atom.GetBonds()) > 1
 
 
-def orbit_job(product: Chem.Mol, elements: Sequence[tuple], symmetries: np.ndarray) -> OrbitJob | None:
-    """The job for ``product`` (``elements``: (type, centred-on index, controlling atoms) of each, all open).
+def bond_neighbours(mol: Chem.Mol, idx: int) -> list[int]:
+    """Neighbours of an atom in bond order: the order an RDKit tetrahedral tag refers to."""
+    return [b.GetOtherAtomIdx(idx) for b in mol.GetAtomWithIdx(idx).GetBonds()]
 
-    None where the reference hands the product to enumeration before looking at any
-    automorphism: an element of another kind, an allene, or a double bond whose reference
-    atoms are not bonded to its ends.
+
+def element_parts(product: Chem.Mol, elements: Sequence[tuple]) -> ElementParts | None:
+    """The parts of ``elements`` ((type, centred-on index, controlling atoms) of each, all open).
+
+    None where a count by orbits cannot follow an element and enumeration decides instead:
+    an element of another kind, an allene, or a double bond whose reference atoms are not
+    bonded to its ends. Shared by the array count and the per-product reference.
     """
     tetrahedral: list[tuple[int, int, tuple[int, ...]]] = []
     double: list[tuple[int, int, int, int, int]] = []
     for pos, (kind, centre, controlling) in enumerate(elements):
         if kind == _TETRAHEDRAL:
-            atom = product.GetAtomWithIdx(centre)
-            tetrahedral.append((pos, centre, tuple(b.GetOtherAtomIdx(centre) for b in atom.GetBonds())))
+            tetrahedral.append((pos, centre, tuple(bond_neighbours(product, centre))))
         elif kind == _DOUBLE_BOND and len(controlling) == 4:
             bond = product.GetBondWithIdx(centre)
             u, w = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
             ref_u, ref_w = controlling[0], controlling[2]
-            if _cumulated(product.GetAtomWithIdx(u)) or _cumulated(product.GetAtomWithIdx(w)):
+            if cumulated(product.GetAtomWithIdx(u)) or cumulated(product.GetAtomWithIdx(w)):
                 return None  # allenes: axial stereo
             if product.GetBondBetweenAtoms(u, ref_u) is None or product.GetBondBetweenAtoms(w, ref_w) is None:
                 return None
             double.append((pos, u, w, ref_u, ref_w))
         else:
             return None
-    return OrbitJob(symmetries, product.GetNumAtoms() - 1, len(elements), tuple(tetrahedral), tuple(double))
+    return ElementParts(tuple(tetrahedral), tuple(double))
+
+
+def orbit_job(product: Chem.Mol, elements: Sequence[tuple], symmetries: np.ndarray) -> OrbitJob | None:
+    """The job for ``product`` (``elements`` as for :func:`element_parts`; None where that gives None)."""
+    parts = element_parts(product, elements)
+    if parts is None:
+        return None
+    return OrbitJob(symmetries, product.GetNumAtoms() - 1, len(elements), parts)
 
 
 @dataclass(frozen=True)
@@ -131,9 +152,9 @@ def _count_pass(jobs: Sequence[OrbitJob]) -> list[OrbitCount | None]:
     double_rows: list[tuple[int, int, int, int, int, int]] = []  # element, job, u, w, ref_u, ref_w
     offsets = elem_base.tolist()
     for j, job in enumerate(jobs):
-        for pos, centre, nbrs in job.tetrahedral:
+        for pos, centre, nbrs in job.parts.tetrahedral:
             tetra_rows.append((offsets[j] + pos, j, centre, *nbrs, *(-1,) * (4 - len(nbrs))))
-        for pos, u, w, ref_u, ref_w in job.double:
+        for pos, u, w, ref_u, ref_w in job.parts.double:
             double_rows.append((offsets[j] + pos, j, u, w, ref_u, ref_w))
     tetra = np.zeros(n_elem, dtype=bool)
     nbr_atom = np.full((n_elem, 4), -2, dtype=np.int64)  # -2 never equals an image (atoms are ≥ 0)

@@ -12,7 +12,15 @@ from functools import lru_cache
 from typing import Any
 
 import numpy as np
-from halosift.engine.orbit_counts import OrbitCount, OrbitJob, count_orbits, orbit_job
+from halosift.engine.orbit_counts import (
+    OrbitCount,
+    OrbitJob,
+    bond_neighbours,
+    count_orbits,
+    cumulated,
+    element_parts,
+    orbit_job,
+)
 from rdkit import Chem
 from rdkit.Chem import rdDistGeom
 
@@ -224,11 +232,6 @@ def _triple(u: Vec, v: Vec, w: Vec) -> float:
     return u[0] * (v[1] * w[2] - v[2] * w[1]) + u[1] * (v[2] * w[0] - v[0] * w[2]) + u[2] * (v[0] * w[1] - v[1] * w[0])
 
 
-def _neighbours(mol: Chem.Mol, idx: int) -> list[int]:
-    """Neighbours of an atom in bond order: the order an RDKit tetrahedral tag refers to."""
-    return [b.GetOtherAtomIdx(idx) for b in mol.GetAtomWithIdx(idx).GetBonds()]
-
-
 def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, Vec]) -> Chem.ChiralType | None:
     """RDKit tag of atom ``idx`` from 3D positions of (at least three of) its neighbours.
 
@@ -238,7 +241,7 @@ def _tag_from_positions(mol: Chem.Mol, idx: int, position: dict[int, Vec]) -> Ch
     or H) is placed opposite the mean direction of the others. Plain floats:
     numpy on 3-vectors costs more in call overhead than the arithmetic.
     """
-    nbrs = _neighbours(mol, idx)
+    nbrs = bond_neighbours(mol, idx)
     slots = nbrs + [None] * mol.GetAtomWithIdx(idx).GetTotalNumHs()
     if len(slots) != 4 or idx not in position:
         return None
@@ -368,7 +371,7 @@ def _independent(product: Chem.Mol, elements: list, symmetries: Symmetries | Non
         elif e.type == _DOUBLE_BOND:
             bond = product.GetBondWithIdx(e.centeredOn)
             centres = [bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()]
-            if any(_cumulated(product.GetAtomWithIdx(c)) for c in centres):
+            if any(cumulated(product.GetAtomWithIdx(c)) for c in centres):
                 return False  # allenes: axial, not E/Z, stereo — leave to enumeration
         else:
             return False
@@ -395,10 +398,6 @@ _ACHIRAL = StereoOutcome("achiral", 1, 1)
 #: The stereo columns of a product not analysed: never formed (vinyl, aryl, alkynyl C–H), or not
 #: a possible major in a screen (empty outcome, zero counts).
 NOT_ANALYSED = StereoOutcome("", 0, 0)
-
-
-def _cumulated(atom: Chem.Atom) -> bool:
-    return sum(b.GetBondType() == Chem.BondType.DOUBLE for b in atom.GetBonds()) > 1
 
 
 def fixes_handedness(elements: list) -> bool:
@@ -479,28 +478,15 @@ def _signed_actions(
     element is not of these two kinds (then enumeration decides).
     """
     n_substrate = product.GetNumAtoms() - 1  # the halogen is the last atom; automorphisms fix it
-    keys: dict[tuple[str, int], int] = {}
-    parts: list[tuple] = []
-    nbrs_of: dict[int, list[int]] = {}
-    for pos, (kind, centre, controlling) in enumerate(elements):
-        if kind == _TETRAHEDRAL:
-            keys[("t", centre)] = pos
-            nbrs_of[centre] = _neighbours(product, centre)
-            parts.append(("t", centre))
-        elif kind == _DOUBLE_BOND and len(controlling) == 4:
-            bond = product.GetBondWithIdx(centre)
-            u, w = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
-            ref_u, ref_w = controlling[0], controlling[2]
-            if _cumulated(product.GetAtomWithIdx(u)) or _cumulated(product.GetAtomWithIdx(w)):
-                return None  # allenes: axial stereo
-            if product.GetBondBetweenAtoms(u, ref_u) is None or product.GetBondBetweenAtoms(w, ref_w) is None:
-                return None
-            keys[("d", centre)] = pos
-            parts.append(("d", u, w, ref_u, ref_w))
-        else:
-            return None
-    ends = {(min(part[1], part[2]), max(part[1], part[2])): (keys[("d", elements[pos][1])], part)
-            for pos, part in enumerate(parts) if part[0] == "d"}
+    found = element_parts(product, elements)
+    if found is None:
+        return None
+    keys = {("t", centre): pos for pos, centre, _ in found.tetrahedral}
+    nbrs_of = {centre: list(nbrs) for _, centre, nbrs in found.tetrahedral}
+    by_position: dict[int, tuple] = {pos: ("t", centre) for pos, centre, _ in found.tetrahedral}
+    by_position.update({pos: ("d", u, w, ref_u, ref_w) for pos, u, w, ref_u, ref_w in found.double})
+    parts = [by_position[pos] for pos in range(len(elements))]
+    ends = {(min(u, w), max(u, w)): (pos, ("d", u, w, ref_u, ref_w)) for pos, u, w, ref_u, ref_w in found.double}
     relevant = sorted({a for part in parts for a in part[1:]} | {n for nbrs in nbrs_of.values() for n in nbrs})
     relevant = [a for a in relevant if a < n_substrate]
     restrict = operator.itemgetter(*relevant, relevant[0])  # a trailing repeat keeps one atom a tuple too

@@ -264,13 +264,13 @@ def _finish(
                 st.approximate,
             )
         )
-    if waiting and (detail or pending is None):
+    mine: list[_Waiting] = [(rows, r, p) for r, p in waiting]
+    if mine and (detail or pending is None):
         # The NBS rows reuse these outcomes (detail), or no batch gathers the counts: count them now.
-        for (r, _), st in zip(waiting, resolve_pending([p for _, p in waiting])):
-            rows[r] = _with_stereo(rows[r], st)
+        for (_, r, _), st in zip(mine, _resolve(mine)):
             outcomes[r] = st
-    elif waiting:
-        pending.extend((rows, r, p) for r, p in waiting)  # type: ignore[union-attr]  # checked above
+    elif mine:
+        pending.extend(mine)  # type: ignore[union-attr]  # checked above
     abstractable_h = sum(group.h_count for group in groups if group.site in _ABSTRACTABLE)
     allylic = allylic_rows(mol, groups, specified, skeleton, outcomes if detail else None, stereo=detail, facts=nbs)
     return ("ok", "", "", canonical, abstractable_h, mol.GetNumHeavyAtoms(), flags), rows, allylic
@@ -285,10 +285,13 @@ def _with_stereo(row: tuple, st: StereoOutcome) -> tuple:
     return (*row[:-4], st.outcome, st.n_stereoisomers, st.n_diastereomers, st.approximate)
 
 
-def _resolve(waiting: list[_Waiting]) -> None:
-    """Count every waiting row of a batch at once and fill in its stereo columns."""
-    for (rows, r, _), st in zip(waiting, resolve_pending([p for _, _, p in waiting])):
+def _resolve(waiting: list[_Waiting]) -> list[StereoOutcome]:
+    """Count every waiting row at once (a batch's, or one structure's), fill in its stereo columns,
+    and give the outcomes in order."""
+    outcomes = resolve_pending([p for _, _, p in waiting])
+    for (rows, r, _), st in zip(waiting, outcomes):
         rows[r] = _with_stereo(rows[r], st)
+    return outcomes
 
 
 def perceive(

@@ -9,7 +9,7 @@ from collections import Counter
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import Any
+from typing import Any, Literal
 
 import numpy as np
 from halosift.engine.orbit_counts import (
@@ -728,7 +728,7 @@ def resolve_pending(pending: list[PendingStereo]) -> list[StereoOutcome]:
 
 
 def _outcome(
-    products: list[Chem.Mol], skeleton: Skeleton, symmetries: Symmetries | None, orbits: str
+    products: list[Chem.Mol], skeleton: Skeleton, symmetries: Symmetries | None, orbits: Literal["now", "later", "never"]
 ) -> StereoOutcome | OrbitJob:
     """Stereoisomers formed when H is replaced at one or more equivalent carbons.
 

@@ -18,7 +18,7 @@ from halosift.engine.site_classes import SITE_CLASSES, SITE_CODE
 from rdkit import Chem
 
 #: Bond orders as :func:`rdkit.Chem.GetAdjacencyMatrix` writes them with ``useBO=True``.
-_SINGLE, _AROMATIC, _DOUBLE, _TRIPLE = 1.0, 1.5, 2.0, 3.0
+SINGLE, AROMATIC, DOUBLE, TRIPLE = 1.0, 1.5, 2.0, 3.0
 
 #: Kernel categories of an H-bearing atom, before the per-molecule overrides (bridgehead, norbornyl).
 NO_H, ARYL, ALKYNYL, VINYL, METHANE, CYCLOPROPYL, OTHER = range(7)
@@ -89,6 +89,10 @@ class BatchSites:
     """Directed bonds: end atom, a flat index."""
     bond_order: np.ndarray
     """Directed bonds: order 1, 1.5, 2 or 3."""
+    degree: np.ndarray
+    """Per atom: heavy-atom neighbours."""
+    aromatic: np.ndarray
+    """Per atom: carries an aromatic bond (for hydrocarbons, exactly the aromatic atoms)."""
 
 
 def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size: int) -> BatchSites:
@@ -115,9 +119,9 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
     mol_of_bond = np.repeat(np.arange(n_mol), n_bonds)
     degree = np.bincount(src, minlength=total)
     # Hydrocarbon atoms are aromatic exactly when they carry an aromatic bond.
-    aromatic = np.bincount(src[o == _AROMATIC], minlength=total) > 0
-    has_double = np.bincount(src[o == _DOUBLE], minlength=total) > 0
-    has_triple = np.bincount(src[o == _TRIPLE], minlength=total) > 0
+    aromatic = np.bincount(src[o == AROMATIC], minlength=total) > 0
+    has_double = np.bincount(src[o == DOUBLE], minlength=total) > 0
+    has_triple = np.bincount(src[o == TRIPLE], minlength=total) > 0
     ring_atoms = [i for p in parts for ring in p.rings for i in ring]
     ring_sizes = [len(ring) for p in parts for ring in p.rings for _ in ring]
     ring_mol = [m for m, p in enumerate(parts) for ring in p.rings for _ in ring]
@@ -135,7 +139,7 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
     aliphatic = ~aromatic
     sp3 = aliphatic & (degree + h == 4)  # 'CX4': four connections counting hydrogens
     abstractable = sp3 & has_h
-    single = o == _SINGLE
+    single = o == SINGLE
     # '[CX4;!H0]-[A]=*', '-a', '-[A]#*': a single bond to such a neighbour.
     allylic = np.bincount(src[single & aliphatic[dst] & has_double[dst]], minlength=total) > 0
     benzylic = np.bincount(src[single & aromatic[dst]], minlength=total) > 0
@@ -168,8 +172,8 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
         category=category,
         code=code,
         junction=abstractable & (n_rings >= 2),
-        alkene=np.bincount(mol_of_bond[o == _DOUBLE], minlength=n_mol) > 0,
-        alkyne=np.bincount(mol_of_bond[o == _TRIPLE], minlength=n_mol) > 0,
+        alkene=np.bincount(mol_of_bond[o == DOUBLE], minlength=n_mol) > 0,
+        alkyne=np.bincount(mol_of_bond[o == TRIPLE], minlength=n_mol) > 0,
         propargylic=per_mol(abstractable & propargylic),
         cyclopropane=np.bincount(ring_mol_arr[sizes == 3], minlength=n_mol) > 0,
         cyclopropylmethyl=per_mol(np.bincount(src[cpm_bond], minlength=total) > 0),
@@ -178,6 +182,8 @@ def classify(parts: Sequence[MolArrays], n_atoms: Sequence[int], small_ring_size
         src=src,
         dst=dst,
         bond_order=o,
+        degree=degree,
+        aromatic=aromatic,
     )
 
 

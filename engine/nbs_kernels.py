@@ -21,11 +21,10 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from halosift.engine.kernels import BatchSites
+from halosift.engine.kernels import DOUBLE, SINGLE, BatchSites
 from halosift.engine.site_classes import SITE_CODE
 from rdkit import Chem
 
-_SINGLE, _AROMATIC, _DOUBLE = 1.0, 1.5, 2.0
 #: Radical class code of (kind, alkyl substituents on the termini capped at 2); kind 1 allylic, 2 benzylic.
 _RADICAL_CODE = np.array(
     [[-1, -1, -1]] + [[SITE_CODE[f"{k}-{d}"] for d in ("primary", "secondary", "tertiary")]
@@ -117,9 +116,8 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
         none = np.zeros(0, dtype=np.int64)
         return NbsBatch(np.full(total, -1, dtype=np.int16), np.zeros(total + 1, dtype=np.int64),
                         none, none, none, none, none, none)
-    degree = np.bincount(src, minlength=total)
-    aromatic = np.bincount(src[o == _AROMATIC], minlength=total) > 0
-    multiple = o != _SINGLE
+    degree, aromatic = batch.degree, batch.aromatic
+    multiple = o != SINGLE
     n_multiple = np.bincount(src[multiple], minlength=total)
     sp3_carbon = ~aromatic & (n_multiple == 0)
     # pi[e] is _pi_bonds(dst[e], skip=src[e]).
@@ -134,7 +132,7 @@ def nbs_facts(batch: BatchSites, mols: Sequence[Chem.Mol]) -> NbsBatch:
 
     # radical_class. An allylic or benzylic atom a is sp3 (all its bonds single), so no double bond of
     # its π neighbour b leads back to a, and b (single-bonded to a) has at most one double bond.
-    dbl = np.flatnonzero(o == _DOUBLE)
+    dbl = np.flatnonzero(o == DOUBLE)
     b_of, c_of = src[dbl], dst[dbl]
     far_alkyl = np.bincount(b_of, weights=sp3_sum[c_of] - sp3_carbon[b_of], minlength=total)
     far_conj = np.bincount(b_of[beyond[rev[dbl]]], minlength=total) > 0
